@@ -1,0 +1,5 @@
+export * from './schemas/common';
+export * from './schemas/auth';
+export * from './schemas/users';
+export * from './schemas/audit';
+export * from './schemas/ingest';
