@@ -1,0 +1,6 @@
+import { lazyNamed, type AppRoute } from './lazy';
+
+// Each feature's screens load on first visit, so the plot library only ships to those who plot.
+export const routes: AppRoute[] = [
+  { path: '/', permission: 'overview', component: lazyNamed(() => import('@/features/overview/routes/overview'), 'OverviewRoute') },
+];

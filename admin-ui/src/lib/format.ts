@@ -1,0 +1,39 @@
+/** Formatting shared by every screen, so a time or a percentage reads the same everywhere. */
+const dateTime = new Intl.DateTimeFormat('en-GB', {
+  year: 'numeric', month: 'short', day: '2-digit', hour: '2-digit', minute: '2-digit', second: '2-digit', hour12: false,
+});
+
+export function formatDateTime(iso: string | null | undefined): string {
+  if (!iso) return '—';
+  const d = new Date(iso);
+  return Number.isNaN(d.getTime()) ? iso : dateTime.format(d);
+}
+
+export function formatNumber(v: number | null | undefined, digits = 1): string {
+  if (v === null || v === undefined || !Number.isFinite(v)) return '—';
+  return v.toFixed(digits);
+}
+
+export function formatValue(v: number | null | undefined, unit: string, digits = 1): string {
+  if (v === null || v === undefined || !Number.isFinite(v)) return '—';
+  return unit === '%' ? `${v.toFixed(digits)} %` : `${v.toFixed(digits)} ${unit}`;
+}
+
+export function formatBytes(n: number | null | undefined): string {
+  if (n === null || n === undefined) return '—';
+  if (n < 1024) return `${n} B`;
+  if (n < 1024 * 1024) return `${(n / 1024).toFixed(1)} KiB`;
+  return `${(n / 1024 / 1024).toFixed(1)} MiB`;
+}
+
+/** `datetime-local` input value → ISO with offset (what the list endpoints accept). */
+export function localInputToIso(v: string | undefined): string | undefined {
+  if (!v) return undefined;
+  const d = new Date(v);
+  return Number.isNaN(d.getTime()) ? undefined : d.toISOString();
+}
+
+export function humanize(code: string): string {
+  const s = code.replace(/[-_]/g, ' ');
+  return s.charAt(0).toUpperCase() + s.slice(1);
+}
