@@ -3,4 +3,6 @@ import { lazyNamed, type AppRoute } from './lazy';
 // Each feature's screens load on first visit, so the plot library only ships to those who plot.
 export const routes: AppRoute[] = [
   { path: '/', permission: 'overview', component: lazyNamed(() => import('@/features/overview/routes/overview'), 'OverviewRoute') },
+  { path: '/users', permission: 'users', component: lazyNamed(() => import('@/features/users/routes/users'), 'UsersRoute') },
+  { path: '/audit', permission: 'audit', component: lazyNamed(() => import('@/features/audit/routes/audit'), 'AuditRoute') },
 ];
