@@ -1,0 +1,18 @@
+import type { Role } from '@ebbgate/shared';
+
+export type Principal =
+  | { kind: 'user'; userId: string; username: string; displayName: string; roles: Role[]; sessionId: string }
+  | { kind: 'device'; keyId: string; monitorId: string; monitorIdentifier: string };
+
+declare module 'express-serve-static-core' {
+  interface Request {
+    principal?: Principal;
+  }
+}
+
+/** Who did it, as the audit log records it. */
+export function actorOf(principal: Principal | undefined): { actorType: 'user' | 'device' | 'system'; actorId: string | null; actorName: string | null } {
+  if (!principal) return { actorType: 'system', actorId: null, actorName: null };
+  if (principal.kind === 'user') return { actorType: 'user', actorId: principal.userId, actorName: principal.username };
+  return { actorType: 'device', actorId: principal.keyId, actorName: principal.monitorIdentifier };
+}

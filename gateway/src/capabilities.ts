@@ -1,0 +1,32 @@
+/**
+ * The gateway's capabilities, composed in one place: each contributes routers (under /api/v1),
+ * readiness checks, and background services (workers, listeners) with start/stop.
+ */
+import type { Router } from 'express';
+import type { AppContext } from './app-context';
+import { auditRouter } from './audit/audit.router';
+import { authRouter } from './auth/auth.router';
+import type { ReadinessCheck } from './http/app';
+import type { Metrics } from './http/metrics';
+import { usersRouter } from './users/users.router';
+
+export interface BackgroundService {
+  name: string;
+  start(): Promise<void>;
+  /** Finish in-flight work, then stop. */
+  stop(): Promise<void>;
+}
+
+export interface Capabilities {
+  routers: Router[];
+  readiness: ReadinessCheck[];
+  services: BackgroundService[];
+}
+
+export function buildCapabilities(ctx: AppContext, _metrics: Metrics): Capabilities {
+  return {
+    routers: [authRouter(ctx), usersRouter(ctx), auditRouter(ctx)],
+    readiness: [],
+    services: [],
+  };
+}

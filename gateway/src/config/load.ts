@@ -1,0 +1,95 @@
+import { readFileSync } from 'node:fs';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { configSchema, type Config } from './schema';
+
+export const repoRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../../..');
+
+export class ConfigError extends Error {
+  override name = 'ConfigError';
+}
+
+type Json = Record<string, unknown>;
+
+/** Environment variables the gateway understands, and where each lands in the config. */
+const ENV_MAP: Record<string, { path: string; type: 'string' | 'number' | 'boolean' }> = {
+  DATABASE_URL: { path: 'database.url', type: 'string' },
+  EBBGATE_HOST: { path: 'gateway.host', type: 'string' },
+  EBBGATE_PORT: { path: 'gateway.port', type: 'number' },
+  EBBGATE_PUBLIC_URL: { path: 'gateway.publicUrl', type: 'string' },
+  EBBGATE_JWT_SECRET: { path: 'auth.jwtSecret', type: 'string' },
+  EBBGATE_LOG_LEVEL: { path: 'log.level', type: 'string' },
+  EBBGATE_MLLP_PORT: { path: 'mllp.port', type: 'number' },
+  EBBGATE_MLLP_ENABLED: { path: 'mllp.enabled', type: 'boolean' },
+  EBBGATE_EHR_FHIR_URL: { path: 'ehr.fhirBaseUrl', type: 'string' },
+  EBBGATE_EHR_TOKEN_URL: { path: 'ehr.tokenUrl', type: 'string' },
+  EBBGATE_EHR_CLIENT_ID: { path: 'ehr.clientId', type: 'string' },
+  EBBGATE_EHR_CLIENT_SECRET: { path: 'ehr.clientSecret', type: 'string' },
+  EBBGATE_SMTP_PORT: { path: 'mail.smtpPort', type: 'number' },
+  EBBGATE_WORKERS: { path: 'workers.enabled', type: 'boolean' },
+  EBBGATE_MIGRATE_ON_START: { path: 'gateway.migrateOnStart', type: 'boolean' },
+  EBBGATE_SEED_DEMO: { path: 'gateway.seedDemo', type: 'boolean' },
+};
+
+function setPath(target: Json, dotted: string, value: unknown): void {
+  const keys = dotted.split('.');
+  let node = target;
+  for (const key of keys.slice(0, -1)) {
+    if (typeof node[key] !== 'object' || node[key] === null) node[key] = {};
+    node = node[key] as Json;
+  }
+  node[keys[keys.length - 1] as string] = value;
+}
+
+function deepMerge(base: Json, over: Json): Json {
+  const out: Json = { ...base };
+  for (const [k, v] of Object.entries(over)) {
+    const b = out[k];
+    out[k] =
+      v && typeof v === 'object' && !Array.isArray(v) && b && typeof b === 'object' && !Array.isArray(b)
+        ? deepMerge(b as Json, v as Json)
+        : v;
+  }
+  return out;
+}
+
+function parseEnvValue(name: string, raw: string, type: 'string' | 'number' | 'boolean'): unknown {
+  if (type === 'string') return raw;
+  if (type === 'number') {
+    const n = Number(raw);
+    if (!Number.isFinite(n)) throw new ConfigError(`${name}: expected a number, got "${raw}"`);
+    return n;
+  }
+  if (raw === 'true' || raw === '1') return true;
+  if (raw === 'false' || raw === '0') return false;
+  throw new ConfigError(`${name}: expected true or false, got "${raw}"`);
+}
+
+/**
+ * Builds the config: config/default.json, then the file named by EBBGATE_CONFIG (if any), then
+ * the environment, then `overrides` (tests). Throws a ConfigError naming every bad value.
+ */
+export function loadConfig(env: NodeJS.ProcessEnv = process.env, overrides: Json = {}): Config {
+  let raw = JSON.parse(readFileSync(path.join(repoRoot, 'config/default.json'), 'utf8')) as Json;
+  if (env.EBBGATE_CONFIG) raw = deepMerge(raw, JSON.parse(readFileSync(env.EBBGATE_CONFIG, 'utf8')) as Json);
+  const fromEnv: Json = {};
+  for (const [name, target] of Object.entries(ENV_MAP)) {
+    const value = env[name];
+    if (value !== undefined && value !== '') setPath(fromEnv, target.path, parseEnvValue(name, value, target.type));
+  }
+  raw = deepMerge(raw, fromEnv);
+  raw = deepMerge(raw, overrides);
+  raw.env = env.NODE_ENV === 'production' ? 'production' : env.NODE_ENV === 'test' ? 'test' : 'development';
+
+  const parsed = configSchema.safeParse(raw);
+  if (!parsed.success) {
+    const lines = parsed.error.issues.map((i) => `  ${i.path.join('.') || '(root)'}: ${i.message}`);
+    throw new ConfigError(`invalid configuration:\n${lines.join('\n')}`);
+  }
+  consoleDirAbsolute(parsed.data);
+  return Object.freeze(parsed.data);
+}
+
+function consoleDirAbsolute(config: Config): void {
+  if (!path.isAbsolute(config.gateway.consoleDir)) config.gateway.consoleDir = path.join(repoRoot, config.gateway.consoleDir);
+}

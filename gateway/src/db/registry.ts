@@ -1,0 +1,12 @@
+/**
+ * Every entity and migration of the gateway, listed explicitly (no globbing, so tsx, vitest and
+ * a compiled build all load the same set). Add a capability's rows and migrations here.
+ */
+import { AuditEntryRow } from '../audit/audit-entry.entity';
+import { BedRow, DeviceKeyRow, MonitorProfileRow, MonitorRow } from '../devices/device.entities';
+import { UserRow, UserSessionRow } from '../users/user.entity';
+import { Foundation1764600000000 } from './migrations/1764600000000-foundation';
+
+export const ENTITIES = [UserRow, UserSessionRow, AuditEntryRow, MonitorProfileRow, BedRow, MonitorRow, DeviceKeyRow];
+
+export const MIGRATIONS = [Foundation1764600000000];

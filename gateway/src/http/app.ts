@@ -1,0 +1,118 @@
+import { existsSync } from 'node:fs';
+import path from 'node:path';
+import cookieParser from 'cookie-parser';
+import express, { type Express, type RequestHandler, type Router } from 'express';
+import helmet from 'helmet';
+import type { AppContext } from '../app-context';
+import { authenticate } from '../auth/auth.middleware';
+import { API_PAGE_CSS, buildOpenApi, renderApiPage } from './openapi';
+import { createMetrics, type Metrics } from './metrics';
+import { HttpProblem, notFoundHandler, problemHandler } from './problem';
+import { httpLogger } from './logger';
+
+export const GATEWAY_VERSION = '0.1.0';
+
+export interface ReadinessCheck {
+  name: string;
+  /** A failing critical check makes /readyz answer 503. */
+  critical: boolean;
+  check: () => Promise<void>;
+}
+
+export interface AppParts {
+  /** Routers mounted under /api/v1, in order. */
+  routers: Router[];
+  readiness?: ReadinessCheck[];
+  metrics?: Metrics;
+}
+
+/** Strict CSP the console lives with: everything from our own origin, nothing inline. */
+const CSP = {
+  useDefaults: false,
+  directives: {
+    defaultSrc: ["'self'"],
+    scriptSrc: ["'self'"],
+    styleSrc: ["'self'"],
+    imgSrc: ["'self'", 'data:', 'blob:'],
+    fontSrc: ["'self'"],
+    connectSrc: ["'self'"],
+    objectSrc: ["'none'"],
+    baseUri: ["'none'"],
+    formAction: ["'self'"],
+    frameAncestors: ["'none'"],
+  },
+};
+
+/** JSON bodies only, except where a route declares otherwise (multipart uploads). */
+const requireJsonBody: RequestHandler = (req, _res, next) => {
+  const hasBody = Number(req.headers['content-length'] ?? 0) > 0 || req.headers['transfer-encoding'] !== undefined;
+  if (!hasBody || ['GET', 'HEAD', 'DELETE', 'OPTIONS'].includes(req.method)) return next();
+  if (req.is('application/json') || req.is('multipart/form-data')) return next();
+  next(new HttpProblem(415, 'Unsupported media type', `Send application/json (got ${req.headers['content-type'] ?? 'no content type'}).`));
+};
+
+export function createApp(ctx: AppContext, parts: AppParts): Express {
+  const app = express();
+  const metrics = parts.metrics ?? createMetrics();
+  app.disable('x-powered-by');
+  app.set('trust proxy', 'loopback');
+  app.use(helmet({ contentSecurityPolicy: CSP, crossOriginEmbedderPolicy: false }));
+  app.use(httpLogger(ctx.logger));
+  app.use(metrics.middleware);
+
+  app.get('/healthz', (_req, res) => res.json({ status: 'alive', version: GATEWAY_VERSION }));
+  app.get('/readyz', async (_req, res) => {
+    const checks: ReadinessCheck[] = [
+      { name: 'database', critical: true, check: async () => void (await ctx.ds.query('SELECT 1')) },
+      ...(parts.readiness ?? []),
+    ];
+    const results = await Promise.all(
+      checks.map(async (c) => {
+        try {
+          await c.check();
+          return { name: c.name, critical: c.critical, ok: true };
+        } catch (err) {
+          return { name: c.name, critical: c.critical, ok: false, error: (err as Error).message };
+        }
+      }),
+    );
+    const ready = results.every((r) => r.ok || !r.critical);
+    res.status(ready ? 200 : 503).json({ status: ready ? 'ready' : 'not-ready', checks: results });
+  });
+  app.get('/metrics', async (_req, res) => {
+    res.type(metrics.registry.contentType).send(await metrics.registry.metrics());
+  });
+
+  const api = express.Router();
+  api.use(requireJsonBody);
+  api.use(express.json({ limit: ctx.config.gateway.jsonBodyLimit }));
+  api.use(cookieParser());
+  api.use(authenticate(ctx));
+  for (const r of parts.routers) api.use(r);
+  api.get('/openapi.json', (_req, res) => res.json(buildOpenApi(GATEWAY_VERSION)));
+  api.use(notFoundHandler);
+  app.use('/api/v1', api);
+  app.get('/api/docs', (_req, res) => res.type('html').send(renderApiPage(buildOpenApi(GATEWAY_VERSION))));
+  app.get('/api/docs.css', (_req, res) => res.type('css').send(API_PAGE_CSS));
+
+  mountConsole(app, ctx.config.gateway.consoleDir);
+  app.use(problemHandler(ctx.logger));
+  return app;
+}
+
+/** Serves the built console, with client-side routes falling back to index.html. */
+function mountConsole(app: Express, dir: string): void {
+  const index = path.join(dir, 'index.html');
+  if (existsSync(index)) {
+    app.use(express.static(dir, { index: false, maxAge: '1h', setHeaders: (res, file) => file.endsWith('.html') && res.setHeader('Cache-Control', 'no-store') }));
+    app.get(/^\/(?!api\/|healthz|readyz|metrics).*/, (_req, res) => res.sendFile(index));
+    return;
+  }
+  app.get('/', (_req, res) =>
+    res
+      .type('html')
+      .send(
+        '<!doctype html><html lang="en"><head><meta charset="utf-8"><title>Ebbgate</title></head><body><h1>Ebbgate gateway</h1><p>The console is not built yet (<code>npm run build -w admin-ui</code>). The API is at <a href="/api/docs">/api/docs</a>.</p></body></html>',
+      ),
+  );
+}

@@ -1,0 +1,81 @@
+import type { Server } from 'node:http';
+import type { Logger } from 'pino';
+import type { DataSource } from 'typeorm';
+import type { AppContext } from './app-context';
+import { buildCapabilities } from './capabilities';
+import type { Config } from './config/schema';
+import { createDataSource, migrate } from './db/data-source';
+import { createApp } from './http/app';
+import { createLogger } from './http/logger';
+import { createMetrics } from './http/metrics';
+import { seedDemoUsers, unchangedDemoCredentials } from './seed/demo-users';
+
+export interface GatewayOptions {
+  config: Config;
+  logger?: Logger;
+  /** Apply pending migrations at start (development and tests; production runs db:migrate). */
+  migrate?: boolean;
+  seedDemo?: boolean;
+  /** Start workers and listeners (default: config.workers.enabled). */
+  services?: boolean;
+}
+
+export interface RunningGateway {
+  ctx: AppContext;
+  server: Server;
+  url: string;
+  stop(): Promise<void>;
+}
+
+export class StartupRefused extends Error {
+  override name = 'StartupRefused';
+}
+
+/** Opens the database, checks it, builds the app and listens; `stop()` drains and closes. */
+export async function startGateway(opts: GatewayOptions): Promise<RunningGateway> {
+  const { config } = opts;
+  const logger = opts.logger ?? createLogger(config.log.level);
+  const ds: DataSource = await createDataSource(config.database.url, config.database.poolSize).initialize();
+  try {
+    if (opts.migrate) await migrate(ds);
+    if (opts.seedDemo) await seedDemoUsers(ds);
+    if (config.env === 'production') {
+      const unchanged = await unchangedDemoCredentials(ds);
+      if (unchanged.length) {
+        throw new StartupRefused(`refusing to start in production: demo credentials unchanged for ${unchanged.join(', ')}; reset their passwords or disable them first`);
+      }
+    }
+  } catch (err) {
+    await ds.destroy();
+    throw err;
+  }
+  const ctx: AppContext = { config, ds, logger };
+  const metrics = createMetrics();
+  const caps = buildCapabilities(ctx, metrics);
+  const app = createApp(ctx, { routers: caps.routers, readiness: caps.readiness, metrics });
+  const server = await new Promise<Server>((resolve, reject) => {
+    const s = app.listen(config.gateway.port, config.gateway.host, (err?: Error) => (err ? reject(err) : resolve(s)));
+  });
+  server.keepAliveTimeout = 5_000;
+  const runServices = opts.services ?? config.workers.enabled;
+  if (runServices) for (const s of caps.services) await s.start();
+  const address = server.address();
+  const port = typeof address === 'object' && address ? address.port : config.gateway.port;
+  const url = `http://${config.gateway.host}:${port}`;
+  logger.info({ url }, 'gateway listening');
+
+  let stopping: Promise<void> | undefined;
+  const stop = () =>
+    (stopping ??= (async () => {
+      logger.info('gateway stopping: finishing in-flight requests');
+      const closed = new Promise<void>((resolve) => server.close(() => resolve()));
+      server.closeIdleConnections();
+      const force = setTimeout(() => server.closeAllConnections(), config.gateway.shutdownGraceMs);
+      if (runServices) for (const s of [...caps.services].reverse()) await s.stop().catch((err) => logger.error({ err, service: s.name }, 'service stop failed'));
+      await closed;
+      clearTimeout(force);
+      await ds.destroy();
+      logger.info('gateway stopped');
+    })());
+  return { ctx, server, url, stop };
+}
