@@ -2,11 +2,13 @@
  * Every entity and migration of the gateway, listed explicitly (no globbing, so tsx, vitest and
  * a compiled build all load the same set). Add a capability's rows and migrations here.
  */
+import { AssessmentRow } from '../assessments/assessment.entity';
 import { AuditEntryRow } from '../audit/audit-entry.entity';
 import { BedRow, DeviceKeyRow, MonitorProfileRow, MonitorRow } from '../devices/device.entities';
 import { UserRow, UserSessionRow } from '../users/user.entity';
 import { Foundation1764600000000 } from './migrations/1764600000000-foundation';
+import { Assessments1764650000000 } from './migrations/1764650000000-assessments';
 
-export const ENTITIES = [UserRow, UserSessionRow, AuditEntryRow, MonitorProfileRow, BedRow, MonitorRow, DeviceKeyRow];
+export const ENTITIES = [UserRow, UserSessionRow, AuditEntryRow, MonitorProfileRow, BedRow, MonitorRow, DeviceKeyRow, AssessmentRow];
 
-export const MIGRATIONS = [Foundation1764600000000];
+export const MIGRATIONS = [Foundation1764600000000, Assessments1764650000000];
