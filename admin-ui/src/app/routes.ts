@@ -5,4 +5,5 @@ export const routes: AppRoute[] = [
   { path: '/', permission: 'overview', component: lazyNamed(() => import('@/features/overview/routes/overview'), 'OverviewRoute') },
   { path: '/users', permission: 'users', component: lazyNamed(() => import('@/features/users/routes/users'), 'UsersRoute') },
   { path: '/audit', permission: 'audit', component: lazyNamed(() => import('@/features/audit/routes/audit'), 'AuditRoute') },
+  { path: '/test-bench', permission: 'testBench', component: lazyNamed(() => import('@/features/test-bench/routes/test-bench'), 'TestBenchRoute') },
 ];

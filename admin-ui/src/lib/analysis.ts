@@ -28,3 +28,6 @@ export interface PreviewResult {
   waveform: Waveform;
   analysis: AnalysisResult;
 }
+
+/** The cautions every result carries; shown even where a result has not loaded yet. */
+export { CAUTIONS } from '../../../shared/src/analysis/cautions';

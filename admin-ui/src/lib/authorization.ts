@@ -2,22 +2,26 @@ import type { Role } from '@ebbgate/shared';
 
 /**
  * What each role may see and do in the console. The gateway enforces the same rules; this only
- * keeps the console from offering what would be refused.
+ * keeps the console from offering what would be refused (mirrors gateway/src/auth/permissions.ts;
+ * devices are readable by all, but only shown to those who manage them).
  */
+const ALL: readonly Role[] = ['admin', 'integrator', 'reviewer', 'operator'];
 export const ACCESS = {
-  overview: ['admin', 'integrator', 'reviewer', 'operator'],
-  assessments: ['admin', 'integrator', 'reviewer', 'operator'],
+  overview: ALL,
+  assessments: ALL,
   markInError: ['reviewer'],
   testBench: ['integrator'],
   devices: ['integrator', 'admin'],
   manageDevices: ['integrator'],
-  deliveries: ['operator', 'admin'],
+  deliveries: ['operator', 'reviewer', 'admin'],
   manageDeliveries: ['operator'],
-  inbound: ['integrator', 'operator', 'admin'],
-  manageInbound: ['integrator', 'operator'],
+  manageDestinations: ['operator'],
+  inbound: ['integrator', 'operator'],
+  reprocessInbound: ['integrator'],
+  discardInbound: ['integrator', 'operator'],
   users: ['admin'],
   audit: ['admin'],
-  settings: ['admin', 'reviewer'],
+  settings: ALL,
   manageSettings: ['admin'],
 } as const satisfies Record<string, readonly Role[]>;
 

@@ -49,7 +49,7 @@ export function UsersRoute() {
     <>
       <PageHeader title="Users & roles" description="People who may use the console, and what each may do." actions={<Button variant="primary" onClick={() => setDialog({ kind: 'create' })}>New user</Button>} />
       <FilterBar onClear={list.clearFilters}>
-        <TextField label="Search" placeholder="user name or name" value={list.filters.q ?? ''} onChange={(e) => list.setFilter('q', e.target.value)} wrapClassName="w-64" />
+        <TextField label="Search" placeholder="user name or name" value={list.filters.search ?? ''} onChange={(e) => list.setFilter('search', e.target.value)} wrapClassName="w-64" />
       </FilterBar>
       <DataTable caption="Users" columns={columns} rows={users.data?.items} total={users.data?.total} rowId={(u) => u.id}
         params={list.params} onParamsChange={list.setParams} loading={users.isPending} fetching={users.isFetching} error={users.error} onRetry={() => users.refetch()}
