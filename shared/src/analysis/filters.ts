@@ -67,7 +67,7 @@ export function butterZpk(order: number, cutoff: number | [number, number], type
   const proto = buttap(order);
   let z: Complex[] = [];
   let p: Complex[];
-  let k = 1;
+  let k: number;
   if (type === 'lowpass') {
     const wo = warped[0];
     p = proto.map((q) => ({ re: q.re * wo, im: q.im * wo }));

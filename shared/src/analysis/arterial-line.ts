@@ -1,0 +1,52 @@
+import type { ConditionedChannel } from './conditioning';
+import { median } from './signal-utils';
+import type { ArterialLineReport, BeatSeries } from './types';
+
+/**
+ * Arterial-line checks (Gardner, Anesthesiology 1981; common practice): an over-damped line loses
+ * the dicrotic notch and slows the upstroke; a fast flush shows a plateau near the bag pressure.
+ */
+export function checkArterialLine(ch: ConditionedChannel, series: BeatSeries): ArterialLineReport {
+  const y = ch.smooth;
+  const fs = ch.fs;
+  const beats = series.beats;
+  let withNotch = 0;
+  let examined = 0;
+  const rises: number[] = [];
+  for (let k = 0; k + 1 < beats.length; k++) {
+    const b = beats[k];
+    if (!b.accepted) continue;
+    const next = beats[k + 1].footSample;
+    rises.push((b.peakSample - b.footSample) / fs);
+    const end = next - Math.round(0.15 * (next - b.footSample));
+    if (end - b.peakSample < 6) continue;
+    examined++;
+    // Notch: the falling slope relaxes and then steepens again (a local maximum of the derivative).
+    let steepest = 0;
+    for (let i = b.peakSample + 1; i < end; i++) steepest = Math.min(steepest, y[i] - y[i - 1]);
+    let found = false;
+    for (let i = b.peakSample + 3; i < end - 2 && !found; i++) {
+      const d0 = y[i - 1] - y[i - 2];
+      const d1 = y[i] - y[i - 1];
+      const d2 = y[i + 1] - y[i];
+      if (d1 > d0 && d1 >= d2 && d0 < 0) {
+        // confirm it is a real relaxation, not a wiggle: the slope must steepen again afterwards
+        let after = d1;
+        for (let q = i + 1; q < end; q++) after = Math.min(after, y[q] - y[q - 1]);
+        if (d1 - after > 0.05 * -steepest && d1 - d0 > 0.02 * -steepest) found = true;
+      }
+    }
+    if (found) withNotch++;
+  }
+  const notchFraction = examined ? withNotch / examined : null;
+  const rise = median(rises);
+  const dampingSuspected = notchFraction !== null && notchFraction < 0.3 && rise > 0.15;
+  let flushSuspected = false;
+  let run = 0;
+  const minRun = Math.round(0.3 * fs);
+  for (let i = 0; i < ch.raw.length && !flushSuspected; i++) {
+    run = ch.raw[i] > 250 ? run + 1 : 0;
+    if (run >= minRun) flushSuspected = true;
+  }
+  return { notchFraction, dampingSuspected, flushSuspected };
+}

@@ -1,0 +1,215 @@
+import type { BeatLandmarks } from './beats-abp';
+import type { ConditionedChannel } from './conditioning';
+import { finiteOrNull, median, overlapsAny } from './signal-utils';
+import type { AnalysisSettings, Beat, BeatRejectReason, BeatSeries, BeatSource } from './types';
+
+/** Beat series plus window-level rhythm facts the verdict needs. */
+export interface QualifiedBeats {
+  series: BeatSeries;
+  /** Fraction of beats whose interval departs from the local median (ectopic or irregular). */
+  irregularFraction: number;
+  ectopicCount: number;
+  /** Beats rejected for noise (slope rule) or shape (template). */
+  noisyCount: number;
+  clippedCount: number;
+}
+
+const add = (b: Beat, r: BeatRejectReason): void => {
+  if (!b.rejectReasons.includes(r)) b.rejectReasons.push(r);
+};
+
+/** Builds per-beat values (SBP/DBP/PP/MAP or amplitude/DC) from the landmarks. */
+function measure(ch: ConditionedChannel, lm: BeatLandmarks, source: BeatSource): Beat[] {
+  const y = ch.smooth;
+  const fs = ch.fs;
+  const beats: Beat[] = [];
+  const count = lm.foot.length;
+  for (let k = 0; k < count; k++) {
+    const f = lm.foot[k];
+    const p = lm.peak[k];
+    const end = k + 1 < count ? lm.foot[k + 1] : Math.min(y.length, f + (k > 0 ? f - lm.foot[k - 1] : Math.round(fs)));
+    let s = 0;
+    for (let i = f; i < end; i++) s += y[i];
+    const avg = end > f ? s / (end - f) : y[f];
+    const beat: Beat = {
+      n: k,
+      footSample: f,
+      footTime: f / fs,
+      peakSample: p,
+      peakTime: p / fs,
+      sbp: null,
+      dbp: null,
+      pp: null,
+      map: null,
+      amplitude: null,
+      dc: null,
+      ibi: k > 0 ? (f - lm.foot[k - 1]) / fs : null,
+      templateCorrelation: null,
+      accepted: true,
+      rejectReasons: [],
+    };
+    if (source === 'abp') {
+      beat.sbp = y[p];
+      beat.dbp = y[f];
+      beat.pp = y[p] - y[f];
+      beat.map = avg;
+    } else {
+      beat.amplitude = y[p] - y[f];
+      beat.dc = avg;
+    }
+    if (lm.edge[k] || (k + 1 >= count && end >= y.length)) add(beat, 'edge');
+    beats.push(beat);
+  }
+  return beats;
+}
+
+/** ABP beat abnormality rules (Sun, Reisner, Mark; Computers in Cardiology 2006). */
+function sunRules(beats: Beat[], ch: ConditionedChannel, lm: BeatLandmarks): void {
+  const fs = ch.fs;
+  const slopeScale = fs / 125; // the rule's −3 is per 8 ms sample at 125 Hz
+  for (let k = 0; k < beats.length; k++) {
+    const b = beats[k];
+    const sbp = b.sbp as number;
+    const dbp = b.dbp as number;
+    const pp = b.pp as number;
+    const map = b.map as number;
+    if (dbp < 20) add(b, 'dbp-low');
+    if (sbp > 300) add(b, 'sbp-high');
+    if (map < 30 || map > 200) add(b, 'map-out-of-range');
+    if (b.ibi !== null && (60 / b.ibi < 20 || 60 / b.ibi > 200)) add(b, 'hr-out-of-range');
+    if (pp < 20) add(b, 'pp-low');
+    if (k > 0) {
+      const prev = beats[k - 1];
+      if (Math.abs(sbp - (prev.sbp as number)) > 20) add(b, 'sbp-jump');
+      if (Math.abs(dbp - (prev.dbp as number)) > 20) add(b, 'dbp-jump');
+      if (b.ibi !== null && prev.ibi !== null && Math.abs(b.ibi - prev.ibi) > 0.5) add(b, 'period-jump');
+      if (Math.abs(ch.smooth[lm.onset[k]] - ch.smooth[lm.onset[k - 1]]) > 20) add(b, 'onset-jump');
+    }
+    // Noise: mean of the negative sample-to-sample slopes of the unfiltered beat.
+    const end = k + 1 < beats.length ? beats[k + 1].footSample : Math.min(ch.filled.length, b.footSample + Math.round(fs));
+    let negSum = 0;
+    let negCount = 0;
+    for (let i = b.footSample + 1; i < end; i++) {
+      const d = ch.filled[i] - ch.filled[i - 1];
+      if (d < 0) {
+        negSum += d;
+        negCount++;
+      }
+    }
+    if (negCount > 0 && (negSum / negCount) * slopeScale < -3) add(b, 'noisy-slope');
+  }
+}
+
+/** Template correlation (Li & Clifford, Physiol Meas 2012): Pearson r against the median beat. */
+function templateCheck(beats: Beat[], y: Float64Array, fs: number, minR: number): void {
+  const ibis = beats.map((b) => b.ibi).filter((v): v is number => v !== null);
+  if (beats.length < 5 || ibis.length < 4) return;
+  const len = Math.max(4, Math.round(0.6 * median(ibis) * fs));
+  const usable = beats.filter((b) => b.footSample + len <= y.length);
+  const good = usable.filter((b) => b.rejectReasons.length === 0);
+  const pool = good.length >= 5 ? good : usable;
+  if (pool.length < 3) return;
+  const template = new Float64Array(len);
+  const column = new Float64Array(pool.length);
+  for (let j = 0; j < len; j++) {
+    for (let q = 0; q < pool.length; q++) column[q] = y[pool[q].footSample + j];
+    column.sort();
+    const m = pool.length >> 1;
+    template[j] = pool.length % 2 ? column[m] : (column[m - 1] + column[m]) / 2;
+  }
+  let tm = 0;
+  for (let j = 0; j < len; j++) tm += template[j];
+  tm /= len;
+  let tv = 0;
+  for (let j = 0; j < len; j++) tv += (template[j] - tm) ** 2;
+  for (const b of usable) {
+    let bm = 0;
+    for (let j = 0; j < len; j++) bm += y[b.footSample + j];
+    bm /= len;
+    let cov = 0;
+    let bv = 0;
+    for (let j = 0; j < len; j++) {
+      const d = y[b.footSample + j] - bm;
+      cov += d * (template[j] - tm);
+      bv += d * d;
+    }
+    const r = finiteOrNull(cov / Math.sqrt(bv * tv));
+    b.templateCorrelation = r;
+    if (r === null || r < minR) add(b, 'template-mismatch');
+  }
+}
+
+/** Ectopic and irregular beats from the intervals: departure from the median of ±5 neighbours. */
+function intervalCheck(beats: Beat[], fraction: number): { irregular: number; ectopic: number } {
+  let irregular = 0;
+  let ectopic = 0;
+  let counted = 0;
+  for (let k = 0; k < beats.length; k++) {
+    const ibi = beats[k].ibi;
+    if (ibi === null) continue;
+    const local: number[] = [];
+    for (let q = Math.max(0, k - 5); q <= Math.min(beats.length - 1, k + 5); q++) {
+      const v = beats[q].ibi;
+      if (v !== null) local.push(v);
+    }
+    const m = median(local);
+    counted++;
+    if (Math.abs(ibi - m) > fraction * m) {
+      irregular++;
+      add(beats[k], 'ectopic');
+      ectopic++;
+    }
+  }
+  return { irregular: counted ? irregular / counted : 0, ectopic };
+}
+
+/** Beat quality stage: values, rule-based rejection with reason codes, and rhythm summary. */
+export function qualifyBeats(ch: ConditionedChannel, lm: BeatLandmarks, source: BeatSource, settings: AnalysisSettings): QualifiedBeats {
+  const beats = measure(ch, lm, source);
+  const { gaps, flatLines, clipping } = ch.report;
+  for (let k = 0; k < beats.length; k++) {
+    const b = beats[k];
+    const end = k + 1 < beats.length ? beats[k + 1].footSample : b.peakSample + 1;
+    if (overlapsAny(gaps, b.footSample, end)) add(b, 'gap');
+    if (overlapsAny(flatLines, b.footSample, end)) add(b, 'flat-line');
+    if (overlapsAny(clipping, b.footSample, end)) add(b, 'clipped');
+  }
+  if (source === 'abp') sunRules(beats, ch, lm);
+  else {
+    const amps = beats.map((b) => b.amplitude as number).filter((v) => v > 0);
+    const m = median(amps);
+    for (const b of beats) {
+      const a = b.amplitude as number;
+      if (!(a > 0.3 * m && a < 3 * m)) add(b, 'amplitude-out-of-range');
+      if (b.ibi !== null && (60 / b.ibi < 20 || 60 / b.ibi > 200)) add(b, 'hr-out-of-range');
+    }
+  }
+  templateCheck(beats, ch.smooth, ch.fs, settings.minTemplateCorrelation);
+  const rhythm = intervalCheck(beats, settings.ectopicIntervalFraction);
+  // Sun 2006: a single good beat between two bad ones is bad too.
+  const bad = beats.map((b) => b.rejectReasons.length > 0);
+  for (let k = 1; k + 1 < beats.length; k++) if (!bad[k] && bad[k - 1] && bad[k + 1]) add(beats[k], 'between-bad-beats');
+  let accepted = 0;
+  let noisy = 0;
+  let clipped = 0;
+  for (const b of beats) {
+    b.accepted = b.rejectReasons.length === 0;
+    if (b.accepted) accepted++;
+    if (b.rejectReasons.includes('noisy-slope') || b.rejectReasons.includes('template-mismatch')) noisy++;
+    if (b.rejectReasons.includes('clipped')) clipped++;
+  }
+  return {
+    series: {
+      source,
+      sampleRate: ch.fs,
+      method: source === 'abp' ? 'zong-2003-slope-sum-function' : 'elgendi-2013-two-moving-averages',
+      beats,
+      acceptedCount: accepted,
+      rejectedCount: beats.length - accepted,
+    },
+    irregularFraction: rhythm.irregular,
+    ectopicCount: rhythm.ectopic,
+    noisyCount: noisy,
+    clippedCount: clipped,
+  };
+}

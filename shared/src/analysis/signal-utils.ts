@@ -1,0 +1,72 @@
+/** Small numeric helpers shared by the stages (typed arrays, no allocation in loops). */
+
+/** Percentile (0–100) of the finite values, estimated from at most ~4096 evenly spaced samples. */
+export function robustPercentiles(x: ArrayLike<number>, ps: number[]): number[] {
+  const step = Math.max(1, Math.floor(x.length / 4096));
+  const vals: number[] = [];
+  for (let i = 0; i < x.length; i += step) {
+    const v = x[i];
+    if (v === v) vals.push(v);
+  }
+  if (vals.length === 0) return ps.map(() => Number.NaN);
+  vals.sort((a, b) => a - b);
+  return ps.map((p) => vals[Math.min(vals.length - 1, Math.max(0, Math.round((p / 100) * (vals.length - 1))))]);
+}
+
+export function median(values: number[]): number {
+  if (values.length === 0) return Number.NaN;
+  const s = values.slice().sort((a, b) => a - b);
+  const m = s.length >> 1;
+  return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
+}
+
+export function mean(values: number[]): number {
+  if (values.length === 0) return Number.NaN;
+  let s = 0;
+  for (const v of values) s += v;
+  return s / values.length;
+}
+
+/** Percent variation of a set: 100 × (max − min) / ((max + min) / 2) (Michard 2000 form). */
+export function percentVariation(values: number[]): number | null {
+  if (values.length < 2) return null;
+  let max = -Infinity;
+  let min = Infinity;
+  for (const v of values) {
+    if (v > max) max = v;
+    if (v < min) min = v;
+  }
+  const avg = (max + min) / 2;
+  if (!(avg > 0)) return null;
+  return (100 * (max - min)) / avg;
+}
+
+/** NaN/±Infinity → null so results stay valid JSON. */
+export function finiteOrNull(v: number | null | undefined): number | null {
+  return v === null || v === undefined || !Number.isFinite(v) ? null : v;
+}
+
+/** Index of the maximum of x in [a, b). */
+export function argMax(x: ArrayLike<number>, a: number, b: number): number {
+  let best = a;
+  let bv = -Infinity;
+  for (let i = a; i < b; i++) if (x[i] > bv) { bv = x[i]; best = i; }
+  return best;
+}
+
+/** Index of the minimum of x in [a, b). */
+export function argMin(x: ArrayLike<number>, a: number, b: number): number {
+  let best = a;
+  let bv = Infinity;
+  for (let i = a; i < b; i++) if (x[i] < bv) { bv = x[i]; best = i; }
+  return best;
+}
+
+/** Whether [a, b) overlaps any of the sorted spans. */
+export function overlapsAny(spans: { startSample: number; endSample: number }[], a: number, b: number): boolean {
+  for (const s of spans) {
+    if (s.startSample >= b) return false;
+    if (s.endSample > a) return true;
+  }
+  return false;
+}

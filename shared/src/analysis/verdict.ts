@@ -1,0 +1,153 @@
+import type { QualifiedBeats } from './beat-quality';
+import type { BreathBoundaries } from './cycles';
+import type {
+  AnalysisContext,
+  AnalysisSettings,
+  ArterialLineReport,
+  ChannelReport,
+  Flag,
+  IndexName,
+  Indices,
+  RespiratoryCycle,
+  Verdict,
+} from './types';
+
+export interface VerdictInput {
+  context: AnalysisContext;
+  settings: AnalysisSettings;
+  channels: ChannelReport[];
+  abp: QualifiedBeats | null;
+  pleth: QualifiedBeats | null;
+  arterialLine: ArterialLineReport | null;
+  bounds: BreathBoundaries | null;
+  cycles: RespiratoryCycle[];
+  used: RespiratoryCycle[];
+  indices: Indices;
+  tidalVolumeMlPerKg: number | null;
+}
+
+const PLETH_INDICES: IndexName[] = ['deltaPop', 'perfusionIndex'];
+const ABP_INDICES: IndexName[] = ['ppv', 'spv'];
+const VARIATION_INDICES: IndexName[] = ['ppv', 'spv', 'deltaPop'];
+
+/** Which indices a flag bears on, from its source. */
+function appliesTo(flag: Flag): IndexName[] {
+  if (flag.source === 'abp') return ABP_INDICES;
+  if (flag.source === 'pleth') return PLETH_INDICES;
+  if (flag.source === 'ppv' || flag.source === 'deltaPop' || flag.source === 'spv') return [flag.source];
+  return VARIATION_INDICES;
+}
+
+/** Quality flags with the likely direction of error (Ann Intensive Care 2016, doi 10.1186/s13613-016-0216-7). */
+export function buildFlags(v: VerdictInput): Flag[] {
+  const flags: Flag[] = [];
+  const push = (f: Flag): void => {
+    flags.push(f);
+  };
+  const { context: cx, settings: s } = v;
+  const hasPleth = v.pleth !== null;
+  for (const q of [v.abp, v.pleth]) {
+    if (!q) continue;
+    const src = q.series.source;
+    const n = q.series.beats.length;
+    if (n >= 8 && q.irregularFraction > s.irregularRhythmFraction) {
+      push({ code: 'irregular-rhythm', severity: 'critical', direction: 'false-high', source: src, reason: `${Math.round(q.irregularFraction * 100)} % of beat intervals depart from their neighbours by more than ${Math.round(s.ectopicIntervalFraction * 100)} %: irregular rhythm breaks the per-cycle maximum and minimum` });
+    } else if (q.ectopicCount > 0) {
+      push({ code: 'ectopic-beats', severity: 'warning', direction: 'false-high', source: src, reason: `${q.ectopicCount} beats with premature or compensatory intervals; the cycles holding them were left out` });
+    }
+    if (n >= 5 && q.noisyCount >= 3 && q.noisyCount / n >= 0.04) {
+      push({ code: 'noise-motion', severity: 'warning', source: src, reason: `${q.noisyCount} of ${n} beats rejected as noisy or misshapen (noise or motion artefact)` });
+    }
+    if (q.clippedCount > 0 || (v.channels.find((c) => c.role === src)?.clipping.length ?? 0) > 0) {
+      push({ code: 'clipping', severity: 'warning', source: src, reason: `${src} samples pinned at the window's extreme value (saturated transducer or clipped scale); affected beats were left out` });
+    }
+  }
+  for (const ch of v.channels) {
+    const dur = ch.durationSeconds;
+    const flatSeconds = ch.flatLines.reduce((a, f) => a + f.endTime - f.startTime, 0);
+    if (ch.flatLines.length) {
+      push({ code: 'flat-line', severity: flatSeconds > 0.5 * dur ? 'critical' : 'warning', source: ch.role, reason: `${ch.role} flat for ${flatSeconds.toFixed(1)} s (stopcock closed, transducer disconnected or signal lost)` });
+    }
+    if (ch.gaps.length) {
+      push({ code: 'gap', severity: ch.gapFraction > 0.5 ? 'critical' : 'warning', source: ch.role, reason: `${ch.role} has ${ch.gaps.length} gap(s), ${(ch.gapFraction * 100).toFixed(1)} % of samples missing` });
+    }
+  }
+  if (v.arterialLine?.dampingSuspected) {
+    push({ code: 'arterial-damped', severity: 'warning', direction: 'false-low', source: 'abp', reason: 'arterial waveform looks over-damped (no dicrotic notch, slow upstroke): systolic pressure and its swing are understated' });
+  }
+  if (v.arterialLine?.flushSuspected) {
+    push({ code: 'arterial-flush', severity: 'warning', source: 'abp', reason: 'pressure plateau above 250 mmHg: line flush or zeroing in the window' });
+  }
+  if (!v.abp && !v.pleth) push({ code: 'no-pulse-source', severity: 'critical', reason: 'no arterial pressure or pleth channel with signal' });
+  if (!v.bounds || v.bounds.onsets.length < 2) {
+    push({ code: 'no-respiration-source', severity: 'critical', reason: v.bounds?.reason ?? 'no respiratory cycles could be found' });
+  } else if (v.bounds.source === 'inferred') {
+    push({ code: 'respiration-inferred', severity: 'warning', reason: `no airway pressure or CO2: cycles placed from the set rate (${cx.setRespiratoryRate} /min) with the phase taken from the pulse itself` });
+  }
+  const efforts = v.bounds?.efforts.length ?? 0;
+  const irregularCycles = v.cycles.filter((c) => c.rejectReasons.includes('irregular-length')).length;
+  if (efforts > 0 || (v.cycles.length >= 4 && irregularCycles / v.cycles.length > 0.25)) {
+    push({ code: 'spontaneous-breathing', severity: 'critical', direction: 'false-high', source: 'paw', reason: `${efforts} inspiratory effort(s) below PEEP and ${irregularCycles} irregular breath(s): dynamic indices assume controlled ventilation without patient effort` });
+  }
+  if (cx.ventilationMode === 'spontaneous' || cx.ventilationMode === 'assisted') {
+    push({ code: 'ventilation-not-controlled', severity: 'critical', direction: 'false-high', reason: `ventilation mode declared "${cx.ventilationMode}": indices are validated under controlled mechanical ventilation only` });
+  }
+  const target = s.cyclesToAverage;
+  if (v.bounds && v.bounds.onsets.length >= 2 && v.used.length < target) {
+    push({ code: 'too-few-cycles', severity: v.used.length === 0 ? 'critical' : 'warning', reason: `${v.used.length} consecutive usable cycle(s) found, ${target} wanted` });
+  }
+  const ratio = v.indices.hrRrRatio.value;
+  if (ratio !== null && ratio <= s.minHrRrRatio) {
+    push({ code: 'low-hr-rr-ratio', severity: 'critical', direction: 'false-low', reason: `HR/RR ${ratio.toFixed(2)} ≤ ${s.minHrRrRatio}: too few beats per breath (De Backer 2009)` });
+  }
+  if (v.tidalVolumeMlPerKg === null) {
+    push({ code: 'tidal-volume-unknown', severity: 'warning', reason: 'tidal volume or patient height/sex not given: cannot confirm ≥ 8 mL/kg predicted body weight' });
+  } else if (v.tidalVolumeMlPerKg < s.minTidalVolumeMlPerKg) {
+    push({ code: 'tidal-volume-low', severity: 'critical', direction: 'false-low', reason: `tidal volume ${v.tidalVolumeMlPerKg.toFixed(1)} mL/kg PBW < ${s.minTidalVolumeMlPerKg}` });
+  }
+  if (cx.complianceMlPerCmH2O !== undefined && cx.complianceMlPerCmH2O <= s.lowComplianceMlPerCmH2O) {
+    push({ code: 'compliance-low', severity: 'warning', direction: 'false-low', reason: `respiratory-system compliance ${cx.complianceMlPerCmH2O} mL/cmH2O ≤ ${s.lowComplianceMlPerCmH2O}` });
+  }
+  // Pleth confounders (common practice): vasomotor tone, probe site, monitor processing.
+  if (cx.vasopressorRunning) {
+    push({ code: 'vasopressor-running', severity: hasPleth ? 'warning' : 'info', source: 'pleth', reason: 'vasopressor running: vasoconstriction changes the pleth independently of preload' });
+  }
+  if (hasPleth && cx.probeSite === 'finger') {
+    push({ code: 'finger-probe', severity: 'warning', source: 'pleth', reason: 'finger probe: more distorted by vasoconstriction than an earlobe or forehead probe' });
+  }
+  if (hasPleth && cx.plethScaling === 'auto-scaled') {
+    push({ code: 'pleth-auto-scaled', severity: 'warning', source: 'pleth', reason: 'pleth auto-scaled by the monitor: PI not computable, ΔPOP from processed pleth agrees poorly with PPV' });
+  }
+  if (cx.builtInFiltering) {
+    push({ code: 'monitor-filtering-declared', severity: 'info', source: hasPleth ? 'pleth' : undefined, reason: `monitor declares its own filtering: ${cx.builtInFiltering}` });
+  }
+  for (const name of ['ppv', 'deltaPop'] as const) {
+    const val = v.indices[name].value;
+    if (val !== null && (val < 0 || val > s.plausibleMaxPercent)) {
+      push({ code: 'value-implausible', severity: 'critical', source: name, reason: `${name} ${val.toFixed(1)} % outside 0–${s.plausibleMaxPercent} %: an artefact, not a measurement` });
+    }
+  }
+  return flags;
+}
+
+const rank: Record<Verdict, number> = { valid: 0, questionable: 1, 'not-valid': 2 };
+const bySeverity = (sev: Flag['severity']): Verdict => (sev === 'critical' ? 'not-valid' : sev === 'warning' ? 'questionable' : 'valid');
+
+/** Window verdict (that of the primary index) and per-index verdicts where they differ. */
+export function judge(flags: Flag[], indices: Indices, hasAbp: boolean): { verdict: Verdict; indexVerdicts: Partial<Record<IndexName, Verdict>> } {
+  const names: IndexName[] = ['ppv', 'spv', 'deltaPop', 'perfusionIndex'];
+  const per: Partial<Record<IndexName, Verdict>> = {};
+  for (const name of names) {
+    let v: Verdict = indices[name].value === null ? 'not-valid' : 'valid';
+    for (const f of flags) {
+      if (!appliesTo(f).includes(name) && !(name === 'perfusionIndex' && f.source === 'pleth')) continue;
+      const fv = bySeverity(f.severity);
+      if (rank[fv] > rank[v]) v = fv;
+    }
+    per[name] = v;
+  }
+  const verdict = (hasAbp ? per.ppv : per.deltaPop) ?? 'not-valid';
+  const indexVerdicts: Partial<Record<IndexName, Verdict>> = {};
+  for (const name of names) if (per[name] !== verdict) indexVerdicts[name] = per[name];
+  return { verdict, indexVerdicts };
+}
