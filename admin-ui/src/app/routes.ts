@@ -6,4 +6,6 @@ export const routes: AppRoute[] = [
   { path: '/users', permission: 'users', component: lazyNamed(() => import('@/features/users/routes/users'), 'UsersRoute') },
   { path: '/audit', permission: 'audit', component: lazyNamed(() => import('@/features/audit/routes/audit'), 'AuditRoute') },
   { path: '/test-bench', permission: 'testBench', component: lazyNamed(() => import('@/features/test-bench/routes/test-bench'), 'TestBenchRoute') },
+  { path: '/assessments', permission: 'assessments', component: lazyNamed(() => import('@/features/assessments/routes/assessments'), 'AssessmentsRoute') },
+  { path: '/assessments/:id', permission: 'assessments', component: lazyNamed(() => import('@/features/assessments/routes/assessment-detail'), 'AssessmentDetailRoute') },
 ];

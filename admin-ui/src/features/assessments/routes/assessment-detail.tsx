@@ -1,0 +1,60 @@
+import { useState } from 'react';
+import { Link, useParams } from 'react-router-dom';
+import { useAuth } from '@/lib/auth';
+import { errorMessage } from '@/lib/api-client';
+import { formatDateTime } from '@/lib/format';
+import { StatusBadge, VerdictBadge } from '@/components/ui/badge';
+import { Button } from '@/components/ui/button';
+import { ConfirmDialog } from '@/components/ui/dialog';
+import { DefinitionList, PageHeader, Panel } from '@/components/ui/page';
+import { ErrorState, LoadingState } from '@/components/ui/states';
+import { useToast } from '@/components/ui/toast';
+import { WaveformPlot } from '@/components/waveform-plot';
+import { IndicesPanel } from '@/components/analysis/indices-panel';
+import { CyclesTable } from '@/components/analysis/cycles-table';
+import { useAssessment, useMarkInError } from '../api/assessments';
+import { ObservationsSent } from '../components/observations-sent';
+
+export function AssessmentDetailRoute() {
+  const { id = '' } = useParams();
+  const detail = useAssessment(id);
+  const mark = useMarkInError(id);
+  const { can } = useAuth();
+  const toast = useToast();
+  const [confirming, setConfirming] = useState(false);
+
+  if (detail.isPending) return <LoadingState label="Loading assessment…" />;
+  if (detail.error) return <ErrorState error={detail.error} onRetry={() => detail.refetch()} />;
+  const { assessment: a, waveform, observations } = detail.data;
+
+  return (
+    <>
+      <p className="mb-1 text-xs"><Link to="/assessments" className="text-ink-700 underline">← Assessments</Link></p>
+      <PageHeader title={`Assessment of ${formatDateTime(a.windowStart)}`}
+        description={<span className="flex items-center gap-2"><VerdictBadge verdict={a.verdict} /> window {formatDateTime(a.windowStart)} – {formatDateTime(a.windowEnd)}</span>}
+        actions={can('markInError') && !a.enteredInError ? <Button variant="danger" onClick={() => setConfirming(true)}>Mark in error…</Button> : undefined} />
+      {a.enteredInError && (
+        <div role="status" className="mb-3 rounded border border-notvalid/40 bg-notvalid-bg px-3 py-2 text-sm text-notvalid">
+          <strong>Entered in error</strong> by {a.enteredInErrorBy ?? 'unknown'} on {formatDateTime(a.enteredInErrorAt)}: {a.enteredInErrorReason}. The EHR copy was amended to status entered-in-error.
+        </div>
+      )}
+      <div className="flex flex-col gap-3">
+        <Panel title="Window">
+          <DefinitionList items={[
+            ['Monitor', a.monitorId], ['Bed', a.bedId ?? 'unassigned'], ['Patient', a.patientRef ?? '—'],
+            ['Engine', a.engineVersion], ['EHR delivery', a.deliveryStatus ? <StatusBadge status={a.deliveryStatus} /> : '—'], ['Stored', formatDateTime(a.createdAt)],
+          ]} />
+        </Panel>
+        <Panel title="Waveform of the stored window"><WaveformPlot waveform={waveform} analysis={a.result} /></Panel>
+        <Panel title="Indices"><IndicesPanel analysis={a.result} /></Panel>
+        <Panel title="Respiratory cycles"><CyclesTable analysis={a.result} /></Panel>
+        <Panel title="Sent to the EHR"><ObservationsSent observations={observations} /></Panel>
+      </div>
+      <ConfirmDialog open={confirming} title="Mark assessment in error" danger confirmLabel="Mark in error"
+        message={<>The assessment stays stored but is shown as entered in error, and the Observations already in the EHR are amended to <code>entered-in-error</code>. This cannot be undone.</>}
+        reasonLabel="Reason (kept in the audit log)" busy={mark.isPending} error={mark.error ? errorMessage(mark.error) : null}
+        onClose={() => { setConfirming(false); mark.reset(); }}
+        onConfirm={(reason) => mark.mutate(reason, { onSuccess: () => { setConfirming(false); toast.success('Marked in error; the EHR copy is being amended'); } })} />
+    </>
+  );
+}
