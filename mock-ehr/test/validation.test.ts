@@ -12,7 +12,7 @@ import { fhir, getToken, observation, startTestEhr } from './helpers.js';
 
 const OBS_6 = 'dataAbsentReason.empty() or value.empty()';
 const OBS_7 = 'value.empty() or component.code.where(coding.intersect(%resource.code.coding).exists()).empty()';
-const holds = (expr: string, r: unknown) => fhirpath.evaluate(r, expr, { resource: r }, r4model)[0] === true;
+const holds = (expr: string, r: unknown) => (fhirpath.evaluate(r, expr, { resource: r }, r4model) as unknown[])[0] === true;
 
 let ehr: RunningMockEhr;
 let token: string;
