@@ -148,6 +148,7 @@ export function judge(flags: Flag[], indices: Indices, hasAbp: boolean): { verdi
   }
   const verdict = (hasAbp ? per.ppv : per.deltaPop) ?? 'not-valid';
   const indexVerdicts: Partial<Record<IndexName, Verdict>> = {};
-  for (const name of names) if (per[name] !== verdict) indexVerdicts[name] = per[name];
+  // Indices without a value say why in notComputableReason; only computed ones get a verdict here.
+  for (const name of names) if (indices[name].value !== null && per[name] !== verdict) indexVerdicts[name] = per[name];
   return { verdict, indexVerdicts };
 }

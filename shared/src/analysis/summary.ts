@@ -1,0 +1,34 @@
+import type { AnalysisResult, IndexValue } from './types';
+
+const fmt = (v: IndexValue, digits = 1): string =>
+  v.value === null ? `not computable (${v.notComputableReason ?? 'no value'})` : `${v.value.toFixed(digits)} ${v.unit}${v.spread !== null ? ` (spread ${v.spread.toFixed(digits)}, ${v.cyclesUsed} cycles)` : ''}`;
+
+/** Plain-text summary of a result for a terminal (the CLI's --pretty). */
+export function formatSummary(r: AnalysisResult): string {
+  const out: string[] = [];
+  out.push(`Ebbgate analysis engine ${r.engineVersion}  window ${r.durationSeconds.toFixed(1)} s${r.startTime ? ` from ${r.startTime}` : ''}`);
+  out.push(`Verdict: ${r.verdict.toUpperCase()}`);
+  const iv = Object.entries(r.indexVerdicts);
+  if (iv.length) out.push(`  per index: ${iv.map(([k, v]) => `${k} ${v}`).join(', ')}`);
+  out.push('Indices:');
+  out.push(`  PPV      ${fmt(r.indices.ppv)}`);
+  out.push(`  SPV      ${fmt(r.indices.spv)}`);
+  out.push(`  ΔPOP     ${fmt(r.indices.deltaPop)}`);
+  out.push(`  PI       ${fmt(r.indices.perfusionIndex, 2)}`);
+  out.push(`  HR       ${fmt(r.indices.heartRate, 0)}`);
+  out.push(`  RR       ${fmt(r.indices.respiratoryRate, 1)}`);
+  out.push(`  HR/RR    ${fmt(r.indices.hrRrRatio, 2)}`);
+  out.push(`Channels: ${r.channels.map((c) => `${c.role} ${c.sampleRate} Hz ${c.unitFrom}→${c.unitTo}`).join('; ')}`);
+  for (const s of [r.beats.abp, r.beats.pleth]) if (s) out.push(`Beats (${s.source}, ${s.method}): ${s.acceptedCount} accepted, ${s.rejectedCount} rejected`);
+  const usable = r.cycles.filter((c) => c.usable).length;
+  out.push(`Cycles (${r.respiration.source ?? 'none'}): ${r.cycles.length} found, ${usable} usable, ${r.cycles.filter((c) => c.usedInWindow).length} averaged`);
+  if (r.flags.length) {
+    out.push('Flags:');
+    for (const f of r.flags) out.push(`  [${f.severity}] ${f.code}${f.direction ? ` (likely ${f.direction})` : ''}: ${f.reason}`);
+  }
+  out.push('Bands (context only, never an order to treat):');
+  for (const b of r.bands) out.push(`  ${b.index} ${b.lower ?? '−∞'}–${b.upper ?? '∞'} ${b.unit}: ${b.label} [${b.source}]`);
+  out.push('Cautions:');
+  for (const c of r.cautions) out.push(`  - ${c}`);
+  return out.join('\n');
+}
