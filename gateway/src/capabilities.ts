@@ -9,6 +9,7 @@ import { authRouter } from './auth/auth.router';
 import type { ReadinessCheck } from './http/app';
 import type { Metrics } from './http/metrics';
 import { usersRouter } from './users/users.router';
+import { devicesRouter } from './devices/devices.router';
 
 export interface BackgroundService {
   name: string;
@@ -25,7 +26,7 @@ export interface Capabilities {
 
 export function buildCapabilities(ctx: AppContext, _metrics: Metrics): Capabilities {
   return {
-    routers: [authRouter(ctx), usersRouter(ctx), auditRouter(ctx)],
+    routers: [authRouter(ctx), usersRouter(ctx), auditRouter(ctx), devicesRouter(ctx)],
     readiness: [],
     services: [],
   };

@@ -29,6 +29,13 @@ const ENV_MAP: Record<string, { path: string; type: 'string' | 'number' | 'boole
   EBBGATE_WORKERS: { path: 'workers.enabled', type: 'boolean' },
   EBBGATE_MIGRATE_ON_START: { path: 'gateway.migrateOnStart', type: 'boolean' },
   EBBGATE_SEED_DEMO: { path: 'gateway.seedDemo', type: 'boolean' },
+  EBBGATE_MLLP_HOST: { path: 'mllp.host', type: 'string' },
+  EBBGATE_INGEST_BACKLOG_LIMIT: { path: 'ingest.backlogLimit', type: 'number' },
+  EBBGATE_RETENTION_DAYS: { path: 'ingest.retentionDays', type: 'number' },
+  EBBGATE_ANALYSIS_WINDOW_SECONDS: { path: 'analysis.windowSeconds', type: 'number' },
+  EBBGATE_ANALYSIS_STEP_SECONDS: { path: 'analysis.stepSeconds', type: 'number' },
+  EBBGATE_ANALYSIS_POLL_MS: { path: 'analysis.pollMs', type: 'number' },
+  EBBGATE_DB_POOL_SIZE: { path: 'database.poolSize', type: 'number' },
 };
 
 function setPath(target: Json, dotted: string, value: unknown): void {

@@ -40,5 +40,31 @@ export const configSchema = z.object({
   }),
   mail: z.object({ smtpHost: z.string(), smtpPort: z.number().int().min(1).max(65535), from: z.string() }),
   workers: z.object({ enabled: z.boolean() }),
+  ingest: z.object({
+    /** Largest accepted batch body (HTTP) or HL7 message (MLLP), bytes; larger ones get 413 / AR. */
+    maxBatchBytes: z.number().int().min(1024).max(64 * 1024 * 1024),
+    /** Analysis windows waiting beyond this make ingest answer 429 with Retry-After. */
+    backlogLimit: z.number().int().min(1),
+    retryAfterSeconds: z.number().int().min(1).max(3600),
+    /** Waveform segments and inbound messages older than this are purged. */
+    retentionDays: z.number().min(0.001).max(3650),
+    purgeIntervalMinutes: z.number().min(0.01).max(24 * 60),
+    /** A jump forward bigger than this between batches restarts window planning at the new batch. */
+    gapResetSeconds: z.number().positive().max(3600),
+  }),
+  analysis: z.object({
+    /** Analysis window length, s (sliding). */
+    windowSeconds: z.number().min(5).max(600),
+    /** Start of one window to the start of the next, s. */
+    stepSeconds: z.number().min(1).max(600),
+    /** Consecutive usable respiratory cycles averaged into a window value. */
+    cyclesPerWindow: z.number().int().min(1).max(20),
+    /** How often an idle worker looks for due windows, ms. */
+    pollMs: z.number().int().min(10).max(60_000),
+    /** Most windows one worker analyses per poll before yielding. */
+    windowsPerPoll: z.number().int().min(1).max(1000),
+    /** Upload limit of the test bench, bytes. */
+    previewMaxBytes: z.number().int().min(1024).max(64 * 1024 * 1024),
+  }),
 });
 export type Config = z.infer<typeof configSchema>;

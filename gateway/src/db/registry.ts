@@ -6,9 +6,12 @@ import { AssessmentRow } from '../assessments/assessment.entity';
 import { AuditEntryRow } from '../audit/audit-entry.entity';
 import { BedRow, DeviceKeyRow, MonitorProfileRow, MonitorRow } from '../devices/device.entities';
 import { UserRow, UserSessionRow } from '../users/user.entity';
+import { AnalysisWindowRow } from '../analysis/analysis-window.entity';
+import { InboundMessageRow, WaveformSegmentRow } from '../ingest/ingest.entities';
+import { Ingest1764700000001 } from './migrations/1764700000001-ingest';
 import { Foundation1764600000000 } from './migrations/1764600000000-foundation';
 import { Assessments1764650000000 } from './migrations/1764650000000-assessments';
 
-export const ENTITIES = [UserRow, UserSessionRow, AuditEntryRow, MonitorProfileRow, BedRow, MonitorRow, DeviceKeyRow, AssessmentRow];
+export const ENTITIES = [UserRow, UserSessionRow, AuditEntryRow, MonitorProfileRow, BedRow, MonitorRow, DeviceKeyRow, AssessmentRow, InboundMessageRow, WaveformSegmentRow, AnalysisWindowRow];
 
-export const MIGRATIONS = [Foundation1764600000000, Assessments1764650000000];
+export const MIGRATIONS = [Foundation1764600000000, Assessments1764650000000, Ingest1764700000001];

@@ -1,0 +1,76 @@
+import { randomUUID } from 'node:crypto';
+import { IsNull, Not, type DataSource } from 'typeorm';
+import type { Bed, BedInput } from '@ebbgate/shared';
+import { recordAudit } from '../audit/audit.service';
+import { conflict, notFound } from '../http/problem';
+import { isDuplicateKey, type ChangeBy } from './change-context';
+import { BedRow, MonitorRow } from './device.entities';
+import { forgetDevices } from './device-cache';
+import { toBed } from './device-views';
+
+async function monitorsByBed(ds: DataSource): Promise<Map<string, string>> {
+  const rows = await ds.getRepository(MonitorRow).find({ where: { bedId: Not(IsNull()) }, select: { id: true, bedId: true } });
+  return new Map(rows.map((r) => [r.bedId as string, r.id]));
+}
+
+export async function listBeds(ds: DataSource, q: { unit?: string }): Promise<Bed[]> {
+  const rows = await ds.getRepository(BedRow).find({ where: q.unit ? { unit: q.unit } : {}, order: { unit: 'ASC', name: 'ASC' } });
+  const assigned = await monitorsByBed(ds);
+  return rows.map((r) => toBed(r, assigned.get(r.id) ?? null));
+}
+
+export async function getBed(ds: DataSource, id: string): Promise<Bed> {
+  const row = await ds.getRepository(BedRow).findOneBy({ id });
+  if (!row) throw notFound(`Bed ${id}`);
+  const monitor = await ds.getRepository(MonitorRow).findOneBy({ bedId: id });
+  return toBed(row, monitor?.id ?? null);
+}
+
+export async function createBed(ds: DataSource, input: BedInput & { id?: string }, by: ChangeBy): Promise<Bed> {
+  try {
+    return await ds.transaction(async (m) => {
+      const now = new Date();
+      const row = m.create(BedRow, { id: input.id ?? randomUUID(), name: input.name, unit: input.unit, locationIdentifier: input.locationIdentifier, createdAt: now, updatedAt: now });
+      await m.insert(BedRow, row);
+      const out = toBed(row, null);
+      await recordAudit(m, { principal: by.principal, action: 'bed.create', entityType: 'bed', entityId: row.id, after: out, requestId: by.requestId });
+      return out;
+    });
+  } catch (err) {
+    if (isDuplicateKey(err)) throw conflict(`A bed named "${input.name}" exists already.`);
+    throw err;
+  }
+}
+
+export async function updateBed(ds: DataSource, id: string, input: Partial<BedInput>, by: ChangeBy): Promise<Bed> {
+  try {
+    const out = await ds.transaction(async (m) => {
+      const row = await m.findOne(BedRow, { where: { id }, lock: { mode: 'pessimistic_write' } });
+      if (!row) throw notFound(`Bed ${id}`);
+      const monitor = await m.findOneBy(MonitorRow, { bedId: id });
+      const before = toBed(row, monitor?.id ?? null);
+      Object.assign(row, input, { updatedAt: new Date() });
+      await m.save(row);
+      const after = toBed(row, monitor?.id ?? null);
+      await recordAudit(m, { principal: by.principal, action: 'bed.update', entityType: 'bed', entityId: id, before, after, requestId: by.requestId });
+      return after;
+    });
+    forgetDevices();
+    return out;
+  } catch (err) {
+    if (isDuplicateKey(err)) throw conflict(`A bed named "${input.name}" exists already.`);
+    throw err;
+  }
+}
+
+export async function deleteBed(ds: DataSource, id: string, by: ChangeBy): Promise<void> {
+  await ds.transaction(async (m) => {
+    const row = await m.findOneBy(BedRow, { id });
+    if (!row) throw notFound(`Bed ${id}`);
+    // The monitor's bed_id is set to NULL by the foreign key; the audit entry says which one moved out.
+    const monitor = await m.findOneBy(MonitorRow, { bedId: id });
+    await m.delete(BedRow, { id });
+    await recordAudit(m, { principal: by.principal, action: 'bed.delete', entityType: 'bed', entityId: id, before: toBed(row, monitor?.id ?? null), requestId: by.requestId });
+  });
+  forgetDevices();
+}

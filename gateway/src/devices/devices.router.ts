@@ -1,0 +1,80 @@
+import { Router } from 'express';
+import { z } from 'zod';
+import {
+  apiKeyIssuedSchema,
+  bedInputSchema,
+  bedSchema,
+  createMonitorSchema,
+  idParam,
+  monitorProfileInputSchema,
+  monitorProfileSchema,
+  monitorQuerySchema,
+  monitorSchema,
+  updateBedSchema,
+  updateMonitorSchema,
+} from '@ebbgate/shared';
+import type { AppContext } from '../app-context';
+import { issueDeviceKey, revokeDeviceKeys } from '../auth/device-keys';
+import { defineRoute, type RouteContext } from '../http/route';
+import { createBed, deleteBed, getBed, listBeds, updateBed } from './beds.service';
+import type { ChangeBy } from './change-context';
+import { getMonitor } from './monitors.service';
+import { createMonitor, deleteMonitor, listMonitors, updateMonitor } from './monitors.service';
+import { forgetDevices } from './device-cache';
+import { createProfile, deleteProfile, getProfile, listProfiles, replaceProfile } from './profiles.service';
+
+const by = (c: RouteContext<unknown, unknown, unknown>): ChangeBy => ({ principal: c.principal, requestId: String(c.req.id) });
+
+/** Monitor profiles, monitors (with their API keys) and beds. */
+export function devicesRouter(ctx: AppContext): Router {
+  const router = Router();
+  const { ds } = ctx;
+  const tag = 'devices';
+
+  defineRoute(router, { method: 'get', path: '/profiles', permission: 'profiles.read', tag, summary: 'List monitor profiles', response: z.array(monitorProfileSchema), handler: () => listProfiles(ds) });
+  defineRoute(router, { method: 'post', path: '/profiles', permission: 'profiles.write', tag, summary: 'Create a monitor profile', body: monitorProfileInputSchema, response: monitorProfileSchema, status: 201, handler: (c) => createProfile(ds, c.body, by(c)) });
+  defineRoute(router, { method: 'get', path: '/profiles/:id', permission: 'profiles.read', tag, summary: 'One monitor profile', params: idParam, response: monitorProfileSchema, handler: (c) => getProfile(ds, c.params.id) });
+  defineRoute(router, { method: 'put', path: '/profiles/:id', permission: 'profiles.write', tag, summary: 'Replace a monitor profile', params: idParam, body: monitorProfileInputSchema, response: monitorProfileSchema, handler: (c) => replaceProfile(ds, c.params.id, c.body, by(c)) });
+  defineRoute(router, { method: 'delete', path: '/profiles/:id', permission: 'profiles.write', tag, summary: 'Delete an unused monitor profile', params: idParam, handler: async (c) => void (await deleteProfile(ds, c.params.id, by(c))) });
+
+  defineRoute(router, { method: 'get', path: '/monitors', permission: 'monitors.read', tag, summary: 'List monitors with last seen and data rate', query: monitorQuerySchema, response: z.array(monitorSchema), handler: (c) => listMonitors(ds, c.query) });
+  defineRoute(router, { method: 'post', path: '/monitors', permission: 'monitors.write', tag, summary: 'Register a monitor', body: createMonitorSchema, response: monitorSchema, status: 201, handler: (c) => createMonitor(ds, c.body, by(c)) });
+  defineRoute(router, { method: 'get', path: '/monitors/:id', permission: 'monitors.read', tag, summary: 'One monitor', params: idParam, response: monitorSchema, handler: (c) => getMonitor(ds, c.params.id) });
+  defineRoute(router, { method: 'patch', path: '/monitors/:id', permission: 'monitors.write', tag, summary: 'Change a monitor (identifier, profile, bed, enabled)', params: idParam, body: updateMonitorSchema, response: monitorSchema, handler: (c) => updateMonitor(ds, c.params.id, c.body, by(c)) });
+  defineRoute(router, { method: 'delete', path: '/monitors/:id', permission: 'monitors.write', tag, summary: 'Delete a monitor without assessments', params: idParam, handler: async (c) => void (await deleteMonitor(ds, c.params.id, by(c))) });
+  defineRoute(router, {
+    method: 'post',
+    path: '/monitors/:id/api-key',
+    permission: 'monitors.keys',
+    tag,
+    summary: 'Issue a new API key for the monitor (shown once; revokes the previous one)',
+    params: idParam,
+    response: apiKeyIssuedSchema,
+    status: 201,
+    handler: async (c) => {
+      const issued = await issueDeviceKey(ctx, c.params.id, c.principal, String(c.req.id));
+      forgetDevices();
+      return issued;
+    },
+  });
+  defineRoute(router, {
+    method: 'delete',
+    path: '/monitors/:id/api-key',
+    permission: 'monitors.keys',
+    tag,
+    summary: "Revoke the monitor's API key",
+    params: idParam,
+    handler: async (c) => {
+      await getMonitor(ds, c.params.id);
+      await revokeDeviceKeys(ctx, c.params.id, c.principal, String(c.req.id));
+      return undefined;
+    },
+  });
+
+  defineRoute(router, { method: 'get', path: '/beds', permission: 'beds.read', tag, summary: 'List beds', query: z.object({ unit: z.string().max(64).optional() }), response: z.array(bedSchema), handler: (c) => listBeds(ds, c.query) });
+  defineRoute(router, { method: 'post', path: '/beds', permission: 'beds.write', tag, summary: 'Create a bed with its EHR Location identifier', body: bedInputSchema, response: bedSchema, status: 201, handler: (c) => createBed(ds, c.body, by(c)) });
+  defineRoute(router, { method: 'get', path: '/beds/:id', permission: 'beds.read', tag, summary: 'One bed', params: idParam, response: bedSchema, handler: (c) => getBed(ds, c.params.id) });
+  defineRoute(router, { method: 'patch', path: '/beds/:id', permission: 'beds.write', tag, summary: 'Change a bed', params: idParam, body: updateBedSchema, response: bedSchema, handler: (c) => updateBed(ds, c.params.id, c.body, by(c)) });
+  defineRoute(router, { method: 'delete', path: '/beds/:id', permission: 'beds.write', tag, summary: 'Delete a bed (its monitor is left without a bed)', params: idParam, handler: async (c) => void (await deleteBed(ds, c.params.id, by(c))) });
+  return router;
+}

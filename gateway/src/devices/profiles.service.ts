@@ -1,0 +1,87 @@
+import { randomUUID } from 'node:crypto';
+import type { DataSource } from 'typeorm';
+import { monitorProfileInputSchema, type MonitorProfile, type MonitorProfileInput } from '@ebbgate/shared';
+import { recordAudit } from '../audit/audit.service';
+import { conflict, notFound } from '../http/problem';
+import { isDuplicateKey, isReferenced, type ChangeBy } from './change-context';
+import { MonitorProfileRow, MonitorRow } from './device.entities';
+import { forgetDevices } from './device-cache';
+import { toProfile } from './device-views';
+
+export async function listProfiles(ds: DataSource): Promise<MonitorProfile[]> {
+  const rows = await ds.getRepository(MonitorProfileRow).find({ order: { name: 'ASC' } });
+  return rows.map(toProfile);
+}
+
+export async function getProfile(ds: DataSource, id: string): Promise<MonitorProfile> {
+  const row = await ds.getRepository(MonitorProfileRow).findOneBy({ id });
+  if (!row) throw notFound(`Monitor profile ${id}`);
+  return toProfile(row);
+}
+
+function fields(input: MonitorProfileInput) {
+  const p = monitorProfileInputSchema.parse(input);
+  return {
+    name: p.name,
+    manufacturer: p.manufacturer,
+    model: p.model,
+    transports: p.transports,
+    channels: p.channels,
+    defaultProbeSite: p.defaultProbeSite ?? null,
+    plethScaling: p.plethScaling,
+    notes: p.notes ?? null,
+  };
+}
+
+export async function createProfile(ds: DataSource, input: MonitorProfileInput, by: ChangeBy): Promise<MonitorProfile> {
+  try {
+    return await ds.transaction(async (m) => {
+      const now = new Date();
+      const row = m.create(MonitorProfileRow, { id: randomUUID(), ...fields(input), createdAt: now, updatedAt: now });
+      await m.insert(MonitorProfileRow, row);
+      const out = toProfile(row);
+      await recordAudit(m, { principal: by.principal, action: 'profile.create', entityType: 'monitor-profile', entityId: row.id, after: out, requestId: by.requestId });
+      return out;
+    });
+  } catch (err) {
+    if (isDuplicateKey(err)) throw conflict(`A monitor profile named "${input.name}" exists already.`);
+    throw err;
+  }
+}
+
+export async function replaceProfile(ds: DataSource, id: string, input: MonitorProfileInput, by: ChangeBy): Promise<MonitorProfile> {
+  try {
+    const out = await ds.transaction(async (m) => {
+      const row = await m.findOne(MonitorProfileRow, { where: { id }, lock: { mode: 'pessimistic_write' } });
+      if (!row) throw notFound(`Monitor profile ${id}`);
+      const before = toProfile(row);
+      Object.assign(row, fields(input), { updatedAt: new Date() });
+      await m.save(row);
+      const after = toProfile(row);
+      await recordAudit(m, { principal: by.principal, action: 'profile.update', entityType: 'monitor-profile', entityId: id, before, after, requestId: by.requestId });
+      return after;
+    });
+    forgetDevices();
+    return out;
+  } catch (err) {
+    if (isDuplicateKey(err)) throw conflict(`A monitor profile named "${input.name}" exists already.`);
+    throw err;
+  }
+}
+
+export async function deleteProfile(ds: DataSource, id: string, by: ChangeBy): Promise<void> {
+  await ds.transaction(async (m) => {
+    const row = await m.findOneBy(MonitorProfileRow, { id });
+    if (!row) throw notFound(`Monitor profile ${id}`);
+    const users = await m.countBy(MonitorRow, { profileId: id });
+    if (users) throw conflict(`The profile is used by ${users} monitor(s); assign them another profile first.`);
+    try {
+      await m.delete(MonitorProfileRow, { id });
+    } catch (err) {
+      if (isReferenced(err)) throw conflict('The profile is still referenced.');
+      throw err;
+    }
+    await recordAudit(m, { principal: by.principal, action: 'profile.delete', entityType: 'monitor-profile', entityId: id, before: toProfile(row), requestId: by.requestId });
+  });
+  forgetDevices();
+}
