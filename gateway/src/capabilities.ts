@@ -20,6 +20,8 @@ export interface BackgroundService {
 
 export interface Capabilities {
   routers: Router[];
+  /** Routers that keep the raw request body (ingest), mounted before the JSON parser. */
+  rawBodyRouters?: Router[];
   readiness: ReadinessCheck[];
   services: BackgroundService[];
 }

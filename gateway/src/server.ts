@@ -52,7 +52,7 @@ export async function startGateway(opts: GatewayOptions): Promise<RunningGateway
   const ctx: AppContext = { config, ds, logger };
   const metrics = createMetrics();
   const caps = buildCapabilities(ctx, metrics);
-  const app = createApp(ctx, { routers: caps.routers, readiness: caps.readiness, metrics });
+  const app = createApp(ctx, { routers: caps.routers, rawBodyRouters: caps.rawBodyRouters, readiness: caps.readiness, metrics });
   const server = await new Promise<Server>((resolve, reject) => {
     const s = app.listen(config.gateway.port, config.gateway.host, (err?: Error) => (err ? reject(err) : resolve(s)));
   });

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { deliveryConfigSchema } from '../delivery/delivery.config';
 
 /**
  * The gateway's one typed configuration. Built once (load.ts) from config/default.json, an
@@ -66,5 +67,6 @@ export const configSchema = z.object({
     /** Upload limit of the test bench, bytes. */
     previewMaxBytes: z.number().int().min(1024).max(64 * 1024 * 1024),
   }),
+  delivery: deliveryConfigSchema,
 });
 export type Config = z.infer<typeof configSchema>;

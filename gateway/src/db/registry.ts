@@ -12,6 +12,9 @@ import { Ingest1764700000001 } from './migrations/1764700000001-ingest';
 import { Foundation1764600000000 } from './migrations/1764600000000-foundation';
 import { Assessments1764650000000 } from './migrations/1764650000000-assessments';
 
-export const ENTITIES = [UserRow, UserSessionRow, AuditEntryRow, MonitorProfileRow, BedRow, MonitorRow, DeviceKeyRow, AssessmentRow, InboundMessageRow, WaveformSegmentRow, AnalysisWindowRow];
+import { AlertIncidentRow, DeliveryAttemptRow, DeliveryRow, DestinationRow } from '../delivery/delivery.entities';
+import { Delivery1764800000001 } from './migrations/1764800000001-delivery';
 
-export const MIGRATIONS = [Foundation1764600000000, Assessments1764650000000, Ingest1764700000001];
+export const ENTITIES = [UserRow, UserSessionRow, AuditEntryRow, MonitorProfileRow, BedRow, MonitorRow, DeviceKeyRow, AssessmentRow, InboundMessageRow, WaveformSegmentRow, AnalysisWindowRow, DestinationRow, DeliveryRow, DeliveryAttemptRow, AlertIncidentRow];
+
+export const MIGRATIONS = [Foundation1764600000000, Assessments1764650000000, Ingest1764700000001, Delivery1764800000001];

@@ -22,6 +22,8 @@ export interface ReadinessCheck {
 export interface AppParts {
   /** Routers mounted under /api/v1, in order. */
   routers: Router[];
+  /** Routers that read their request body themselves (raw bytes), mounted before the JSON parser. */
+  rawBodyRouters?: Router[];
   readiness?: ReadinessCheck[];
   metrics?: Metrics;
 }
@@ -84,6 +86,7 @@ export function createApp(ctx: AppContext, parts: AppParts): Express {
   });
 
   const api = express.Router();
+  for (const r of parts.rawBodyRouters ?? []) api.use(r);
   api.use(requireJsonBody);
   api.use(express.json({ limit: ctx.config.gateway.jsonBodyLimit }));
   api.use(cookieParser());

@@ -62,7 +62,7 @@ export function problemHandler(logger: Logger): ErrorRequestHandler {
     const instance = req.originalUrl;
     if (err instanceof HttpProblem) {
       if (err.status >= 500) logger.error({ err, reqId: req.id }, err.message);
-      else logger.warn({ status: err.status, reqId: req.id, detail: err.detail }, err.title);
+      else logger.debug({ status: err.status, reqId: req.id, detail: err.detail }, err.title);
       return send(
         res,
         {

@@ -1,0 +1,196 @@
+import { createHash } from 'node:crypto';
+import type { DataSource, QueryRunner } from 'typeorm';
+import type { Continuity, InboundOutcome, Transport } from '@ebbgate/shared';
+import { ENGINE_VERSION } from '@ebbgate/shared/analysis';
+import { isDuplicateKey } from '../devices/change-context';
+import type { MonitorForIngest } from '../devices/device-cache';
+import type { MappedChannel } from './channel-mapping';
+import type { ReceivedBatch } from './decoded-batch';
+import { IngestRefusal } from './refusal';
+import { continuityOf, plannedWindowStarts } from './window-plan';
+
+export interface StreamSettings {
+  windowSeconds: number;
+  stepSeconds: number;
+  gapResetSeconds: number;
+}
+
+export interface StoredBatch {
+  outcome: 'accepted' | 'duplicate';
+  inboundMessageId: string;
+  continuity: Continuity | null;
+  continuityMs: number | null;
+  windowsPlanned: number;
+}
+
+export interface InboundRecord {
+  transport: Transport;
+  receivedAt: Date;
+  outcome: InboundOutcome;
+  reason: string | null;
+  raw: Buffer;
+  sizeBytes?: number;
+  monitorId?: string | null;
+  monitorIdentifier?: string | null;
+  batchId?: string | null;
+}
+
+/** Keeps a message that was not stored as data (quarantined, rejected, duplicate), raw, with its reason. */
+export async function recordInbound(ds: DataSource | QueryRunner, r: InboundRecord): Promise<string> {
+  const res = (await ds.query(
+    `INSERT INTO inbound_message (received_at, transport, outcome, reason, monitor_id, monitor_identifier, batch_id, size_bytes, raw)
+     VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+    [r.receivedAt, r.transport, r.outcome, r.reason?.slice(0, 60_000) ?? null, r.monitorId ?? null, r.monitorIdentifier?.slice(0, 64) ?? null, r.batchId?.slice(0, 128) ?? null, r.sizeBytes ?? r.raw.length, r.raw],
+  )) as { insertId: number | string };
+  return String(res.insertId);
+}
+
+/** Content identity of a batch, independent of JSON formatting: times, codes, samples, context. */
+function contentHash(batch: ReceivedBatch, channels: MappedChannel[]): string {
+  const h = createHash('sha256');
+  h.update(`${batch.startTime.getTime()}|${JSON.stringify(batch.context ?? null)}`);
+  for (const c of channels) {
+    h.update(`|${c.code}|${c.sampleRate}|${c.sampleCount}|`);
+    h.update(c.samples);
+  }
+  return h.digest('hex');
+}
+
+const ms = (d: Date | string | null): number | null => (d === null ? null : new Date(d).getTime());
+
+export interface StoreRequest {
+  transport: Transport;
+  receivedAt: Date;
+  raw: Buffer;
+  monitor: MonitorForIngest;
+  batch: ReceivedBatch;
+  channels: MappedChannel[];
+  /** When reprocessing: the quarantined message whose row becomes the stored one. */
+  reprocessOf?: string;
+  handledBy?: string | null;
+}
+
+/**
+ * Stores one batch in one transaction: the inbound message row, one segment row per channel,
+ * the monitor's stream position and any analysis windows the new data completes. Answers
+ * `duplicate` for a repeat of the same batch id and content; refuses (409) other content.
+ */
+export async function storeBatch(ds: DataSource, req: StoreRequest, settings: StreamSettings): Promise<StoredBatch> {
+  const { batch, channels, monitor } = req;
+  const hash = contentHash(batch, channels);
+  const batchKey = `${monitor.id}|${batch.batchId}`;
+  const qr = ds.createQueryRunner();
+  await qr.connect();
+  try {
+    await qr.startTransaction();
+    try {
+      const out = await storeInTransaction(qr, req, hash, batchKey, settings);
+      await qr.commitTransaction();
+      return out;
+    } catch (err) {
+      await qr.rollbackTransaction();
+      if (!isDuplicateKey(err)) throw err;
+    }
+    return await settleRepeat(qr, req, hash, batchKey);
+  } finally {
+    await qr.release();
+  }
+}
+
+async function storeInTransaction(qr: QueryRunner, req: StoreRequest, hash: string, batchKey: string, settings: StreamSettings): Promise<StoredBatch> {
+  const { batch, channels, monitor } = req;
+  const rows = (await qr.query('SELECT received_until, next_window_start FROM monitor WHERE id = ? FOR UPDATE', [monitor.id])) as { received_until: Date | null; next_window_start: Date | null }[];
+  const prevEnd = ms(rows[0]?.received_until ?? null);
+  let next = ms(rows[0]?.next_window_start ?? null);
+  const startMs = batch.startTime.getTime();
+  const durationMs = Math.max(...channels.map((c) => (c.sampleCount / c.sampleRate) * 1000));
+  const endMs = startMs + durationMs;
+  // Within one and a half sample periods of the slowest channel counts as contiguous.
+  const toleranceMs = Math.max(...channels.map((c) => 1500 / c.sampleRate));
+  const { continuity, continuityMs } = continuityOf(prevEnd, startMs, toleranceMs);
+
+  const windowMs = settings.windowSeconds * 1000;
+  const stepMs = settings.stepSeconds * 1000;
+  const starts: number[] = [];
+  if (next === null) next = startMs;
+  else if (continuity === 'gap' && prevEnd !== null && (continuityMs ?? 0) > settings.gapResetSeconds * 1000) {
+    // Plan what the data before the gap completes, then restart the windows at the new data.
+    const before = plannedWindowStarts(next, prevEnd, windowMs, stepMs);
+    starts.push(...before);
+    next = startMs;
+  }
+  const coveredUntil = Math.max(prevEnd ?? endMs, endMs);
+  const after = plannedWindowStarts(next, coveredUntil, windowMs, stepMs);
+  starts.push(...after);
+  if (after.length) next = (after[after.length - 1] as number) + stepMs;
+
+  const contextJson = batch.context ? JSON.stringify(batch.context) : null;
+  let messageId: string;
+  if (req.reprocessOf) {
+    await qr.query(
+      `UPDATE inbound_message SET outcome = 'reprocessed', reason = NULL, monitor_id = ?, batch_id = ?, batch_key = ?, content_hash = ?, batch_start = ?, context = ?,
+       continuity = ?, continuity_ms = ?, handled_at = ?, handled_by = ? WHERE id = ?`,
+      [monitor.id, batch.batchId, batchKey, hash, batch.startTime, contextJson, continuity, continuityMs, new Date(), req.handledBy ?? null, req.reprocessOf],
+    );
+    messageId = req.reprocessOf;
+  } else {
+    const res = (await qr.query(
+      `INSERT INTO inbound_message (received_at, transport, outcome, monitor_id, monitor_identifier, batch_id, batch_key, content_hash, size_bytes, raw, batch_start, context, continuity, continuity_ms)
+       VALUES (?, ?, 'accepted', ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+      [req.receivedAt, req.transport, monitor.id, monitor.identifier, batch.batchId, batchKey, hash, req.raw.length, req.raw, batch.startTime, contextJson, continuity, continuityMs],
+    )) as { insertId: number | string };
+    messageId = String(res.insertId);
+  }
+
+  const values: unknown[] = [];
+  for (const c of channels) {
+    values.push(monitor.id, messageId, c.code, c.role, c.unit, c.sampleRate, batch.startTime, new Date(startMs + (c.sampleCount / c.sampleRate) * 1000), c.sampleCount, c.gain, c.offset, c.samples);
+  }
+  await qr.query(
+    `INSERT INTO waveform_segment (monitor_id, inbound_message_id, channel_code, role, unit, sample_rate, start_time, end_time, sample_count, gain, value_offset, samples)
+     VALUES ${channels.map(() => '(?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)').join(', ')}`,
+    values,
+  );
+  if (starts.length) {
+    const now = new Date();
+    const w: unknown[] = [];
+    for (const s of starts) w.push(monitor.id, new Date(s), new Date(s + windowMs), ENGINE_VERSION, now);
+    await qr.query(
+      `INSERT IGNORE INTO analysis_window (monitor_id, window_start, window_end, engine_version, status, attempts, created_at)
+       VALUES ${starts.map(() => "(?, ?, ?, ?, 'due', 0, ?)").join(', ')}`,
+      w,
+    );
+  }
+  const totalSamples = channels.reduce((a, c) => a + c.sampleCount, 0);
+  await qr.query('UPDATE monitor SET last_seen_at = ?, data_rate = ?, received_until = ?, next_window_start = ? WHERE id = ?', [
+    req.receivedAt,
+    durationMs > 0 ? totalSamples / (durationMs / 1000) : null,
+    new Date(coveredUntil),
+    new Date(next),
+    monitor.id,
+  ]);
+  return { outcome: 'accepted', inboundMessageId: messageId, continuity, continuityMs, windowsPlanned: starts.length };
+}
+
+/** The batch id was stored before: the same content is a harmless repeat, other content a conflict. */
+async function settleRepeat(qr: QueryRunner, req: StoreRequest, hash: string, batchKey: string): Promise<StoredBatch> {
+  const [orig] = (await qr.query('SELECT id, content_hash, continuity, continuity_ms FROM inbound_message WHERE batch_key = ?', [batchKey])) as {
+    id: string;
+    content_hash: string;
+    continuity: Continuity | null;
+    continuity_ms: number | null;
+  }[];
+  if (!orig) throw new Error(`duplicate batch key ${batchKey} but no stored message`);
+  const same = orig.content_hash === hash;
+  const outcome: InboundOutcome = same ? 'duplicate' : 'rejected';
+  const reason = same
+    ? `Repeat of inbound message ${orig.id} (same batch id and content); nothing stored again.`
+    : `Batch id ${req.batch.batchId} was stored before (inbound message ${orig.id}) with other content.`;
+  if (req.reprocessOf) {
+    await qr.query('UPDATE inbound_message SET outcome = ?, reason = ?, handled_at = ?, handled_by = ? WHERE id = ?', [outcome, reason, new Date(), req.handledBy ?? null, req.reprocessOf]);
+  } else {
+    await recordInbound(qr, { transport: req.transport, receivedAt: req.receivedAt, outcome, reason, raw: req.raw, monitorId: req.monitor.id, monitorIdentifier: req.monitor.identifier, batchId: req.batch.batchId });
+  }
+  if (!same) throw new IngestRefusal('conflict', reason, [{ path: 'batchId', message: 'already used for other content' }]);
+  return { outcome: 'duplicate', inboundMessageId: String(orig.id), continuity: orig.continuity, continuityMs: orig.continuity_ms, windowsPlanned: 0 };
+}
