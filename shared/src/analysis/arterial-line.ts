@@ -50,3 +50,10 @@ export function checkArterialLine(ch: ConditionedChannel, series: BeatSeries): A
   }
   return { notchFraction, dampingSuspected, flushSuspected };
 }
+
+/** Damping coefficient from the amplitude ratio of successive flush oscillations (Gardner 1981): ζ = −ln AR / √(π² + ln² AR). */
+export function dampingCoefficient(amplitudeRatio: number): number {
+  if (!(amplitudeRatio > 0 && amplitudeRatio < 1)) throw new RangeError(`amplitude ratio must lie in (0, 1), got ${amplitudeRatio}`);
+  const l = Math.log(amplitudeRatio);
+  return -l / Math.sqrt(Math.PI * Math.PI + l * l);
+}

@@ -43,7 +43,8 @@ function measure(ch: ConditionedChannel, lm: BeatLandmarks, source: BeatSource):
       map: null,
       amplitude: null,
       dc: null,
-      ibi: k > 0 ? (f - lm.foot[k - 1]) / fs : null,
+      // The foot of a beat cut by the window start is not real, so neither is the next interval.
+      ibi: k > 0 && !lm.edge[k - 1] ? (f - lm.foot[k - 1]) / fs : null,
       templateCorrelation: null,
       accepted: true,
       rejectReasons: [],

@@ -26,6 +26,8 @@ export { predictedBodyWeightKg, tidalVolumePerKg } from './pbw';
 export { AnalysisInputError, unitConversion } from './conditioning';
 export { butter, butterSos, filtfilt, sosfiltfilt, lfilter, lfilterZi } from './filters';
 export { percentVariation } from './signal-utils';
+export { dampingCoefficient } from './arterial-line';
+export { formatSummary } from './summary';
 export { DEFAULT_CODE_ROLES, roleForCode, batchToAnalysisInput, parseCsvCapture, CaptureParseError } from './input';
 
 function beatsFor(ch: ConditionedChannel | undefined, settings: AnalysisSettings): QualifiedBeats | null {

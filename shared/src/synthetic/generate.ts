@@ -105,11 +105,11 @@ export function generateWindow(spec: SyntheticSpec): SyntheticWindow {
     const ac = ac0 * b.sizeFactor * (1 + mPop * swing) * effortPulseFactor(peakT);
     const pFoot = b.footTime + PLETH_DELAY;
     plethBeats.push({ foot: pFoot, nextFoot: next.footTime + PLETH_DELAY, base: dc0, nextBase: dc0, amplitude: ac });
-    if (b.footTime >= 0 && next.footTime <= duration) {
+    if (b.footTime >= 0 && peakT < duration) {
       truthAbp.push({ footTime: b.footTime, peakTime: peakT, sbp: dbps[k] + pp, dbp: dbps[k], pp, ectopic: b.ectopic });
     }
     const pPeak = pFoot + Math.min(PLETH_SHAPE.rise, PLETH_SHAPE.riseFraction * L);
-    if (pFoot >= 0 && next.footTime + PLETH_DELAY <= duration) {
+    if (pFoot >= 0 && pPeak < duration) {
       truthPleth.push({ footTime: pFoot, peakTime: pPeak, amplitude: ac, dc: dc0 + ac / 2, ectopic: b.ectopic });
     }
   }
