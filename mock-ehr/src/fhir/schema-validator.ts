@@ -21,10 +21,23 @@ function loadAjv(): Ajv {
   delete schema.id;
   delete schema.discriminator;
   schema.$id = SCHEMA_ID;
+  addFhirVersion401(schema);
   ajv = new Ajv({ strict: false, allErrors: true, meta: false });
   ajv.addMetaSchema(draft6);
   ajv.addSchema(schema);
   return ajv;
+}
+
+/**
+ * The packaged file is the R4 4.0.0 schema; the 4.0.1 technical correction (what servers announce)
+ * added "4.0.1" to the FHIRVersion code lists (from memory), so it is added here and nothing else changes.
+ */
+function addFhirVersion401(node: unknown): void {
+  if (Array.isArray(node)) return node.forEach(addFhirVersion401);
+  if (!node || typeof node !== 'object') return;
+  const o = node as Record<string, unknown>;
+  if (Array.isArray(o.enum) && o.enum.includes('4.0.0') && !o.enum.includes('4.0.1')) o.enum.push('4.0.1');
+  for (const v of Object.values(o)) addFhirVersion401(v);
 }
 
 /** Compiles the validator of one resource type (the first call compiles the shared datatypes: ~2 s). */

@@ -11,6 +11,8 @@ const IGNORED = new Set(['_format', '_pretty', '_total', '_elements']);
 const DATE_PREFIXES = new Set(['eq', 'ne', 'gt', 'lt', 'ge', 'le', 'sa', 'eb']);
 
 export interface SearchRequest {
+  /** An identifier=system|value criterion, when present, narrows the scan through the store's index. */
+  identifier?: { system: string; value: string };
   count?: number;
   offset: number;
   summaryCount: boolean;
@@ -30,7 +32,12 @@ export function parseSearch(type: string, query: URLSearchParams): SearchRequest
   let count: number | undefined;
   let offset = 0;
   let summaryCount = false;
+  let identifier: SearchRequest['identifier'];
   for (const [rawName, value] of query) {
+    if (rawName === 'identifier' && !value.includes(',')) {
+      const bar = value.indexOf('|');
+      if (bar > 0 && bar < value.length - 1) identifier = { system: value.slice(0, bar), value: value.slice(bar + 1) };
+    }
     if (IGNORED.has(rawName)) continue;
     if (rawName === '_count' || rawName === '_offset') {
       const n = Number(value);
@@ -49,11 +56,11 @@ export function parseSearch(type: string, query: URLSearchParams): SearchRequest
     if (!def) throw FhirError.of(400, 'not-supported', `search parameter ${name} is not supported for ${type}`, [rawName]);
     tests.push(compile(def, modifier, value, rawName));
   }
-  return { count, offset, summaryCount, match: (r) => tests.every((t) => t(r)) };
+  return { identifier, count, offset, summaryCount, match: (r) => tests.every((t) => t(r)) };
 }
 
 export function runSearch(store: ResourceStore, type: string, req: SearchRequest): SearchResult {
-  const matches = store.all(type).filter(req.match);
+  const matches = candidates(store, type, req).filter(req.match);
   const end = req.count === undefined ? undefined : req.offset + req.count;
   return { total: matches.length, page: req.summaryCount ? [] : matches.slice(req.offset, end) };
 }
@@ -63,7 +70,11 @@ export function findMatches(store: ResourceStore, type: string, query: string): 
   const q = new URLSearchParams(query.includes('?') ? query.slice(query.indexOf('?') + 1) : query);
   if ([...q.keys()].length === 0) throw FhirError.of(400, 'invalid', 'a conditional request needs at least one search parameter');
   const req = parseSearch(type, q);
-  return store.all(type).filter(req.match);
+  return candidates(store, type, req).filter(req.match);
+}
+
+function candidates(store: ResourceStore, type: string, req: SearchRequest): FhirResource[] {
+  return req.identifier ? store.byIdentifier(type, req.identifier.system, req.identifier.value) : store.all(type);
 }
 
 function compile(def: ParamDef, modifier: string | undefined, value: string, rawName: string): (r: FhirResource) => boolean {

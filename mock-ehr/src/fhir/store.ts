@@ -13,6 +13,8 @@ export type Journal = Map<string, History | undefined>;
  */
 export class ResourceStore {
   private readonly byType = new Map<string, Map<string, History>>();
+  /** type → "system|value" → ids: conditional creates by identifier stay O(1) as the store grows. */
+  private readonly identifierIndex = new Map<string, Map<string, Set<string>>>();
   private journal: Journal | undefined;
 
   newId(): string {
@@ -33,6 +35,12 @@ export class ResourceStore {
     return [...(this.byType.get(type)?.values() ?? [])].map((h) => h[h.length - 1]!);
   }
 
+  /** Current resources of a type holding the identifier system|value. */
+  byIdentifier(type: string, system: string, value: string): FhirResource[] {
+    const ids = this.identifierIndex.get(type)?.get(`${system}|${value}`);
+    return ids ? [...ids].map((id) => this.read(type, id)!).filter(Boolean) : [];
+  }
+
   /** Stores a new version (versionId = previous + 1) and returns it. */
   write(resource: FhirResource & { id: string }, now = new Date()): FhirResource {
     const table = this.table(resource.resourceType);
@@ -42,7 +50,9 @@ export class ResourceStore {
     const stored = deepFreeze(
       structuredClone({ ...resource, meta: { ...resource.meta, versionId, lastUpdated: now.toISOString() } }),
     );
+    if (previous) this.unindex(previous[previous.length - 1]!);
     table.set(resource.id, [...(previous ?? []), stored]);
+    this.index(stored);
     return stored;
   }
 
@@ -64,14 +74,39 @@ export class ResourceStore {
 
   clear(): void {
     this.byType.clear();
+    this.identifierIndex.clear();
   }
 
   private rollback(journal: Journal): void {
     for (const [key, history] of journal) {
       const [type, id] = key.split('/') as [string, string];
-      if (history) this.table(type).set(id, history);
-      else this.table(type).delete(id);
+      const current = this.read(type, id);
+      if (current) this.unindex(current);
+      if (history) {
+        this.table(type).set(id, history);
+        this.index(history[history.length - 1]!);
+      } else this.table(type).delete(id);
     }
+  }
+
+  private identifierKeys(r: FhirResource): string[] {
+    const ids = Array.isArray(r.identifier) ? (r.identifier as { system?: unknown; value?: unknown }[]) : [];
+    return ids.filter((i) => typeof i.system === 'string' && typeof i.value === 'string').map((i) => `${String(i.system)}|${String(i.value)}`);
+  }
+
+  private index(r: FhirResource): void {
+    let byKey = this.identifierIndex.get(r.resourceType);
+    if (!byKey) this.identifierIndex.set(r.resourceType, (byKey = new Map()));
+    for (const key of this.identifierKeys(r)) {
+      let set = byKey.get(key);
+      if (!set) byKey.set(key, (set = new Set()));
+      set.add(r.id!);
+    }
+  }
+
+  private unindex(r: FhirResource): void {
+    const byKey = this.identifierIndex.get(r.resourceType);
+    for (const key of this.identifierKeys(r)) byKey?.get(key)?.delete(r.id!);
   }
 
   private remember(type: string, id: string, previous: History | undefined): void {
