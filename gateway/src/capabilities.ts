@@ -8,8 +8,10 @@ import { auditRouter } from './audit/audit.router';
 import { authRouter } from './auth/auth.router';
 import type { ReadinessCheck } from './http/app';
 import type { Metrics } from './http/metrics';
+import { settingsRouter } from './settings/settings.router';
 import { usersRouter } from './users/users.router';
 import { devicesRouter } from './devices/devices.router';
+import { buildIngest } from './ingest/ingest.capability';
 
 export interface BackgroundService {
   name: string;
@@ -27,9 +29,11 @@ export interface Capabilities {
 }
 
 export function buildCapabilities(ctx: AppContext, _metrics: Metrics): Capabilities {
+  const ingest = buildIngest(ctx);
   return {
-    routers: [authRouter(ctx), usersRouter(ctx), auditRouter(ctx), devicesRouter(ctx)],
+    routers: [authRouter(ctx), usersRouter(ctx), auditRouter(ctx), settingsRouter(ctx), devicesRouter(ctx), ...ingest.routers],
+    rawBodyRouters: [...ingest.rawBodyRouters],
     readiness: [],
-    services: [],
+    services: [...ingest.services],
   };
 }

@@ -6,3 +6,4 @@ export * from './schemas/ingest';
 export * from './schemas/devices';
 export * from './schemas/inbound';
 export * from './schemas/assessments';
+export * from './schemas/settings';

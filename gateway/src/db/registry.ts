@@ -5,16 +5,18 @@
 import { AssessmentRow } from '../assessments/assessment.entity';
 import { AuditEntryRow } from '../audit/audit-entry.entity';
 import { BedRow, DeviceKeyRow, MonitorProfileRow, MonitorRow } from '../devices/device.entities';
+import { SiteSettingRow } from '../settings/site-setting.entity';
 import { UserRow, UserSessionRow } from '../users/user.entity';
 import { AnalysisWindowRow } from '../analysis/analysis-window.entity';
 import { InboundMessageRow, WaveformSegmentRow } from '../ingest/ingest.entities';
 import { Ingest1764700000001 } from './migrations/1764700000001-ingest';
 import { Foundation1764600000000 } from './migrations/1764600000000-foundation';
 import { Assessments1764650000000 } from './migrations/1764650000000-assessments';
+import { SiteSettings1764900000000 } from './migrations/1764900000000-site-settings';
 
 import { AlertIncidentRow, DeliveryAttemptRow, DeliveryRow, DestinationRow } from '../delivery/delivery.entities';
 import { Delivery1764800000001 } from './migrations/1764800000001-delivery';
 
-export const ENTITIES = [UserRow, UserSessionRow, AuditEntryRow, MonitorProfileRow, BedRow, MonitorRow, DeviceKeyRow, AssessmentRow, InboundMessageRow, WaveformSegmentRow, AnalysisWindowRow, DestinationRow, DeliveryRow, DeliveryAttemptRow, AlertIncidentRow];
+export const ENTITIES = [UserRow, UserSessionRow, AuditEntryRow, MonitorProfileRow, BedRow, MonitorRow, DeviceKeyRow, AssessmentRow, InboundMessageRow, WaveformSegmentRow, AnalysisWindowRow, DestinationRow, DeliveryRow, DeliveryAttemptRow, AlertIncidentRow, SiteSettingRow];
 
-export const MIGRATIONS = [Foundation1764600000000, Assessments1764650000000, Ingest1764700000001, Delivery1764800000001];
+export const MIGRATIONS = [Foundation1764600000000, Assessments1764650000000, Ingest1764700000001, Delivery1764800000001, SiteSettings1764900000000];
