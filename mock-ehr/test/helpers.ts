@@ -46,7 +46,7 @@ export async function admin(ehr: RunningMockEhr, method: string, path: string, b
 }
 
 /** A minimal valid Observation (FHIR R4: status and code are required). */
-export function observation(identifierValue: string, extra: Record<string, unknown> = {}): Record<string, unknown> {
+export function observation(identifierValue: string, extra: Record<string, unknown> = {}): { resourceType: string } & Record<string, unknown> {
   return {
     resourceType: 'Observation',
     identifier: [{ system: 'urn:ebbgate:test:result', value: identifierValue }],
