@@ -1,4 +1,5 @@
 import type { ConditionedChannel } from './conditioning';
+import { hasArtefact } from './beat-quality';
 import { median } from './signal-utils';
 import type { ArterialLineReport, BeatSeries } from './types';
 
@@ -15,7 +16,8 @@ export function checkArterialLine(ch: ConditionedChannel, series: BeatSeries): A
   const rises: number[] = [];
   for (let k = 0; k + 1 < beats.length; k++) {
     const b = beats[k];
-    if (!b.accepted) continue;
+    // Damping shrinks the pulse (pp-low) and blurs the shape, so judge every beat free of artefact.
+    if (hasArtefact(b)) continue;
     const next = beats[k + 1].footSample;
     rises.push((b.peakSample - b.footSample) / fs);
     const end = next - Math.round(0.15 * (next - b.footSample));

@@ -18,6 +18,16 @@ const add = (b: Beat, r: BeatRejectReason): void => {
   if (!b.rejectReasons.includes(r)) b.rejectReasons.push(r);
 };
 
+function mean3(y: Float64Array, i: number): number {
+  const a = i > 0 ? y[i - 1] : y[i];
+  const b = i + 1 < y.length ? y[i + 1] : y[i];
+  return (a + y[i] + b) / 3;
+}
+
+/** Reasons that mean the beat's landmarks (and so its interval) cannot be trusted. */
+const ARTEFACT: BeatRejectReason[] = ['edge', 'gap', 'flat-line', 'clipped', 'noisy-slope', 'template-mismatch'];
+const hasArtefact = (b: Beat): boolean => b.rejectReasons.some((r) => ARTEFACT.includes(r));
+
 /** Builds per-beat values (SBP/DBP/PP/MAP or amplitude/DC) from the landmarks. */
 function measure(ch: ConditionedChannel, lm: BeatLandmarks, source: BeatSource): Beat[] {
   const y = ch.smooth;
@@ -50,12 +60,13 @@ function measure(ch: ConditionedChannel, lm: BeatLandmarks, source: BeatSource):
       rejectReasons: [],
     };
     if (source === 'abp') {
-      beat.sbp = y[p];
-      beat.dbp = y[f];
-      beat.pp = y[p] - y[f];
+      // Three-sample means at peak and foot damp residual noise; the bias is common to all beats.
+      beat.sbp = mean3(y, p);
+      beat.dbp = mean3(y, f);
+      beat.pp = beat.sbp - beat.dbp;
       beat.map = avg;
     } else {
-      beat.amplitude = y[p] - y[f];
+      beat.amplitude = mean3(y, p) - mean3(y, f);
       beat.dc = avg;
     }
     if (lm.edge[k] || (k + 1 >= count && end >= y.length)) add(beat, 'edge');
@@ -147,7 +158,8 @@ function intervalCheck(beats: Beat[], fraction: number): { irregular: number; ec
   let counted = 0;
   for (let k = 0; k < beats.length; k++) {
     const ibi = beats[k].ibi;
-    if (ibi === null) continue;
+    // Intervals next to artefact say nothing about the rhythm (a missed beat is not an ectopic).
+    if (ibi === null || hasArtefact(beats[k]) || (k > 0 && hasArtefact(beats[k - 1]))) continue;
     const local: number[] = [];
     for (let q = Math.max(0, k - 5); q <= Math.min(beats.length - 1, k + 5); q++) {
       const v = beats[q].ibi;
@@ -164,6 +176,8 @@ function intervalCheck(beats: Beat[], fraction: number): { irregular: number; ec
   return { irregular: counted ? irregular / counted : 0, ectopic };
 }
 
+export { hasArtefact };
+
 /** Beat quality stage: values, rule-based rejection with reason codes, and rhythm summary. */
 export function qualifyBeats(ch: ConditionedChannel, lm: BeatLandmarks, source: BeatSource, settings: AnalysisSettings): QualifiedBeats {
   const beats = measure(ch, lm, source);
@@ -171,8 +185,10 @@ export function qualifyBeats(ch: ConditionedChannel, lm: BeatLandmarks, source: 
   for (let k = 0; k < beats.length; k++) {
     const b = beats[k];
     const end = k + 1 < beats.length ? beats[k + 1].footSample : b.peakSample + 1;
-    if (overlapsAny(gaps, b.footSample, end)) add(b, 'gap');
-    if (overlapsAny(flatLines, b.footSample, end)) add(b, 'flat-line');
+    // The interval before the beat counts too: a beat right after a gap has no trustworthy period.
+    const from = k > 0 ? beats[k - 1].footSample + 1 : b.footSample;
+    if (overlapsAny(gaps, from, end)) add(b, 'gap');
+    if (overlapsAny(flatLines, from, end)) add(b, 'flat-line');
     if (overlapsAny(clipping, b.footSample, end)) add(b, 'clipped');
   }
   if (source === 'abp') sunRules(beats, ch, lm);

@@ -62,7 +62,7 @@ function motion(x: Float64Array, fs: number, start: number, duration: number, si
   let y = 0;
   const alpha = 1 - Math.exp((-2 * Math.PI * 3) / fs);
   for (let i = a; i < b; i++) {
-    v += rng.normal() * size * 0.9;
+    v += rng.normal() * size * 0.25; // stationary sd ≈ size
     v *= 0.97;
     y += alpha * (v - y);
     x[i] += y;
