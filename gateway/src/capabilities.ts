@@ -8,6 +8,7 @@ import { auditRouter } from './audit/audit.router';
 import { authRouter } from './auth/auth.router';
 import type { ReadinessCheck } from './http/app';
 import type { Metrics } from './http/metrics';
+import { overviewRouter } from './overview/overview.router';
 import { settingsRouter } from './settings/settings.router';
 import { usersRouter } from './users/users.router';
 import { devicesRouter } from './devices/devices.router';
@@ -31,7 +32,7 @@ export interface Capabilities {
 export function buildCapabilities(ctx: AppContext, _metrics: Metrics): Capabilities {
   const ingest = buildIngest(ctx);
   return {
-    routers: [authRouter(ctx), usersRouter(ctx), auditRouter(ctx), settingsRouter(ctx), devicesRouter(ctx), ...ingest.routers],
+    routers: [authRouter(ctx), usersRouter(ctx), auditRouter(ctx), settingsRouter(ctx), overviewRouter(ctx), devicesRouter(ctx), ...ingest.routers],
     rawBodyRouters: [...ingest.rawBodyRouters],
     readiness: [],
     services: [...ingest.services],

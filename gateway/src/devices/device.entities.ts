@@ -50,9 +50,9 @@ export class MonitorRow {
   /** Samples per second over the last batches, all channels together. */
   @Column({ name: 'data_rate', type: 'double', nullable: true }) dataRate!: number | null;
   /** End of the latest data received (stream position), for gap/overlap detection. */
-  @Column({ name: 'received_until', type: 'datetime', precision: 3, nullable: true }) receivedUntil!: Date | null;
+  @Column({ name: 'received_until', type: 'datetime', precision: 3, nullable: true }) receivedUntil?: Date | null;
   /** Start of the next analysis window to plan; null until the first batch. */
-  @Column({ name: 'next_window_start', type: 'datetime', precision: 3, nullable: true }) nextWindowStart!: Date | null;
+  @Column({ name: 'next_window_start', type: 'datetime', precision: 3, nullable: true }) nextWindowStart?: Date | null;
   @Column({ name: 'created_at', type: 'datetime', precision: 3 }) createdAt!: Date;
   @Column({ name: 'updated_at', type: 'datetime', precision: 3 }) updatedAt!: Date;
 }
