@@ -7,3 +7,4 @@ export * from './schemas/devices';
 export * from './schemas/inbound';
 export * from './schemas/assessments';
 export * from './schemas/settings';
+export * from './schemas/overview';
