@@ -140,12 +140,13 @@ export function parseCsvCapture(text: string): AnalysisInput {
       column += cells[c].length + 1;
     }
   }
-  const step = (times[n - 1] - times[0]) / (n - 1);
-  if (!(step > 0)) throw new CaptureParseError('time column must increase', 3, 1);
+  const first = times[1] - times[0];
+  if (!(first > 0)) throw new CaptureParseError('time column must increase', 3, 1);
   for (let r = 1; r < n; r++) {
     const d = times[r] - times[r - 1];
-    if (Math.abs(d - step) > 0.01 * step) throw new CaptureParseError(`time step ${d} s differs from the capture's ${step} s (irregular sampling)`, r + 2, 1);
+    if (Math.abs(d - first) > 0.01 * first) throw new CaptureParseError(`time step ${d} s differs from the first step ${first} s (irregular sampling)`, r + 2, 1);
   }
+  const step = (times[n - 1] - times[0]) / (n - 1);
   const fs = Math.round((1 / step) * 1e6) / 1e6;
   return { channels: cols.map((c, i) => ({ role: c.role, unit: c.unit, sampleRate: fs, samples: data[i] })) };
 }
