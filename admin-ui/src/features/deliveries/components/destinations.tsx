@@ -1,0 +1,56 @@
+import type { Page } from '@ebbgate/shared';
+import { useMutation, useQueryClient } from '@tanstack/react-query';
+import { useAuth } from '@/lib/auth';
+import { api, errorMessage } from '@/lib/api-client';
+import { formatDateTime } from '@/lib/format';
+import { StatusBadge } from '@/components/ui/badge';
+import { Button } from '@/components/ui/button';
+import { ErrorState } from '@/components/ui/states';
+import { useToast } from '@/components/ui/toast';
+import { deliveryKeys, useDestinations, type Destination } from '../api/deliveries';
+
+export function destinationList(data: Destination[] | Page<Destination> | undefined): Destination[] {
+  if (!data) return [];
+  return Array.isArray(data) ? data : data.items;
+}
+
+/** A destination's health in one word: paused, down (circuit open), degraded or healthy. */
+export function destinationState(d: Destination): string {
+  if (d.state) return d.state;
+  if (d.paused) return 'paused';
+  if (d.configurationError) return 'failed';
+  if (d.circuitState === 'open') return 'down';
+  if (d.circuitState === 'half-open' || (d.consecutiveFailures ?? 0) > 0) return 'degraded';
+  return 'healthy';
+}
+
+export function DestinationsPanel() {
+  const destinations = useDestinations();
+  const qc = useQueryClient();
+  const toast = useToast();
+  const { can } = useAuth();
+  const toggle = useMutation({
+    mutationFn: (d: Destination) => api.post<unknown>(`/destinations/${encodeURIComponent(d.id)}/${d.paused ? 'resume' : 'pause'}`),
+    onSuccess: (_r, d) => { toast.success(`${d.name} ${d.paused ? 'resumed' : 'paused'}`); qc.invalidateQueries({ queryKey: deliveryKeys.destinations }); },
+    onError: (e) => toast.error(errorMessage(e)),
+  });
+  if (destinations.error) return <ErrorState error={destinations.error} onRetry={() => destinations.refetch()} />;
+  const list = destinationList(destinations.data);
+  if (list.length === 0) return null;
+  return (
+    <section aria-label="Destinations" className="mb-3 grid gap-2 md:grid-cols-2 xl:grid-cols-3">
+      {list.map((d) => (
+        <div key={d.id} className="flex items-start justify-between gap-2 rounded-md border border-line bg-white px-3 py-2 text-sm" data-destination={d.id}>
+          <div className="min-w-0">
+            <p className="flex items-center gap-2 font-medium">{d.name} <StatusBadge status={destinationState(d)} /></p>
+            <p className="text-xs text-muted">{d.kind} · last success {formatDateTime(d.lastSuccessAt)}</p>
+            {(d.configurationError || d.lastError) && <p className="truncate text-xs text-notvalid" title={d.configurationError ?? d.lastError ?? ''}>{d.configurationError ?? d.lastError}</p>}
+          </div>
+          {can('manageDestinations') && (
+            <Button size="sm" busy={toggle.isPending && toggle.variables?.id === d.id} onClick={() => toggle.mutate(d)}>{d.paused ? 'Resume' : 'Pause'}</Button>
+          )}
+        </div>
+      ))}
+    </section>
+  );
+}

@@ -1,0 +1,96 @@
+import { useState } from 'react';
+import { Link } from 'react-router-dom';
+import { useAuth } from '@/lib/auth';
+import { formatDateTime, localInputToIso } from '@/lib/format';
+import { outcomeOf } from '@/lib/outcome';
+import { useListState } from '@/hooks/use-list-state';
+import { useBulkAction } from '@/hooks/use-bulk-action';
+import { StatusBadge } from '@/components/ui/badge';
+import { BulkProgress } from '@/components/ui/bulk-progress';
+import { Button } from '@/components/ui/button';
+import { DataTable, type Column } from '@/components/ui/data-table';
+import { ConfirmDialog } from '@/components/ui/dialog';
+import { SelectField, TextField } from '@/components/ui/field';
+import { FilterBar, PageHeader } from '@/components/ui/page';
+import { useToast } from '@/components/ui/toast';
+import { discardDelivery, retryDelivery, useDeliveries, useDestinations, useInvalidateDeliveries, type Delivery } from '../api/deliveries';
+import { DeliveryDetailDialog } from '../components/delivery-detail';
+import { DestinationsPanel, destinationList } from '../components/destinations';
+
+const STATUSES = ['failed', 'pending', 'waiting-context', 'delivered', 'discarded', 'withheld'];
+
+export function DeliveriesRoute() {
+  const list = useListState({ sort: 'createdAt', order: 'desc' }, { status: 'failed' });
+  const [from, setFrom] = useState('');
+  const [to, setTo] = useState('');
+  const deliveries = useDeliveries(list.query);
+  const destinations = useDestinations();
+  const invalidate = useInvalidateDeliveries();
+  const toast = useToast();
+  const { can } = useAuth();
+  const manage = can('manageDeliveries');
+  const [selected, setSelected] = useState<Set<string>>(new Set());
+  const [open, setOpen] = useState<string | null>(null);
+  const [confirm, setConfirm] = useState<'retry' | 'discard' | null>(null);
+  const retry = useBulkAction<unknown>((id) => retryDelivery(id), outcomeOf);
+  const discard = useBulkAction<unknown, string>((id, reason) => discardDelivery(id, reason), outcomeOf);
+  const destName = new Map(destinationList(destinations.data).map((d) => [d.id, d.name]));
+
+  const runBulk = async (kind: 'retry' | 'discard', reason: string) => {
+    const ids = [...selected];
+    setConfirm(null);
+    if (kind === 'retry') await retry.start(ids);
+    else await discard.start(ids, reason);
+    setSelected(new Set());
+    invalidate();
+    toast.info(`${kind === 'retry' ? 'Retry' : 'Discard'} finished for ${ids.length} item${ids.length === 1 ? '' : 's'}`);
+  };
+
+  const columns: Column<Delivery>[] = [
+    { key: 'createdAt', header: 'Queued', sortField: 'createdAt', render: (d) => <span className="num whitespace-nowrap">{formatDateTime(d.createdAt)}</span> },
+    { key: 'status', header: 'Status', sortField: 'status', render: (d) => <StatusBadge status={d.status} /> },
+    { key: 'index', header: 'Index', render: (d) => <span>{d.indexName}{d.kind === 'amend' ? <span className="text-xs text-muted"> (amend)</span> : null}</span> },
+    { key: 'destination', header: 'Destination', render: (d) => destName.get(d.destinationId) ?? d.destinationId },
+    { key: 'patient', header: 'Patient', render: (d) => d.patientRef ?? <span className="text-muted">—</span> },
+    { key: 'attempts', header: 'Attempts', sortField: 'attemptCount', className: 'text-right', render: (d) => <span className="num">{d.attemptCount}</span> },
+    { key: 'last', header: 'Last answer', render: (d) => <span className="text-xs">{d.lastHttpStatus ? <span className="num mr-1 font-medium">{d.lastHttpStatus}</span> : null}<span className="text-muted">{d.lastError ?? ''}</span></span> },
+    { key: 'assessment', header: 'Assessment', render: (d) => <Link className="text-xs text-ink-700 underline" to={`/assessments/${d.assessmentId}`}>open</Link> },
+    { key: 'detail', header: '', render: (d) => <Button size="sm" onClick={() => setOpen(d.id)}>Details</Button> },
+  ];
+
+  const clear = () => { list.clearFilters(); setFrom(''); setTo(''); };
+  const busy = retry.running || discard.running;
+
+  return (
+    <>
+      <PageHeader title="Deliveries" description="Observations queued for, sent to, or refused by the EHR. Failed ones can be retried or discarded with a reason." />
+      <DestinationsPanel />
+      <FilterBar onClear={clear}>
+        <SelectField label="Status" placeholder="any" wrapClassName="w-40" value={list.filters.status ?? ''} onChange={(e) => list.setFilter('status', e.target.value)} options={STATUSES.map((s) => ({ value: s, label: s }))} />
+        <SelectField label="Destination" placeholder="any" wrapClassName="w-48" value={list.filters.destination ?? ''} onChange={(e) => list.setFilter('destination', e.target.value)}
+          options={destinationList(destinations.data).map((d) => ({ value: d.id, label: d.name }))} />
+        <TextField label="From" type="datetime-local" wrapClassName="w-48" value={from} onChange={(e) => { setFrom(e.target.value); list.setFilter('from', localInputToIso(e.target.value)); }} />
+        <TextField label="To" type="datetime-local" wrapClassName="w-48" value={to} onChange={(e) => { setTo(e.target.value); list.setFilter('to', localInputToIso(e.target.value)); }} />
+        {manage && (
+          <div className="ml-auto flex items-end gap-2 self-end">
+            <Button variant="primary" disabled={selected.size === 0} busy={retry.running} onClick={() => setConfirm('retry')}>Retry selected ({selected.size})</Button>
+            <Button variant="danger" disabled={selected.size === 0 || busy} busy={discard.running} onClick={() => setConfirm('discard')}>Discard selected…</Button>
+          </div>
+        )}
+      </FilterBar>
+      <BulkProgress title="Retry" items={retry.items} />
+      <BulkProgress title="Discard" items={discard.items} />
+      <DataTable caption="Deliveries" columns={columns} rows={deliveries.data?.items} total={deliveries.data?.total} rowId={(d) => d.id}
+        params={list.params} onParamsChange={list.setParams} loading={deliveries.isPending} fetching={deliveries.isFetching} error={deliveries.error} onRetry={() => deliveries.refetch()}
+        selected={manage ? selected : undefined} onSelectedChange={manage ? setSelected : undefined}
+        emptyTitle={list.filters.status === 'failed' ? 'No failed deliveries' : 'No deliveries match'} emptyHint="Everything queued has reached the EHR, or the filters exclude it." />
+      <ConfirmDialog open={confirm === 'retry'} title="Retry deliveries" confirmLabel={`Retry ${selected.size}`}
+        message={<>Send the {selected.size} selected Observation{selected.size === 1 ? '' : 's'} to the EHR again now. Each one's outcome is shown as it finishes.</>}
+        onClose={() => setConfirm(null)} onConfirm={() => runBulk('retry', '')} />
+      <ConfirmDialog open={confirm === 'discard'} title="Discard deliveries" danger confirmLabel={`Discard ${selected.size}`} reasonLabel="Reason (kept in the audit log)"
+        message={<>The {selected.size} selected Observation{selected.size === 1 ? '' : 's'} will not be sent. The assessments stay stored.</>}
+        onClose={() => setConfirm(null)} onConfirm={(reason) => runBulk('discard', reason)} />
+      <DeliveryDetailDialog id={open} onClose={() => setOpen(null)} canManage={manage} />
+    </>
+  );
+}
