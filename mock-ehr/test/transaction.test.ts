@@ -53,6 +53,14 @@ describe('transaction Bundles', () => {
     expect(counts.body.byIdentifier['urn:ebbgate:test:result|tx-2']).toBe(1);
   });
 
+  it('answers a repeated conditional create within one Bundle with the first one\'s resource', async () => {
+    const entry = post(observation('tx-7'), undefined, 'identifier=urn:ebbgate:test:result|tx-7');
+    const a = await fhir(ehr, token, 'POST', '', { resourceType: 'Bundle', type: 'transaction', entry: [entry, entry] });
+    expect(a.body.entry.map((e: { response: { status: string } }) => e.response.status)).toEqual(['201 Created', '200 OK']);
+    expect(a.body.entry[1].resource.id).toBe(a.body.entry[0].resource.id);
+    expect((await admin(ehr, 'GET', 'observations')).body.byIdentifier['urn:ebbgate:test:result|tx-7']).toBe(1);
+  });
+
   it('is all or nothing: one invalid entry fails the Bundle and nothing from it is stored', async () => {
     const before = (await admin(ehr, 'GET', 'observations')).body.total as number;
     const bundle = {

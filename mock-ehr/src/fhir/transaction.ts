@@ -12,7 +12,12 @@ import type { ResourceStore } from './store.js';
 
 type Obj = Record<string, unknown>;
 interface Entry { index: number; method: string; url: string; type: string; resource?: Obj; fullUrl?: string; ifNoneExist?: string }
-interface Planned extends Entry { id?: string; existing?: FhirResource }
+interface Planned extends Entry {
+  id?: string;
+  existing?: FhirResource;
+  /** An earlier entry of this Bundle with the same conditional create: this one answers its resource. */
+  sameAsEarlier?: boolean;
+}
 interface EntryAnswer { status: number; resource?: FhirResource; outcome?: unknown }
 
 export function processBundle(body: unknown, deps: { store: ResourceStore; service: ResourceService; fhirBase: string; minimal: boolean }): FhirResource {
@@ -76,27 +81,39 @@ function readEntries(bundle: Obj): Entry[] {
 
 /** Settles the id every POST/PUT entry will have, so references between entries can be rewritten first. */
 function plan(entries: Entry[], store: ResourceStore): Planned[] {
+  // Two entries with the same ifNoneExist would both see "no match" before either is written; the
+  // later one is answered with the earlier one's resource so a Bundle cannot create duplicates.
+  const conditionalIds = new Map<string, string>();
   return entries.map((e) => {
     const where = `Bundle.entry[${e.index}]`;
     try {
       if (e.method === 'POST') {
-        const matches = e.ifNoneExist ? findMatches(store, e.type, e.ifNoneExist) : [];
-        if (matches.length > 1) throw FhirError.of(412, 'multiple-matches', `ifNoneExist "${e.ifNoneExist}" matched ${matches.length} resources`);
-        return matches[0] ? { ...e, id: matches[0].id, existing: matches[0] } : { ...e, id: store.newId() };
+        const key = e.ifNoneExist ? `${e.type}?${e.ifNoneExist}` : undefined;
+        const earlier = key ? conditionalIds.get(key) : undefined;
+        if (earlier) return { ...e, id: earlier, sameAsEarlier: true };
+        const planned = planPost(e, store);
+        if (key && planned.id) conditionalIds.set(key, planned.id);
+        return planned;
       }
-      if (e.method === 'PUT') {
-        if (e.url.includes('?')) {
-          const matches = findMatches(store, e.type, e.url);
-          if (matches.length > 1) throw FhirError.of(412, 'multiple-matches', `conditional update "${e.url}" matched ${matches.length} resources`);
-          return { ...e, id: matches[0]?.id ?? (typeof e.resource?.id === 'string' ? e.resource.id : store.newId()) };
-        }
-        return { ...e, id: e.url.split('/')[1] };
-      }
-      return e;
+      return planOther(e, store);
     } catch (err) {
       throw prefixed(err, where);
     }
   });
+}
+
+function planPost(e: Entry, store: ResourceStore): Planned {
+  const matches = e.ifNoneExist ? findMatches(store, e.type, e.ifNoneExist) : [];
+  if (matches.length > 1) throw FhirError.of(412, 'multiple-matches', `ifNoneExist "${e.ifNoneExist}" matched ${matches.length} resources`);
+  return matches[0] ? { ...e, id: matches[0].id, existing: matches[0] } : { ...e, id: store.newId() };
+}
+
+function planOther(e: Entry, store: ResourceStore): Planned {
+  if (e.method !== 'PUT') return e;
+  if (!e.url.includes('?')) return { ...e, id: e.url.split('/')[1] };
+  const matches = findMatches(store, e.type, e.url);
+  if (matches.length > 1) throw FhirError.of(412, 'multiple-matches', `conditional update "${e.url}" matched ${matches.length} resources`);
+  return { ...e, id: matches[0]?.id ?? (typeof e.resource?.id === 'string' ? e.resource.id : store.newId()) };
 }
 
 function rewriteReferences(planned: Planned[], store: ResourceStore): void {
@@ -137,6 +154,7 @@ function execute(e: Planned, deps: { store: ResourceStore; service: ResourceServ
   try {
     if (e.method === 'POST') {
       if (e.existing) return { status: 200, resource: e.existing };
+      if (e.sameAsEarlier) return { status: 200, resource: deps.store.read(e.type, e.id!)! };
       return deps.service.create(e.type, e.resource, { id: e.id, base });
     }
     if (e.method === 'PUT') return deps.service.update(e.type, e.id!, e.resource, { base });
