@@ -112,7 +112,7 @@ function sunRules(beats: Beat[], ch: ConditionedChannel, lm: BeatLandmarks): voi
   }
 }
 
-/** Template correlation (Li & Clifford, Physiol Meas 2012): Pearson r against the median beat. */
+/** Template correlation (Li & Clifford, Physiol Meas 2012): Pearson r against the window's mean beat. */
 function templateCheck(beats: Beat[], y: Float64Array, fs: number, minR: number): void {
   const ibis = beats.map((b) => b.ibi).filter((v): v is number => v !== null);
   if (beats.length < 5 || ibis.length < 4) return;
@@ -121,14 +121,10 @@ function templateCheck(beats: Beat[], y: Float64Array, fs: number, minR: number)
   const good = usable.filter((b) => b.rejectReasons.length === 0);
   const pool = good.length >= 5 ? good : usable;
   if (pool.length < 3) return;
+  // Mean template of the screened beats (Sun 2006 rules already removed gross artefact).
   const template = new Float64Array(len);
-  const column = new Float64Array(pool.length);
-  for (let j = 0; j < len; j++) {
-    for (let q = 0; q < pool.length; q++) column[q] = y[pool[q].footSample + j];
-    column.sort();
-    const m = pool.length >> 1;
-    template[j] = pool.length % 2 ? column[m] : (column[m - 1] + column[m]) / 2;
-  }
+  for (const b of pool) for (let j = 0; j < len; j++) template[j] += y[b.footSample + j];
+  for (let j = 0; j < len; j++) template[j] /= pool.length;
   let tm = 0;
   for (let j = 0; j < len; j++) tm += template[j];
   tm /= len;

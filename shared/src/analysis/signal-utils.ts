@@ -1,16 +1,17 @@
 /** Small numeric helpers shared by the stages (typed arrays, no allocation in loops). */
 
-/** Percentile (0–100) of the finite values, estimated from at most ~4096 evenly spaced samples. */
+/** Percentile (0–100) of the finite values, estimated from at most ~1024 evenly spaced samples. */
 export function robustPercentiles(x: ArrayLike<number>, ps: number[]): number[] {
-  const step = Math.max(1, Math.floor(x.length / 4096));
-  const vals: number[] = [];
+  const step = Math.max(1, Math.floor(x.length / 1024));
+  const buf = new Float64Array(Math.ceil(x.length / step));
+  let m = 0;
   for (let i = 0; i < x.length; i += step) {
     const v = x[i];
-    if (v === v) vals.push(v);
+    if (v === v) buf[m++] = v;
   }
-  if (vals.length === 0) return ps.map(() => Number.NaN);
-  vals.sort((a, b) => a - b);
-  return ps.map((p) => vals[Math.min(vals.length - 1, Math.max(0, Math.round((p / 100) * (vals.length - 1))))]);
+  if (m === 0) return ps.map(() => Number.NaN);
+  const vals = buf.subarray(0, m).sort(); // typed-array sort is numeric and native
+  return ps.map((p) => vals[Math.min(m - 1, Math.max(0, Math.round((p / 100) * (m - 1))))]);
 }
 
 export function median(values: number[]): number {
