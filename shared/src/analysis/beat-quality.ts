@@ -152,18 +152,26 @@ function intervalCheck(beats: Beat[], fraction: number): { irregular: number; ec
   let irregular = 0;
   let ectopic = 0;
   let counted = 0;
+  const local = new Float64Array(11);
   for (let k = 0; k < beats.length; k++) {
     const ibi = beats[k].ibi;
     // Intervals next to artefact say nothing about the rhythm (a missed beat is not an ectopic).
     if (ibi === null || hasArtefact(beats[k]) || (k > 0 && hasArtefact(beats[k - 1]))) continue;
-    const local: number[] = [];
+    let m = 0;
     for (let q = Math.max(0, k - 5); q <= Math.min(beats.length - 1, k + 5); q++) {
       const v = beats[q].ibi;
-      if (v !== null) local.push(v);
+      if (v === null) continue;
+      // insertion sort into the small buffer
+      let j = m++;
+      while (j > 0 && local[j - 1] > v) {
+        local[j] = local[j - 1];
+        j--;
+      }
+      local[j] = v;
     }
-    const m = median(local);
+    const med = m % 2 ? local[m >> 1] : (local[(m >> 1) - 1] + local[m >> 1]) / 2;
     counted++;
-    if (Math.abs(ibi - m) > fraction * m) {
+    if (Math.abs(ibi - med) > fraction * med) {
       irregular++;
       add(beats[k], 'ectopic');
       ectopic++;

@@ -118,21 +118,31 @@ function clippedRuns(raw: Float64Array, minLen: number, fs: number, flats: Sampl
   }
   if (!(max > min)) return [];
   const eps = (max - min) * 1e-9;
-  const collect = (target: number): SampleSpan[] => {
-    const out: SampleSpan[] = [];
-    let start = -1;
-    for (let i = 0; i <= raw.length; i++) {
-      const at = i < raw.length && Math.abs(raw[i] - target) <= eps;
-      if (at && start < 0) start = i;
-      if (!at && start >= 0) {
-        if (i - start >= minLen && !flats.some((f) => f.startSample <= start && f.endSample >= i)) out.push(spanOf(start, i, fs));
-        start = -1;
-      }
+  const hiRuns: SampleSpan[] = [];
+  const loRuns: SampleSpan[] = [];
+  let hiStart = -1;
+  let loStart = -1;
+  const inFlat = (a: number, b: number): boolean => flats.some((f) => f.startSample <= a && f.endSample >= b);
+  for (let i = 0; i <= raw.length; i++) {
+    const v = i < raw.length ? raw[i] : Number.NaN;
+    const atHi = v >= max - eps;
+    const atLo = v <= min + eps;
+    if (atHi) {
+      if (hiStart < 0) hiStart = i;
+    } else if (hiStart >= 0) {
+      if (i - hiStart >= minLen && !inFlat(hiStart, i)) hiRuns.push(spanOf(hiStart, i, fs));
+      hiStart = -1;
     }
-    // One pinned run can be chance; several pinned at the same value are saturation.
-    return out.length >= 3 ? out : [];
-  };
-  return [...collect(max), ...collect(min)].sort((a, b) => a.startSample - b.startSample);
+    if (atLo) {
+      if (loStart < 0) loStart = i;
+    } else if (loStart >= 0) {
+      if (i - loStart >= minLen && !inFlat(loStart, i)) loRuns.push(spanOf(loStart, i, fs));
+      loStart = -1;
+    }
+  }
+  // One pinned run can be chance; several pinned at the same value are saturation.
+  const collect = (runs: SampleSpan[]): SampleSpan[] => (runs.length >= 3 ? runs : []);
+  return [...collect(hiRuns), ...collect(loRuns)].sort((a, b) => a.startSample - b.startSample);
 }
 
 /** Conditioning stage: unit conversion, gaps, flat lines, clipping, zero-phase Butterworth filtering. */

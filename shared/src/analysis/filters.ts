@@ -266,19 +266,32 @@ export function sosfiltZi(sos: Sos): number[][] {
   });
 }
 
-/** In-place cascade of biquads over `buf` (direct form II transposed), from initial states × x0. */
-function sosfiltInPlace(sos: Sos, zi: number[][], x0: number, buf: Float64Array): void {
+/**
+ * In-place cascade of biquads over `buf` (direct form II transposed), from initial states × x0;
+ * `backward` runs from the last sample to the first (saves reversing the buffer twice).
+ */
+function sosfiltInPlace(sos: Sos, zi: number[][], x0: number, buf: Float64Array, backward: boolean): void {
   const n = buf.length;
   for (let s = 0; s < sos.length; s++) {
     const [b0, b1, b2, , a1, a2] = sos[s];
     let z0 = zi[s][0] * x0;
     let z1 = zi[s][1] * x0;
-    for (let i = 0; i < n; i++) {
-      const xi = buf[i];
-      const yi = b0 * xi + z0;
-      z0 = b1 * xi - a1 * yi + z1;
-      z1 = b2 * xi - a2 * yi;
-      buf[i] = yi;
+    if (!backward) {
+      for (let i = 0; i < n; i++) {
+        const xi = buf[i];
+        const yi = b0 * xi + z0;
+        z0 = b1 * xi - a1 * yi + z1;
+        z1 = b2 * xi - a2 * yi;
+        buf[i] = yi;
+      }
+    } else {
+      for (let i = n - 1; i >= 0; i--) {
+        const xi = buf[i];
+        const yi = b0 * xi + z0;
+        z0 = b1 * xi - a1 * yi + z1;
+        z1 = b2 * xi - a2 * yi;
+        buf[i] = yi;
+      }
     }
   }
 }
@@ -298,9 +311,7 @@ export function sosfiltfilt(sos: Sos, x: ArrayLike<number>): Float64Array {
   if (x.length <= edge) throw new RangeError(`sosfiltfilt needs more than ${edge} samples, got ${x.length}`);
   const zi = sosfiltZi(sos);
   const ext = oddExtend(x, edge);
-  sosfiltInPlace(sos, zi, ext[0], ext);
-  ext.reverse();
-  sosfiltInPlace(sos, zi, ext[0], ext);
-  ext.reverse();
-  return ext.slice(edge, edge + x.length);
+  sosfiltInPlace(sos, zi, ext[0], ext, false);
+  sosfiltInPlace(sos, zi, ext[ext.length - 1], ext, true);
+  return ext.subarray(edge, edge + x.length);
 }

@@ -4,13 +4,19 @@ import type { AnalysisContext, AnalysisSettings, Beat, BeatSeries, CycleRejectRe
 
 const MIN_BEATS_PER_CYCLE = (s: AnalysisSettings): number => Math.ceil(s.minHrRrRatio + 1e-9);
 
+/** Indices of the beats whose systolic peak lies in [start, end) (beats sorted by time). */
 function beatsIn(series: BeatSeries | null, start: number, end: number): number[] {
   if (!series) return [];
-  const out: number[] = [];
-  for (let k = 0; k < series.beats.length; k++) {
-    const t = series.beats[k].peakTime;
-    if (t >= start && t < end) out.push(k);
+  const beats = series.beats;
+  let lo = 0;
+  let hi = beats.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1;
+    if (beats[mid].peakTime < start) lo = mid + 1;
+    else hi = mid;
   }
+  const out: number[] = [];
+  for (let k = lo; k < beats.length && beats[k].peakTime < end; k++) out.push(k);
   return out;
 }
 
