@@ -38,7 +38,7 @@ export function mapChannels(batch: ReceivedBatch, monitor: MonitorForIngest | nu
   const errors: { path: string; message: string }[] = [];
   const mapped: MappedChannel[] = [];
   for (const ch of batch.channels) {
-    const p = profileChannelFor(profile, ch.code);
+    const p = [ch.code, ...(ch.altCodes ?? [])].map((c) => profileChannelFor(profile, c)).find(Boolean);
     if (!p) {
       errors.push({ path: `${ch.path}.code`, message: `code ${ch.code} is not in profile "${profile.name}"` });
       continue;

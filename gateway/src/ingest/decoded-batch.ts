@@ -9,6 +9,8 @@ export type ReceivedSamples = { kind: 'float32le'; bytes: Buffer } | { kind: 'ar
 
 export interface ReceivedChannel {
   code: string;
+  /** Other names of the same channel (HL7: the REFID beside the numeric MDC code). */
+  altCodes?: string[];
   sampleRate: number;
   unit?: string;
   role?: ChannelRole;

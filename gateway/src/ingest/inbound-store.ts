@@ -99,6 +99,7 @@ export async function storeBatch(ds: DataSource, req: StoreRequest, settings: St
 
 async function storeInTransaction(qr: QueryRunner, req: StoreRequest, hash: string, batchKey: string, settings: StreamSettings): Promise<StoredBatch> {
   const { batch, channels, monitor } = req;
+  if (!channels.length) return storeWithoutWaveforms(qr, req, hash, batchKey);
   const rows = (await qr.query('SELECT received_until, next_window_start FROM monitor WHERE id = ? FOR UPDATE', [monitor.id])) as { received_until: Date | null; next_window_start: Date | null }[];
   const prevEnd = ms(rows[0]?.received_until ?? null);
   let next = ms(rows[0]?.next_window_start ?? null);
@@ -170,6 +171,24 @@ async function storeInTransaction(qr: QueryRunner, req: StoreRequest, hash: stri
     monitor.id,
   ]);
   return { outcome: 'accepted', inboundMessageId: messageId, continuity, continuityMs, windowsPlanned: starts.length };
+}
+
+/** A message with numerics only (no waveform rows): kept and made idempotent, nothing to analyse. */
+async function storeWithoutWaveforms(qr: QueryRunner, req: StoreRequest, hash: string, batchKey: string): Promise<StoredBatch> {
+  const reason = 'No waveform rows; the numerics are kept in the raw message.';
+  if (req.reprocessOf) {
+    await qr.query("UPDATE inbound_message SET outcome = 'reprocessed', reason = ?, monitor_id = ?, batch_id = ?, batch_key = ?, content_hash = ?, handled_at = ?, handled_by = ? WHERE id = ?", [
+      reason, req.monitor.id, req.batch.batchId, batchKey, hash, new Date(), req.handledBy ?? null, req.reprocessOf,
+    ]);
+    return { outcome: 'accepted', inboundMessageId: req.reprocessOf, continuity: null, continuityMs: null, windowsPlanned: 0 };
+  }
+  const res = (await qr.query(
+    `INSERT INTO inbound_message (received_at, transport, outcome, reason, monitor_id, monitor_identifier, batch_id, batch_key, content_hash, size_bytes, raw)
+     VALUES (?, ?, 'accepted', ?, ?, ?, ?, ?, ?, ?, ?)`,
+    [req.receivedAt, req.transport, reason, req.monitor.id, req.monitor.identifier, req.batch.batchId, batchKey, hash, req.raw.length, req.raw],
+  )) as { insertId: number | string };
+  await qr.query('UPDATE monitor SET last_seen_at = ? WHERE id = ?', [req.receivedAt, req.monitor.id]);
+  return { outcome: 'accepted', inboundMessageId: String(res.insertId), continuity: null, continuityMs: null, windowsPlanned: 0 };
 }
 
 /** The batch id was stored before: the same content is a harmless repeat, other content a conflict. */

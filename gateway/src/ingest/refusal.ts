@@ -13,6 +13,8 @@ export class IngestRefusal extends Error {
     readonly kind: RefusalKind,
     readonly reason: string,
     readonly errors: FieldError[] = [],
+    /** HL7 table 0357 error code for ERR-3 when the message came over MLLP. */
+    readonly hl7Code?: number,
   ) {
     super(reason);
   }

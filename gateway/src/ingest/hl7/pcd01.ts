@@ -1,0 +1,175 @@
+/**
+ * IHE PCD-01 (ORU^R01) waveform messages → a transport-neutral batch. Rules from IHE PCD TF-2
+ * (see handbook standards.md): OBX-3 `code^REFID^MDC`, OBX-4 dotted hierarchy with time
+ * inherited from the nearest ancestor (OBX-14 over OBR-7), OBX-18 equipment identifier (EUI-64)
+ * inherited from the MDS level, waveforms as NA with a sample-rate facet row under their sub-ID.
+ */
+import type { AnalysisContext } from '@ebbgate/shared';
+import type { ReceivedBatch, ReceivedChannel } from '../decoded-batch';
+import { IngestRefusal } from '../refusal';
+import { component, field, Hl7ParseError, parseHl7, parseHl7Time, type Hl7Message, type Segment } from './message';
+
+export interface Hl7Header {
+  controlId: string;
+  version: string;
+  messageType: string;
+  sendingApplication: string;
+  sendingFacility: string;
+  receivingApplication: string;
+  receivingFacility: string;
+  /** MSH-15/16 valued: the sender asked for enhanced-mode acknowledgement (CA/CE/CR). */
+  enhancedMode: boolean;
+}
+
+export interface Numeric {
+  code: string;
+  refId: string;
+  subId: string;
+  value: number | string;
+  unit: string;
+}
+
+export interface Pcd01Decoded {
+  header: Hl7Header;
+  batch: ReceivedBatch;
+  numerics: Numeric[];
+  warnings: string[];
+}
+
+export function readHeader(msg: Hl7Message): Hl7Header {
+  const msh = msg.segments[0] as Segment;
+  const d = msg.delimiters;
+  return {
+    controlId: component(msh, 10, 1, d),
+    version: component(msh, 12, 1, d),
+    messageType: `${component(msh, 9, 1, d)}^${component(msh, 9, 2, d)}`,
+    sendingApplication: field(msh, 3, d),
+    sendingFacility: field(msh, 4, d),
+    receivingApplication: field(msh, 5, d),
+    receivingFacility: field(msh, 6, d),
+    enhancedMode: Boolean(field(msh, 15, d) || field(msh, 16, d)),
+  };
+}
+
+const PER_SECOND_UNITS = new Set(['/S', 'HZ', 'S-1', '1/S', '264608', 'MDC_DIM_PER_SEC', 'PER SECOND']);
+
+/** Ventilator numerics that are analysis context. REFIDs from memory (IEEE 11073-10101), not confirmed. */
+const CONTEXT_NUMERICS: Record<string, keyof AnalysisContext> = {
+  MDC_VENT_RESP_RATE_SET: 'setRespiratoryRate',
+  MDC_VOL_AWAY_TIDAL_SET: 'tidalVolumeMl',
+  MDC_VOL_AWAY_TIDAL: 'tidalVolumeMl',
+};
+
+/** Ancestors of a sub-ID, nearest first: 1.2.3.4 → 1.2.3.0, 1.2.0.0, 1.0.0.0 (and plain prefixes). */
+function ancestors(subId: string): string[] {
+  const parts = subId.split('.');
+  const out: string[] = [];
+  for (let k = parts.length - 1; k >= 1; k--) {
+    const prefix = parts.slice(0, k);
+    out.push(prefix.join('.'));
+    if (parts.length <= 4) out.push([...prefix, ...Array(Math.max(0, 4 - k)).fill('0')].join('.'));
+  }
+  return out;
+}
+
+const fail = (reason: string, path: string, message: string, hl7Code: number) => new IngestRefusal('invalid', reason, [{ path, message }], hl7Code);
+
+/** Decodes an ORU^R01 message; throws IngestRefusal('invalid') naming the segment and field. */
+export function decodePcd01(raw: Buffer): Pcd01Decoded {
+  let msg: Hl7Message;
+  try {
+    msg = parseHl7(raw.toString('utf8'));
+  } catch (err) {
+    if (err instanceof Hl7ParseError) throw fail('The message is not readable HL7 v2.', err.location ?? 'MSH', err.message, err.code);
+    throw err;
+  }
+  const header = readHeader(msg);
+  const d = msg.delimiters;
+  if (!header.controlId) throw fail('MSH-10 (message control id) is empty.', 'MSH-10', 'required', 101);
+  if (header.messageType !== 'ORU^R01') throw fail(`Only ORU^R01 is accepted here, not ${header.messageType}.`, 'MSH-9', `unsupported message type ${header.messageType}`, 200);
+
+  let obrTime: Date | null = null;
+  const timeBySubId = new Map<string, Date>();
+  const equipmentBySubId = new Map<string, string>();
+  const rows: { seg: Segment; subId: string }[] = [];
+  for (const seg of msg.segments) {
+    if (seg.name === 'OBR') {
+      const t = component(seg, 7, 1, d);
+      obrTime = t ? parseHl7Time(t) : null;
+      if (t && !obrTime) throw fail('OBR-7 is not an HL7 date/time.', `OBR[${seg.index}]-7`, `"${t}"`, 102);
+    } else if (seg.name === 'OBX') {
+      const subId = component(seg, 4, 1, d) || `#${seg.index}`;
+      const t = component(seg, 14, 1, d);
+      if (t) {
+        const parsed = parseHl7Time(t);
+        if (!parsed) throw fail('OBX-14 is not an HL7 date/time.', `OBX[${seg.index}]-14`, `"${t}"`, 102);
+        timeBySubId.set(subId, parsed);
+      }
+      const eq = component(seg, 18, 1, d);
+      if (eq) equipmentBySubId.set(subId, eq);
+      rows.push({ seg, subId });
+    }
+  }
+  if (!rows.length) throw fail('The message has no OBX segments.', 'OBX', 'at least one OBX is required', 100);
+  const inherit = <T>(map: Map<string, T>, subId: string): T | undefined => map.get(subId) ?? ancestors(subId).map((a) => map.get(a)).find((v) => v !== undefined);
+
+  const equipment = new Set(rows.map((r) => inherit(equipmentBySubId, r.subId)).filter((v): v is string => Boolean(v)));
+  if (equipment.size === 0) throw fail('No OBX-18 equipment identifier names the monitor.', 'OBX-18', 'required at the MDS level (EUI-64)', 101);
+  if (equipment.size > 1) throw fail('The message names several monitors in OBX-18.', 'OBX-18', [...equipment].join(', '), 102);
+  const monitorIdentifier = [...equipment][0] as string;
+
+  const channels: ReceivedChannel[] = [];
+  const numerics: Numeric[] = [];
+  const context: AnalysisContext = {};
+  const warnings: string[] = [];
+  let startTime: Date | null = null;
+  for (const { seg, subId } of rows) {
+    const valueType = field(seg, 2, d);
+    const code = component(seg, 3, 1, d);
+    const refId = component(seg, 3, 2, d);
+    const where = `OBX[${seg.index}]`;
+    if (valueType === 'NA') {
+      const rateRow = rows.find((r) => r.subId.startsWith(`${subId}.`) && /SAMP_RATE/i.test(`${component(r.seg, 3, 1, d)} ${component(r.seg, 3, 2, d)}`));
+      if (!rateRow) throw fail(`Waveform ${refId || code} has no sample-rate facet row under sub-ID ${subId}.`, `${where}-4`, `expected an OBX with MDC_ATTR_SAMP_RATE at ${subId}.1`, 101);
+      const rate = Number(component(rateRow.seg, 5, 1, d));
+      const rateUnit = (component(rateRow.seg, 6, 2, d) || component(rateRow.seg, 6, 1, d)).toUpperCase();
+      if (!(rate > 0) || rate > 2000) throw fail('The sample-rate facet is not a positive number.', `OBX[${rateRow.seg.index}]-5`, `"${component(rateRow.seg, 5, 1, d)}"`, 102);
+      if (rateUnit && !PER_SECOND_UNITS.has(rateUnit) && !PER_SECOND_UNITS.has(component(rateRow.seg, 6, 1, d).toUpperCase())) {
+        throw fail('The sample-rate facet is not in a per-second unit.', `OBX[${rateRow.seg.index}]-6`, `"${rateUnit}"`, 102);
+      }
+      const t = inherit(timeBySubId, subId) ?? obrTime;
+      if (!t) throw fail(`Waveform ${refId || code} has no time (OBX-14, an ancestor's OBX-14, or OBR-7).`, `${where}-14`, 'required', 101);
+      if (startTime && t.getTime() !== startTime.getTime()) throw fail('Waveforms in one message must start at the same time.', `${where}-14`, `${t.toISOString()} vs ${startTime.toISOString()}`, 102);
+      startTime = t;
+      const parts = (seg.fields[5] ?? '').split(d.component);
+      const values = new Array<number | null>(parts.length);
+      for (let i = 0; i < parts.length; i++) {
+        const p = parts[i] as string;
+        if (p === '') values[i] = null;
+        else {
+          const v = Number(p);
+          if (!Number.isFinite(v)) throw fail(`Sample ${i + 1} of waveform ${refId || code} is not a number.`, `${where}-5.${i + 1}`, `"${p.slice(0, 20)}"`, 102);
+          values[i] = v;
+        }
+      }
+      if (!values.length || (values.length === 1 && values[0] === null)) throw fail(`Waveform ${refId || code} carries no samples.`, `${where}-5`, 'empty', 101);
+      channels.push({ code: code || refId, altCodes: refId && code ? [refId] : [], sampleRate: rate, unit: component(seg, 6, 1, d) || undefined, samples: { kind: 'array', values }, path: where });
+    } else if (valueType === 'NM' || valueType === 'ST' || valueType === 'CWE' || valueType === 'CE') {
+      if (rows.some((r) => subId.startsWith(`${r.subId}.`) && field(r.seg, 2, d) === 'NA')) continue; // a facet of a waveform
+      const rawValue = component(seg, 5, 1, d);
+      const value = valueType === 'NM' ? Number(rawValue) : rawValue;
+      if (valueType === 'NM' && rawValue !== '' && !Number.isFinite(value)) throw fail(`OBX ${refId || code} is NM but not a number.`, `${where}-5`, `"${rawValue.slice(0, 20)}"`, 102);
+      numerics.push({ code, refId, subId, value, unit: component(seg, 6, 2, d) || component(seg, 6, 1, d) });
+      const key = CONTEXT_NUMERICS[refId.toUpperCase()];
+      if (key && typeof value === 'number' && value > 0) (context as Record<string, unknown>)[key] = value;
+    } else if (valueType && valueType !== 'X') {
+      warnings.push(`${where}: value type ${valueType} ignored`);
+    }
+  }
+  return {
+    header,
+    batch: { monitorIdentifier, batchId: header.controlId, startTime: startTime ?? obrTime ?? new Date(0), channels, context: Object.keys(context).length ? context : undefined },
+    numerics,
+    warnings,
+  };
+}
