@@ -12,6 +12,7 @@ export const routes: AppRoute[] = [
   { path: '/profiles', permission: 'devices', component: lazyNamed(() => import('@/features/devices/routes/profiles'), 'ProfilesRoute') },
   { path: '/profiles/:id', permission: 'devices', component: lazyNamed(() => import('@/features/devices/routes/profile-edit'), 'ProfileEditRoute') },
   { path: '/beds', permission: 'devices', component: lazyNamed(() => import('@/features/devices/routes/beds'), 'BedsRoute') },
-  { path: '/deliveries', permission: 'deliveries', component: lazyNamed(() => import('@/features/deliveries/routes/deliveries'), 'DeliveriesRoute') },
+  { path: '/deliveries', permission: 'deliveries', component: lazyNamed(() => import('./pages'), 'DeliveriesPage') },
   { path: '/inbound', permission: 'inbound', component: lazyNamed(() => import('@/features/inbound/routes/inbound'), 'InboundRoute') },
+  { path: '/settings', permission: 'settings', component: lazyNamed(() => import('./pages'), 'SettingsPage') },
 ];

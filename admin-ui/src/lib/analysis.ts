@@ -1,5 +1,6 @@
 // The analysis contract, re-exported in one place so the console follows it from a single import.
-// TODO(when shared/src/analysis/index.ts lands): import from '@ebbgate/shared/analysis' instead.
+// Read from the contract files themselves, not the '@ebbgate/shared/analysis' entry point, so the
+// console neither bundles nor type-checks the engine: it only displays its results.
 export type * from '../../../shared/src/analysis/types';
 import type { AnalysisResult } from '../../../shared/src/analysis/types';
 import type { ChannelRole } from '@ebbgate/shared';

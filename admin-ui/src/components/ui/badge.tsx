@@ -34,9 +34,9 @@ export function VerdictBadge({ verdict }: { verdict: Verdict }) {
 
 /** Status words used by deliveries, inbound messages, monitors and users. */
 const statusTone: Record<string, Tone> = {
-  delivered: 'good', accepted: 'good', reprocessed: 'good', enabled: 'good', active: 'good', running: 'good', healthy: 'good',
+  delivered: 'good', accepted: 'good', reprocessed: 'good', enabled: 'good', active: 'good', running: 'good', healthy: 'good', up: 'good',
   pending: 'info', 'waiting-context': 'info', duplicate: 'neutral', paused: 'warn', quarantined: 'warn', degraded: 'warn',
-  failed: 'bad', rejected: 'bad', discarded: 'neutral', disabled: 'neutral', locked: 'bad', down: 'bad', 'entered-in-error': 'bad',
+  failed: 'bad', rejected: 'bad', discarded: 'neutral', disabled: 'neutral', locked: 'bad', down: 'bad', 'entered-in-error': 'bad', 'circuit-open': 'bad', misconfigured: 'bad', withheld: 'neutral',
 };
 
 export function StatusBadge({ status }: { status: string }) {

@@ -24,16 +24,10 @@ export interface Delivery {
 export interface DeliveryAttempt { at: string; durationMs?: number; httpStatus: number | null; outcome: string; detail?: string | null; response?: unknown }
 export interface DeliveryDetail extends Delivery { payload: unknown; attempts: DeliveryAttempt[] }
 
-export interface Destination {
-  id: string; name: string; kind: string; paused: boolean; circuitState?: string; consecutiveFailures?: number;
-  downSince?: string | null; lastSuccessAt?: string | null; lastFailureAt?: string | null; lastError?: string | null; configurationError?: string | null; state?: string;
-}
-
 export const deliveryKeys = {
   all: ['deliveries'] as const,
   list: (q: Query) => ['deliveries', 'list', q] as const,
   detail: (id: string) => ['deliveries', 'detail', id] as const,
-  destinations: ['destinations'] as const,
 };
 
 const enc = encodeURIComponent;
@@ -44,8 +38,14 @@ export function useDeliveries(q: Query) {
 export function useDelivery(id: string | null) {
   return useQuery({ queryKey: deliveryKeys.detail(id ?? ''), queryFn: ({ signal }) => api.get<DeliveryDetail>(`/deliveries/${enc(id!)}`, undefined, signal), enabled: !!id });
 }
-export function useDestinations() {
-  return useQuery({ queryKey: deliveryKeys.destinations, queryFn: ({ signal }) => api.get<Destination[] | Page<Destination>>('/destinations', undefined, signal) });
+/** Destinations for the filter select (names only). */
+export function useDestinationOptions() {
+  return useQuery({ queryKey: ['deliveries', 'destination-options'] as const, queryFn: ({ signal }) => api.get<DestinationOption[] | Page<DestinationOption>>('/destinations', undefined, signal) });
+}
+export interface DestinationOption { id: string; name: string }
+export function optionList(data: DestinationOption[] | Page<DestinationOption> | undefined): DestinationOption[] {
+  if (!data) return [];
+  return Array.isArray(data) ? data : data.items;
 }
 
 /** One retry per call so the screen can show each item's outcome. */

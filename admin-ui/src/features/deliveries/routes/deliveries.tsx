@@ -1,4 +1,4 @@
-import { useState } from 'react';
+import { useState, type ReactNode } from 'react';
 import { Link } from 'react-router-dom';
 import { useAuth } from '@/lib/auth';
 import { formatDateTime, localInputToIso } from '@/lib/format';
@@ -13,18 +13,18 @@ import { ConfirmDialog } from '@/components/ui/dialog';
 import { SelectField, TextField } from '@/components/ui/field';
 import { FilterBar, PageHeader } from '@/components/ui/page';
 import { useToast } from '@/components/ui/toast';
-import { discardDelivery, retryDelivery, useDeliveries, useDestinations, useInvalidateDeliveries, type Delivery } from '../api/deliveries';
+import { discardDelivery, optionList, retryDelivery, useDeliveries, useDestinationOptions, useInvalidateDeliveries, type Delivery } from '../api/deliveries';
 import { DeliveryDetailDialog } from '../components/delivery-detail';
-import { DestinationsPanel, destinationList } from '../components/destinations';
 
 const STATUSES = ['failed', 'pending', 'waiting-context', 'delivered', 'discarded', 'withheld'];
 
-export function DeliveriesRoute() {
+/** `destinations` is the destinations panel, composed in by the app (features do not import each other). */
+export function DeliveriesRoute({ destinations: destinationsPanel }: { destinations?: ReactNode }) {
   const list = useListState({ sort: 'createdAt', order: 'desc' }, { status: 'failed' });
   const [from, setFrom] = useState('');
   const [to, setTo] = useState('');
   const deliveries = useDeliveries(list.query);
-  const destinations = useDestinations();
+  const destinations = useDestinationOptions();
   const invalidate = useInvalidateDeliveries();
   const toast = useToast();
   const { can } = useAuth();
@@ -34,7 +34,7 @@ export function DeliveriesRoute() {
   const [confirm, setConfirm] = useState<'retry' | 'discard' | null>(null);
   const retry = useBulkAction<unknown>((id) => retryDelivery(id), outcomeOf);
   const discard = useBulkAction<unknown, string>((id, reason) => discardDelivery(id, reason), outcomeOf);
-  const destName = new Map(destinationList(destinations.data).map((d) => [d.id, d.name]));
+  const destName = new Map(optionList(destinations.data).map((d) => [d.id, d.name]));
 
   const runBulk = async (kind: 'retry' | 'discard', reason: string) => {
     const ids = [...selected];
@@ -64,11 +64,11 @@ export function DeliveriesRoute() {
   return (
     <>
       <PageHeader title="Deliveries" description="Observations queued for, sent to, or refused by the EHR. Failed ones can be retried or discarded with a reason." />
-      <DestinationsPanel />
+      {destinationsPanel}
       <FilterBar onClear={clear}>
         <SelectField label="Status" placeholder="any" wrapClassName="w-40" value={list.filters.status ?? ''} onChange={(e) => list.setFilter('status', e.target.value)} options={STATUSES.map((s) => ({ value: s, label: s }))} />
         <SelectField label="Destination" placeholder="any" wrapClassName="w-48" value={list.filters.destination ?? ''} onChange={(e) => list.setFilter('destination', e.target.value)}
-          options={destinationList(destinations.data).map((d) => ({ value: d.id, label: d.name }))} />
+          options={optionList(destinations.data).map((d) => ({ value: d.id, label: d.name }))} />
         <TextField label="From" type="datetime-local" wrapClassName="w-48" value={from} onChange={(e) => { setFrom(e.target.value); list.setFilter('from', localInputToIso(e.target.value)); }} />
         <TextField label="To" type="datetime-local" wrapClassName="w-48" value={to} onChange={(e) => { setTo(e.target.value); list.setFilter('to', localInputToIso(e.target.value)); }} />
         {manage && (

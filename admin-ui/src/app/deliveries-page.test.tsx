@@ -2,7 +2,7 @@ import { describe, expect, it, afterEach, vi } from 'vitest';
 import { screen, waitFor, within } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
 import { fakeGateway, renderApp, SESSION } from '@/test/render';
-import { DeliveriesRoute } from './deliveries';
+import { DeliveriesPage } from '@/app/pages';
 
 afterEach(() => vi.unstubAllGlobals());
 
@@ -28,7 +28,7 @@ function gateway(roles: string[]) {
 describe('failed deliveries', () => {
   it('lists failed deliveries by default and retries the selected ones one by one with their own outcome', async () => {
     const gw = gateway(['operator']);
-    renderApp(<DeliveriesRoute />);
+    renderApp(<DeliveriesPage />);
     await screen.findByText('1–3 of 3');
     expect(gw.calls.find((c) => c.url.pathname === '/api/v1/deliveries')!.url.searchParams.get('status')).toBe('failed');
     expect(within(screen.getByRole('region', { name: 'Destinations' })).getByText('down')).toBeTruthy();
@@ -50,7 +50,7 @@ describe('failed deliveries', () => {
 
   it('a reviewer can read deliveries but gets no selection or retry', async () => {
     gateway(['reviewer']);
-    renderApp(<DeliveriesRoute />);
+    renderApp(<DeliveriesPage />);
     await screen.findByText('1–3 of 3');
     expect(screen.queryByLabelText('Select d1')).toBeNull();
     expect(screen.queryByRole('button', { name: /Retry selected/ })).toBeNull();

@@ -1,13 +1,12 @@
 import type { Page } from '@ebbgate/shared';
-import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { useAuth } from '@/lib/auth';
-import { api, errorMessage } from '@/lib/api-client';
+import { errorMessage } from '@/lib/api-client';
 import { formatDateTime } from '@/lib/format';
 import { StatusBadge } from '@/components/ui/badge';
 import { Button } from '@/components/ui/button';
 import { ErrorState } from '@/components/ui/states';
 import { useToast } from '@/components/ui/toast';
-import { deliveryKeys, useDestinations, type Destination } from '../api/deliveries';
+import { useDestinations, useToggleDestination, type Destination } from '../api/destinations';
 
 export function destinationList(data: Destination[] | Page<Destination> | undefined): Destination[] {
   if (!data) return [];
@@ -24,14 +23,14 @@ export function destinationState(d: Destination): string {
   return 'healthy';
 }
 
+/** Each EHR destination with its health, and pause/resume for operators. */
 export function DestinationsPanel() {
   const destinations = useDestinations();
-  const qc = useQueryClient();
   const toast = useToast();
   const { can } = useAuth();
-  const toggle = useMutation({
-    mutationFn: (d: Destination) => api.post<unknown>(`/destinations/${encodeURIComponent(d.id)}/${d.paused ? 'resume' : 'pause'}`),
-    onSuccess: (_r, d) => { toast.success(`${d.name} ${d.paused ? 'resumed' : 'paused'}`); qc.invalidateQueries({ queryKey: deliveryKeys.destinations }); },
+  const toggle = useToggleDestination();
+  const onToggle = (d: Destination) => toggle.mutate(d, {
+    onSuccess: () => toast.success(`${d.name} ${d.paused ? 'resumed' : 'paused'}`),
     onError: (e) => toast.error(errorMessage(e)),
   });
   if (destinations.error) return <ErrorState error={destinations.error} onRetry={() => destinations.refetch()} />;
@@ -47,7 +46,7 @@ export function DestinationsPanel() {
             {(d.configurationError || d.lastError) && <p className="truncate text-xs text-notvalid" title={d.configurationError ?? d.lastError ?? ''}>{d.configurationError ?? d.lastError}</p>}
           </div>
           {can('manageDestinations') && (
-            <Button size="sm" busy={toggle.isPending && toggle.variables?.id === d.id} onClick={() => toggle.mutate(d)}>{d.paused ? 'Resume' : 'Pause'}</Button>
+            <Button size="sm" busy={toggle.isPending && toggle.variables?.id === d.id} onClick={() => onToggle(d)}>{d.paused ? 'Resume' : 'Pause'}</Button>
           )}
         </div>
       ))}
