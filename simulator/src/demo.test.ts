@@ -1,0 +1,81 @@
+import { mkdtemp, rm } from 'node:fs/promises';
+import http from 'node:http';
+import type { AddressInfo } from 'node:net';
+import os from 'node:os';
+import path from 'node:path';
+import { afterEach, describe, expect, it } from 'vitest';
+import { decodeSamples, ingestBatchSchema, type IngestBatch } from '@ebbgate/shared';
+import { runDemoScenario } from './demo';
+import { DEMO_MONITORS } from './scenarios/monitor-models';
+
+// Bare node:http servers stand in for the gateway (POST /api/v1/ingest/batches) and for the mock
+// EHR's fault admin API (PUT/DELETE /_admin/faults, mock-ehr/src/admin/routes.ts).
+async function server(handler: (req: http.IncomingMessage, body: string, res: http.ServerResponse) => void) {
+  const s = http.createServer((req, res) => {
+    let body = '';
+    req.on('data', (c) => (body += c));
+    req.on('end', () => handler(req, body, res));
+  });
+  await new Promise<void>((r) => s.listen(0, '127.0.0.1', r));
+  return { url: `http://127.0.0.1:${(s.address() as AddressInfo).port}`, close: () => new Promise<void>((r) => s.close(() => r())) };
+}
+
+const dirs: string[] = [];
+afterEach(async () => {
+  for (const d of dirs.splice(0)) await rm(d, { recursive: true, force: true });
+});
+
+describe('runDemoScenario', () => {
+  it('backfills the last minute at once, labels the unmapped channel, and drives the EHR outage on time', async () => {
+    const received: { auth?: string; batch: IngestBatch; at: number }[] = [];
+    const gw = await server((req, body, res) => {
+      const batch = JSON.parse(body) as IngestBatch;
+      received.push({ auth: req.headers.authorization, batch, at: Date.now() });
+      const unmapped = batch.channels.some((c) => c.code === 'EBB_RESP_IMPEDANCE');
+      res.writeHead(unmapped ? 422 : 202, { 'content-type': 'application/json' }).end(JSON.stringify(unmapped ? { title: 'unmapped', status: 422 } : {}));
+    });
+    const faults: { method: string; body: string; at: number }[] = [];
+    const ehr = await server((req, body, res) => {
+      if (req.url === '/_admin/faults') faults.push({ method: req.method!, body, at: Date.now() });
+      res.writeHead(req.method === 'DELETE' ? 204 : 200).end();
+    });
+    const spoolDir = await mkdtemp(path.join(os.tmpdir(), 'ebbgate-demo-'));
+    dirs.push(spoolDir);
+    const monitors = [DEMO_MONITORS[0], DEMO_MONITORS[8]].map((m, i) => ({ identifier: m.identifier, apiKey: `key-${i}` }));
+    const lines: string[] = [];
+    const t0 = Date.now();
+    const demo = runDemoScenario({ gatewayUrl: gw.url, mockEhrUrl: ehr.url, monitors, spoolDir, log: (m) => lines.push(m), ehrOutage: { atSeconds: 1, durationSeconds: 1 } });
+    await demo.ready;
+    await new Promise((r) => setTimeout(r, 2600));
+    await demo.stop();
+    await gw.close();
+    await ehr.close();
+
+    expect(demo.assignments.get(DEMO_MONITORS[0].identifier)).toBe('fluid-responsive');
+    expect(demo.assignments.get(DEMO_MONITORS[8].identifier)).toBe('unmapped-channel');
+    const first = received.filter((r) => r.batch.monitorId === DEMO_MONITORS[0].identifier);
+    // 60 s of backfill in 5-s batches (12, or 13 when the clock crossed a batch boundary meanwhile).
+    expect(first.length).toBeGreaterThanOrEqual(12);
+    expect(first[11].at - t0).toBeLessThan(2000);
+    for (const r of first) {
+      expect(ingestBatchSchema.safeParse(r.batch).success).toBe(true);
+      expect(r.auth).toBe('Bearer key-0');
+    }
+    // Consecutive batches tile in time: each starts where the previous one ended.
+    for (let i = 1; i < first.length; i++) expect(Date.parse(first[i].batch.startTime) - Date.parse(first[i - 1].batch.startTime)).toBe(5000);
+    expect(Date.now() - Date.parse(first[0].batch.startTime)).toBeGreaterThan(60_000);
+    const abp = decodeSamples(first[0].batch.channels.find((c) => c.code === 'MDC_PRESS_BLD_ART_ABP')!.samples);
+    expect(abp).toHaveLength(625);
+    expect(first[0].batch.context).toMatchObject({ ventilationMode: 'controlled', setRespiratoryRate: 14, patientSex: 'female', patientHeightCm: 168 });
+
+    const odd = received.filter((r) => r.batch.monitorId === DEMO_MONITORS[8].identifier);
+    expect(odd.length).toBeGreaterThanOrEqual(12);
+    expect(odd[0].batch.channels.map((c) => c.code)).toContain('EBB_RESP_IMPEDANCE');
+    expect(lines.some((l) => l.includes('refused') && l.includes('422'))).toBe(true);
+
+    expect(faults.map((f) => f.method)).toEqual(['PUT', 'DELETE']);
+    expect(JSON.parse(faults[0].body).rules[0]).toMatchObject({ scope: 'Observation', statusCodes: [422], remaining: 1 });
+    expect(faults[0].at - t0).toBeGreaterThanOrEqual(950);
+    expect(faults[1].at - faults[0].at).toBeGreaterThanOrEqual(950);
+  });
+});

@@ -1,0 +1,148 @@
+/**
+ * The demo scenario behind `npm start`: every monitor of the invented Harrowmere General Hospital
+ * streams its patient through the adapter client; the last minute is sent at once (backfill) so
+ * assessments appear within seconds, then batches follow in real time; at a set time the mock EHR
+ * starts failing (one refusal, then an outage) and recovers later.
+ */
+import { BatchSender, type SenderEvent } from './adapter/batch-sender';
+import { DEMO_MONITORS } from './scenarios/monitor-models';
+import { EHR_OUTAGE, SCENARIOS } from './scenarios/catalogue';
+import type { Scenario, ScenarioId } from './scenarios/types';
+import { MonitorFeed } from './simulation/monitor-feed';
+import { simulatorTransport } from './simulation/transports';
+import { BedStream } from './stream/bed-stream';
+
+export interface DemoMonitorInput {
+  identifier: string;
+  apiKey: string;
+  scenario?: string;
+}
+
+export interface DemoOptions {
+  gatewayUrl: string;
+  mockEhrUrl: string;
+  monitors: DemoMonitorInput[];
+  transport?: 'http' | 'mllp';
+  mllpPort?: number;
+  /** Batch length, s (default 5). */
+  intervalSeconds?: number;
+  spoolDir: string;
+  log?: (m: string) => void;
+  /** Seconds of past signal sent at start (default 60). */
+  backfillSeconds?: number;
+  /** EHR outage timing, or false for none (default: EHR_OUTAGE of the scenario catalogue). */
+  ehrOutage?: false | { atSeconds: number; durationSeconds: number };
+}
+
+export interface RunningDemo {
+  stop(): Promise<void>;
+  /** Resolves once the sender is open and the backfill is queued. */
+  ready: Promise<void>;
+  /** Scenario per monitor identifier, as assigned. */
+  assignments: Map<string, ScenarioId>;
+}
+
+/** Scenario for a monitor: its own choice, else the suggested demo list, else round-robin over that list. */
+export function assignScenario(m: DemoMonitorInput, index: number): Scenario {
+  if (m.scenario) {
+    const s = SCENARIOS[m.scenario as ScenarioId];
+    if (!s) throw new Error(`unknown scenario "${m.scenario}" for monitor ${m.identifier}; known: ${Object.keys(SCENARIOS).join(', ')}`);
+    return s;
+  }
+  const known = DEMO_MONITORS.find((d) => d.identifier === m.identifier);
+  return SCENARIOS[known?.scenario ?? DEMO_MONITORS[index % DEMO_MONITORS.length].scenario];
+}
+
+export function runDemoScenario(opts: DemoOptions): RunningDemo {
+  const log = opts.log ?? (() => {});
+  const batchSeconds = opts.intervalSeconds ?? 5;
+  const transport = opts.transport ?? 'http';
+  const backfill = opts.backfillSeconds ?? 60;
+  const now = Date.now();
+  // Aligned to whole batch lengths, like a monitor that cuts batches on the clock.
+  const start = new Date(Math.floor((now - backfill * 1000) / (batchSeconds * 1000)) * batchSeconds * 1000);
+  const scenarios = new Map<string, Scenario>();
+  const feeds = opts.monitors.map((m, i) => {
+    const scenario = assignScenario(m, i);
+    scenarios.set(m.identifier, scenario);
+    return new MonitorFeed({ identifier: m.identifier, scenario, source: new BedStream({ scenario, seed: 1000 + i * 17 }), transport, batchSeconds, startTime: start });
+  });
+  const apiKeys = new Map(opts.monitors.map((m) => [m.identifier, m.apiKey]));
+  const timers: NodeJS.Timeout[] = [];
+  let stopped = false;
+  let outageActive = false;
+  let sender: BatchSender | null = null;
+  const onEvent = eventLogger(log, scenarios);
+
+  const ready = (async () => {
+    sender = await BatchSender.open({
+      transport: simulatorTransport({ transport, gatewayUrl: opts.gatewayUrl, apiKeys, mllpPort: opts.mllpPort, scenarioOf: (id) => scenarios.get(id) }),
+      spoolDir: opts.spoolDir,
+      onEvent,
+    });
+    log(`simulator: ${feeds.length} monitors over ${transport}, ${batchSeconds}-s batches, backfilling ${backfill} s`);
+    for (const f of feeds) log(`simulator: ${f.identifier} → ${f.scenario.id} (${f.scenario.title})`);
+    await tick();
+    if (stopped) return;
+    timers.push(setInterval(() => void tick().catch((err) => log(`simulator: ${String(err)}`)), 250));
+    const outage = opts.ehrOutage === undefined ? EHR_OUTAGE : opts.ehrOutage;
+    if (outage) {
+      timers.push(setTimeout(() => void setFaults(true).catch((e) => log(`simulator: could not start the EHR outage: ${String(e)}`)), outage.atSeconds * 1000));
+      timers.push(setTimeout(() => void setFaults(false).catch((e) => log(`simulator: could not end the EHR outage: ${String(e)}`)), (outage.atSeconds + outage.durationSeconds) * 1000));
+    }
+  })();
+
+  async function tick(): Promise<void> {
+    const t = Date.now();
+    for (const f of feeds) {
+      if (stopped || !sender) return;
+      for (const b of f.due(t)) await sender.send(b);
+    }
+  }
+
+  async function setFaults(on: boolean): Promise<void> {
+    if (stopped && on) return;
+    const url = new URL('/_admin/faults', opts.mockEhrUrl).toString();
+    const res = on
+      ? await fetch(url, { method: 'PUT', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ rules: EHR_OUTAGE.rules }) })
+      : await fetch(url, { method: 'DELETE' });
+    if (!res.ok) throw new Error(`mock EHR answered ${res.status} to ${on ? 'PUT' : 'DELETE'} /_admin/faults`);
+    outageActive = on;
+    log(on ? 'simulator: EHR outage begins (mock EHR: one Observation refused with 422, then 503 for everything)' : 'simulator: EHR outage over (mock EHR faults cleared)');
+  }
+
+  return {
+    ready,
+    assignments: new Map([...scenarios].map(([k, v]) => [k, v.id])),
+    async stop() {
+      stopped = true;
+      for (const t of timers) clearTimeout(t);
+      await ready.catch(() => {});
+      if (outageActive) await setFaults(false).catch(() => {});
+      await sender?.close();
+      log(`simulator: stopped (${sender?.pending() ?? 0} batches left in ${opts.spoolDir})`);
+    },
+  };
+}
+
+/** Logs what a newcomer should notice, without a line per batch. */
+function eventLogger(log: (m: string) => void, scenarios: Map<string, Scenario>): (e: SenderEvent) => void {
+  const firstAccepted = new Set<string>();
+  const rejections = new Map<string, number>();
+  let retries = 0;
+  return (e) => {
+    if (e.kind === 'accepted' && !firstAccepted.has(e.monitorId)) {
+      firstAccepted.add(e.monitorId);
+      log(`simulator: ${e.monitorId} (${scenarios.get(e.monitorId)?.id}) streaming, first batch answered ${e.status}`);
+    } else if (e.kind === 'rejected') {
+      const n = (rejections.get(e.monitorId) ?? 0) + 1;
+      rejections.set(e.monitorId, n);
+      if (n === 1 || n % 12 === 0) log(`simulator: ${e.monitorId} batch refused (${n} so far, kept in ${e.spoolFile}): ${e.reason}`);
+    } else if (e.kind === 'retrying') {
+      retries++;
+      if (retries === 1 || retries % 20 === 0) log(`simulator: gateway busy or unreachable, retrying (${retries} retries so far): ${e.reason}`);
+    } else if (e.kind === 'replaying') {
+      log(`simulator: replaying ${e.batches} unsent batches of ${e.monitors} monitors from the spool`);
+    }
+  };
+}

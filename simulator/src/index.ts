@@ -1,0 +1,8 @@
+/** `@ebbgate/simulator`: the adapter client, the bedside scenarios and the demo runner. */
+export * from './adapter/index';
+export { runDemoScenario, assignScenario, type DemoOptions, type DemoMonitorInput, type RunningDemo } from './demo';
+export * from './scenarios/index';
+export { BedStream, type BedStreamOptions, type StreamChunk } from './stream/bed-stream';
+export { MonitorFeed } from './simulation/monitor-feed';
+export { provisionMonitors, loadMonitorId } from './simulation/provision';
+export { respiratorySwing, strokeVolume, curveSlope, DEMO_VENTRICLE } from './physiology/frank-starling';
