@@ -22,7 +22,9 @@ function loadAjv(): Ajv {
   delete schema.discriminator;
   schema.$id = SCHEMA_ID;
   addFhirVersion401(schema);
-  ajv = new Ajv({ strict: false, allErrors: true, meta: false });
+  // Ajv's code optimiser roughly doubles compile time on this 3 MB schema for a small gain in
+  // validation speed (still well over 100,000 Observations/s without it).
+  ajv = new Ajv({ strict: false, allErrors: true, meta: false, code: { optimize: false } });
   ajv.addMetaSchema(draft6);
   ajv.addSchema(schema);
   return ajv;
