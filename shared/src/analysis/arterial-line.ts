@@ -14,6 +14,7 @@ export function checkArterialLine(ch: ConditionedChannel, series: BeatSeries): A
   let withNotch = 0;
   let examined = 0;
   const rises: number[] = [];
+  let suffix = new Float64Array(256);
   for (let k = 0; k + 1 < beats.length; k++) {
     const b = beats[k];
     // Damping shrinks the pulse (pp-low) and blurs the shape, so judge every beat free of artefact.
@@ -23,18 +24,25 @@ export function checkArterialLine(ch: ConditionedChannel, series: BeatSeries): A
     const end = next - Math.round(0.15 * (next - b.footSample));
     if (end - b.peakSample < 6) continue;
     examined++;
-    // Notch: the falling slope relaxes and then steepens again (a local maximum of the derivative).
+    // Notch: the falling slope relaxes and then steepens again (a local maximum of the derivative
+    // followed by a clearly steeper slope). Suffix minima of the slope make this one pass each way.
+    const len = end - b.peakSample;
+    if (suffix.length < len + 1) suffix = new Float64Array(2 * len + 2);
     let steepest = 0;
-    for (let i = b.peakSample + 1; i < end; i++) steepest = Math.min(steepest, y[i] - y[i - 1]);
+    suffix[len] = Infinity;
+    for (let i = end - 1; i > b.peakSample; i--) {
+      const d = y[i] - y[i - 1];
+      if (d < steepest) steepest = d;
+      const q = i - b.peakSample;
+      suffix[q] = d < suffix[q + 1] ? d : suffix[q + 1];
+    }
     let found = false;
     for (let i = b.peakSample + 3; i < end - 2 && !found; i++) {
       const d0 = y[i - 1] - y[i - 2];
       const d1 = y[i] - y[i - 1];
       const d2 = y[i + 1] - y[i];
       if (d1 > d0 && d1 >= d2 && d0 < 0) {
-        // confirm it is a real relaxation, not a wiggle: the slope must steepen again afterwards
-        let after = d1;
-        for (let q = i + 1; q < end; q++) after = Math.min(after, y[q] - y[q - 1]);
+        const after = Math.min(d1, suffix[i + 1 - b.peakSample]);
         if (d1 - after > 0.05 * -steepest && d1 - d0 > 0.02 * -steepest) found = true;
       }
     }

@@ -48,7 +48,9 @@ function sanitize<T>(value: T): T {
   }
   if (value && typeof value === 'object') {
     const rec = value as Record<string, unknown>;
-    for (const k of Object.keys(rec)) rec[k] = sanitize(rec[k]);
+    // Beat values are read from the gap-bridged, filtered signal and are finite by construction
+    // (templateCorrelation goes through finiteOrNull), so the largest arrays are skipped.
+    for (const k of Object.keys(rec)) if (k !== 'beats' || !Array.isArray(rec[k])) rec[k] = sanitize(rec[k]);
   }
   return value;
 }

@@ -1,6 +1,32 @@
 /** Small numeric helpers shared by the stages (typed arrays, no allocation in loops). */
 
-/** Percentile (0–100) of the finite values, estimated from at most ~1024 evenly spaced samples. */
+/** k-th smallest of buf[0..m) by quickselect (Hoare partition); reorders buf. */
+function select(buf: Float64Array, m: number, k: number): number {
+  let lo = 0;
+  let hi = m - 1;
+  while (lo < hi) {
+    const pivot = buf[(lo + hi) >> 1];
+    let i = lo;
+    let j = hi;
+    while (i <= j) {
+      while (buf[i] < pivot) i++;
+      while (buf[j] > pivot) j--;
+      if (i <= j) {
+        const t = buf[i];
+        buf[i] = buf[j];
+        buf[j] = t;
+        i++;
+        j--;
+      }
+    }
+    if (k <= j) hi = j;
+    else if (k >= i) lo = i;
+    else return buf[k];
+  }
+  return buf[k];
+}
+
+/** Percentiles (0–100) of the finite values, estimated from at most ~1024 evenly spaced samples. */
 export function robustPercentiles(x: ArrayLike<number>, ps: number[]): number[] {
   const step = Math.max(1, Math.floor(x.length / 1024));
   const buf = new Float64Array(Math.ceil(x.length / step));
@@ -10,8 +36,7 @@ export function robustPercentiles(x: ArrayLike<number>, ps: number[]): number[] 
     if (v === v) buf[m++] = v;
   }
   if (m === 0) return ps.map(() => Number.NaN);
-  const vals = buf.subarray(0, m).sort(); // typed-array sort is numeric and native
-  return ps.map((p) => vals[Math.min(m - 1, Math.max(0, Math.round((p / 100) * (m - 1))))]);
+  return ps.map((p) => select(buf, m, Math.min(m - 1, Math.max(0, Math.round((p / 100) * (m - 1))))));
 }
 
 export function median(values: number[]): number {
