@@ -13,6 +13,8 @@ import { settingsRouter } from './settings/settings.router';
 import { usersRouter } from './users/users.router';
 import { devicesRouter } from './devices/devices.router';
 import { buildIngest } from './ingest/ingest.capability';
+import { buildAnalysis } from './analysis/analysis.capability';
+import { buildDelivery } from './delivery/delivery.module';
 
 export interface BackgroundService {
   name: string;
@@ -31,10 +33,12 @@ export interface Capabilities {
 
 export function buildCapabilities(ctx: AppContext, _metrics: Metrics): Capabilities {
   const ingest = buildIngest(ctx);
+  const analysis = buildAnalysis(ctx);
+  const delivery = buildDelivery(ctx);
   return {
-    routers: [authRouter(ctx), usersRouter(ctx), auditRouter(ctx), settingsRouter(ctx), overviewRouter(ctx), devicesRouter(ctx), ...ingest.routers],
+    routers: [authRouter(ctx), usersRouter(ctx), auditRouter(ctx), settingsRouter(ctx), overviewRouter(ctx), devicesRouter(ctx), ...ingest.routers, ...analysis.routers, ...delivery.routers],
     rawBodyRouters: [...ingest.rawBodyRouters],
-    readiness: [],
-    services: [...ingest.services],
+    readiness: [...delivery.readiness],
+    services: [...ingest.services, ...analysis.services, ...delivery.services],
   };
 }

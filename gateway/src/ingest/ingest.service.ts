@@ -1,6 +1,7 @@
 import type { Transport } from '@ebbgate/shared';
 import type { AppContext } from '../app-context';
 import { monitorForIngest } from '../devices/device-cache';
+import { getSiteSettings } from '../settings/settings.service';
 import { BacklogGauge } from './backlog';
 import { mapChannels, type MappedChannel } from './channel-mapping';
 import type { ReceivedBatch } from './decoded-batch';
@@ -36,9 +37,11 @@ export class IngestService {
     this.backlog = new BacklogGauge(ctx.ds);
   }
 
-  private settings() {
+  /** Window length is a site setting (admin, at run time); the step and gap reset are config. */
+  private async settings() {
     const { analysis, ingest } = this.ctx.config;
-    return { windowSeconds: analysis.windowSeconds, stepSeconds: analysis.stepSeconds, gapResetSeconds: ingest.gapResetSeconds };
+    const site = await getSiteSettings(this.ctx);
+    return { windowSeconds: site.analysis.windowSeconds ?? analysis.windowSeconds, stepSeconds: analysis.stepSeconds, gapResetSeconds: ingest.gapResetSeconds };
   }
 
   async ingest(req: IngestRequest): Promise<IngestOutcome> {
@@ -57,7 +60,7 @@ export class IngestService {
       const monitor = await monitorForIngest(this.ctx.ds, batch.monitorIdentifier);
       monitorId = monitor?.id ?? monitorId;
       const channels = mapChannels(batch, monitor, req.transport);
-      const stored = await storeBatch(this.ctx.ds, { transport: req.transport, receivedAt: req.receivedAt, raw: req.raw, monitor: monitor!, batch, channels }, this.settings());
+      const stored = await storeBatch(this.ctx.ds, { transport: req.transport, receivedAt: req.receivedAt, raw: req.raw, monitor: monitor!, batch, channels }, await this.settings());
       return { stored: { ...stored, channels, batch }, inboundMessageId: stored.inboundMessageId };
     } catch (err) {
       if (!(err instanceof IngestRefusal)) throw err;
@@ -81,7 +84,7 @@ export class IngestService {
     const batch = decode(raw);
     const monitor = await monitorForIngest(this.ctx.ds, batch.monitorIdentifier);
     const channels = mapChannels(batch, monitor, transport);
-    const stored = await storeBatch(this.ctx.ds, { transport, receivedAt: new Date(), raw, monitor: monitor!, batch, channels, reprocessOf: messageId, handledBy }, this.settings());
+    const stored = await storeBatch(this.ctx.ds, { transport, receivedAt: new Date(), raw, monitor: monitor!, batch, channels, reprocessOf: messageId, handledBy }, await this.settings());
     return { stored: { ...stored, channels, batch }, inboundMessageId: stored.inboundMessageId };
   }
 }

@@ -36,7 +36,7 @@ export class Hl7ParseError extends Error {
 }
 
 export function parseHl7(text: string): Hl7Message {
-  const body = text.replace(/^[\s\u000b]+/, '');
+  const body = text.replace(/^[\s\v]+/, ''); // leading whitespace or a stray MLLP start byte (VT = \v)
   if (!body.startsWith('MSH')) throw new Hl7ParseError('The message does not start with an MSH segment.', 100, 'MSH');
   if (body.length < 8) throw new Hl7ParseError('The MSH segment is too short to carry its delimiters.', 101, 'MSH^1^1');
   const field = body[3] as string;

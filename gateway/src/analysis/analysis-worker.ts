@@ -1,0 +1,139 @@
+import { hostname } from 'node:os';
+import { randomBytes } from 'node:crypto';
+import type { EntityManager } from 'typeorm';
+import type { AnalysisContext } from '@ebbgate/shared';
+import { analyzeWindow, ENGINE_VERSION, type AnalysisInput, type AnalysisResult, type AnalysisSettings } from '@ebbgate/shared/analysis';
+import type { AppContext } from '../app-context';
+import type { BackgroundService } from '../capabilities';
+import { MonitorProfileRow, MonitorRow } from '../devices/device.entities';
+import { getSiteSettings } from '../settings/settings.service';
+import { AnalysisWindowRow } from './analysis-window.entity';
+import { storeAssessment } from './assessment-store';
+import { assembleWindow, contextOfMessage } from './window-assembly';
+
+export interface Engine {
+  version: string;
+  analyze(input: AnalysisInput, settings?: Partial<AnalysisSettings>): AnalysisResult;
+}
+
+export const DEFAULT_ENGINE: Engine = { version: ENGINE_VERSION, analyze: analyzeWindow };
+
+/** Device facts from the profile that the engine needs as context; the batch's own context wins. */
+function profileContext(profile: MonitorProfileRow | null): AnalysisContext {
+  if (!profile) return {};
+  const filtering = profile.channels.map((c) => c.builtInFiltering).filter(Boolean).join('; ');
+  return {
+    ...(profile.defaultProbeSite ? { probeSite: profile.defaultProbeSite as AnalysisContext['probeSite'] } : {}),
+    plethScaling: profile.plethScaling,
+    ...(filtering ? { builtInFiltering: filtering } : {}),
+  };
+}
+
+export type ClaimOutcome = { windowId: string; status: 'done' | 'failed'; assessmentId: string | null } | null;
+
+/**
+ * Claims one due window of this engine version with SELECT … FOR UPDATE SKIP LOCKED, analyses
+ * it and stores the assessment in the same transaction, so a window is analysed once even with
+ * several gateway processes, and a crash mid-way leaves it due for the next worker.
+ */
+export async function analyseNextWindow(ctx: AppContext, engine: Engine, workerId: string): Promise<ClaimOutcome> {
+  // Cycles averaged and decision bands are site settings an admin changes at run time.
+  const site = (await getSiteSettings(ctx)).analysis;
+  return ctx.ds.transaction(async (m: EntityManager) => {
+    const w = await m
+      .getRepository(AnalysisWindowRow)
+      .createQueryBuilder('w')
+      .where("w.status = 'due'")
+      .andWhere('w.engine_version = :v', { v: engine.version })
+      .orderBy('w.id', 'ASC')
+      .limit(1)
+      .setLock('pessimistic_write')
+      .setOnLocked('skip_locked')
+      .getOne();
+    if (!w) return null;
+    const monitor = await m.findOneBy(MonitorRow, { id: w.monitorId });
+    const profile = monitor?.profileId ? await m.findOneBy(MonitorProfileRow, { id: monitor.profileId }) : null;
+    const { input, latestMessageId } = await assembleWindow(m, w.monitorId, w.windowStart, w.windowEnd);
+    input.context = { ...profileContext(profile), ...((await contextOfMessage(m, latestMessageId)) ?? {}) };
+    let result: AnalysisResult;
+    try {
+      result = engine.analyze(input, { cyclesToAverage: site.cyclesToAverage, bands: site.bands });
+    } catch (err) {
+      // Unreadable input (no data, unknown unit): the window is closed as failed with the reason.
+      await m.update(AnalysisWindowRow, { id: w.id }, { status: 'failed', attempts: w.attempts + 1, claimedBy: workerId, lastError: String((err as Error).message).slice(0, 2000), doneAt: new Date() });
+      ctx.logger.warn({ windowId: w.id, monitorId: w.monitorId, err: (err as Error).message }, 'analysis window failed');
+      return { windowId: w.id, status: 'failed' as const, assessmentId: null };
+    }
+    const row = await storeAssessment(m, { monitorId: w.monitorId, bedId: monitor?.bedId ?? null, windowStart: w.windowStart, windowEnd: w.windowEnd }, result);
+    await m.update(AnalysisWindowRow, { id: w.id }, { status: 'done', attempts: w.attempts + 1, claimedBy: workerId, assessmentId: row.id, doneAt: new Date() });
+    return { windowId: w.id, status: 'done' as const, assessmentId: row.id };
+  });
+}
+
+/** Background worker: drains due windows, then polls. Any number may run against one database. */
+export class AnalysisWorker implements BackgroundService {
+  readonly name = 'analysis-worker';
+  readonly workerId = `${hostname()}:${process.pid}:${randomBytes(3).toString('hex')}`;
+  private running = false;
+  private loop: Promise<void> | null = null;
+  private wake: (() => void) | null = null;
+  analysed = 0;
+
+  constructor(
+    private readonly ctx: AppContext,
+    private readonly engine: Engine = DEFAULT_ENGINE,
+  ) {}
+
+  async start(): Promise<void> {
+    this.running = true;
+    this.loop = this.run();
+  }
+
+  async stop(): Promise<void> {
+    this.running = false;
+    this.wake?.();
+    await this.loop;
+  }
+
+  private async run(): Promise<void> {
+    const { pollMs, windowsPerPoll } = this.ctx.config.analysis;
+    while (this.running) {
+      let n = 0;
+      try {
+        while (this.running && n < windowsPerPoll && (await analyseNextWindow(this.ctx, this.engine, this.workerId))) {
+          n++;
+          this.analysed++;
+        }
+      } catch (err) {
+        this.ctx.logger.error({ err }, 'analysis worker error');
+      }
+      if (!this.running) break;
+      // A full round means more may be waiting: yield to the event loop, then go on at once.
+      await new Promise<void>((resolve) => {
+        const t = setTimeout(resolve, n >= windowsPerPoll ? 0 : pollMs);
+        this.wake = () => {
+          clearTimeout(t);
+          resolve();
+        };
+      });
+    }
+  }
+}
+
+/**
+ * Queues re-analysis of already analysed windows with `engineVersion` (a newer engine). The
+ * earlier assessments stay; the new ones are added beside them.
+ */
+export async function requestReanalysis(ctx: AppContext, q: { engineVersion: string; monitorId?: string; from?: Date; to?: Date }): Promise<number> {
+  const where: string[] = ["status = 'done'", 'engine_version <> ?'];
+  const params: unknown[] = [q.engineVersion, new Date(), q.engineVersion];
+  if (q.monitorId) (where.push('monitor_id = ?'), params.push(q.monitorId));
+  if (q.from) (where.push('window_start >= ?'), params.push(q.from));
+  if (q.to) (where.push('window_start < ?'), params.push(q.to));
+  const res = (await ctx.ds.query(
+    `INSERT IGNORE INTO analysis_window (monitor_id, window_start, window_end, engine_version, status, attempts, created_at)
+     SELECT DISTINCT monitor_id, window_start, window_end, ?, 'due', 0, ? FROM analysis_window WHERE ${where.join(' AND ')}`,
+    params,
+  )) as { affectedRows: number };
+  return res.affectedRows;
+}

@@ -1,0 +1,15 @@
+import type { Router } from 'express';
+import type { AppContext } from '../app-context';
+import type { BackgroundService } from '../capabilities';
+import { AnalysisWorker } from './analysis-worker';
+
+export interface AnalysisCapability {
+  worker: AnalysisWorker;
+  routers: Router[];
+  services: BackgroundService[];
+}
+
+export function buildAnalysis(ctx: AppContext): AnalysisCapability {
+  const worker = new AnalysisWorker(ctx);
+  return { worker, routers: [], services: [worker] };
+}

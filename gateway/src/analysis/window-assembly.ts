@@ -1,0 +1,66 @@
+import type { DataSource, EntityManager } from 'typeorm';
+import type { AnalysisContext, ChannelRole } from '@ebbgate/shared';
+import type { AnalysisChannel, AnalysisInput } from '@ebbgate/shared/analysis';
+import { storedSamplesToFloat32 } from '../ingest/decoded-batch';
+
+/** Segments longer than this are not looked for before a window start (keeps the index range small). */
+const MAX_SEGMENT_SECONDS = 3600;
+
+interface SegmentRow {
+  role: ChannelRole;
+  unit: string;
+  sample_rate: number;
+  start_time: Date;
+  sample_count: number;
+  samples: Buffer;
+  inbound_message_id: string;
+}
+
+export interface AssembledWindow {
+  input: AnalysisInput;
+  /** Inbound message whose context applies (the latest batch in the window). */
+  latestMessageId: string | null;
+}
+
+/**
+ * Rebuilds one window per role from stored segments on a common time base: sample i of a
+ * channel is at windowStart + i / sampleRate; samples nobody sent stay NaN (gaps). Overlapping
+ * segments: the later batch wins.
+ */
+export async function assembleWindow(db: DataSource | EntityManager, monitorId: string, windowStart: Date, windowEnd: Date): Promise<AssembledWindow> {
+  const rows = (await db.query(
+    `SELECT role, unit, sample_rate, start_time, sample_count, samples, inbound_message_id FROM waveform_segment
+     WHERE monitor_id = ? AND role IN ('abp', 'pleth', 'paw', 'co2') AND start_time < ? AND start_time > ? AND end_time > ?
+     ORDER BY role, start_time, id`,
+    [monitorId, windowEnd, new Date(windowStart.getTime() - MAX_SEGMENT_SECONDS * 1000), windowStart],
+  )) as SegmentRow[];
+  const startMs = windowStart.getTime();
+  const spanS = (windowEnd.getTime() - startMs) / 1000;
+  const channels: AnalysisChannel[] = [];
+  let latest: SegmentRow | null = null;
+  for (const role of ['abp', 'pleth', 'paw', 'co2'] as const) {
+    const segs = rows.filter((r) => r.role === role);
+    if (!segs.length) continue;
+    const fs = Number(segs[0]!.sample_rate);
+    const n = Math.round(spanS * fs);
+    const out = new Float32Array(n).fill(Number.NaN);
+    for (const s of segs) {
+      if (Number(s.sample_rate) !== fs) continue; // a rate change mid-window: keep the first rate's data
+      const values = storedSamplesToFloat32(s.samples);
+      const offset = Math.round(((s.start_time.getTime() - startMs) / 1000) * fs);
+      const from = Math.max(0, -offset);
+      const to = Math.min(values.length, n - offset);
+      if (to > from) out.set(values.subarray(from, to), offset + from);
+      if (!latest || s.start_time > latest.start_time) latest = s;
+    }
+    channels.push({ role, sampleRate: fs, unit: segs[0]!.unit, samples: out });
+  }
+  return { input: { channels, startTime: windowStart.toISOString() }, latestMessageId: latest?.inbound_message_id ?? null };
+}
+
+/** The batch context of a stored message, or undefined. */
+export async function contextOfMessage(db: DataSource | EntityManager, messageId: string | null): Promise<AnalysisContext | undefined> {
+  if (!messageId) return undefined;
+  const [row] = (await db.query('SELECT context FROM inbound_message WHERE id = ?', [messageId])) as { context: string | null }[];
+  return row?.context ? (JSON.parse(row.context) as AnalysisContext) : undefined;
+}
