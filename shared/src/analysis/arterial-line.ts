@@ -51,13 +51,8 @@ export function checkArterialLine(ch: ConditionedChannel, series: BeatSeries): A
   const notchFraction = examined ? withNotch / examined : null;
   const rise = median(rises);
   const dampingSuspected = notchFraction !== null && notchFraction < 0.3 && rise > 0.15;
-  let flushSuspected = false;
-  let run = 0;
-  const minRun = Math.round(0.3 * fs);
-  for (let i = 0; i < ch.raw.length && !flushSuspected; i++) {
-    run = ch.raw[i] > 250 ? run + 1 : 0;
-    if (run >= minRun) flushSuspected = true;
-  }
+  // Flush: a plateau above 250 mmHg lasting 0.3 s (runs measured during conditioning).
+  const flushSuspected = ch.longestHighRun >= Math.round(0.3 * fs);
   return { notchFraction, dampingSuspected, flushSuspected };
 }
 

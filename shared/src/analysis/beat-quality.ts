@@ -29,7 +29,7 @@ const ARTEFACT: BeatRejectReason[] = ['edge', 'gap', 'flat-line', 'clipped', 'no
 const hasArtefact = (b: Beat): boolean => b.rejectReasons.some((r) => ARTEFACT.includes(r));
 
 /** Builds per-beat values (SBP/DBP/PP/MAP or amplitude/DC) from the landmarks. */
-function measure(ch: ConditionedChannel, lm: BeatLandmarks, source: BeatSource): Beat[] {
+function measure(ch: ConditionedChannel, lm: BeatLandmarks, source: BeatSource, negativeSlope: number[]): Beat[] {
   const y = ch.smooth;
   const fs = ch.fs;
   const beats: Beat[] = [];
@@ -38,8 +38,23 @@ function measure(ch: ConditionedChannel, lm: BeatLandmarks, source: BeatSource):
     const f = lm.foot[k];
     const p = lm.peak[k];
     const end = k + 1 < count ? lm.foot[k + 1] : Math.min(y.length, f + (k > 0 ? f - lm.foot[k - 1] : Math.round(fs)));
+    // One pass per beat: mean level (MAP or DC) and, for the Sun 2006 noise rule, the mean of the
+    // negative sample-to-sample slopes of the unfiltered beat.
     let s = 0;
-    for (let i = f; i < end; i++) s += y[i];
+    let negSum = 0;
+    let negCount = 0;
+    const raw = ch.filled;
+    for (let i = f; i < end; i++) {
+      s += y[i];
+      if (i > f) {
+        const d = raw[i] - raw[i - 1];
+        if (d < 0) {
+          negSum += d;
+          negCount++;
+        }
+      }
+    }
+    negativeSlope.push(negCount > 0 ? negSum / negCount : 0);
     const avg = end > f ? s / (end - f) : y[f];
     const beat: Beat = {
       n: k,
@@ -76,7 +91,7 @@ function measure(ch: ConditionedChannel, lm: BeatLandmarks, source: BeatSource):
 }
 
 /** ABP beat abnormality rules (Sun, Reisner, Mark; Computers in Cardiology 2006). */
-function sunRules(beats: Beat[], ch: ConditionedChannel, lm: BeatLandmarks): void {
+function sunRules(beats: Beat[], ch: ConditionedChannel, lm: BeatLandmarks, negativeSlope: number[]): void {
   const fs = ch.fs;
   const slopeScale = fs / 125; // the rule's −3 is per 8 ms sample at 125 Hz
   for (let k = 0; k < beats.length; k++) {
@@ -97,18 +112,8 @@ function sunRules(beats: Beat[], ch: ConditionedChannel, lm: BeatLandmarks): voi
       if (b.ibi !== null && prev.ibi !== null && Math.abs(b.ibi - prev.ibi) > 0.5) add(b, 'period-jump');
       if (Math.abs(ch.smooth[lm.onset[k]] - ch.smooth[lm.onset[k - 1]]) > 20) add(b, 'onset-jump');
     }
-    // Noise: mean of the negative sample-to-sample slopes of the unfiltered beat.
-    const end = k + 1 < beats.length ? beats[k + 1].footSample : Math.min(ch.filled.length, b.footSample + Math.round(fs));
-    let negSum = 0;
-    let negCount = 0;
-    for (let i = b.footSample + 1; i < end; i++) {
-      const d = ch.filled[i] - ch.filled[i - 1];
-      if (d < 0) {
-        negSum += d;
-        negCount++;
-      }
-    }
-    if (negCount > 0 && (negSum / negCount) * slopeScale < -3) add(b, 'noisy-slope');
+    // Noise: mean of the negative sample-to-sample slopes of the unfiltered beat (from measure()).
+    if (negativeSlope[k] * slopeScale < -3) add(b, 'noisy-slope');
   }
 }
 
@@ -184,7 +189,8 @@ export { hasArtefact };
 
 /** Beat quality stage: values, rule-based rejection with reason codes, and rhythm summary. */
 export function qualifyBeats(ch: ConditionedChannel, lm: BeatLandmarks, source: BeatSource, settings: AnalysisSettings): QualifiedBeats {
-  const beats = measure(ch, lm, source);
+  const negativeSlope: number[] = [];
+  const beats = measure(ch, lm, source, negativeSlope);
   const { gaps, flatLines, clipping } = ch.report;
   for (let k = 0; k < beats.length; k++) {
     const b = beats[k];
@@ -195,7 +201,7 @@ export function qualifyBeats(ch: ConditionedChannel, lm: BeatLandmarks, source: 
     if (overlapsAny(flatLines, from, end)) add(b, 'flat-line');
     if (overlapsAny(clipping, b.footSample, end)) add(b, 'clipped');
   }
-  if (source === 'abp') sunRules(beats, ch, lm);
+  if (source === 'abp') sunRules(beats, ch, lm, negativeSlope);
   else {
     const amps = beats.map((b) => b.amplitude as number).filter((v) => v > 0);
     const m = median(amps);

@@ -46,103 +46,116 @@ export interface ConditionedChannel {
   report: ChannelReport;
   /** Whether any finite sample exists. */
   hasSignal: boolean;
+  /** Longest run of samples above FLUSH_LEVEL_MMHG (arterial only; 0 otherwise). */
+  longestHighRun: number;
 }
+
+/** Arterial pressure above this is a flush or zeroing plateau, not a pulse (Gardner 1981; common practice). */
+export const FLUSH_LEVEL_MMHG = 250;
 
 function spanOf(a: number, b: number, fs: number): SampleSpan {
   return { startSample: a, endSample: b, startTime: a / fs, endTime: b / fs };
 }
 
-/** Converts units and bridges NaN runs, returning the gap spans. */
-function convertAndFill(src: ArrayLike<number>, scale: number, fs: number, minGap: number, raw: Float64Array, filled: Float64Array): SampleSpan[] {
+interface ScanOptions {
+  minGap: number;
+  flatTol: number;
+  minFlat: number;
+  minClip: number;
+  /** Level above which the longest run is measured (flush plateau), or Infinity. */
+  highLevel: number;
+}
+
+interface ScanResult {
+  gaps: SampleSpan[];
+  flatLines: SampleSpan[];
+  clipping: SampleSpan[];
+  longestHighRun: number;
+}
+
+/**
+ * One pass over the channel: unit conversion, gap bridging (linear), flat-line runs (spread within
+ * flatTol), runs of identical samples (clipping candidates) and the longest run above highLevel.
+ * Folding these into one loop keeps conditioning to a single read of the samples.
+ */
+function scan(src: ArrayLike<number>, scale: number, fs: number, o: ScanOptions, raw: Float64Array, filled: Float64Array): ScanResult {
   const n = src.length;
   const gaps: SampleSpan[] = [];
-  let last = -1; // last finite index
+  const flatLines: SampleSpan[] = [];
+  const equalRuns: { a: number; b: number; v: number }[] = [];
+  let last = -1;
+  let min = Infinity;
+  let max = -Infinity;
+  let fStart = 0;
+  let fLo = Number.NaN;
+  let fHi = Number.NaN;
+  let eStart = 0;
+  let eVal = Number.NaN;
+  let high = 0;
+  let longestHigh = 0;
   for (let i = 0; i < n; i++) {
     const v = src[i] * scale;
-    raw[i] = v;
-    if (v === v && v !== Infinity && v !== -Infinity) {
+    if (v - v === 0) {
+      raw[i] = v;
       if (last < i - 1) {
         const a = last + 1;
-        if (i - a >= minGap) gaps.push(spanOf(a, i, fs));
+        if (i - a >= o.minGap) gaps.push(spanOf(a, i, fs));
         const from = last >= 0 ? filled[last] : v;
         for (let j = a; j < i; j++) filled[j] = last >= 0 ? from + ((v - from) * (j - last)) / (i - last) : v;
       }
       filled[i] = v;
       last = i;
+      if (v < min) min = v;
+      if (v > max) max = v;
+      if (fLo === fLo) {
+        const nlo = v < fLo ? v : fLo;
+        const nhi = v > fHi ? v : fHi;
+        if (nhi - nlo <= o.flatTol) {
+          fLo = nlo;
+          fHi = nhi;
+        } else {
+          if (i - fStart >= o.minFlat) flatLines.push(spanOf(fStart, i, fs));
+          fStart = i;
+          fLo = v;
+          fHi = v;
+        }
+      } else {
+        fStart = i;
+        fLo = v;
+        fHi = v;
+      }
+      if (v !== eVal) {
+        if (eVal === eVal && i - eStart >= o.minClip) equalRuns.push({ a: eStart, b: i, v: eVal });
+        eStart = i;
+        eVal = v;
+      }
+      if (v > o.highLevel) {
+        high++;
+        if (high > longestHigh) longestHigh = high;
+      } else high = 0;
     } else {
       raw[i] = Number.NaN;
+      if (fLo === fLo && i - fStart >= o.minFlat) flatLines.push(spanOf(fStart, i, fs));
+      fLo = Number.NaN;
+      if (eVal === eVal && i - eStart >= o.minClip) equalRuns.push({ a: eStart, b: i, v: eVal });
+      eVal = Number.NaN;
+      high = 0;
     }
   }
+  if (fLo === fLo && n - fStart >= o.minFlat) flatLines.push(spanOf(fStart, n, fs));
+  if (eVal === eVal && n - eStart >= o.minClip) equalRuns.push({ a: eStart, b: n, v: eVal });
   if (last < n - 1) {
     const a = last + 1;
-    if (n - a >= minGap) gaps.push(spanOf(a, n, fs));
+    if (n - a >= o.minGap) gaps.push(spanOf(a, n, fs));
     filled.fill(last >= 0 ? filled[last] : 0, a, n);
   }
-  return gaps;
-}
-
-/** Runs whose spread stays within `tol`, at least minLen samples, skipping gaps. */
-function flatRuns(raw: Float64Array, tol: number, minLen: number, fs: number): SampleSpan[] {
-  const spans: SampleSpan[] = [];
-  const n = raw.length;
-  let start = 0;
-  let lo = raw[0];
-  let hi = raw[0];
-  for (let i = 1; i <= n; i++) {
-    const v = i < n ? raw[i] : Number.NaN;
-    if (v === v && lo === lo) {
-      const nlo = v < lo ? v : lo;
-      const nhi = v > hi ? v : hi;
-      if (nhi - nlo <= tol) {
-        lo = nlo;
-        hi = nhi;
-        continue;
-      }
-    }
-    if (i - start >= minLen && lo === lo) spans.push(spanOf(start, i, fs));
-    start = i;
-    lo = v;
-    hi = v;
-  }
-  return spans;
-}
-
-/** Runs pinned at the window's extreme value: a saturated transducer or a clipped display scale. */
-function clippedRuns(raw: Float64Array, minLen: number, fs: number, flats: SampleSpan[]): SampleSpan[] {
-  let max = -Infinity;
-  let min = Infinity;
-  for (let i = 0; i < raw.length; i++) {
-    const v = raw[i];
-    if (v > max) max = v;
-    if (v < min) min = v;
-  }
-  if (!(max > min)) return [];
-  const eps = (max - min) * 1e-9;
-  const hiRuns: SampleSpan[] = [];
-  const loRuns: SampleSpan[] = [];
-  let hiStart = -1;
-  let loStart = -1;
-  const inFlat = (a: number, b: number): boolean => flats.some((f) => f.startSample <= a && f.endSample >= b);
-  for (let i = 0; i <= raw.length; i++) {
-    const v = i < raw.length ? raw[i] : Number.NaN;
-    const atHi = v >= max - eps;
-    const atLo = v <= min + eps;
-    if (atHi) {
-      if (hiStart < 0) hiStart = i;
-    } else if (hiStart >= 0) {
-      if (i - hiStart >= minLen && !inFlat(hiStart, i)) hiRuns.push(spanOf(hiStart, i, fs));
-      hiStart = -1;
-    }
-    if (atLo) {
-      if (loStart < 0) loStart = i;
-    } else if (loStart >= 0) {
-      if (i - loStart >= minLen && !inFlat(loStart, i)) loRuns.push(spanOf(loStart, i, fs));
-      loStart = -1;
-    }
-  }
-  // One pinned run can be chance; several pinned at the same value are saturation.
-  const collect = (runs: SampleSpan[]): SampleSpan[] => (runs.length >= 3 ? runs : []);
-  return [...collect(hiRuns), ...collect(loRuns)].sort((a, b) => a.startSample - b.startSample);
+  // Clipping: several runs pinned at the window's extreme value (one can be chance), outside flat lines.
+  const pinned = (target: number): SampleSpan[] => {
+    const runs = equalRuns.filter((r) => r.v === target && !flatLines.some((f) => f.startSample <= r.a && f.endSample >= r.b));
+    return runs.length >= 3 ? runs.map((r) => spanOf(r.a, r.b, fs)) : [];
+  };
+  const clipping = max > min ? [...pinned(max), ...pinned(min)].sort((x, y) => x.startSample - y.startSample) : [];
+  return { gaps, flatLines, clipping, longestHighRun: longestHigh };
 }
 
 /** Conditioning stage: unit conversion, gaps, flat lines, clipping, zero-phase Butterworth filtering. */
@@ -154,19 +167,20 @@ export function conditionChannel(ch: AnalysisChannel, settings: AnalysisSettings
   const { to, scale } = unitConversion(ch.role, ch.unit);
   const raw = new Float64Array(n);
   const filled = new Float64Array(n);
-  const gaps = convertAndFill(ch.samples, scale, fs, Math.max(1, Math.round(settings.minGapSeconds * fs)), raw, filled);
+  const pulsatile = ch.role === 'abp' || ch.role === 'pleth';
+  // Scale for the flat-line tolerance from a subsample (converted), before the single full pass.
+  const [p1, p99] = robustPercentiles(ch.samples, [1, 99]).map((v) => v * scale);
+  const minFlat = pulsatile ? settings.minFlatLineSeconds : Math.max(settings.minFlatLineSeconds, 20);
+  const found = scan(ch.samples, scale, fs, {
+    minGap: Math.max(1, Math.round(settings.minGapSeconds * fs)),
+    flatTol: Math.max(settings.flatLineTolerance * Math.abs(p99 - p1), 1e-9),
+    minFlat: Math.round(minFlat * fs),
+    minClip: pulsatile ? Math.max(2, Math.round(settings.minClipSeconds * fs)) : n + 1,
+    highLevel: ch.role === 'abp' ? FLUSH_LEVEL_MMHG : Infinity,
+  }, raw, filled);
+  const { gaps, flatLines, clipping } = found;
   const gapCount = gaps.reduce((s, g) => s + g.endSample - g.startSample, 0);
   const hasSignal = gapCount < n;
-  const pulsatile = ch.role === 'abp' || ch.role === 'pleth';
-  let flatLines: SampleSpan[] = [];
-  let clipping: SampleSpan[] = [];
-  if (hasSignal) {
-    const [p1, p99] = robustPercentiles(raw, [1, 99]);
-    const tol = Math.max(settings.flatLineTolerance * (p99 - p1), 1e-9);
-    const minFlat = pulsatile ? settings.minFlatLineSeconds : Math.max(settings.minFlatLineSeconds, 20);
-    flatLines = flatRuns(raw, tol, Math.round(minFlat * fs), fs);
-    if (pulsatile) clipping = clippedRuns(raw, Math.max(2, Math.round(settings.minClipSeconds * fs)), fs, flatLines);
-  }
   let filter: FilterReport | null = null;
   let smooth: Float64Array = filled;
   const cutoff = ch.role === 'abp' ? settings.abpLowpassHz : ch.role === 'pleth' ? settings.plethBandpassHz[1] : settings.respirationLowpassHz;
@@ -191,5 +205,5 @@ export function conditionChannel(ch: AnalysisChannel, settings: AnalysisSettings
     resampledTo: null,
     declaredFiltering,
   };
-  return { role: ch.role, fs, raw, filled, smooth, report, hasSignal };
+  return { role: ch.role, fs, raw, filled, smooth, report, hasSignal, longestHighRun: found.longestHighRun };
 }
