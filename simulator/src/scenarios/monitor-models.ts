@@ -25,7 +25,7 @@ export const DEMO_MONITOR_PROFILE: MonitorProfileInput = {
   channels: (['http', 'mllp'] as const).flatMap((t) =>
     roles.map((role) => ({ code: channelCodesFor(t)[role], label: `${role} (${t})`, role, unit: units[role], gain: 1, offset: 0, sampleRate: 125 })),
   ),
-  defaultProbeSite: 'finger',
+  defaultProbeSite: null, // each scenario's context names its probe site when it matters
   plethScaling: 'raw',
   notes: 'Simulated monitor of the Harrowmere demo; sends raw pleth with its DC level.',
 };

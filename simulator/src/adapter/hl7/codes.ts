@@ -25,8 +25,10 @@ export const NUMERIC_CODES = {
   heartRate: mdc(147842, 'MDC_ECG_HEART_RATE'), // confirmed
   spo2: mdc(150456, 'MDC_PULS_OXIM_SAT_O2'), // confirmed
   respiratoryRate: mdc(151562, 'MDC_RESP_RATE'), // confirmed (measured rate)
-  setRespiratoryRate: local('EBB_VENT_RATE_SET', 'set ventilator rate'),
-  tidalVolume: local('EBB_VENT_VOL_TIDAL', 'delivered tidal volume'),
+  // REFIDs from memory (IEEE 11073-10101), not confirmed; numeric codes likewise from memory. The
+  // gateway's PCD-01 decoder reads these REFIDs (OBX-3.2) as analysis context.
+  setRespiratoryRate: mdc(151586, 'MDC_VENT_RESP_RATE_SET'),
+  tidalVolume: mdc(151868, 'MDC_VOL_AWAY_TIDAL'),
   patientHeight: local('EBB_PT_HEIGHT', 'patient height'),
   vasopressor: local('EBB_VASOPRESSOR_RUNNING', 'vasopressor infusion running (1 yes, 0 no)'),
 } as const;

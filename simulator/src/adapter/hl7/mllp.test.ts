@@ -96,7 +96,7 @@ describe('durable sender over MLLP', () => {
     const obx = [...(first.get('OBX') as unknown as Iterable<{ get(p: string): { toString(): string } }>)];
     expect(obx[0].get('OBX.18.1').toString()).toBe('00A0B1FFFE2C3D4E');
     expect(obx[1].get('OBX.3.1').toString()).toBe('150036');
-    expect(obx.map((r) => r.get('OBX.3.1').toString())).toContain('EBB_VENT_VOL_TIDAL');
+    expect(obx.map((r) => r.get('OBX.3.1').toString())).toContain('151868');
     expect(first.get('PID.8').toString()).toBe('M');
     expect(sender.stats.accepted).toBe(3);
   });

@@ -99,7 +99,7 @@ describe('ORU^R01 builder, read back by node-hl7-client (IHE PCD TF-2 PCD-01 rul
   it('writes numerics as NM rows with MDC units, after the waveforms (depth-first order)', () => {
     const rows = [...obxRows(msg)].slice(5);
     expect(rows.map((r) => r.get('OBX.2').toString())).toEqual(['NM', 'NM', 'NM']);
-    expect(rows.map((r) => r.get('OBX.3.2').toString())).toEqual(['MDC_ECG_HEART_RATE', 'MDC_PULS_OXIM_SAT_O2', 'delivered tidal volume']);
+    expect(rows.map((r) => r.get('OBX.3.2').toString())).toEqual(['MDC_ECG_HEART_RATE', 'MDC_PULS_OXIM_SAT_O2', 'MDC_VOL_AWAY_TIDAL']);
     expect(rows.map((r) => r.get('OBX.5').toString())).toEqual(['82', '97', '520']);
     expect(rows.map((r) => r.get('OBX.4').toString())).toEqual(['1.1.2.1', '1.1.2.2', '1.1.2.3']);
     expect(rows[0].get('OBX.6.1').toString()).toBe('264864');
