@@ -127,9 +127,13 @@ export class AnalysisWorker implements BackgroundService {
 export async function requestReanalysis(ctx: AppContext, q: { engineVersion: string; monitorId?: string; from?: Date; to?: Date }): Promise<number> {
   const where: string[] = ["status = 'done'", 'engine_version <> ?'];
   const params: unknown[] = [q.engineVersion, new Date(), q.engineVersion];
-  if (q.monitorId) (where.push('monitor_id = ?'), params.push(q.monitorId));
-  if (q.from) (where.push('window_start >= ?'), params.push(q.from));
-  if (q.to) (where.push('window_start < ?'), params.push(q.to));
+  const add = (clause: string, value: unknown) => {
+    where.push(clause);
+    params.push(value);
+  };
+  if (q.monitorId) add('monitor_id = ?', q.monitorId);
+  if (q.from) add('window_start >= ?', q.from);
+  if (q.to) add('window_start < ?', q.to);
   const res = (await ctx.ds.query(
     `INSERT IGNORE INTO analysis_window (monitor_id, window_start, window_end, engine_version, status, attempts, created_at)
      SELECT DISTINCT monitor_id, window_start, window_end, ?, 'due', 0, ? FROM analysis_window WHERE ${where.join(' AND ')}`,

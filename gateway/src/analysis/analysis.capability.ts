@@ -2,6 +2,7 @@ import type { Router } from 'express';
 import type { AppContext } from '../app-context';
 import type { BackgroundService } from '../capabilities';
 import { AnalysisWorker } from './analysis-worker';
+import { analysisRouter } from './analysis.router';
 
 export interface AnalysisCapability {
   worker: AnalysisWorker;
@@ -11,5 +12,5 @@ export interface AnalysisCapability {
 
 export function buildAnalysis(ctx: AppContext): AnalysisCapability {
   const worker = new AnalysisWorker(ctx);
-  return { worker, routers: [], services: [worker] };
+  return { worker, routers: [analysisRouter(ctx)], services: [worker] };
 }

@@ -63,3 +63,17 @@ export const assessmentDetailSchema = z.object({
 });
 
 export const markInErrorSchema = z.object({ reason: z.string().trim().min(3).max(1000) });
+
+/** Answer of POST /analysis/preview (test bench): what was read, the samples, the full analysis. */
+export const previewResultSchema = z.object({
+  parseReport: z.object({
+    format: z.enum(['json', 'csv', 'hl7']),
+    profileId: z.string().nullable(),
+    channels: z.array(z.object({ code: z.string(), role: channelRoleSchema, unit: z.string(), sampleRate: z.number(), samples: z.number().int() })),
+    warnings: z.array(z.string()),
+  }),
+  waveform: waveformSchema,
+  analysis: z.record(z.string(), z.unknown()),
+});
+export type PreviewResult = z.infer<typeof previewResultSchema>;
+export const previewFieldsSchema = z.object({ profileId: z.string().max(36).optional() });
