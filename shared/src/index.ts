@@ -8,3 +8,4 @@ export * from './schemas/inbound';
 export * from './schemas/assessments';
 export * from './schemas/settings';
 export * from './schemas/overview';
+export * from './schemas/delivery';

@@ -1,0 +1,110 @@
+/**
+ * The delivery worker: per destination, unless paused or its circuit is open, claim due rows,
+ * send them, record every attempt, update the destination's health. Circuit breaker: after
+ * `failureThreshold` consecutive failures the circuit opens for `openSeconds`, then one row is
+ * tried (half-open); success closes it, failure opens it again (common practice).
+ */
+import type { Logger } from 'pino';
+import type { DataSource } from 'typeorm';
+import { In, IsNull, Not } from 'typeorm';
+import { AssessmentRow } from '../assessments/assessment.entity';
+import type { BackgroundService } from '../capabilities';
+import type { DeliveryConfig } from './delivery.config';
+import { DeliveryRow, DestinationRow } from './delivery.entities';
+import type { PassReport } from './fhir-destination';
+import { claimDue, ensureAmendRow, recordAttempts, recordDestinationHealth } from './outbox';
+
+export interface DestinationHandler {
+  process(rows: DeliveryRow[]): Promise<PassReport>;
+}
+
+export class DeliveryWorker implements BackgroundService {
+  readonly name = 'delivery-worker';
+  private running = false;
+  private loop: Promise<void> | undefined;
+  private wake: (() => void) | undefined;
+
+  constructor(
+    private readonly ds: DataSource,
+    private readonly handlers: Map<string, DestinationHandler>,
+    private readonly cfg: DeliveryConfig,
+    private readonly logger: Logger,
+  ) {}
+
+  async start(): Promise<void> {
+    this.running = true;
+    this.loop = this.run();
+  }
+
+  async stop(): Promise<void> {
+    this.running = false;
+    this.wake?.();
+    await this.loop;
+  }
+
+  private async run(): Promise<void> {
+    while (this.running) {
+      let handled = 0;
+      try {
+        handled = await this.runOnce();
+      } catch (err) {
+        this.logger.error({ err }, 'delivery pass failed');
+      }
+      if (handled === 0 && this.running) {
+        await new Promise<void>((resolve) => {
+          const t = setTimeout(resolve, this.cfg.pollMs);
+          this.wake = () => {
+            clearTimeout(t);
+            resolve();
+          };
+        });
+      }
+    }
+  }
+
+  /** One pass over every destination; returns the number of rows handled. */
+  async runOnce(): Promise<number> {
+    let handled = 0;
+    const destinations = await this.ds.getRepository(DestinationRow).find();
+    for (const d of destinations) {
+      const handler = this.handlers.get(d.id);
+      if (!handler || d.paused) continue;
+      let limit = this.cfg.claimBatch;
+      if (d.circuitState === 'open') {
+        const openFor = Date.now() - (d.circuitOpenedAt?.getTime() ?? 0);
+        if (openFor < this.cfg.circuit.openSeconds * 1000) continue;
+        await this.ds.getRepository(DestinationRow).update({ id: d.id, circuitState: 'open' }, { circuitState: 'half-open', updatedAt: new Date() });
+        limit = 1;
+      } else if (d.circuitState === 'half-open') {
+        limit = 1;
+      }
+      const rows = await claimDue(this.ds, d.id, limit, this.cfg.leaseSeconds * 1000);
+      if (!rows.length) continue;
+      handled += rows.length;
+      const report = await handler.process(rows);
+      await recordAttempts(this.ds, report.results);
+      await recordDestinationHealth(this.ds, d.id, report, this.cfg.circuit);
+      if (report.failed) this.logger.warn({ destination: d.id, failed: report.failed, error: report.lastError }, 'delivery attempts failed');
+      await this.amendLateErrors(report);
+    }
+    return handled;
+  }
+
+  /** A result marked in error while its first send was in flight still gets its amendment. */
+  private async amendLateErrors(report: PassReport): Promise<void> {
+    const delivered = report.results.filter((r) => r.status === 'delivered' && r.row.kind === 'create');
+    if (!delivered.length) return;
+    const flagged = await this.ds.getRepository(AssessmentRow).find({
+      select: { id: true },
+      where: { id: In([...new Set(delivered.map((r) => r.row.assessmentId))]), enteredInErrorAt: Not(IsNull()) },
+    });
+    if (!flagged.length) return;
+    const ids = new Set(flagged.map((a) => a.id));
+    await this.ds.transaction(async (m) => {
+      for (const r of delivered.filter((x) => ids.has(x.row.assessmentId))) {
+        const fresh = await m.getRepository(DeliveryRow).findOneBy({ id: r.row.id });
+        if (fresh) await ensureAmendRow(m, fresh);
+      }
+    });
+  }
+}

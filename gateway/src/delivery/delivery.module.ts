@@ -1,0 +1,84 @@
+/**
+ * The delivery capability composed: hooks on stored / marked-in-error assessments, the outbox
+ * worker per destination, the alert watcher, the operator routes and a non-critical EHR check.
+ */
+import type { Router } from 'express';
+import type { AppContext } from '../app-context';
+import { deliveryStatusProviders, observationProviders, onAssessmentMarkedInError, onAssessmentStored } from '../assessments/events';
+import type { BackgroundService } from '../capabilities';
+import type { ReadinessCheck } from '../http/app';
+import { getSiteSettings } from '../settings/settings.service';
+import { AlertWatcher } from './alert-watcher';
+import { defaultCodeMap, type CodeMap } from './code-map';
+import { deliveriesRouter } from './deliveries.router';
+import { DeliveryWorker, type DestinationHandler } from './delivery-worker';
+import { DeviceSync } from './device-sync';
+import { EhrClient } from './ehr-client';
+import { FhirDestination, type DeliveryPolicy } from './fhir-destination';
+import { Hl7Destination } from './hl7-destination';
+import { assessmentDeliveryStatus, assessmentObservations } from './assessment-view';
+import { enqueueAssessment, markAssessmentInError, syncDestinations, type DestinationSpec } from './outbox';
+import { PatientContextResolver } from './patient-context';
+
+export const FHIR_DESTINATION_ID = 'ehr-fhir';
+export const HL7_DESTINATION_ID = 'ehr-hl7v2';
+
+export interface DeliveryParts {
+  routers: Router[];
+  readiness: ReadinessCheck[];
+  services: BackgroundService[];
+  worker: DeliveryWorker;
+  ehr: EhrClient;
+  contexts: PatientContextResolver;
+}
+
+export function destinationSpecs(ctx: AppContext): DestinationSpec[] {
+  const specs: DestinationSpec[] = [{ id: FHIR_DESTINATION_ID, name: 'EHR (FHIR R4)', kind: 'fhir' }];
+  if (ctx.config.delivery.hl7.enabled) specs.push({ id: HL7_DESTINATION_ID, name: 'EHR (HL7 v2 ORU^R01 over MLLP)', kind: 'hl7v2-mllp' });
+  return specs;
+}
+
+export function buildDelivery(ctx: AppContext, codes: CodeMap = defaultCodeMap()): DeliveryParts {
+  const cfg = ctx.config.delivery;
+  const specs = destinationSpecs(ctx);
+  let synced: Promise<void> | undefined;
+  const ensureDestinations = () => (synced ??= syncDestinations(ctx.ds, specs).catch((err) => {
+    synced = undefined;
+    throw err;
+  }));
+  const policy = async (): Promise<DeliveryPolicy> => (await getSiteSettings(ctx)).delivery;
+
+  // Hooks are process-wide lists; each gateway answers only for its own database.
+  onAssessmentStored.push(async (m, a) => {
+    if (m.connection !== ctx.ds) return;
+    await ensureDestinations();
+    await enqueueAssessment(m, a, specs.map((s) => s.id), codes, (await policy()).notValidPolicy);
+  });
+  onAssessmentMarkedInError.push(async (m, a) => {
+    if (m.connection !== ctx.ds) return;
+    await markAssessmentInError(m, a);
+  });
+  deliveryStatusProviders.push(async (ds, ids) => (ds === ctx.ds ? assessmentDeliveryStatus(ds, ids) : new Map()));
+  observationProviders.push(async (ds, id) => (ds === ctx.ds ? assessmentObservations(ds, id) : []));
+
+  const ehr = new EhrClient({ ...ctx.config.ehr, requestTimeoutMs: cfg.requestTimeoutMs });
+  const contexts = new PatientContextResolver(ehr, cfg.patientContext.cacheSeconds * 1000);
+  const handlers = new Map<string, DestinationHandler>([[FHIR_DESTINATION_ID, new FhirDestination(ctx.ds, ehr, contexts, new DeviceSync(ehr, codes), codes, cfg, policy)]]);
+  if (cfg.hl7.enabled) handlers.set(HL7_DESTINATION_ID, new Hl7Destination(ctx.ds, contexts, ehr, codes, cfg, policy));
+  const worker = new DeliveryWorker(ctx.ds, handlers, cfg, ctx.logger);
+  const alerts = new AlertWatcher(ctx, async () => (await getSiteSettings(ctx)).alerts);
+
+  const setup: BackgroundService = { name: 'delivery-destinations', start: () => ensureDestinations(), stop: async () => {} };
+  const services: BackgroundService[] = [setup, worker, ...(cfg.alerts.enabled ? [alerts] : [])];
+  const readiness: ReadinessCheck[] = [
+    {
+      name: 'ehr',
+      critical: false,
+      check: async () => {
+        const res = await fetch(`${ctx.config.ehr.fhirBaseUrl.replace(/\/$/, '')}/metadata`, { signal: AbortSignal.timeout(2000), headers: { accept: 'application/fhir+json' } });
+        if (!res.ok) throw new Error(`the EHR answered ${res.status} for /metadata`);
+      },
+    },
+  ];
+  return { routers: [deliveriesRouter(ctx)], readiness, services, worker, ehr, contexts };
+}

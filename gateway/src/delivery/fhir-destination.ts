@@ -1,0 +1,225 @@
+/**
+ * Sends claimed outbox rows to the EHR's FHIR API: builds the Observation on the first send
+ * (patient context, Device), keeps it as the row's payload, then conditional create, singly or
+ * in transaction Bundles. Returns what to record; the worker writes it.
+ */
+import type { DataSource } from 'typeorm';
+import { In } from 'typeorm';
+import type { AnalysisResult } from '@ebbgate/shared/analysis';
+import { AssessmentRow } from '../assessments/assessment.entity';
+import { BedRow, MonitorProfileRow, MonitorRow } from '../devices/device.entities';
+import { backoffDelayMs } from './backoff';
+import type { CodeMap, DeliveredIndex } from './code-map';
+import type { DeliveryConfig } from './delivery.config';
+import { DeliveryRow } from './delivery.entities';
+import type { DeviceSync } from './device-sync';
+import { errorText, type EhrClient } from './ehr-client';
+import type { Bundle, Observation } from './fhir-types';
+import { buildObservation, enteredInErrorAmendment, ifNoneExistQuery } from './observation-builder';
+import type { AttemptResult } from './outbox';
+import type { PatientContextResolver } from './patient-context';
+import { outcomeSummary, type SendOutcome } from './send-outcome';
+
+export interface DeliveryPolicy {
+  observationStatus: DeliveryConfig['observationStatus'];
+  notValidPolicy: DeliveryConfig['notValidPolicy'];
+}
+
+interface Prepared {
+  row: DeliveryRow;
+  payload: Observation;
+  patientRef: string | null;
+}
+
+export interface PassReport {
+  results: AttemptResult[];
+  answered: number;
+  failed: number;
+  lastError: string | null;
+  configurationError: string | null;
+}
+
+export class FhirDestination {
+  constructor(
+    private readonly ds: DataSource,
+    private readonly ehr: EhrClient,
+    private readonly contexts: PatientContextResolver,
+    private readonly devices: DeviceSync,
+    private readonly codes: CodeMap,
+    private readonly cfg: DeliveryConfig,
+    /** Run-time policy (site settings an admin may change); read once per pass. */
+    private readonly policy: () => Promise<DeliveryPolicy>,
+  ) {}
+
+  private current: DeliveryPolicy = { observationStatus: 'preliminary', notValidPolicy: 'data-absent' };
+
+  async process(rows: DeliveryRow[]): Promise<PassReport> {
+    const report: PassReport = { results: [], answered: 0, failed: 0, lastError: null, configurationError: null };
+    this.current = await this.policy();
+    const ready: Prepared[] = [];
+    const started = performance.now();
+    const assessments = await this.load(rows);
+    for (const row of rows) {
+      try {
+        const p = row.kind === 'amend' ? await this.prepareAmend(row, report) : await this.prepareCreate(row, assessments, report);
+        if (p) ready.push(p);
+      } catch (err) {
+        // The EHR could not be asked for context or the Device: a transient failure of the destination.
+        this.apply(report, row, { kind: 'retryable', httpStatus: null, response: null, detail: `preparing the message failed: ${errorText(err)}` }, 'single', performance.now() - started);
+      }
+    }
+    const creates = ready.filter((p) => p.row.kind === 'create');
+    const amends = ready.filter((p) => p.row.kind === 'amend');
+    if (this.cfg.bundleSize > 1 && creates.length > 1) {
+      for (let i = 0; i < creates.length; i += this.cfg.bundleSize) await this.sendBundle(creates.slice(i, i + this.cfg.bundleSize), report);
+    } else {
+      await this.sendSingly(creates, report);
+    }
+    await this.sendSingly(amends, report);
+    return report;
+  }
+
+  private async load(rows: DeliveryRow[]) {
+    const ids = [...new Set(rows.filter((r) => r.kind === 'create' && !r.payload).map((r) => r.assessmentId))];
+    const assessments = ids.length ? await this.ds.getRepository(AssessmentRow).findBy({ id: In(ids) }) : [];
+    const bedIds = [...new Set(assessments.map((a) => a.bedId).filter((x): x is string => !!x))];
+    const monitorIds = [...new Set(assessments.map((a) => a.monitorId))];
+    const beds = bedIds.length ? await this.ds.getRepository(BedRow).findBy({ id: In(bedIds) }) : [];
+    const monitors = monitorIds.length ? await this.ds.getRepository(MonitorRow).findBy({ id: In(monitorIds) }) : [];
+    const profileIds = [...new Set(monitors.map((m) => m.profileId).filter((x): x is string => !!x))];
+    const profiles = profileIds.length ? await this.ds.getRepository(MonitorProfileRow).findBy({ id: In(profileIds) }) : [];
+    return {
+      assessment: new Map(assessments.map((a) => [a.id, a])),
+      bed: new Map(beds.map((b) => [b.id, b])),
+      monitor: new Map(monitors.map((m) => [m.id, m])),
+      profile: new Map(profiles.map((p) => [p.id, p])),
+    };
+  }
+
+  private waitForContext(report: PassReport, row: DeliveryRow, detail: string): void {
+    report.results.push({
+      row, status: 'waiting-context', nextAttemptAt: new Date(Date.now() + this.cfg.patientContext.retrySeconds * 1000), countsAsTry: false,
+      httpStatus: null, outcome: 'waiting-context', detail, response: null, mode: 'single', durationMs: 0,
+    });
+  }
+
+  private async prepareCreate(row: DeliveryRow, maps: Awaited<ReturnType<FhirDestination['load']>>, report: PassReport): Promise<Prepared | null> {
+    if (row.payload) return { row, payload: row.payload as Observation, patientRef: row.patientRef };
+    const a = maps.assessment.get(row.assessmentId);
+    if (!a) throw new Error(`assessment ${row.assessmentId} is gone`);
+    const bed = a.bedId ? maps.bed.get(a.bedId) : undefined;
+    if (!bed) {
+      this.waitForContext(report, row, 'no patient context: the monitor was not at a bed during this window');
+      return null;
+    }
+    const context = await this.contexts.resolve(bed.locationIdentifier);
+    if (!context) {
+      this.waitForContext(report, row, `no patient context: no in-progress encounter at location ${bed.locationIdentifier}`);
+      return null;
+    }
+    const monitor = maps.monitor.get(a.monitorId);
+    const profile = monitor?.profileId ? maps.profile.get(monitor.profileId) : undefined;
+    const deviceId = monitor
+      ? await this.devices.ensure({ identifier: monitor.identifier, manufacturer: profile?.manufacturer ?? null, model: profile?.model ?? null, locationId: context.locationId })
+      : null;
+    const built = buildObservation({
+      assessmentId: a.id, index: row.indexName as DeliveredIndex, windowStart: a.windowStart, windowEnd: a.windowEnd,
+      result: a.result as AnalysisResult, context, deviceId, status: this.current.observationStatus, notValidPolicy: this.current.notValidPolicy,
+      issued: new Date(), codes: this.codes,
+    });
+    if (built.kind === 'withheld') {
+      report.results.push({ row, status: 'withheld', nextAttemptAt: new Date(), countsAsTry: false, httpStatus: null, outcome: 'withheld', detail: built.reason, response: null, mode: 'single', durationMs: 0 });
+      return null;
+    }
+    return { row, payload: built.resource, patientRef: `Patient/${context.patientId}` };
+  }
+
+  private async prepareAmend(row: DeliveryRow, report: PassReport): Promise<Prepared | null> {
+    if (row.payload) return { row, payload: row.payload as Observation, patientRef: row.patientRef };
+    const create = await this.ds.getRepository(DeliveryRow).findOneBy({ assessmentId: row.assessmentId, destinationId: row.destinationId, indexName: row.indexName, kind: 'create' });
+    const a = await this.ds.getRepository(AssessmentRow).findOneBy({ id: row.assessmentId });
+    if (create?.status === 'delivered' && create.serverId && create.payload && a) {
+      const payload = enteredInErrorAmendment(create.payload as Observation, create.serverId, a.enteredInErrorBy ?? 'a reviewer', a.enteredInErrorReason ?? 'no reason given', a.enteredInErrorAt ?? new Date());
+      return { row, payload, patientRef: create.patientRef };
+    }
+    const later = create && (create.status === 'pending' || create.status === 'waiting-context');
+    report.results.push({
+      row, status: later ? 'pending' : 'discarded', nextAttemptAt: new Date(Date.now() + 5000), countsAsTry: false, httpStatus: null,
+      outcome: later ? 'waiting-original' : 'nothing-to-amend', detail: later ? 'the original is not delivered yet' : 'nothing was delivered to amend', response: null, mode: 'single', durationMs: 0,
+    });
+    return null;
+  }
+
+  private async sendSingly(items: Prepared[], report: PassReport): Promise<void> {
+    let next = 0;
+    const lane = async () => {
+      while (next < items.length) {
+        const p = items[next++]!;
+        const t0 = performance.now();
+        const outcome =
+          p.row.kind === 'amend'
+            ? await this.ehr.updateObservation(p.payload as Observation & { id: string })
+            : await this.ehr.createObservation(p.payload, ifNoneExistQuery({ system: this.codes.identifierSystems.observation, value: p.row.identifier }));
+        this.apply(report, p.row, outcome, 'single', performance.now() - t0, p);
+      }
+    };
+    await Promise.all(Array.from({ length: Math.min(this.cfg.concurrency, items.length) }, lane));
+  }
+
+  /** FHIR R4 transaction: all or nothing. A 400/422 for the whole bundle is retried entry by entry to find the bad one. */
+  private async sendBundle(items: Prepared[], report: PassReport): Promise<void> {
+    const bundle: Bundle = {
+      resourceType: 'Bundle',
+      type: 'transaction',
+      entry: items.map((p) => ({
+        resource: p.payload as unknown as Record<string, unknown>,
+        request: { method: 'POST', url: 'Observation', ifNoneExist: decodeURIComponent(ifNoneExistQuery({ system: this.codes.identifierSystems.observation, value: p.row.identifier })) },
+      })),
+    };
+    const t0 = performance.now();
+    const answer = await this.ehr.transaction(bundle);
+    const ms = performance.now() - t0;
+    if (!answer.ok) {
+      if (answer.outcome.kind === 'rejected' && items.length > 1) return this.sendSingly(items, report);
+      for (const p of items) this.apply(report, p.row, answer.outcome, 'bundle', ms / items.length, p);
+      return;
+    }
+    items.forEach((p, i) => {
+      const resp = answer.bundle.entry?.[i]?.response;
+      const status = Number.parseInt(resp?.status ?? '', 10);
+      const serverId = resp?.location?.split('/')[1] ?? null;
+      const outcome: SendOutcome =
+        status >= 200 && status < 300
+          ? { kind: 'delivered', httpStatus: status, serverId, created: status === 201, response: null }
+          : { kind: 'rejected', httpStatus: Number.isFinite(status) ? status : null, response: resp?.outcome ?? null, detail: `bundle entry answered ${resp?.status ?? 'nothing'}` };
+      this.apply(report, p.row, outcome, 'bundle', ms / items.length, p);
+    });
+  }
+
+  private apply(report: PassReport, row: DeliveryRow, o: SendOutcome, mode: 'single' | 'bundle', durationMs: number, p?: Prepared): void {
+    const now = Date.now();
+    const base = { row, httpStatus: o.httpStatus, response: o.response, mode, durationMs, ...(p ? { payload: p.payload as object, patientRef: p.patientRef } : {}) };
+    if (o.kind === 'delivered') {
+      report.answered++;
+      report.results.push({ ...base, status: 'delivered', nextAttemptAt: new Date(now), countsAsTry: true, outcome: o.created ? 'created' : 'delivered', detail: o.created ? 'created' : 'accepted (already there or updated)', serverId: o.serverId ?? row.serverId });
+      return;
+    }
+    const summary = outcomeSummary(o.response);
+    const detail = summary ? `${o.detail}: ${summary}` : o.detail;
+    if (o.kind === 'rejected') {
+      report.answered++;
+      report.results.push({ ...base, status: 'failed', nextAttemptAt: new Date(now), countsAsTry: true, outcome: 'rejected', detail });
+      return;
+    }
+    report.failed++;
+    report.lastError = detail;
+    if (o.kind === 'auth') report.configurationError = `${detail}: check the client id, secret and scopes the EHR gave Ebbgate`;
+    const tries = row.tries + 1;
+    const exhausted = tries >= this.cfg.retry.limit;
+    const delay = Math.max(backoffDelayMs(tries, this.cfg.retry), o.kind === 'retryable' ? (o.retryAfterMs ?? 0) : 0);
+    report.results.push({
+      ...base, status: exhausted ? 'failed' : 'pending', nextAttemptAt: new Date(now + delay), countsAsTry: true, outcome: o.kind,
+      detail: exhausted ? `${detail} (gave up after ${tries} attempts)` : detail,
+    });
+  }
+}

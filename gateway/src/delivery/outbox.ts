@@ -1,0 +1,196 @@
+/**
+ * The outbox tables: rows are added in the same transaction as the assessment they deliver,
+ * claimed with FOR UPDATE SKIP LOCKED, and leased by pushing next_attempt_at forward, so a worker
+ * that dies leaves its rows due again after the lease (then conditional create keeps it exactly once).
+ */
+import type { DataSource, EntityManager } from 'typeorm';
+import { In } from 'typeorm';
+import type { AnalysisResult } from '@ebbgate/shared/analysis';
+import type { AssessmentRow } from '../assessments/assessment.entity';
+import { DELIVERED_INDICES, type CodeMap } from './code-map';
+import type { DeliveryConfig } from './delivery.config';
+import { DeliveryAttemptRow, DeliveryRow, DestinationRow, type DeliveryStatus, type DestinationKind } from './delivery.entities';
+import { observationIdentifier } from './observation-builder';
+
+export interface DestinationSpec {
+  id: string;
+  name: string;
+  kind: DestinationKind;
+}
+
+/** Makes sure every configured destination has its row (state survives restarts). */
+export async function syncDestinations(ds: DataSource, specs: DestinationSpec[]): Promise<void> {
+  const now = new Date();
+  for (const s of specs) {
+    await ds.query(
+      `INSERT INTO destination (id, name, kind, paused, circuit_state, consecutive_failures, updated_at) VALUES (?, ?, ?, 0, 'closed', 0, ?)
+       ON DUPLICATE KEY UPDATE name = VALUES(name), kind = VALUES(kind)`,
+      [s.id, s.name, s.kind, now],
+    );
+  }
+}
+
+/** Whether a result goes out at all under the not-valid policy (decided once, when queued). */
+export function withheldReason(result: AnalysisResult, index: (typeof DELIVERED_INDICES)[number], policy: DeliveryConfig['notValidPolicy']): string | null {
+  if (policy !== 'withhold') return null;
+  const iv = result.indices[index];
+  const verdict = result.indexVerdicts[index] ?? result.verdict;
+  if (iv.value === null) return `not computable: ${iv.notComputableReason ?? 'no value'}`;
+  if (verdict === 'not-valid') return 'not valid: withheld by setting';
+  return null;
+}
+
+/** Queues one row per index per destination for a newly stored assessment. */
+export async function enqueueAssessment(m: EntityManager, a: AssessmentRow, destinations: string[], codes: CodeMap, policy: DeliveryConfig['notValidPolicy']): Promise<void> {
+  const result = a.result as AnalysisResult;
+  const now = new Date();
+  const rows: Partial<DeliveryRow>[] = [];
+  for (const destinationId of destinations) {
+    for (const index of DELIVERED_INDICES) {
+      const withheld = withheldReason(result, index, policy);
+      rows.push({
+        assessmentId: a.id, destinationId, indexName: index, kind: 'create',
+        status: withheld ? 'withheld' : 'pending',
+        identifier: observationIdentifier(codes, a.id, index).value,
+        payload: null, serverId: null, patientRef: null, tries: 0, attemptCount: 0,
+        nextAttemptAt: now, lastHttpStatus: null, lastError: withheld, discardReason: null, discardedBy: null,
+        createdAt: now, updatedAt: now, deliveredAt: null,
+      });
+    }
+  }
+  if (rows.length) await m.createQueryBuilder().insert().into(DeliveryRow).values(rows).orIgnore().execute();
+}
+
+/** Claims due rows of one destination: SKIP LOCKED so parallel workers never take the same row. */
+export async function claimDue(ds: DataSource, destinationId: string, limit: number, leaseMs: number): Promise<DeliveryRow[]> {
+  return ds.transaction(async (m) => {
+    const now = new Date();
+    const rows = await m
+      .getRepository(DeliveryRow)
+      .createQueryBuilder('d')
+      .where('d.destination_id = :destinationId', { destinationId })
+      .andWhere('d.status IN (:...statuses)', { statuses: ['pending', 'waiting-context'] })
+      .andWhere('d.next_attempt_at <= :now', { now })
+      .orderBy('d.next_attempt_at', 'ASC')
+      .addOrderBy('d.id', 'ASC')
+      .limit(limit)
+      .setLock('pessimistic_write')
+      .setOnLocked('skip_locked')
+      .getMany();
+    if (rows.length) {
+      await m.update(DeliveryRow, { id: In(rows.map((r) => r.id)) }, { nextAttemptAt: new Date(now.getTime() + leaseMs) });
+    }
+    return rows;
+  });
+}
+
+export interface AttemptResult {
+  row: DeliveryRow;
+  /** New status; for an unfinished row pending or waiting-context. */
+  status: DeliveryStatus;
+  nextAttemptAt: Date;
+  countsAsTry: boolean;
+  httpStatus: number | null;
+  outcome: string;
+  detail: string | null;
+  response: unknown;
+  payload?: object | null;
+  serverId?: string | null;
+  patientRef?: string | null;
+  mode: 'single' | 'bundle' | 'mllp';
+  durationMs: number;
+}
+
+/**
+ * Writes a batch of attempts in one transaction. A row that someone discarded (or that an amend
+ * superseded) while it was in flight keeps that status unless it was in fact delivered.
+ */
+export async function recordAttempts(ds: DataSource, results: AttemptResult[]): Promise<void> {
+  if (!results.length) return;
+  const at = new Date();
+  await ds.transaction(async (m) => {
+    await m.insert(
+      DeliveryAttemptRow,
+      results.map((r) => ({
+        deliveryId: r.row.id, at, durationMs: Math.round(r.durationMs), httpStatus: r.httpStatus, outcome: r.outcome,
+        detail: r.detail, response: (r.response ?? null) as object | null, mode: r.mode,
+      })),
+    );
+    for (const r of results) {
+      const set: Partial<DeliveryRow> = {
+        status: r.status,
+        nextAttemptAt: r.nextAttemptAt,
+        lastHttpStatus: r.httpStatus,
+        lastError: r.status === 'delivered' ? null : r.detail,
+        updatedAt: at,
+        ...(r.payload !== undefined ? { payload: r.payload } : {}),
+        ...(r.serverId !== undefined ? { serverId: r.serverId } : {}),
+        ...(r.patientRef !== undefined ? { patientRef: r.patientRef } : {}),
+        ...(r.status === 'delivered' ? { deliveredAt: at } : {}),
+      };
+      const qb = m.createQueryBuilder().update(DeliveryRow).set({
+        ...set,
+        attemptCount: () => 'attempt_count + 1',
+        ...(r.countsAsTry ? { tries: () => 'tries + 1' } : {}),
+      } as never).where('id = :id', { id: r.row.id });
+      if (r.status !== 'delivered') qb.andWhere('status IN (:...open)', { open: ['pending', 'waiting-context'] });
+      await qb.execute();
+    }
+  });
+}
+
+/** Destination health after a pass: any answer from the EHR means it is up. */
+export async function recordDestinationHealth(
+  ds: DataSource,
+  destinationId: string,
+  pass: { answered: number; failed: number; lastError: string | null; configurationError: string | null },
+  circuit: DeliveryConfig['circuit'],
+): Promise<void> {
+  const now = new Date();
+  await ds.transaction(async (m) => {
+    const d = await m.getRepository(DestinationRow).createQueryBuilder('d').where('d.id = :id', { id: destinationId }).setLock('pessimistic_write').getOne();
+    if (!d) return;
+    if (pass.answered > 0 && pass.failed === 0) {
+      Object.assign(d, { consecutiveFailures: 0, circuitState: 'closed', circuitOpenedAt: null, downSince: null, lastSuccessAt: now });
+      if (!pass.configurationError) d.configurationError = null;
+    } else if (pass.failed > 0) {
+      d.consecutiveFailures += pass.failed;
+      d.downSince ??= now;
+      d.lastFailureAt = now;
+      d.lastError = pass.lastError;
+      if (d.circuitState === 'half-open' || d.consecutiveFailures >= circuit.failureThreshold) {
+        d.circuitState = 'open';
+        d.circuitOpenedAt = now;
+      }
+    }
+    if (pass.configurationError) d.configurationError = pass.configurationError;
+    d.updatedAt = now;
+    await m.save(d);
+  });
+}
+
+/** Reviewer marked an assessment in error: amend what was delivered, stop what was not. */
+export async function markAssessmentInError(m: EntityManager, a: AssessmentRow): Promise<void> {
+  const rows = await m.getRepository(DeliveryRow).find({ where: { assessmentId: a.id, kind: 'create' } });
+  const now = new Date();
+  for (const r of rows) {
+    if (r.status === 'delivered') await ensureAmendRow(m, r, now);
+    else if (r.status === 'pending' || r.status === 'waiting-context' || r.status === 'failed') {
+      await m.update(DeliveryRow, { id: r.id }, { status: 'discarded', discardReason: 'entered in error before delivery', discardedBy: a.enteredInErrorBy, updatedAt: now });
+    }
+  }
+}
+
+export async function ensureAmendRow(m: EntityManager, create: DeliveryRow, now = new Date()): Promise<void> {
+  await m
+    .createQueryBuilder()
+    .insert()
+    .into(DeliveryRow)
+    .values({
+      assessmentId: create.assessmentId, destinationId: create.destinationId, indexName: create.indexName, kind: 'amend', status: 'pending',
+      identifier: create.identifier, payload: null, serverId: create.serverId, patientRef: create.patientRef, tries: 0, attemptCount: 0,
+      nextAttemptAt: now, lastHttpStatus: null, lastError: null, discardReason: null, discardedBy: null, createdAt: now, updatedAt: now, deliveredAt: null,
+    })
+    .orIgnore()
+    .execute();
+}

@@ -1,0 +1,193 @@
+/**
+ * End to end against the mock EHR (FHIR R4 server with OAuth2, fault injection, SMTP catcher):
+ * real gateway, real MariaDB, real outbox worker and alert watcher.
+ */
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { startMockEhr, type RunningMockEhr } from '@ebbgate/mock-ehr';
+import { DeliveryRow, DestinationRow } from '../../src/delivery/delivery.entities';
+import { FHIR_DESTINATION_ID } from '../../src/delivery/delivery.module';
+import { startTestGateway, type TestGateway } from '../support/harness';
+import { insertBedAndMonitor, markInError, mockAdmin, storeAssessment, waitFor, type MockAdmin } from './support';
+
+let ehr: RunningMockEhr;
+let gw: TestGateway;
+let admin: MockAdmin;
+const IDENT = 'urn:ebbgate:observation|';
+
+beforeAll(async () => {
+  ehr = await startMockEhr({ httpPort: 0, smtpPort: 0, mllpPort: 0 });
+  admin = mockAdmin(ehr.baseUrl);
+  gw = await startTestGateway(
+    {
+      ehr: { fhirBaseUrl: ehr.fhirBaseUrl, tokenUrl: ehr.tokenUrl },
+      mail: { smtpPort: ehr.smtpPort },
+      delivery: {
+        pollMs: 30, leaseSeconds: 5, requestTimeoutMs: 2000,
+        retry: { limit: 50, baseMs: 40, maxMs: 200 },
+        circuit: { failureThreshold: 5, openSeconds: 0.3 },
+        patientContext: { cacheSeconds: 60, retrySeconds: 0.3 },
+        alerts: { enabled: true, checkIntervalMs: 100, downMinutes: 0.01, failureThreshold: 1000, failureWindowMinutes: 60, recipients: ['icu-oncall@harrowmere.example'], consoleUrl: 'http://console.harrowmere.example' },
+      },
+    },
+    { services: true },
+  );
+}, 60_000);
+
+afterAll(async () => {
+  await gw?.stop();
+  await ehr?.stop();
+});
+
+/** A token from the mock's client-credentials endpoint, to read what the gateway wrote. */
+async function mockToken(): Promise<string> {
+  const res = await fetch(ehr.tokenUrl, { method: 'POST', headers: { 'content-type': 'application/x-www-form-urlencoded' }, body: 'grant_type=client_credentials&client_id=ebbgate-gateway&client_secret=mock-ehr-dev-secret' });
+  return ((await res.json()) as { access_token: string }).access_token;
+}
+
+const rowsOf = (assessmentIds: string[]) => gw.ctx.ds.getRepository(DeliveryRow).createQueryBuilder('d').where('d.assessment_id IN (:...ids)', { ids: assessmentIds }).getMany();
+const allSettled = (ids: string[], statuses = ['delivered', 'withheld']) => async () => {
+  const rows = await rowsOf(ids);
+  return rows.length > 0 && rows.every((r) => statuses.includes(r.status)) ? rows : undefined;
+};
+
+describe('delivery to the mock EHR', () => {
+  it('delivers one Observation per index per assessment, with subject, encounter and one Device per monitor', async () => {
+    const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'ICU-01');
+    const a = [];
+    for (let i = 0; i < 3; i++) a.push(await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, 9, 0, 30 * i))));
+    const rows = await waitFor('all delivered', allSettled(a.map((x) => x.id)));
+    expect(rows).toHaveLength(12);
+    const counts = await admin.observations();
+    for (const r of rows) expect(counts.byIdentifier[IDENT + r.identifier]).toBe(1);
+    const obs = rows[0]!.payload as { subject: { reference: string }; encounter: { reference: string }; device: { reference: string } };
+    // config/demo/hospital.json: ICU-01 holds MRN HGH-400117 in encounter enc-icu-01.
+    expect(obs.subject.reference).toBe('Patient/patient-hgh-400117');
+    expect(obs.encounter.reference).toBe('Encounter/enc-icu-01');
+    expect(new Set(rows.map((r) => (r.payload as { device: { reference: string } }).device.reference)).size).toBe(1);
+  });
+
+  it('outage → backlog → recovery: every result delivered exactly once, one alert mail and one all-clear', async () => {
+    const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'ICU-02');
+    await admin.faults([{ scope: 'Observation', errorRate: 1, statusCodes: [503, 502, 504], retryAfterSeconds: 0 }, { scope: 'all', timeoutRate: 0 }]);
+    const a = [];
+    for (let i = 0; i < 5; i++) a.push(await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, 9, 10, 30 * i))));
+    const down = await waitFor('destination down with an open circuit', async () => {
+      const d = await gw.ctx.ds.getRepository(DestinationRow).findOneBy({ id: FHIR_DESTINATION_ID });
+      return d?.downSince && d.circuitState !== 'closed' ? d : undefined;
+    });
+    expect(down.consecutiveFailures).toBeGreaterThanOrEqual(5);
+    await waitFor('the down alert mail', async () => (await admin.mail()).some((m) => /is down/.test(m.subject)));
+    const backlog = await rowsOf(a.map((x) => x.id));
+    expect(backlog.every((r) => r.status === 'pending')).toBe(true);
+    expect(backlog.some((r) => r.attemptCount > 0)).toBe(true);
+
+    await admin.clearFaults();
+    const rows = await waitFor('backlog delivered', allSettled(a.map((x) => x.id)), 30_000);
+    const counts = await admin.observations();
+    for (const r of rows) expect(counts.byIdentifier[IDENT + r.identifier]).toBe(1);
+    expect(counts.duplicated).toEqual([]);
+    await waitFor('the all-clear mail', async () => (await admin.mail()).some((m) => /^\[Ebbgate\] Cleared: .* was down/.test(m.subject)));
+    // A few more checks pass: still one mail per incident.
+    await new Promise((r) => setTimeout(r, 400));
+    const mails = await admin.mail();
+    expect(mails.filter((m) => /EHR \(FHIR R4\) is down/.test(m.subject))).toHaveLength(1);
+    expect(mails.filter((m) => /Cleared: EHR \(FHIR R4\) was down/.test(m.subject))).toHaveLength(1);
+    const alert = mails.find((m) => /is down/.test(m.subject))!;
+    expect(alert.to).toContain('icu-oncall@harrowmere.example');
+    expect(alert.text).toContain('http://console.harrowmere.example/deliveries?destination=ehr-fhir');
+  });
+
+  it('422 fails at once with the OperationOutcome kept; an operator sees it, retries it (audited) and it is delivered', async () => {
+    const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'ICU-03');
+    await admin.faults([{ scope: 'Observation', errorRate: 1, statusCodes: [422], remaining: 1 }]);
+    const a = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, 9, 20)));
+    await waitFor('three delivered, one failed', async () => {
+      const rows = await rowsOf([a.id]);
+      return rows.filter((r) => r.status === 'failed').length === 1 && rows.filter((r) => r.status === 'delivered').length === 3;
+    });
+    const failed = (await rowsOf([a.id])).find((r) => r.status === 'failed')!;
+    expect(failed.tries).toBe(1); // not retried: 4xx other than 408/429 is final (FHIR R4 http.html)
+
+    const operator = await gw.signIn('operator');
+    const list = await operator.get(`/api/v1/deliveries?status=failed&assessment=${a.id}`);
+    expect(list.status).toBe(200);
+    expect(list.body.items.map((d: { id: string }) => d.id)).toEqual([String(failed.id)]);
+    const detail = await operator.get(`/api/v1/deliveries/${failed.id}`);
+    expect(detail.body.payload.resourceType).toBe('Observation');
+    expect(detail.body.attempts).toHaveLength(1);
+    expect(detail.body.attempts[0]).toMatchObject({ httpStatus: 422, outcome: 'rejected' });
+    expect(detail.body.attempts[0].response.resourceType).toBe('OperationOutcome');
+
+    const retry = await operator.post('/api/v1/deliveries/retry', { ids: [String(failed.id)] });
+    expect(retry.body.updated).toEqual([String(failed.id)]);
+    await waitFor('retried row delivered', async () => (await gw.ctx.ds.getRepository(DeliveryRow).findOneBy({ id: failed.id }))?.status === 'delivered');
+    const adminUser = await gw.signIn('admin');
+    const audit = await adminUser.get(`/api/v1/audit?action=delivery.retry&entityId=${failed.id}`);
+    expect(audit.body.items).toHaveLength(1);
+    expect((await admin.observations()).byIdentifier[IDENT + failed.identifier]).toBe(1);
+  });
+
+  it('a bed with no in-progress encounter waits as waiting-context (not failed) and is delivered once a patient is admitted', async () => {
+    const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'ICU-05'); // empty in config/demo/hospital.json
+    const a = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, 9, 30)));
+    await waitFor('waiting-context', allSettled([a.id], ['waiting-context']));
+    const token = await mockToken();
+    const post = (type: string, body: object) =>
+      fetch(`${ehr.fhirBaseUrl}/${type}`, { method: 'POST', headers: { authorization: `Bearer ${token}`, 'content-type': 'application/fhir+json' }, body: JSON.stringify(body) }).then((r) => r.json() as Promise<{ id: string }>);
+    const patient = await post('Patient', { resourceType: 'Patient', name: [{ family: 'Ashgrove', given: ['Wren'] }], gender: 'female' });
+    await post('Encounter', { resourceType: 'Encounter', status: 'in-progress', class: { system: 'http://terminology.hl7.org/CodeSystem/v3-ActCode', code: 'IMP' }, subject: { reference: `Patient/${patient.id}` }, location: [{ location: { reference: 'Location/icu-05' } }] });
+    const rows = await waitFor('delivered after admission', allSettled([a.id]));
+    expect((rows[0]!.payload as { subject: { reference: string } }).subject.reference).toBe(`Patient/${patient.id}`);
+  });
+
+  it('marking a delivered result in error sends the amended resource with status entered-in-error', async () => {
+    const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'ICU-04');
+    const a = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, 9, 40)));
+    const created = await waitFor('delivered', allSettled([a.id]));
+    await markInError(gw.ctx.ds, a, 'reviewer', 'monitor was on the wrong patient');
+    await waitFor('amendments delivered', async () => {
+      const rows = (await rowsOf([a.id])).filter((r) => r.kind === 'amend');
+      return rows.length === 4 && rows.every((r) => r.status === 'delivered');
+    });
+    const token = await mockToken();
+    for (const r of created) {
+      const res = await fetch(`${ehr.fhirBaseUrl}/Observation/${r.serverId}`, { headers: { authorization: `Bearer ${token}` } });
+      const body = (await res.json()) as { status: string; identifier: { value: string }[] };
+      expect(body.status).toBe('entered-in-error');
+      expect(body.identifier[0].value).toBe(r.identifier);
+    }
+    expect((await admin.observations()).duplicated).toEqual([]);
+  });
+
+  it('403 marks the destination misconfigured and mails once; pause and resume are audited', async () => {
+    await admin.faults([{ scope: 'Observation', errorRate: 1, statusCodes: [403] }]);
+    const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'OR-01');
+    const a = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, 9, 50)));
+    await waitFor('configuration alert mail', async () => (await admin.mail()).some((m) => /rejects the configured credentials/.test(m.subject)));
+    const operator = await gw.signIn('operator');
+    const dests = await operator.get('/api/v1/destinations');
+    expect(dests.body.find((d: { id: string }) => d.id === FHIR_DESTINATION_ID).state).toMatch(/misconfigured/);
+
+    expect((await operator.post(`/api/v1/destinations/${FHIR_DESTINATION_ID}/pause`)).body.paused).toBe(true);
+    await new Promise((r) => setTimeout(r, 300)); // a pass that began before the pause finishes (with 403s)
+    await admin.clearFaults();
+    await new Promise((r) => setTimeout(r, 500));
+    expect((await rowsOf([a.id])).some((r) => r.status === 'delivered')).toBe(false); // paused: nothing goes out
+    expect((await operator.post(`/api/v1/destinations/${FHIR_DESTINATION_ID}/resume`)).body.paused).toBe(false);
+    await waitFor('delivered after resume', allSettled([a.id]), 30_000);
+    const adminUser = await gw.signIn('admin');
+    const audit = await adminUser.get('/api/v1/audit?action=destination.');
+    expect(audit.body.items.map((e: { action: string }) => e.action).sort()).toEqual(['destination.pause', 'destination.resume']);
+    expect((await admin.mail()).filter((m) => /rejects the configured credentials/.test(m.subject))).toHaveLength(1);
+  });
+
+  it('the reviewer cannot retry and the operator cannot discard a delivered result', async () => {
+    const reviewer = await gw.signIn('reviewer');
+    expect((await reviewer.post('/api/v1/deliveries/retry', { ids: ['1'] })).status).toBe(403);
+    const operator = await gw.signIn('operator');
+    const delivered = await operator.get('/api/v1/deliveries?status=delivered&pageSize=1');
+    const res = await operator.post(`/api/v1/deliveries/${delivered.body.items[0].id}/discard`, { reason: 'test' });
+    expect(res.status).toBe(409);
+    expect(res.headers['content-type']).toMatch(/problem\+json/);
+  });
+});

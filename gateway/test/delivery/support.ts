@@ -1,0 +1,99 @@
+/**
+ * Delivery test helpers: monitors, beds and assessments made with the real engine on synthetic
+ * waveforms, stored the way the analysis worker stores them (row + hooks in one transaction).
+ */
+import { randomUUID } from 'node:crypto';
+import type { DataSource, EntityManager } from 'typeorm';
+import { analyzeWindow, type AnalysisContext, type AnalysisResult } from '@ebbgate/shared/analysis';
+import { generateWindow, type SyntheticSpec } from '@ebbgate/shared/synthetic';
+import { AssessmentRow } from '../../src/assessments/assessment.entity';
+import { onAssessmentMarkedInError, onAssessmentStored } from '../../src/assessments/events';
+import { BedRow, MonitorRow } from '../../src/devices/device.entities';
+
+export const VENTILATED: AnalysisContext = { ventilationMode: 'controlled', tidalVolumeMl: 650, patientHeightCm: 175, patientSex: 'male', plethScaling: 'raw' };
+
+const resultCache = new Map<string, AnalysisResult>();
+
+/** An engine result for a synthetic window (cached per spec: the engine is deterministic). */
+export function engineResult(spec: Partial<SyntheticSpec> = {}, context: AnalysisContext = VENTILATED): AnalysisResult {
+  const key = JSON.stringify([spec, context]);
+  let r = resultCache.get(key);
+  if (!r) {
+    const w = generateWindow({ seed: 21, heartRate: 80, respiratoryRate: 15, ppv: 14, channels: ['abp', 'pleth', 'paw'], durationSeconds: 30, ...spec });
+    r = analyzeWindow({ channels: w.channels, context });
+    resultCache.set(key, r);
+  }
+  return structuredClone(r);
+}
+
+export async function insertBedAndMonitor(ds: DataSource, locationIdentifier: string): Promise<{ bed: BedRow; monitor: MonitorRow }> {
+  const now = new Date();
+  const tag = randomUUID().slice(0, 8);
+  const bed: BedRow = { id: randomUUID(), name: `bed ${locationIdentifier} ${tag}`, unit: 'ICU', locationIdentifier, createdAt: now, updatedAt: now };
+  await ds.getRepository(BedRow).insert(bed);
+  const monitor = { id: randomUUID(), identifier: `0123456789AB${tag.slice(0, 4).toUpperCase()}`, profileId: null, bedId: bed.id, enabled: true, lastSeenAt: null, dataRate: null, createdAt: now, updatedAt: now } as MonitorRow;
+  await ds.getRepository(MonitorRow).insert(monitor);
+  return { bed, monitor };
+}
+
+/** Stores one assessment and runs the stored-hooks in the same transaction, as the analysis worker does. */
+export async function storeAssessment(ds: DataSource, at: { bedId: string | null; monitorId: string }, windowStart: Date, result: AnalysisResult = engineResult(), hooks = true): Promise<AssessmentRow> {
+  const row: AssessmentRow = {
+    id: randomUUID(), monitorId: at.monitorId, bedId: at.bedId, windowStart, windowEnd: new Date(windowStart.getTime() + 30_000),
+    engineVersion: result.engineVersion, verdict: result.verdict, ppv: result.indices.ppv.value, spv: result.indices.spv.value,
+    deltaPop: result.indices.deltaPop.value, perfusionIndex: result.indices.perfusionIndex.value, heartRate: result.indices.heartRate.value,
+    respiratoryRate: result.indices.respiratoryRate.value, flags: result.flags.map((f) => f.code), result: { ...result, startTime: windowStart.toISOString() },
+    enteredInErrorAt: null, enteredInErrorBy: null, enteredInErrorReason: null, createdAt: new Date(),
+  } as AssessmentRow;
+  await ds.transaction(async (m: EntityManager) => {
+    await m.getRepository(AssessmentRow).insert(row);
+    if (hooks) for (const h of onAssessmentStored) await h(m, row);
+  });
+  return row;
+}
+
+/** What the reviewer's mark-in-error does to the assessment, then the hooks (same transaction). */
+export async function markInError(ds: DataSource, a: AssessmentRow, by: string, reason: string): Promise<void> {
+  await ds.transaction(async (m) => {
+    Object.assign(a, { enteredInErrorAt: new Date(), enteredInErrorBy: by, enteredInErrorReason: reason });
+    await m.getRepository(AssessmentRow).save(a);
+    for (const h of onAssessmentMarkedInError) await h(m, a, reason);
+  });
+}
+
+/** Polls until the check holds, at most `ms` (bounded wait, not a timed assertion). */
+export async function waitFor<T>(what: string, check: () => Promise<T | undefined | false>, ms = 20_000, every = 100): Promise<T> {
+  const until = Date.now() + ms;
+  for (;;) {
+    const v = await check();
+    if (v) return v;
+    if (Date.now() > until) throw new Error(`timed out waiting for ${what}`);
+    await new Promise((r) => setTimeout(r, every));
+  }
+}
+
+export async function statusCounts(ds: DataSource): Promise<Record<string, number>> {
+  const rows = (await ds.query('SELECT status, COUNT(*) AS c FROM delivery GROUP BY status')) as { status: string; c: string | number }[];
+  return Object.fromEntries(rows.map((r) => [r.status, Number(r.c)]));
+}
+
+export interface MockAdmin {
+  faults(rules: object[]): Promise<void>;
+  clearFaults(): Promise<void>;
+  observations(): Promise<{ total: number; byIdentifier: Record<string, number>; duplicated: string[] }>;
+  mail(): Promise<{ subject: string; to: unknown; text?: string }[]>;
+}
+
+export function mockAdmin(baseUrl: string): MockAdmin {
+  const call = async (method: string, path: string, body?: object) => {
+    const res = await fetch(`${baseUrl}/_admin${path}`, { method, headers: { 'content-type': 'application/json' }, body: body ? JSON.stringify(body) : undefined });
+    if (!res.ok) throw new Error(`${method} ${path}: ${res.status} ${await res.text()}`);
+    return res.status === 204 ? undefined : res.json();
+  };
+  return {
+    faults: async (rules) => void (await call('PUT', '/faults', { rules })),
+    clearFaults: async () => void (await call('DELETE', '/faults')),
+    observations: () => call('GET', '/observations') as Promise<Awaited<ReturnType<MockAdmin['observations']>>>,
+    mail: () => call('GET', '/mail') as Promise<Awaited<ReturnType<MockAdmin['mail']>>>,
+  };
+}
