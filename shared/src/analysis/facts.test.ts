@@ -108,7 +108,25 @@ describe('facts of the trade', () => {
   });
 });
 
+describe('plausibility', () => {
+  it('cycle variation above 50 % is an artefact, not a measurement (common practice): cycles left out and flagged', () => {
+    const w = generateWindow({ seed: 14, heartRate: 90, respiratoryRate: 15, ppv: 70 });
+    const r = analyzeWindow({ channels: w.channels, context: CONTEXT });
+    expect(r.cycles.some((c) => c.rejectReasons.includes('value-implausible'))).toBe(true);
+    expect(r.flags.map((f) => f.code)).toContain('value-implausible');
+    expect(r.verdict).toBe('not-valid');
+  });
+});
+
 describe('result contract', () => {
+  it('accepts Float32Array samples (the float32 ingest encoding) with the same result to 0.01 points', () => {
+    const w = generateWindow({ seed: 15, heartRate: 80, respiratoryRate: 15, ppv: 11 });
+    const f32 = w.channels.map((c) => ({ ...c, samples: Float32Array.from(c.samples) }));
+    const a = analyzeWindow({ channels: w.channels, context: CONTEXT }).indices.ppv.value as number;
+    const b = analyzeWindow({ channels: f32, context: CONTEXT }).indices.ppv.value as number;
+    expect(Math.abs(a - b)).toBeLessThan(0.01);
+  });
+
   it('is plain JSON: survives a round trip unchanged, with no NaN anywhere', () => {
     const w = generateWindow({ seed: 9, heartRate: 90, respiratoryRate: 16, ppv: 14, channels: ['abp', 'pleth', 'paw'], disturbances: [{ kind: 'gap', start: 10, duration: 2 }] });
     const r = analyzeWindow({ channels: w.channels, context: CONTEXT, startTime: '2026-12-01T08:00:00Z' });

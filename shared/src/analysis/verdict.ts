@@ -121,11 +121,18 @@ export function buildFlags(v: VerdictInput): Flag[] {
   if (cx.builtInFiltering) {
     push({ code: 'monitor-filtering-declared', severity: 'info', source: hasPleth ? 'pleth' : undefined, reason: `monitor declares its own filtering: ${cx.builtInFiltering}` });
   }
+  let implausibleFlagged = false;
   for (const name of ['ppv', 'deltaPop'] as const) {
     const val = v.indices[name].value;
     if (val !== null && (val < 0 || val > s.plausibleMaxPercent)) {
+      implausibleFlagged = true;
       push({ code: 'value-implausible', severity: 'critical', source: name, reason: `${name} ${val.toFixed(1)} % outside 0–${s.plausibleMaxPercent} %: an artefact, not a measurement` });
     }
+  }
+  // Cycles whose own value was implausible were left out; say so even if the window still has a value.
+  const implausibleCycles = v.cycles.filter((c) => c.rejectReasons.includes('value-implausible')).length;
+  if (!implausibleFlagged && implausibleCycles > 0) {
+    push({ code: 'value-implausible', severity: v.used.length === 0 ? 'critical' : 'warning', reason: `${implausibleCycles} cycle(s) with a variation outside 0–${s.plausibleMaxPercent} % (artefact, not a measurement) were left out` });
   }
   return flags;
 }
