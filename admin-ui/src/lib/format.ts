@@ -16,7 +16,8 @@ export function formatNumber(v: number | null | undefined, digits = 1): string {
 
 export function formatValue(v: number | null | undefined, unit: string, digits = 1): string {
   if (v === null || v === undefined || !Number.isFinite(v)) return '—';
-  return unit === '%' ? `${v.toFixed(digits)} %` : `${v.toFixed(digits)} ${unit}`;
+  const u = displayUnit(unit);
+  return u ? `${v.toFixed(digits)} ${u}` : v.toFixed(digits);
 }
 
 export function formatBytes(n: number | null | undefined): string {
@@ -36,4 +37,10 @@ export function localInputToIso(v: string | undefined): string | undefined {
 export function humanize(code: string): string {
   const s = code.replace(/[-_]/g, ' ');
   return s.charAt(0).toUpperCase() + s.slice(1);
+}
+
+/** UCUM codes as people write them: `mm[Hg]` → mmHg, `cm[H2O]` → cmH2O, `1` (ratio) → nothing. */
+export function displayUnit(unit: string): string {
+  if (unit === '1') return '';
+  return unit.replace('mm[Hg]', 'mmHg').replace('cm[H2O]', 'cmH2O');
 }

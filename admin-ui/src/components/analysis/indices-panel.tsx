@@ -1,5 +1,5 @@
 import type { AnalysisResult, DecisionBand, IndexName, IndexValue, Verdict } from '@/lib/analysis';
-import { formatNumber } from '@/lib/format';
+import { displayUnit, formatNumber } from '@/lib/format';
 import { VerdictBadge } from '@/components/ui/badge';
 import { Cautions } from './cautions';
 import { FlagsList } from './flags-list';
@@ -21,14 +21,14 @@ function IndexRow({ name, value, verdict, band }: { name: IndexName; value: Inde
       <th scope="row" className="py-1 pr-3 text-left font-medium">{INDEX_LABELS[name]}</th>
       <td className={`num py-1 pr-3 text-right text-base font-semibold ${notValid ? 'text-muted line-through decoration-notvalid/60' : ''}`}>
         {value.value === null ? '—' : `${formatNumber(value.value, name === 'hrRrRatio' ? 2 : 1)}`}
-        <span className="ml-1 text-xs font-normal text-muted no-underline">{value.value === null ? '' : value.unit}</span>
+        <span className="ml-1 text-xs font-normal text-muted no-underline">{value.value === null ? '' : displayUnit(value.unit)}</span>
       </td>
       <td className="py-1 pr-3"><VerdictBadge verdict={verdict} /></td>
       <td className="py-1 text-xs text-muted">
         {value.value === null
           ? (value.notComputableReason ?? 'not computable')
           : <>
-              {value.cyclesUsed > 0 && <span>{value.cyclesUsed} cycles{value.spread !== null ? `, spread ${formatNumber(value.spread)} ${value.unit}` : ''}</span>}
+              {value.cyclesUsed > 0 && <span>{value.cyclesUsed} cycles{value.spread !== null ? `, spread ${formatNumber(value.spread)} ${displayUnit(value.unit)}` : ''}</span>}
               {band && <span className="block text-ink-900" title={band.source}>Band: {band.label} <span className="text-muted">({band.source})</span></span>}
             </>}
       </td>

@@ -52,13 +52,13 @@ export function MarksOverlay({ width, height, view, beats, cycles, traces }: Pro
           return (
             <g key={`c${c.n}`} data-mark={c.usable ? 'cycle-usable' : 'cycle-unusable'} data-used={c.usedInWindow || undefined}
               className="pointer-events-auto" tabIndex={0} role="img" aria-label={label}
-              onMouseEnter={() => show(x0 + 4, 14, `Cycle ${c.n}`, c.usable ? [c.usedInWindow ? 'Usable, averaged' : 'Usable'] : c.reasons.map(humanize))}
-              onMouseLeave={() => setTip(null)} onFocus={() => show(x0 + 4, 14, `Cycle ${c.n}`, c.usable ? ['Usable'] : c.reasons.map(humanize))} onBlur={() => setTip(null)}>
+              onMouseEnter={() => show(x0 + 4, height - 70, `Cycle ${c.n}`, c.usable ? [c.usedInWindow ? 'Usable, averaged' : 'Usable'] : c.reasons.map(humanize))}
+              onMouseLeave={() => setTip(null)} onFocus={() => show(x0 + 4, height - 70, `Cycle ${c.n}`, c.usable ? ['Usable'] : c.reasons.map(humanize))} onBlur={() => setTip(null)}>
               <title>{label}</title>
               <rect x={x0} y={0} width={Math.max(0, x1 - x0)} height={height}
                 fill={c.usable ? (c.usedInWindow ? '#2f6f4a' : '#4a7f91') : 'url(#unusable-hatch)'} fillOpacity={c.usable ? (c.usedInWindow ? 0.1 : 0.06) : 1} />
               <line x1={x0} x2={x0} y1={0} y2={height} stroke="#17313c" strokeOpacity="0.35" strokeDasharray="3 3" />
-              <text x={x0 + 3} y={11} fontSize="10" fill={c.usable ? '#2f6f4a' : '#a3352b'}>{`C${c.n}${c.usable ? '' : ' ✕'}`}</text>
+              <text x={x0 + 3} y={height - 4} fontSize="10" fontWeight="600" fill={c.usable ? '#2f6f4a' : '#a3352b'}>{`C${c.n}${c.usable ? '' : ' ✕'}`}</text>
             </g>
           );
         })}

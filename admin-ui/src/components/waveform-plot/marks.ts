@@ -15,6 +15,8 @@ export interface Trace {
   samples: (number | null)[];
   /** Scale range chosen so the trace's own min..max fills its lane. */
   range: [number, number];
+  /** The trace's own finite min..max (axis ticks outside it belong to other lanes). */
+  extent: [number, number];
 }
 
 export interface PlotData {
@@ -78,7 +80,8 @@ export function buildPlotData(waveform: Waveform): PlotData {
   const pick = (key: Trace['key'], roles: ChannelRole[]) => {
     const ch = waveform.channels.find((c) => roles.includes(c.role));
     if (!ch) return;
-    traces.push({ key, role: ch.role, unit: ch.unit, sampleRate: ch.sampleRate, samples: ch.samples, range: laneRange(...finiteExtent(ch.samples), LANES[key]) });
+    const extent = finiteExtent(ch.samples);
+    traces.push({ key, role: ch.role, unit: ch.unit, sampleRate: ch.sampleRate, samples: ch.samples, range: laneRange(extent[0], extent[1], LANES[key]), extent });
   };
   pick('abp', ['abp']);
   pick('pleth', ['pleth']);
