@@ -3,6 +3,7 @@ import type { AppContext } from '../app-context';
 import type { BackgroundService } from '../capabilities';
 import { AnalysisWorker } from './analysis-worker';
 import { analysisRouter } from './analysis.router';
+import { assessmentsRouter } from '../assessments/assessments.router';
 
 export interface AnalysisCapability {
   worker: AnalysisWorker;
@@ -12,5 +13,5 @@ export interface AnalysisCapability {
 
 export function buildAnalysis(ctx: AppContext): AnalysisCapability {
   const worker = new AnalysisWorker(ctx);
-  return { worker, routers: [analysisRouter(ctx)], services: [worker] };
+  return { worker, routers: [analysisRouter(ctx), assessmentsRouter(ctx)], services: [worker] };
 }
