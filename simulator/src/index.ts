@@ -4,5 +4,5 @@ export { runDemoScenario, assignScenario, type DemoOptions, type DemoMonitorInpu
 export * from './scenarios/index';
 export { BedStream, type BedStreamOptions, type StreamChunk } from './stream/bed-stream';
 export { MonitorFeed } from './simulation/monitor-feed';
-export { provisionMonitors, loadMonitorId } from './simulation/provision';
+export { provisionMonitors, loadMonitorId, signIn, demoIntegrator } from './simulation/provision';
 export { respiratorySwing, strokeVolume, curveSlope, DEMO_VENTRICLE } from './physiology/frank-starling';

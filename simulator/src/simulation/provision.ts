@@ -3,7 +3,7 @@ import path from 'node:path';
 import { DEMO_MONITOR_PROFILE } from '../scenarios/monitor-models';
 
 /** A signed-in console session (cookie + CSRF header), as api-plan.md describes. */
-async function signIn(gatewayUrl: string, username: string, password: string) {
+export async function signIn(gatewayUrl: string, username: string, password: string) {
   const res = await fetch(new URL('/api/v1/auth/sign-in', gatewayUrl), { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ username, password }) });
   if (res.status !== 200) throw new Error(`sign-in of ${username} failed: ${res.status} ${await res.text()}`);
   const cookies = res.headers.getSetCookie().map((c) => c.split(';')[0]).join('; ');
