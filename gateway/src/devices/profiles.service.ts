@@ -2,7 +2,8 @@ import { randomUUID } from 'node:crypto';
 import type { DataSource } from 'typeorm';
 import { monitorProfileInputSchema, type MonitorProfile, type MonitorProfileInput } from '@ebbgate/shared';
 import { recordAudit } from '../audit/audit.service';
-import { conflict, notFound } from '../http/problem';
+import { unitConversion } from '@ebbgate/shared/analysis';
+import { badRequest, conflict, notFound } from '../http/problem';
 import { isDuplicateKey, isReferenced, type ChangeBy } from './change-context';
 import { MonitorProfileRow, MonitorRow } from './device.entities';
 import { forgetDevices } from './device-cache';
@@ -21,6 +22,16 @@ export async function getProfile(ds: DataSource, id: string): Promise<MonitorPro
 
 function fields(input: MonitorProfileInput) {
   const p = monitorProfileInputSchema.parse(input);
+  // The unit after scaling must be one the analysis engine can convert, or every window fails later.
+  const errors: { path: string; message: string }[] = [];
+  p.channels.forEach((c, i) => {
+    try {
+      unitConversion(c.role, c.unit);
+    } catch (err) {
+      errors.push({ path: `channels.${i}.unit`, message: (err as Error).message });
+    }
+  });
+  if (errors.length) throw badRequest('Some channel units are not understood by the analysis engine.', errors);
   return {
     name: p.name,
     manufacturer: p.manufacturer,

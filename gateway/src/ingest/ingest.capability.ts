@@ -6,6 +6,7 @@ import { decodeJsonBatch, type ReceivedBatch } from './decoded-batch';
 import { inboundRouter } from './inbound.router';
 import { ingestRouter } from './ingest.router';
 import { IngestService } from './ingest.service';
+import { RetentionPurge } from './retention';
 import { MllpListener } from './hl7/mllp-listener';
 import { decodePcd01 } from './hl7/pcd01';
 
@@ -34,6 +35,6 @@ export function buildIngest(ctx: AppContext): IngestCapability {
     service,
     rawBodyRouters: [ingestRouter(ctx, service)],
     routers: [inboundRouter(ctx, service, decoders)],
-    services: mllp ? [mllp] : [],
+    services: [...(mllp ? [mllp] : []), new RetentionPurge(ctx)],
   };
 }

@@ -45,6 +45,13 @@ describe('monitor profiles', () => {
     expect(paths).toEqual(expect.arrayContaining(['transports.0', 'channels.0.code', 'channels.0.role', 'channels.0.sampleRate']));
   });
 
+  it('refuses a channel unit the analysis engine cannot convert, naming the channel', async () => {
+    const p = corvaneProfile('Corvane odd unit');
+    const res = await integrator.post('/api/v1/profiles', { ...p, channels: [{ ...p.channels[0], unit: 'furlong' }] });
+    expect(res.status).toBe(400);
+    expect(res.body.errors[0]).toMatchObject({ path: 'channels.0.unit' });
+  });
+
   it('refuses a duplicate name (409) and a duplicate channel code (400)', async () => {
     await integrator.post('/api/v1/profiles', corvaneProfile('Corvane dup')).expect(201);
     expect((await integrator.post('/api/v1/profiles', corvaneProfile('Corvane dup'))).status).toBe(409);
