@@ -12,6 +12,13 @@ export interface QualifiedBeats {
   /** Beats rejected for noise (slope rule) or shape (template). */
   noisyCount: number;
   clippedCount: number;
+  /**
+   * Estimated white-noise sd of the unfiltered signal (signal unit), from the residual above the
+   * low-pass cutoff scaled to the full band; null when the channel was not filtered.
+   */
+  noiseSd: number | null;
+  /** Median pulse size (PP or pleth amplitude) of the accepted beats, or null. */
+  medianPulse: number | null;
 }
 
 const add = (b: Beat, r: BeatRejectReason): void => {
@@ -29,7 +36,7 @@ const ARTEFACT: BeatRejectReason[] = ['edge', 'gap', 'flat-line', 'clipped', 'no
 const hasArtefact = (b: Beat): boolean => b.rejectReasons.some((r) => ARTEFACT.includes(r));
 
 /** Builds per-beat values (SBP/DBP/PP/MAP or amplitude/DC) from the landmarks. */
-function measure(ch: ConditionedChannel, lm: BeatLandmarks, source: BeatSource, negativeSlope: number[]): Beat[] {
+function measure(ch: ConditionedChannel, lm: BeatLandmarks, source: BeatSource, negativeSlope: number[], noise: { sum2: number; count: number }): Beat[] {
   const y = ch.smooth;
   const fs = ch.fs;
   const beats: Beat[] = [];
@@ -46,6 +53,8 @@ function measure(ch: ConditionedChannel, lm: BeatLandmarks, source: BeatSource, 
     const raw = ch.filled;
     for (let i = f; i < end; i++) {
       s += y[i];
+      const r = raw[i] - y[i];
+      noise.sum2 += r * r;
       if (i > f) {
         const d = raw[i] - raw[i - 1];
         if (d < 0) {
@@ -55,6 +64,7 @@ function measure(ch: ConditionedChannel, lm: BeatLandmarks, source: BeatSource, 
       }
     }
     negativeSlope.push(negCount > 0 ? negSum / negCount : 0);
+    noise.count += end - f;
     const avg = end > f ? s / (end - f) : y[f];
     const beat: Beat = {
       n: k,
@@ -187,10 +197,21 @@ function intervalCheck(beats: Beat[], fraction: number): { irregular: number; ec
 
 export { hasArtefact };
 
+/** White noise is flat in frequency: scale the residual above the cutoff to the whole band. */
+function noiseEstimate(ch: ConditionedChannel, r: { sum2: number; count: number }): number | null {
+  const f = ch.report.filter;
+  if (!f || r.count === 0 || f.kind !== 'butterworth-lowpass') return null;
+  const nyquist = ch.fs / 2;
+  const above = nyquist - f.cutoffHz[0];
+  if (above <= 0) return null;
+  return Math.sqrt(r.sum2 / r.count) * Math.sqrt(nyquist / above);
+}
+
 /** Beat quality stage: values, rule-based rejection with reason codes, and rhythm summary. */
 export function qualifyBeats(ch: ConditionedChannel, lm: BeatLandmarks, source: BeatSource, settings: AnalysisSettings): QualifiedBeats {
   const negativeSlope: number[] = [];
-  const beats = measure(ch, lm, source, negativeSlope);
+  const residual = { sum2: 0, count: 0 };
+  const beats = measure(ch, lm, source, negativeSlope, residual);
   const { gaps, flatLines, clipping } = ch.report;
   for (let k = 0; k < beats.length; k++) {
     const b = beats[k];
@@ -235,6 +256,9 @@ export function qualifyBeats(ch: ConditionedChannel, lm: BeatLandmarks, source: 
       rejectedCount: beats.length - accepted,
     },
     irregularFraction: rhythm.irregular,
+    // Only the arterial residual above 16 Hz is noise; the pleth's 8 Hz cut still holds pulse detail.
+    noiseSd: source === 'abp' ? noiseEstimate(ch, residual) : null,
+    medianPulse: accepted ? median(beats.filter((b) => b.accepted).map((b) => (source === 'abp' ? b.pp : b.amplitude) as number)) : null,
     ectopicCount: rhythm.ectopic,
     noisyCount: noisy,
     clippedCount: clipped,

@@ -62,6 +62,19 @@ describe('disturbed synthetic windows raise the right flag', () => {
     }
   });
 
+  it('light noise (0.5 % of PP) is tolerated within ±1 point; noise above 1 % of PP is flagged as likely false high', () => {
+    for (const [hr, rr, ppv] of BASES) {
+      const light = generateWindow({ seed: hr + 1, heartRate: hr, respiratoryRate: rr, ppv, disturbances: [{ kind: 'noise', level: 0.005 }] });
+      const r1 = analyzeWindow({ channels: light.channels, context: CONTEXT });
+      expect(r1.flags).toEqual([]);
+      expect(Math.abs((r1.indices.ppv.value as number) - (truthOverUsedCycles(r1, light.truth, 'ppv') as number))).toBeLessThanOrEqual(1);
+      const noisy = generateWindow({ seed: hr + 2, heartRate: hr, respiratoryRate: rr, ppv, disturbances: [{ kind: 'noise', level: 0.02 }] });
+      const r2 = analyzeWindow({ channels: noisy.channels, context: CONTEXT });
+      const flag = r2.flags.find((f) => f.code === 'noise-motion' && f.source === 'abp');
+      expect(flag?.direction).toBe('false-high');
+    }
+  });
+
   it('ectopic beats are excluded: PPV from the remaining cycles stays within ±1 point', () => {
     const w = generateWindow({ seed: 42, heartRate: 90, respiratoryRate: 15, ppv: 14, disturbances: [{ kind: 'ectopic', count: 3 }] });
     const r = analyzeWindow({ channels: w.channels, context: CONTEXT });

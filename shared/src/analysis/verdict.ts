@@ -26,6 +26,12 @@ export interface VerdictInput {
   tidalVolumeMlPerKg: number | null;
 }
 
+/**
+ * White noise above this fraction of the pulse size overstates PPV by about a point (checked on the
+ * synthetic grid: 1 % of PP → mean +0.4, max +1.05 points).
+ */
+const NOISE_FRACTION_OF_PULSE = 0.01;
+
 const PLETH_INDICES: IndexName[] = ['deltaPop', 'perfusionIndex'];
 const ABP_INDICES: IndexName[] = ['ppv', 'spv'];
 const VARIATION_INDICES: IndexName[] = ['ppv', 'spv', 'deltaPop'];
@@ -57,6 +63,9 @@ export function buildFlags(v: VerdictInput): Flag[] {
     }
     if (n >= 5 && q.noisyCount >= 3 && q.noisyCount / n >= 0.04) {
       push({ code: 'noise-motion', severity: 'warning', source: src, reason: `${q.noisyCount} of ${n} beats rejected as noisy or misshapen (noise or motion artefact)` });
+    } else if (q.noiseSd !== null && q.medianPulse && q.noiseSd > NOISE_FRACTION_OF_PULSE * q.medianPulse) {
+      // Noise on each beat's maximum and minimum widens the per-cycle range: the index reads high.
+      push({ code: 'noise-motion', severity: 'warning', direction: 'false-high', source: src, reason: `signal noise about ${((100 * q.noiseSd) / q.medianPulse).toFixed(1)} % of the pulse size: per-beat maxima and minima scatter and the variation reads high` });
     }
     if (q.clippedCount > 0 || (v.channels.find((c) => c.role === src)?.clipping.length ?? 0) > 0) {
       push({ code: 'clipping', severity: 'warning', source: src, reason: `${src} samples pinned at the window's extreme value (saturated transducer or clipped scale); affected beats were left out` });
