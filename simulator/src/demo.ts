@@ -12,6 +12,8 @@ import { MonitorFeed } from './simulation/monitor-feed';
 import { simulatorTransport } from './simulation/transports';
 import { BedStream } from './stream/bed-stream';
 
+export { provisionDemoMonitors } from './simulation/demo-provision';
+
 export interface DemoMonitorInput {
   identifier: string;
   apiKey: string;

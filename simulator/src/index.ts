@@ -6,3 +6,4 @@ export { BedStream, type BedStreamOptions, type StreamChunk } from './stream/bed
 export { MonitorFeed } from './simulation/monitor-feed';
 export { provisionMonitors, loadMonitorId, signIn, demoIntegrator } from './simulation/provision';
 export { respiratorySwing, strokeVolume, curveSlope, DEMO_VENTRICLE } from './physiology/frank-starling';
+export { provisionDemoMonitors } from './simulation/demo-provision';
