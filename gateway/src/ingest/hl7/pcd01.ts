@@ -58,6 +58,9 @@ const CONTEXT_NUMERICS: Record<string, keyof AnalysisContext> = {
   MDC_VENT_RESP_RATE_SET: 'setRespiratoryRate',
   MDC_VOL_AWAY_TIDAL_SET: 'tidalVolumeMl',
   MDC_VOL_AWAY_TIDAL: 'tidalVolumeMl',
+  // Local codes (our 99EBB system) for context that has no MDC code we could confirm.
+  EBB_PT_HEIGHT: 'patientHeightCm',
+  EBB_VASOPRESSOR_RUNNING: 'vasopressorRunning',
 };
 
 /** Ancestors of a sub-ID, nearest first: 1.2.3.4 → 1.2.3.0, 1.2.0.0, 1.0.0.0 (and plain prefixes). */
@@ -160,8 +163,9 @@ export function decodePcd01(raw: Buffer): Pcd01Decoded {
       const value = valueType === 'NM' ? Number(rawValue) : rawValue;
       if (valueType === 'NM' && rawValue !== '' && !Number.isFinite(value)) throw fail(`OBX ${refId || code} is NM but not a number.`, `${where}-5`, `"${rawValue.slice(0, 20)}"`, 102);
       numerics.push({ code, refId, subId, value, unit: component(seg, 6, 2, d) || component(seg, 6, 1, d) });
-      const key = CONTEXT_NUMERICS[refId.toUpperCase()];
-      if (key && typeof value === 'number' && value > 0) (context as Record<string, unknown>)[key] = value;
+      const key = CONTEXT_NUMERICS[refId.toUpperCase()] ?? CONTEXT_NUMERICS[code.toUpperCase()];
+      if (key === 'vasopressorRunning' && typeof value === 'number') context.vasopressorRunning = value === 1;
+      else if (key && typeof value === 'number' && value > 0) (context as Record<string, unknown>)[key] = value;
     } else if (valueType && valueType !== 'X') {
       warnings.push(`${where}: value type ${valueType} ignored`);
     }
