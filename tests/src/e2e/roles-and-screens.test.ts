@@ -71,7 +71,7 @@ describe('console by role', () => {
         await page.goto(stack.gatewayUrl + screen.path);
         await page.getByRole('heading', { level: 1, name: screen.heading }).waitFor();
         // Designed states only: a spinner or a blank page is not an answer.
-        await page.waitForFunction(() => !document.querySelector('[role="status"] .animate-spin'), undefined, { timeout: 15_000 }).catch(() => {});
+        await page.waitForFunction('!document.querySelector(\'[role="status"] .animate-spin\')', undefined, { timeout: 15_000 }).catch(() => {});
         await screenshot(page, `${role}-${screen.path === '/' ? 'overview' : screen.path.slice(1)}`);
       }
 
