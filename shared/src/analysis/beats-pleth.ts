@@ -1,4 +1,4 @@
-import { butterSos, sosfiltfilt } from './filters';
+import { cachedButterSos, sosfiltfilt } from './filters';
 import type { BeatLandmarks } from './beats-abp';
 import { argMax, argMin } from './signal-utils';
 
@@ -15,7 +15,7 @@ export function detectPlethBeats(smooth: Float64Array, filled: Float64Array, fs:
   const hi = Math.min(band[1], 0.45 * fs);
   const minLen = 3 * (2 * order + 1) + 1;
   if (n <= minLen || band[0] >= hi) return empty;
-  const bp = sosfiltfilt(butterSos(order, [band[0], hi], 'bandpass', fs), filled);
+  const bp = sosfiltfilt(cachedButterSos(order, [band[0], hi], 'bandpass', fs), filled);
   const sq = new Float64Array(n);
   let total = 0;
   for (let i = 0; i < n; i++) {

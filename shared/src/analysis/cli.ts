@@ -4,19 +4,8 @@
  */
 import { readFileSync } from 'node:fs';
 import { analyzeWindow } from './index';
-import { batchToAnalysisInput, CaptureParseError, parseBatchJson, parseCsvCapture } from './input';
+import { readCapture } from './input';
 import { formatSummary } from './summary';
-import type { AnalysisInput } from './types';
-
-/** Reads a capture file's text into engine input, choosing the format by content. */
-export function readCapture(text: string): AnalysisInput {
-  if (text.trimStart().startsWith('{')) {
-    const { skipped, ...input } = batchToAnalysisInput(parseBatchJson(text));
-    if (input.channels.length === 0) throw new CaptureParseError(`no channel with a known role (codes: ${skipped.join(', ')})`, 1, 1);
-    return input;
-  }
-  return parseCsvCapture(text);
-}
 
 function main(argv: string[]): number {
   const args = argv.filter((a) => !a.startsWith('--'));

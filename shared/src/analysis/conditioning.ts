@@ -1,5 +1,5 @@
 import type { ChannelRole } from '../schemas/ingest';
-import { butterSos, sosfiltfilt } from './filters';
+import { cachedButterSos, sosfiltfilt } from './filters';
 import { robustPercentiles } from './signal-utils';
 import type { AnalysisChannel, AnalysisSettings, ChannelReport, FilterReport, SampleSpan } from './types';
 
@@ -186,7 +186,7 @@ export function conditionChannel(ch: AnalysisChannel, settings: AnalysisSettings
   const cutoff = ch.role === 'abp' ? settings.abpLowpassHz : ch.role === 'pleth' ? settings.plethBandpassHz[1] : settings.respirationLowpassHz;
   const order = ch.role === 'abp' ? settings.abpFilterOrder : ch.role === 'pleth' ? settings.plethFilterOrder : 2;
   if (hasSignal && cutoff < 0.45 * fs && n > 30) {
-    smooth = sosfiltfilt(butterSos(order, cutoff, 'lowpass', fs), filled);
+    smooth = sosfiltfilt(cachedButterSos(order, cutoff, 'lowpass', fs), filled);
     filter = { kind: 'butterworth-lowpass', order, cutoffHz: [cutoff], zeroPhase: true };
   }
   const report: ChannelReport = {

@@ -127,6 +127,23 @@ export function butter(order: number, cutoff: number | [number, number], type: F
   return { b: poly(z).map((v) => v * k), a: poly(p) };
 }
 
+const sosCache = new Map<string, Sos>();
+
+/**
+ * Butterworth sections for repeated use (the engine designs the same few filters for every
+ * window); the returned sections are shared and must not be modified.
+ */
+export function cachedButterSos(order: number, cutoff: number | [number, number], type: FilterType, fs: number): Sos {
+  const key = `${order}|${String(cutoff)}|${type}|${fs}`;
+  let sos = sosCache.get(key);
+  if (!sos) {
+    sos = butterSos(order, cutoff, type, fs);
+    if (sosCache.size > 64) sosCache.clear();
+    sosCache.set(key, sos);
+  }
+  return sos;
+}
+
 /**
  * Butterworth as second-order sections. Section pairing differs from scipy's zpk2sos, but the
  * cascade is the same filter; sosfiltfilt output matches scipy's to rounding.
@@ -305,11 +322,17 @@ export function sosPadLength(sos: Sos): number {
   return 3 * ntaps;
 }
 
+const ziCache = new WeakMap<Sos, number[][]>();
+
 /** Zero-phase forward–backward section filtering, as scipy.signal.sosfiltfilt(sos, x). */
 export function sosfiltfilt(sos: Sos, x: ArrayLike<number>): Float64Array {
   const edge = sosPadLength(sos);
   if (x.length <= edge) throw new RangeError(`sosfiltfilt needs more than ${edge} samples, got ${x.length}`);
-  const zi = sosfiltZi(sos);
+  let zi = ziCache.get(sos);
+  if (!zi) {
+    zi = sosfiltZi(sos);
+    ziCache.set(sos, zi);
+  }
   const ext = oddExtend(x, edge);
   sosfiltInPlace(sos, zi, ext[0], ext, false);
   sosfiltInPlace(sos, zi, ext[ext.length - 1], ext, true);

@@ -28,7 +28,7 @@ export { butter, butterSos, filtfilt, sosfiltfilt, lfilter, lfilterZi } from './
 export { percentVariation } from './signal-utils';
 export { dampingCoefficient } from './arterial-line';
 export { formatSummary } from './summary';
-export { DEFAULT_CODE_ROLES, roleForCode, batchToAnalysisInput, parseCsvCapture, CaptureParseError } from './input';
+export { DEFAULT_CODE_ROLES, roleForCode, batchToAnalysisInput, parseBatchJson, parseCsvCapture, readCapture, CaptureParseError } from './input';
 
 function beatsFor(ch: ConditionedChannel | undefined, settings: AnalysisSettings): QualifiedBeats | null {
   if (!ch || !ch.hasSignal || ch.raw.length < 2 * ch.fs) return null;

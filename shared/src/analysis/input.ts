@@ -150,3 +150,13 @@ export function parseCsvCapture(text: string): AnalysisInput {
   const fs = Math.round((1 / step) * 1e6) / 1e6;
   return { channels: cols.map((c, i) => ({ role: c.role, unit: c.unit, sampleRate: fs, samples: data[i] })) };
 }
+
+/** Reads a capture file's text into engine input, choosing the format by content (JSON batch or CSV). */
+export function readCapture(text: string): AnalysisInput {
+  if (text.trimStart().startsWith('{')) {
+    const { skipped, ...input } = batchToAnalysisInput(parseBatchJson(text));
+    if (input.channels.length === 0) throw new CaptureParseError(`no channel with a known role (codes: ${skipped.join(', ')})`, 1, 1);
+    return input;
+  }
+  return parseCsvCapture(text);
+}
