@@ -39,12 +39,15 @@ export interface StoredAssessment {
  * Assessments of one monitor: through GET /api/v1/assessments (api-plan.md) when the gateway
  * serves it; until that route lands, read from the assessment table the analysis worker writes.
  */
-export async function assessmentsOf(gw: TestGateway, reviewer: SignedInClient, monitorRowId: string): Promise<{ items: StoredAssessment[]; via: 'api' | 'table' }> {
-  const list = await reviewer.get(`/api/v1/assessments?monitor=${monitorRowId}&pageSize=200`);
+export type ApiGet = (path: string) => Promise<{ status: number; body: any }>; // eslint-disable-line @typescript-eslint/no-explicit-any
+
+export async function assessmentsOf(gw: Pick<TestGateway, 'ctx'>, reviewer: SignedInClient | ApiGet, monitorRowId: string): Promise<{ items: StoredAssessment[]; via: 'api' | 'table' }> {
+  const get: ApiGet = typeof reviewer === 'function' ? reviewer : async (p) => reviewer.get(p);
+  const list = await get(`/api/v1/assessments?monitor=${monitorRowId}&pageSize=200`);
   if (list.status === 200) {
     const items: StoredAssessment[] = [];
     for (const s of (list.body.items as { id: string; monitorId: string }[]).filter((x) => x.monitorId === monitorRowId)) {
-      const d = await reviewer.get(`/api/v1/assessments/${s.id}`);
+      const d = await get(`/api/v1/assessments/${s.id}`);
       items.push({ ...d.body.assessment, result: d.body.assessment.result as AnalysisResult });
     }
     return { items, via: 'api' };
