@@ -37,8 +37,6 @@ export function unitConversion(role: ChannelRole, unit: string): { to: string; s
 export interface ConditionedChannel {
   role: ChannelRole;
   fs: number;
-  /** Converted samples, gaps NaN. */
-  raw: Float64Array;
   /** Converted samples with gaps bridged linearly (for filtering and slope rules). */
   filled: Float64Array;
   /** Zero-phase low-passed `filled` (beat values and breath detection read this). */
@@ -78,7 +76,7 @@ interface ScanResult {
  * flatTol), runs of identical samples (clipping candidates) and the longest run above highLevel.
  * Folding these into one loop keeps conditioning to a single read of the samples.
  */
-function scan(src: ArrayLike<number>, scale: number, fs: number, o: ScanOptions, raw: Float64Array, filled: Float64Array): ScanResult {
+function scan(src: ArrayLike<number>, scale: number, fs: number, o: ScanOptions, filled: Float64Array): ScanResult {
   const n = src.length;
   const gaps: SampleSpan[] = [];
   const flatLines: SampleSpan[] = [];
@@ -96,7 +94,6 @@ function scan(src: ArrayLike<number>, scale: number, fs: number, o: ScanOptions,
   for (let i = 0; i < n; i++) {
     const v = src[i] * scale;
     if (v - v === 0) {
-      raw[i] = v;
       if (last < i - 1) {
         const a = last + 1;
         if (i - a >= o.minGap) gaps.push(spanOf(a, i, fs));
@@ -134,7 +131,6 @@ function scan(src: ArrayLike<number>, scale: number, fs: number, o: ScanOptions,
         if (high > longestHigh) longestHigh = high;
       } else high = 0;
     } else {
-      raw[i] = Number.NaN;
       if (fLo === fLo && i - fStart >= o.minFlat) flatLines.push(spanOf(fStart, i, fs));
       fLo = Number.NaN;
       if (eVal === eVal && i - eStart >= o.minClip) equalRuns.push({ a: eStart, b: i, v: eVal });
@@ -165,7 +161,6 @@ export function conditionChannel(ch: AnalysisChannel, settings: AnalysisSettings
   const n = ch.samples.length;
   if (n < 2) throw new AnalysisInputError(`${ch.role}: needs at least 2 samples, got ${n}`);
   const { to, scale } = unitConversion(ch.role, ch.unit);
-  const raw = new Float64Array(n);
   const filled = new Float64Array(n);
   const pulsatile = ch.role === 'abp' || ch.role === 'pleth';
   // Scale for the flat-line tolerance from a subsample (converted), before the single full pass.
@@ -177,7 +172,7 @@ export function conditionChannel(ch: AnalysisChannel, settings: AnalysisSettings
     minFlat: Math.round(minFlat * fs),
     minClip: pulsatile ? Math.max(2, Math.round(settings.minClipSeconds * fs)) : n + 1,
     highLevel: ch.role === 'abp' ? FLUSH_LEVEL_MMHG : Infinity,
-  }, raw, filled);
+  }, filled);
   const { gaps, flatLines, clipping } = found;
   const gapCount = gaps.reduce((s, g) => s + g.endSample - g.startSample, 0);
   const hasSignal = gapCount < n;
@@ -205,5 +200,5 @@ export function conditionChannel(ch: AnalysisChannel, settings: AnalysisSettings
     resampledTo: null,
     declaredFiltering,
   };
-  return { role: ch.role, fs, raw, filled, smooth, report, hasSignal, longestHighRun: found.longestHighRun };
+  return { role: ch.role, fs, filled, smooth, report, hasSignal, longestHighRun: found.longestHighRun };
 }

@@ -1,5 +1,5 @@
 import type { ConditionedChannel } from './conditioning';
-import { robustPercentiles } from './signal-utils';
+import { overlapsAny, robustPercentiles } from './signal-utils';
 import type { Beat, CycleSource } from './types';
 
 /** Breath boundaries found on some channel, before beats are assigned. */
@@ -36,7 +36,7 @@ export function breathsFromAirwayPressure(ch: ConditionedChannel): BreathBoundar
   const refractory = Math.round(0.5 * fs);
   for (let i = 0; i < p.length; i++) {
     const v = p[i];
-    if (v < dip && i - lastEffort > refractory && ch.raw[i] === ch.raw[i]) {
+    if (v < dip && i - lastEffort > refractory && !overlapsAny(ch.report.gaps, i, i + 1)) {
       efforts.push(i);
       lastEffort = i;
     }

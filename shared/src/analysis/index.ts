@@ -31,7 +31,7 @@ export { formatSummary } from './summary';
 export { DEFAULT_CODE_ROLES, roleForCode, batchToAnalysisInput, parseBatchJson, parseCsvCapture, readCapture, CaptureParseError } from './input';
 
 function beatsFor(ch: ConditionedChannel | undefined, settings: AnalysisSettings): QualifiedBeats | null {
-  if (!ch || !ch.hasSignal || ch.raw.length < 2 * ch.fs) return null;
+  if (!ch || !ch.hasSignal || ch.filled.length < 2 * ch.fs) return null;
   const lm =
     ch.role === 'abp'
       ? detectArterialBeats(ch.smooth, ch.fs)
@@ -87,7 +87,7 @@ export function analyzeWindow(input: AnalysisInput, partialSettings?: Partial<An
   const primary = abpQ ?? plethQ;
   if ((!bounds || bounds.onsets.length < 2) && primary) {
     const ch = byRole.get(primary.series.source) as ConditionedChannel;
-    bounds = breathsInferred(primary.series.beats, ch.fs, ch.raw.length, context.setRespiratoryRate);
+    bounds = breathsInferred(primary.series.beats, ch.fs, ch.filled.length, context.setRespiratoryRate);
     if (bounds.reason) reasons.push(bounds.reason);
   }
   if (bounds && bounds.onsets.length < 2 && reasons.length) bounds.reason = reasons.join('; ');
