@@ -53,6 +53,19 @@ describe('facts of the trade', () => {
     expect(Math.abs((r.indices.perfusionIndex.value as number) - 3) / 3).toBeLessThan(0.05);
   });
 
+  it('an undeclared pleth processing is flagged on the pleth (handbook: pleth values carry the source processing)', () => {
+    const r = analyzeWindow({ channels: window(), context: { ...CONTEXT, plethScaling: undefined } });
+    expect(r.flags.find((f) => f.code === 'pleth-processing-unknown')?.source).toBe('pleth');
+    expect(r.indexVerdicts.deltaPop).toBe('questionable');
+  });
+
+  it('a pleth with a 4 s dropout fails the PPG window rules (Orphanidou et al., IEEE JBHI 2015)', () => {
+    const w = generateWindow({ seed: 16, heartRate: 84, respiratoryRate: 14, ppv: 12, channels: ['abp', 'pleth', 'paw'], disturbances: [{ kind: 'gap', start: 20, duration: 4, roles: ['pleth'] }] });
+    const r = analyzeWindow({ channels: w.channels, context: CONTEXT });
+    expect(r.flags.find((f) => f.code === 'pleth-quality-low')?.reason).toMatch(/3 s/);
+    expect(r.verdict).toBe('valid'); // the arterial PPV is not affected by a pleth dropout
+  });
+
   it('declared monitor filtering is carried as a flag and in the channel report (handbook: must be known and declared)', () => {
     const r = analyzeWindow({ channels: window(), context: { ...CONTEXT, builtInFiltering: 'display filter 0.5–10 Hz' } });
     expect(r.flags.find((f) => f.code === 'monitor-filtering-declared')?.reason).toMatch(/0.5–10 Hz/);

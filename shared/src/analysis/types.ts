@@ -284,7 +284,11 @@ export type FlagCode =
   | 'respiration-inferred'
   | 'no-respiration-source'
   | 'no-pulse-source'
-  | 'value-implausible';
+  | 'value-implausible'
+  /** Pleth fails window-level quality rules (Orphanidou et al., IEEE JBHI 2015). */
+  | 'pleth-quality-low'
+  /** Pleth present but whether it is raw or auto-scaled was not declared. */
+  | 'pleth-processing-unknown';
 
 export interface Flag {
   code: FlagCode;

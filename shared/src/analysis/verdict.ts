@@ -127,6 +127,31 @@ export function buildFlags(v: VerdictInput): Flag[] {
   if (hasPleth && cx.plethScaling === 'auto-scaled') {
     push({ code: 'pleth-auto-scaled', severity: 'warning', source: 'pleth', reason: 'pleth auto-scaled by the monitor: PI not computable, ΔPOP from processed pleth agrees poorly with PPV' });
   }
+  if (v.pleth) {
+    // PPG window quality (Orphanidou et al., IEEE JBHI 2015): HR 40–180 /min, no gap over 3 s,
+    // longest / shortest beat interval under 2.2.
+    const ibis = v.pleth.series.beats.filter((b) => b.accepted && b.ibi !== null).map((b) => b.ibi as number);
+    const problems: string[] = [];
+    if (ibis.length >= 2) {
+      const hr = (60 * ibis.length) / ibis.reduce((a, b) => a + b, 0);
+      if (hr < 40 || hr > 180) problems.push(`pulse rate ${hr.toFixed(0)} /min outside 40–180`);
+      const ratio = Math.max(...ibis) / Math.min(...ibis);
+      if (ratio >= 2.2) problems.push(`longest/shortest interval ${ratio.toFixed(1)} ≥ 2.2`);
+    } else problems.push('fewer than three accepted pulses');
+    const beats = v.pleth.series.beats;
+    for (let k = 1; k < beats.length; k++) {
+      if (beats[k].footTime - beats[k - 1].footTime > 3) {
+        problems.push('more than 3 s without a pulse');
+        break;
+      }
+    }
+    const plethReport = v.channels.find((c) => c.role === 'pleth');
+    if (plethReport?.gaps.some((g) => g.endTime - g.startTime > 3) && !problems.includes('more than 3 s without a pulse')) problems.push('a gap longer than 3 s');
+    if (problems.length) push({ code: 'pleth-quality-low', severity: 'warning', source: 'pleth', reason: `pleth quality rules not met: ${problems.join('; ')}` });
+    if (cx.plethScaling === undefined) {
+      push({ code: 'pleth-processing-unknown', severity: 'warning', source: 'pleth', reason: 'whether the pleth is raw or auto-scaled by the monitor was not declared: ΔPOP from a processed pleth agrees poorly with PPV, and PI needs the raw DC level' });
+    }
+  }
   if (cx.builtInFiltering) {
     push({ code: 'monitor-filtering-declared', severity: 'info', source: hasPleth ? 'pleth' : undefined, reason: `monitor declares its own filtering: ${cx.builtInFiltering}` });
   }
