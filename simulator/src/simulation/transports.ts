@@ -12,6 +12,8 @@ export interface TransportChoice {
   apiKeys: Map<string, string>;
   mllpHost?: string;
   mllpPort?: number;
+  /** Parallel MLLP connections (default 1). */
+  mllpConnections?: number;
   /** Scenario of each monitor, for the HR and SpO2 numerics of the HL7 message. */
   scenarioOf: (monitorId: string) => Scenario | undefined;
 }
@@ -23,6 +25,7 @@ export function simulatorTransport(c: TransportChoice): BatchTransport {
     host: c.mllpHost ?? '127.0.0.1',
     port: c.mllpPort ?? 2575,
     ackMode: 'enhanced',
+    connections: c.mllpConnections,
     numerics: (batch: IngestBatch): OruNumeric[] => {
       const s = c.scenarioOf(batch.monitorId);
       if (!s) return [];

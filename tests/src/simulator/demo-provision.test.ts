@@ -11,12 +11,18 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createIngestClient, DEMO_MONITORS, MonitorFeed, BedStream, SCENARIOS, provisionDemoMonitors, provisionMonitors, loadMonitorId, demoIntegrator } from '@ebbgate/simulator';
 import { repoRoot } from '../../../gateway/src/config/load';
 import { startTestGateway, type TestGateway } from '../../../gateway/test/support/harness';
+import { freePort } from './gateway-client';
 
 let gw: TestGateway;
 let dir: string;
+let mllpPort: number;
 
 beforeAll(async () => {
-  gw = await startTestGateway({ ehr: { fhirBaseUrl: 'http://127.0.0.1:9/fhir', tokenUrl: 'http://127.0.0.1:9/oauth/token' } });
+  mllpPort = await freePort();
+  gw = await startTestGateway(
+    { ehr: { fhirBaseUrl: 'http://127.0.0.1:9/fhir', tokenUrl: 'http://127.0.0.1:9/oauth/token' }, mllp: { enabled: true, host: '127.0.0.1', port: mllpPort } },
+    { services: true },
+  );
   dir = await mkdtemp(path.join(os.tmpdir(), 'ebbgate-e2e-provision-'));
 }, 120_000);
 
@@ -57,19 +63,27 @@ describe('demo provisioning', () => {
   });
 });
 
+function simulate(args: string[]): Promise<{ code: number | null; text: string }> {
+  return new Promise((resolve) => {
+    const child = spawn(path.join(repoRoot, 'node_modules/.bin/tsx'), ['simulator/src/cli.ts', ...args], { cwd: repoRoot });
+    let text = '';
+    child.stdout.on('data', (c) => (text += c));
+    child.stderr.on('data', (c) => (text += c));
+    child.on('close', (code) => resolve({ code, text }));
+  });
+}
+
 describe('npm run simulate', () => {
-  it('sends every monitor a batch per interval and prints batches/s and latency', async () => {
+  beforeAll(async () => {
+    await provisionMonitors(gw.url, await demoIntegrator(repoRoot), [1, 2, 3, 4].map(loadMonitorId));
+  });
+
+  it('over HTTP: sends every monitor a batch per interval and prints batches/s and latency', async () => {
     const ids = [1, 2, 3, 4].map(loadMonitorId);
     const keys = await provisionMonitors(gw.url, await demoIntegrator(repoRoot), ids);
     const keysFile = path.join(dir, 'keys.json');
     await writeFile(keysFile, JSON.stringify(keys));
-    const out = await new Promise<{ code: number | null; text: string }>((resolve) => {
-      const child = spawn(path.join(repoRoot, 'node_modules/.bin/tsx'), ['simulator/src/cli.ts', '--gateway', gw.url, '--keys', keysFile, '--interval', '1', '--duration', '7', '--spool', path.join(dir, 'cli-spool')], { cwd: repoRoot });
-      let text = '';
-      child.stdout.on('data', (c) => (text += c));
-      child.stderr.on('data', (c) => (text += c));
-      child.on('close', (code) => resolve({ code, text }));
-    });
+    const out = await simulate(['--gateway', gw.url, '--keys', keysFile, '--interval', '1', '--duration', '7', '--spool', path.join(dir, 'cli-spool')]);
     expect(out.code, out.text).toBe(0);
     expect(out.text).toMatch(/4 monitors, 1-s batches over http/);
     expect(out.text).toMatch(/batches\/s accepted, p50 [\d.]+ ms, p99 [\d.]+ ms/);
@@ -77,6 +91,16 @@ describe('npm run simulate', () => {
     expect(done, out.text).not.toBeNull();
     // 4 monitors × about 7 one-second batches (the first tick may include the batch in progress).
     expect(Number(done![1])).toBeGreaterThanOrEqual(20);
+    expect(Number(done![2])).toBe(0);
+  }, 60_000);
+
+  it('over MLLP: the same monitors as ORU^R01 messages, every one acknowledged', async () => {
+    const out = await simulate(['--transport', 'mllp', '--mllp-port', String(mllpPort), '--monitors', '4', '--connections', '2', '--interval', '1', '--duration', '6', '--spool', path.join(dir, 'cli-spool-mllp')]);
+    expect(out.code, out.text).toBe(0);
+    expect(out.text).toMatch(/4 monitors, 1-s batches over mllp/);
+    const done = /done: (\d+) accepted \(\d+ repeats\), (\d+) refused/.exec(out.text);
+    expect(done, out.text).not.toBeNull();
+    expect(Number(done![1])).toBeGreaterThanOrEqual(16);
     expect(Number(done![2])).toBe(0);
   }, 60_000);
 });

@@ -16,6 +16,18 @@ export interface MllpTransportOptions extends MllpSenderOptions {
   location?: (monitorId: string) => OruMessageInput['location'];
   /** Channels whose role is unknown are sent with this code system (default local `99EBB`). */
   unknownCodeSystem?: string;
+  /**
+   * Parallel MLLP connections (default 1). A monitor always uses the same one, so its messages
+   * stay in order; more connections let many monitors send at once, as real monitors do.
+   */
+  connections?: number;
+}
+
+/** Stable small hash (FNV-1a) of a monitor id, to pin it to one connection. */
+function pin(id: string, n: number): number {
+  let h = 0x811c9dc5;
+  for (let i = 0; i < id.length; i++) h = Math.imul(h ^ id.charCodeAt(i), 0x01000193);
+  return (h >>> 0) % n;
 }
 
 const KNOWN_CODES = new Map<string, ChannelRole>(
@@ -58,7 +70,7 @@ export function oruFromBatch(batch: IngestBatch, opts: Omit<MllpTransportOptions
  * retried, since the receiver's own trouble passes.
  */
 export function mllpTransport(opts: MllpTransportOptions): BatchTransport {
-  const sender = new MllpSender(opts);
+  const senders = Array.from({ length: Math.max(1, opts.connections ?? 1) }, () => new MllpSender(opts));
   return {
     name: 'mllp',
     async send(batch: IngestBatch): Promise<SendOutcome> {
@@ -69,7 +81,7 @@ export function mllpTransport(opts: MllpTransportOptions): BatchTransport {
         return { kind: 'rejected', reason: `cannot build ORU^R01: ${(err as Error).message}` };
       }
       try {
-        const ack = await sender.send(message, batch.batchId);
+        const ack = await senders[pin(batch.monitorId, senders.length)].send(message, batch.batchId);
         if (ack.accepted) return { kind: 'accepted', status: 0, repeat: false, detail: ack.code };
         const internal = (ack.code === 'AR' || ack.code === 'CR') && ack.errors.some((e) => e.code === '207');
         if (internal) return { kind: 'retry', reason: ackReason(ack) };
@@ -79,6 +91,8 @@ export function mllpTransport(opts: MllpTransportOptions): BatchTransport {
         throw err;
       }
     },
-    close: () => sender.close(),
+    close: async () => {
+      await Promise.all(senders.map((s) => s.close()));
+    },
   };
 }

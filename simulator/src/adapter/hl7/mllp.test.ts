@@ -43,7 +43,9 @@ type Reply = (controlId: string, n: number) => string | 'drop';
 
 async function fakeReceiver(reply: Reply) {
   const received: Message[] = [];
+  let sockets = 0;
   const server = net.createServer((sock) => {
+    sockets++;
     const d = new MllpDeframer();
     sock.on('data', (chunk) => {
       for (const text of d.push(chunk)) {
@@ -58,7 +60,7 @@ async function fakeReceiver(reply: Reply) {
   });
   await new Promise<void>((r) => server.listen(0, '127.0.0.1', r));
   const port = (server.address() as net.AddressInfo).port;
-  return { port, received, close: () => new Promise<void>((r) => server.close(() => r())) };
+  return { port, received, sockets: () => sockets, close: () => new Promise<void>((r) => server.close(() => r())) };
 }
 
 const ack = (code: string, id: string, err?: string) =>
@@ -127,5 +129,23 @@ describe('durable sender over MLLP', () => {
     expect(retries).toHaveLength(2);
     expect(rx.received.map((m) => m.get('MSH.10').toString())).toEqual(['b-0', 'b-1', 'b-1', 'b-1']);
     expect(sender.stats).toMatchObject({ accepted: 1, rejected: 1, retries: 2 });
+  });
+
+  it('spreads monitors over parallel connections while keeping each monitor in order', async () => {
+    const rx = await fakeReceiver((id) => ack('CA', id));
+    const spoolDir = await mkdtemp(path.join(os.tmpdir(), 'ebbgate-mllp-'));
+    dirs.push(spoolDir);
+    const sender = await BatchSender.open({ transport: mllpTransport({ host: '127.0.0.1', port: rx.port, connections: 4 }), spoolDir });
+    const monitorsIds = ['00A0B1FFFE000011', '00A0B1FFFE000012', '00A0B1FFFE000013', '00A0B1FFFE000014', '00A0B1FFFE000015', '00A0B1FFFE000016'];
+    for (let k = 0; k < 3; k++) for (const m of monitorsIds) await sender.send({ ...batch(k), monitorId: m, batchId: `${m}-${k}` });
+    await sender.drain(5000);
+    await sender.close();
+    await rx.close();
+    expect(rx.received).toHaveLength(18);
+    expect(rx.sockets()).toBeGreaterThan(1);
+    for (const m of monitorsIds) {
+      const mine = rx.received.map((x) => x.get('MSH.10').toString()).filter((id) => id.startsWith(m));
+      expect(mine).toEqual([`${m}-0`, `${m}-1`, `${m}-2`]);
+    }
   });
 });
