@@ -101,9 +101,43 @@ export interface AttemptResult {
   durationMs: number;
 }
 
+/** `CASE id WHEN ? THEN ? … ELSE <fallback> END` for a per-row value in one bulk UPDATE. */
+function caseOf(rows: AttemptResult[], value: (r: AttemptResult) => unknown, fallback: string, params: unknown[]): string {
+  const parts = rows.map((r) => {
+    params.push(r.row.id, value(r));
+    return 'WHEN ? THEN ?';
+  });
+  return `CASE id ${parts.join(' ')} ELSE ${fallback} END`;
+}
+
+async function bulkUpdate(m: EntityManager, rows: AttemptResult[], at: Date, onlyOpen: boolean): Promise<void> {
+  if (!rows.length) return;
+  const p: unknown[] = [];
+  const sets = [
+    `status = ${caseOf(rows, (r) => r.status, 'status', p)}`,
+    `next_attempt_at = ${caseOf(rows, (r) => r.nextAttemptAt, 'next_attempt_at', p)}`,
+    `last_http_status = ${caseOf(rows, (r) => r.httpStatus, 'last_http_status', p)}`,
+    `last_error = ${caseOf(rows, (r) => (r.status === 'delivered' ? null : r.detail), 'last_error', p)}`,
+    `tries = tries + ${caseOf(rows, (r) => (r.countsAsTry ? 1 : 0), '0', p)}`,
+  ];
+  const optional = (col: string, get: (r: AttemptResult) => unknown) => {
+    const some = rows.filter((r) => get(r) !== undefined);
+    if (some.length) sets.push(`${col} = ${caseOf(some, get, col, p)}`);
+  };
+  optional('payload', (r) => (r.payload === undefined ? undefined : r.payload === null ? null : JSON.stringify(r.payload)));
+  optional('server_id', (r) => r.serverId);
+  optional('patient_ref', (r) => r.patientRef);
+  optional('delivered_at', (r) => (r.status === 'delivered' ? at : undefined));
+  sets.push('attempt_count = attempt_count + 1', 'updated_at = ?');
+  p.push(at);
+  const ids = rows.map((r) => r.row.id);
+  p.push(ids);
+  await m.query(`UPDATE delivery SET ${sets.join(', ')} WHERE id IN (?)${onlyOpen ? " AND status IN ('pending','waiting-context')" : ''}`, p);
+}
+
 /**
- * Writes a batch of attempts in one transaction. A row that someone discarded (or that an amend
- * superseded) while it was in flight keeps that status unless it was in fact delivered.
+ * Writes a batch of attempts in one transaction (one INSERT, two bulk UPDATEs). A row that someone
+ * discarded while it was in flight keeps that status unless it was in fact delivered.
  */
 export async function recordAttempts(ds: DataSource, results: AttemptResult[]): Promise<void> {
   if (!results.length) return;
@@ -116,26 +150,8 @@ export async function recordAttempts(ds: DataSource, results: AttemptResult[]): 
         detail: r.detail, response: (r.response ?? null) as object | null, mode: r.mode,
       })),
     );
-    for (const r of results) {
-      const set: Partial<DeliveryRow> = {
-        status: r.status,
-        nextAttemptAt: r.nextAttemptAt,
-        lastHttpStatus: r.httpStatus,
-        lastError: r.status === 'delivered' ? null : r.detail,
-        updatedAt: at,
-        ...(r.payload !== undefined ? { payload: r.payload } : {}),
-        ...(r.serverId !== undefined ? { serverId: r.serverId } : {}),
-        ...(r.patientRef !== undefined ? { patientRef: r.patientRef } : {}),
-        ...(r.status === 'delivered' ? { deliveredAt: at } : {}),
-      };
-      const qb = m.createQueryBuilder().update(DeliveryRow).set({
-        ...set,
-        attemptCount: () => 'attempt_count + 1',
-        ...(r.countsAsTry ? { tries: () => 'tries + 1' } : {}),
-      } as never).where('id = :id', { id: r.row.id });
-      if (r.status !== 'delivered') qb.andWhere('status IN (:...open)', { open: ['pending', 'waiting-context'] });
-      await qb.execute();
-    }
+    await bulkUpdate(m, results.filter((r) => r.status === 'delivered'), at, false);
+    await bulkUpdate(m, results.filter((r) => r.status !== 'delivered'), at, true);
   });
 }
 

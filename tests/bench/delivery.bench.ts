@@ -1,0 +1,92 @@
+/**
+ * Benchmark: FHIR R4 Observations per second delivered by the outbox worker to the mock EHR
+ * (which validates every resource against the R4 JSON schema), singly (one conditional-create
+ * POST each) and in transaction Bundles. Real MariaDB (private, throwaway), real worker code.
+ * Prints figures only; no timed assertion. Goal from issue 5: >= 500 Observations/s.
+ * Run: npm run bench:delivery
+ */
+import { spawn } from 'node:child_process';
+import { cpus, loadavg } from 'node:os';
+import path from 'node:path';
+import pino from 'pino';
+import type { DataSource } from 'typeorm';
+import { startTestMariaDb } from '../../scripts/lib/test-mariadb';
+import { createTestDatabase } from '../../scripts/lib/test-database';
+import type { Config } from '../../gateway/src/config/schema';
+import { loadConfig, repoRoot } from '../../gateway/src/config/load';
+import { createDataSource, migrate } from '../../gateway/src/db/data-source';
+import { defaultCodeMap } from '../../gateway/src/delivery/code-map';
+import { DeliveryWorker } from '../../gateway/src/delivery/delivery-worker';
+import { DeliveryRow } from '../../gateway/src/delivery/delivery.entities';
+import { FHIR_DESTINATION_ID } from '../../gateway/src/delivery/delivery.module';
+import { DeviceSync } from '../../gateway/src/delivery/device-sync';
+import { EhrClient } from '../../gateway/src/delivery/ehr-client';
+import { FhirDestination } from '../../gateway/src/delivery/fhir-destination';
+import { enqueueAssessment, syncDestinations } from '../../gateway/src/delivery/outbox';
+import { PatientContextResolver } from '../../gateway/src/delivery/patient-context';
+import { insertBedAndMonitor, storeAssessment } from '../../gateway/test/delivery/support';
+
+const ASSESSMENTS = Number(process.env.BENCH_ASSESSMENTS ?? 300); // × 4 indices = Observations per run
+
+async function run(label: string, ds: DataSource, ehr: { fhirBaseUrl: string; tokenUrl: string }, delivery: Config['delivery'], minute: number): Promise<void> {
+  const codes = defaultCodeMap();
+  const client = new EhrClient({ fhirBaseUrl: ehr.fhirBaseUrl, tokenUrl: ehr.tokenUrl, clientId: 'ebbgate-gateway', clientSecret: 'mock-ehr-dev-secret', requestTimeoutMs: 30_000 });
+  const contexts = new PatientContextResolver(client, 300_000);
+  const handler = new FhirDestination(ds, client, contexts, new DeviceSync(client, codes), codes, delivery, async () => ({ observationStatus: 'preliminary', notValidPolicy: 'data-absent' }));
+  const worker = new DeliveryWorker(ds, new Map([[FHIR_DESTINATION_ID, handler]]), delivery, pino({ level: 'silent' }));
+  const { bed, monitor } = await insertBedAndMonitor(ds, 'ICU-02');
+  for (let i = 0; i < ASSESSMENTS; i++) {
+    const a = await storeAssessment(ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, minute, 0, 0) + i * 30_000), undefined, false);
+    await ds.transaction((m) => enqueueAssessment(m, a, [FHIR_DESTINATION_ID], codes, 'data-absent'));
+  }
+  const due = await ds.getRepository(DeliveryRow).countBy({ status: 'pending' });
+  const t0 = performance.now();
+  let passes = 0;
+  while ((await worker.runOnce()) > 0) passes++;
+  const seconds = (performance.now() - t0) / 1000;
+  const done = await ds.getRepository(DeliveryRow).countBy({ status: 'delivered' });
+  const failed = await ds.getRepository(DeliveryRow).countBy({ status: 'failed' });
+  console.log(`${label.padEnd(34)} ${String(due).padStart(5)} Observations in ${seconds.toFixed(2)} s = ${(due / seconds).toFixed(0).padStart(5)} /s  (${passes} passes, ${done} delivered in total, ${failed} failed)`);
+  // Park this run's rows so the next run counts only its own.
+  await ds.query(`UPDATE delivery SET status = 'benchmarked' WHERE status = 'delivered'`);
+}
+
+/** The mock EHR in its own process, as the EHR is in production: it does not share our event loop. */
+async function startMockProcess() {
+  const child = spawn(path.join(repoRoot, 'node_modules/.bin/tsx'), ['mock-ehr/src/main.ts'], {
+    cwd: repoRoot, env: { PATH: process.env.PATH, MOCK_EHR_HTTP_PORT: '0', MOCK_EHR_SMTP_PORT: '0', MOCK_EHR_MLLP_PORT: '0' }, stdio: ['ignore', 'pipe', 'inherit'],
+  });
+  const baseUrl = await new Promise<string>((resolve, reject) => {
+    let out = '';
+    child.stdout!.on('data', (c: Buffer) => {
+      out += c.toString();
+      const m = /mock EHR ready: (http:\/\/[^\s]+)/.exec(out);
+      if (m) resolve(m[1]!);
+    });
+    child.once('exit', (code) => reject(new Error(`mock EHR exited ${code}`)));
+  });
+  child.stdout!.resume();
+  return { fhirBaseUrl: `${baseUrl}/fhir`, tokenUrl: `${baseUrl}/oauth/token`, stop: async () => void child.kill('SIGTERM') };
+}
+
+const { server, adminUrl } = await startTestMariaDb();
+process.env.EBBGATE_TEST_ADMIN_URL = adminUrl;
+const ehr = await startMockProcess();
+const db = await createTestDatabase();
+const ds = await createDataSource(db.url, 8).initialize();
+try {
+  await migrate(ds);
+  await syncDestinations(ds, [{ id: FHIR_DESTINATION_ID, name: 'EHR (FHIR R4)', kind: 'fhir' }]);
+  const base = loadConfig({ NODE_ENV: 'test' }, { database: { url: db.url }, auth: { jwtSecret: 'x'.repeat(32) } }).delivery;
+  console.log(`delivery benchmark: ${ASSESSMENTS} assessments × 4 indices per run; ${cpus().length} cores, load ${loadavg()[0]!.toFixed(2)}; mock EHR (own process) validates each resource against the R4 schema`);
+  await run('warm-up (singly, not counted)', ds, ehr, { ...base, claimBatch: 100, concurrency: 8, bundleSize: 1 }, 1);
+  await run('singly, 16 in flight', ds, ehr, { ...base, claimBatch: 200, concurrency: 16, bundleSize: 1 }, 2);
+  await run('singly, 32 in flight', ds, ehr, { ...base, claimBatch: 400, concurrency: 32, bundleSize: 1 }, 3);
+  await run('transaction bundles of 50', ds, ehr, { ...base, claimBatch: 200, concurrency: 8, bundleSize: 50 }, 4);
+  await run('transaction bundles of 100', ds, ehr, { ...base, claimBatch: 400, concurrency: 8, bundleSize: 100 }, 5);
+} finally {
+  await ds.destroy();
+  await db.drop();
+  await ehr.stop();
+  await server.stop();
+}
