@@ -25,6 +25,7 @@ const USAGE = `usage: npm run simulate -- [options]
   --mllp-host H         MLLP listener host (default 127.0.0.1)
   --mllp-port P         MLLP listener port (default 2575)
   --connections C       parallel MLLP connections (default min(monitors, 32))
+  --sockets K           kept-alive HTTP connections to the gateway (default 64)
   --keys FILE           JSON {"<monitor identifier>": "<api key>"}; its monitors are used
   --provision           register the demo profile and N monitors (0EBB…) as the demo integrator,
                         issue keys and write them to --keys (or a temporary file)
@@ -56,7 +57,7 @@ async function main(): Promise<void> {
     args = parseArgs({
       options: {
         monitors: { type: 'string' }, interval: { type: 'string' }, transport: { type: 'string' }, gateway: { type: 'string' },
-        'mllp-host': { type: 'string' }, 'mllp-port': { type: 'string' }, connections: { type: 'string' }, keys: { type: 'string' }, provision: { type: 'boolean' },
+        'mllp-host': { type: 'string' }, 'mllp-port': { type: 'string' }, connections: { type: 'string' }, sockets: { type: 'string' }, keys: { type: 'string' }, provision: { type: 'boolean' },
         scenario: { type: 'string' }, duration: { type: 'string' }, backfill: { type: 'string' }, spool: { type: 'string' }, help: { type: 'boolean' },
       },
     }).values;
@@ -104,7 +105,7 @@ async function main(): Promise<void> {
   const scenarioOf = new Map(feeds.map((f) => [f.identifier, f.scenario]));
 
   const latencies: number[] = [];
-  const base = simulatorTransport({ transport, gatewayUrl, apiKeys: new Map(Object.entries(keys)), mllpHost: args['mllp-host'], mllpPort: num(args['mllp-port'], 'mllp-port', 2575), mllpConnections: Math.round(num(args.connections, 'connections', Math.min(identifiers.length, 32))), scenarioOf: (id) => scenarioOf.get(id) });
+  const base = simulatorTransport({ transport, gatewayUrl, httpSockets: Math.round(num(args.sockets, 'sockets', 64)), apiKeys: new Map(Object.entries(keys)), mllpHost: args['mllp-host'], mllpPort: num(args['mllp-port'], 'mllp-port', 2575), mllpConnections: Math.round(num(args.connections, 'connections', Math.min(identifiers.length, 32))), scenarioOf: (id) => scenarioOf.get(id) });
   const timed: BatchTransport = {
     name: base.name,
     async send(b) {

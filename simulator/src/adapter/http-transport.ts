@@ -1,3 +1,5 @@
+import http from 'node:http';
+import https from 'node:https';
 import type { IngestBatch } from '@ebbgate/shared';
 import { parseRetryAfter } from './retry-policy';
 import type { BatchTransport, SendOutcome } from './transport';
@@ -9,7 +11,30 @@ export interface HttpTransportOptions {
   apiKey: (monitorId: string) => string | undefined;
   /** Per-request timeout, ms (default 15 s). */
   timeoutMs?: number;
-  fetch?: typeof fetch;
+  /** Kept-alive connections to the gateway at most (default 64); further requests wait their turn. */
+  maxSockets?: number;
+}
+
+interface RawAnswer {
+  status: number;
+  retryAfter: string | undefined;
+  text: string;
+}
+
+/** One POST over node:http(s) with a keep-alive agent (far fewer sockets than one per monitor). */
+function post(url: URL, agent: http.Agent, headers: Record<string, string>, body: string, timeoutMs: number): Promise<RawAnswer> {
+  return new Promise((resolve, reject) => {
+    const lib = url.protocol === 'https:' ? https : http;
+    const req = lib.request(url, { method: 'POST', agent, headers: { ...headers, 'content-length': String(Buffer.byteLength(body)) } }, (res) => {
+      const chunks: Buffer[] = [];
+      res.on('data', (c: Buffer) => chunks.push(c));
+      res.on('end', () => resolve({ status: res.statusCode ?? 0, retryAfter: res.headers['retry-after'], text: Buffer.concat(chunks).toString('utf8') }));
+      res.on('error', reject);
+    });
+    req.setTimeout(timeoutMs, () => req.destroy(Object.assign(new Error(`no answer within ${timeoutMs} ms`), { code: 'ETIMEDOUT' })));
+    req.on('error', reject);
+    req.end(body);
+  });
 }
 
 export const INGEST_PATH = '/api/v1/ingest/batches';
@@ -19,29 +44,27 @@ const TRANSIENT = new Set([408, 425, 429, 500, 502, 503, 504]);
 
 /** POST /api/v1/ingest/batches with `Authorization: Bearer <monitor API key>`. */
 export function httpTransport(opts: HttpTransportOptions): BatchTransport {
-  const url = new URL(INGEST_PATH, opts.gatewayUrl).toString();
-  const doFetch = opts.fetch ?? fetch;
+  const url = new URL(INGEST_PATH, opts.gatewayUrl);
+  const Agent = url.protocol === 'https:' ? https.Agent : http.Agent;
+  const agent = new Agent({ keepAlive: true, maxSockets: opts.maxSockets ?? 64 });
   return {
     name: 'http',
+    close: async () => agent.destroy(),
     async send(batch: IngestBatch): Promise<SendOutcome> {
       const key = opts.apiKey(batch.monitorId);
       if (!key) return { kind: 'rejected', reason: `no API key configured for monitor ${batch.monitorId}` };
-      let res: Response;
+      let res: RawAnswer;
       try {
-        res = await doFetch(url, {
-          method: 'POST',
-          headers: { 'content-type': 'application/json', authorization: `Bearer ${key}`, accept: 'application/json, application/problem+json' },
-          body: JSON.stringify(batch),
-          signal: AbortSignal.timeout(opts.timeoutMs ?? 15_000),
-        });
+        const headers = { 'content-type': 'application/json', authorization: `Bearer ${key}`, accept: 'application/json, application/problem+json' };
+        res = await post(url, agent, headers, JSON.stringify(batch), opts.timeoutMs ?? 15_000);
       } catch (err) {
         return { kind: 'retry', reason: `gateway unreachable: ${describe(err)}` };
       }
-      const text = await res.text().catch(() => '');
+      const text = res.text;
       const answer = parseJson(text);
       if (res.status === 202 || res.status === 200) return { kind: 'accepted', status: res.status, repeat: res.status === 200 };
       if (TRANSIENT.has(res.status)) {
-        return { kind: 'retry', status: res.status, reason: problemText(res.status, answer, text), retryAfterMs: parseRetryAfter(res.headers.get('retry-after')) };
+        return { kind: 'retry', status: res.status, reason: problemText(res.status, answer, text), retryAfterMs: parseRetryAfter(res.retryAfter) };
       }
       // 409 (same batch id, other content), 400/422 (bad fields), 401/403 (key), 413 (too big) …
       return { kind: 'rejected', status: res.status, reason: problemText(res.status, answer, text), answer: answer ?? text };
@@ -68,9 +91,6 @@ function problemText(status: number, answer: unknown, text: string): string {
 }
 
 function describe(err: unknown): string {
-  if (err instanceof Error) {
-    const cause = (err as { cause?: { code?: string; message?: string } }).cause;
-    return cause?.code ?? cause?.message ?? err.name + ': ' + err.message;
-  }
+  if (err instanceof Error) return (err as NodeJS.ErrnoException).code ?? err.message;
   return String(err);
 }

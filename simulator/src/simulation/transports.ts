@@ -12,6 +12,8 @@ export interface TransportChoice {
   apiKeys: Map<string, string>;
   mllpHost?: string;
   mllpPort?: number;
+  /** Kept-alive HTTP connections (default 64). */
+  httpSockets?: number;
   /** Parallel MLLP connections (default 1). */
   mllpConnections?: number;
   /** Scenario of each monitor, for the HR and SpO2 numerics of the HL7 message. */
@@ -20,7 +22,7 @@ export interface TransportChoice {
 
 /** The transport the simulator sends through: HTTP JSON with device keys, or ORU^R01 over MLLP. */
 export function simulatorTransport(c: TransportChoice): BatchTransport {
-  if (c.transport === 'http') return httpTransport({ gatewayUrl: c.gatewayUrl, apiKey: (id) => c.apiKeys.get(id) });
+  if (c.transport === 'http') return httpTransport({ gatewayUrl: c.gatewayUrl, apiKey: (id) => c.apiKeys.get(id), maxSockets: c.httpSockets });
   return mllpTransport({
     host: c.mllpHost ?? '127.0.0.1',
     port: c.mllpPort ?? 2575,
