@@ -61,9 +61,32 @@ export async function enqueueAssessment(m: EntityManager, a: AssessmentRow, dest
   if (rows.length) await m.createQueryBuilder().insert().into(DeliveryRow).values(rows).orIgnore().execute();
 }
 
+/** MariaDB's deadlock and lock-wait errors: the transaction was rolled back and may simply be run again. */
+function isRetryableLockError(err: unknown): boolean {
+  const e = err as { errno?: number; driverError?: { errno?: number } };
+  const n = e?.driverError?.errno ?? e?.errno;
+  return n === 1213 || n === 1205;
+}
+
+/**
+ * Outbox transactions run READ COMMITTED: no gap locks, so a worker's range scan never blocks
+ * another's updates of rows just past the range (REPEATABLE READ next-key locks deadlock there);
+ * a deadlock that still happens is retried.
+ */
+async function outboxTransaction<T>(ds: DataSource, work: (m: EntityManager) => Promise<T>): Promise<T> {
+  for (let attempt = 1; ; attempt++) {
+    try {
+      return await ds.transaction('READ COMMITTED', work);
+    } catch (err) {
+      if (attempt >= 5 || !isRetryableLockError(err)) throw err;
+      await new Promise((r) => setTimeout(r, 5 * attempt + Math.random() * 10));
+    }
+  }
+}
+
 /** Claims due rows of one destination: SKIP LOCKED so parallel workers never take the same row. */
 export async function claimDue(ds: DataSource, destinationId: string, limit: number, leaseMs: number): Promise<DeliveryRow[]> {
-  return ds.transaction(async (m) => {
+  return outboxTransaction(ds, async (m) => {
     const now = new Date();
     const rows = await m
       .getRepository(DeliveryRow)
@@ -142,7 +165,7 @@ async function bulkUpdate(m: EntityManager, rows: AttemptResult[], at: Date, onl
 export async function recordAttempts(ds: DataSource, results: AttemptResult[]): Promise<void> {
   if (!results.length) return;
   const at = new Date();
-  await ds.transaction(async (m) => {
+  await outboxTransaction(ds, async (m) => {
     await m.insert(
       DeliveryAttemptRow,
       results.map((r) => ({
@@ -163,7 +186,7 @@ export async function recordDestinationHealth(
   circuit: DeliveryConfig['circuit'],
 ): Promise<void> {
   const now = new Date();
-  await ds.transaction(async (m) => {
+  await outboxTransaction(ds, async (m) => {
     const d = await m.getRepository(DestinationRow).createQueryBuilder('d').where('d.id = :id', { id: destinationId }).setLock('pessimistic_write').getOne();
     if (!d) return;
     if (pass.answered > 0 && pass.failed === 0) {

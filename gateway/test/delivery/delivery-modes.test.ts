@@ -1,0 +1,111 @@
+/**
+ * Transaction bundles, the HL7 v2 second destination, two workers racing on one outbox
+ * (FOR UPDATE SKIP LOCKED) and replay, against the mock EHR. Workers are driven by hand here.
+ */
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { startMockEhr, type RunningMockEhr } from '@ebbgate/mock-ehr';
+import { createDataSource } from '../../src/db/data-source';
+import { DeliveryAttemptRow, DeliveryRow } from '../../src/delivery/delivery.entities';
+import { buildDelivery, FHIR_DESTINATION_ID, HL7_DESTINATION_ID, type DeliveryParts } from '../../src/delivery/delivery.module';
+import { startTestGateway, type TestGateway } from '../support/harness';
+import { insertBedAndMonitor, mockAdmin, storeAssessment, type MockAdmin } from './support';
+
+let ehr: RunningMockEhr;
+let gw: TestGateway;
+let admin: MockAdmin;
+let parts: DeliveryParts;
+const IDENT = 'urn:ebbgate:observation|';
+
+beforeAll(async () => {
+  ehr = await startMockEhr({ httpPort: 0, smtpPort: 0, mllpPort: 0 });
+  admin = mockAdmin(ehr.baseUrl);
+  gw = await startTestGateway(
+    {
+      ehr: { fhirBaseUrl: ehr.fhirBaseUrl, tokenUrl: ehr.tokenUrl },
+      mail: { smtpPort: ehr.smtpPort },
+      delivery: {
+        bundleSize: 10, claimBatch: 16, concurrency: 4, leaseSeconds: 30, retry: { limit: 5, baseMs: 20, maxMs: 100 },
+        alerts: { enabled: false }, hl7: { enabled: true, host: '127.0.0.1', port: ehr.mllpPort, sendingFacility: 'HGH', receivingApplication: 'HGH-EHR' },
+      },
+    },
+    { services: false },
+  );
+  parts = buildDelivery(gw.ctx);
+  await parts.services[0]!.start(); // destinations
+}, 60_000);
+
+afterAll(async () => {
+  await gw?.stop();
+  await ehr?.stop();
+});
+
+async function drain(...workers: DeliveryParts['worker'][]): Promise<void> {
+  for (let round = 0; round < 200; round++) {
+    const handled = await Promise.all(workers.map((w) => w.runOnce()));
+    if (handled.every((n) => n === 0)) return;
+  }
+  throw new Error('outbox did not drain in 200 rounds');
+}
+
+const rowsOf = (ids: string[]) => gw.ctx.ds.getRepository(DeliveryRow).createQueryBuilder('d').where('d.assessment_id IN (:...ids)', { ids }).getMany();
+
+describe('delivery modes', () => {
+  it('sends FHIR rows in transaction bundles and the same results as ORU^R01 over MLLP', async () => {
+    const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'ICU-01');
+    const a = [];
+    for (let i = 0; i < 5; i++) a.push(await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, 7, 0, 30 * i))));
+    await drain(parts.worker);
+    const rows = await rowsOf(a.map((x) => x.id));
+    expect(rows).toHaveLength(40); // 5 assessments × 4 indices × 2 destinations
+    expect(rows.every((r) => r.status === 'delivered')).toBe(true);
+    const fhirIds = rows.filter((r) => r.destinationId === FHIR_DESTINATION_ID).map((r) => r.id);
+    const modes = await gw.ctx.ds.getRepository(DeliveryAttemptRow).createQueryBuilder('t').where('t.delivery_id IN (:...ids)', { ids: fhirIds }).getMany();
+    expect(new Set(modes.map((m) => m.mode))).toEqual(new Set(['bundle']));
+    const counts = await admin.observations();
+    for (const r of rows.filter((x) => x.destinationId === FHIR_DESTINATION_ID)) expect(counts.byIdentifier[IDENT + r.identifier]).toBe(1);
+
+    const hl7 = (await (await fetch(`${ehr.baseUrl}/_admin/hl7`)).json()) as { controlId: string; messageType: string; ackCode: string; message: string }[];
+    const ours = hl7.filter((m) => rows.some((r) => r.destinationId === HL7_DESTINATION_ID && m.controlId === `${r.identifier}-create`));
+    expect(ours).toHaveLength(20);
+    for (const m of ours) {
+      // We ask for enhanced-mode acknowledgement (MSH-15 AL, MSH-16 NE): commit accept is CA (HL7 v2 ch. 2).
+      expect(m.ackCode).toBe('CA');
+      expect(m.messageType).toMatch(/^ORU\^R01/);
+      expect(m.message).toMatch(/\rPID\|\|\|HGH-400117\^\^\^HGH\^MR/); // MRN of ICU-01 in config/demo/hospital.json
+    }
+  });
+
+  it('two workers on one outbox (SKIP LOCKED) never take the same row: one attempt each, no duplicate', async () => {
+    const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'ICU-02');
+    const a = [];
+    for (let i = 0; i < 10; i++) a.push(await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, 7, 30, 30 * i))));
+    const ds2 = await createDataSource(gw.db.url, 4).initialize();
+    try {
+      const other = buildDelivery({ ...gw.ctx, ds: ds2 });
+      await drain(parts.worker, other.worker);
+    } finally {
+      await ds2.destroy();
+    }
+    const rows = await rowsOf(a.map((x) => x.id));
+    expect(rows).toHaveLength(80);
+    expect(rows.every((r) => r.status === 'delivered' && r.attemptCount === 1)).toBe(true);
+    expect((await admin.observations()).duplicated).toEqual([]);
+  });
+
+  it('replay of delivered rows resends them and the EHR still holds each identifier once (conditional create)', async () => {
+    const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'ICU-03');
+    const a = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, 7, 50)));
+    await drain(parts.worker);
+    const fhir = (await rowsOf([a.id])).filter((r) => r.destinationId === FHIR_DESTINATION_ID);
+    const operator = await gw.signIn('operator');
+    const res = await operator.post('/api/v1/deliveries/replay', { ids: fhir.map((r) => String(r.id)) });
+    expect(res.body.updated).toHaveLength(4);
+    await drain(parts.worker);
+    const after = (await rowsOf([a.id])).filter((r) => r.destinationId === FHIR_DESTINATION_ID);
+    expect(after.every((r) => r.status === 'delivered' && r.attemptCount === 2)).toBe(true);
+    const counts = await admin.observations();
+    for (const r of after) expect(counts.byIdentifier[IDENT + r.identifier]).toBe(1);
+    const detail = await operator.get(`/api/v1/deliveries/${after[0]!.id}`);
+    expect(detail.body.attempts.map((t: { outcome: string }) => t.outcome)).toEqual(['created', 'delivered']);
+  });
+});
