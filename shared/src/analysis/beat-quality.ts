@@ -25,10 +25,20 @@ const add = (b: Beat, r: BeatRejectReason): void => {
   if (!b.rejectReasons.includes(r)) b.rejectReasons.push(r);
 };
 
-function mean3(y: Float64Array, i: number): number {
-  const a = i > 0 ? y[i - 1] : y[i];
-  const b = i + 1 < y.length ? y[i + 1] : y[i];
-  return (a + y[i] + b) / 3;
+/**
+ * Extremum value at sample i refined by a parabola through i−1, i, i+1 (sub-sample peak), so SBP
+ * and DBP do not depend on where the samples happen to fall at low rates (e.g. 62.5 Hz).
+ */
+function vertex(y: Float64Array, i: number): number {
+  if (i <= 0 || i + 1 >= y.length) return y[i];
+  const a = y[i - 1];
+  const b = y[i];
+  const c = y[i + 1];
+  const den = a - 2 * b + c;
+  if (den === 0) return b;
+  const off = (0.5 * (a - c)) / den;
+  if (off < -1 || off > 1) return b;
+  return b - 0.25 * (a - c) * off;
 }
 
 /** Reasons that mean the beat's landmarks (and so its interval) cannot be trusted. */
@@ -85,13 +95,12 @@ function measure(ch: ConditionedChannel, lm: BeatLandmarks, source: BeatSource, 
       rejectReasons: [],
     };
     if (source === 'abp') {
-      // Three-sample means at peak and foot damp residual noise; the bias is common to all beats.
-      beat.sbp = mean3(y, p);
-      beat.dbp = mean3(y, f);
+      beat.sbp = vertex(y, p);
+      beat.dbp = vertex(y, f);
       beat.pp = beat.sbp - beat.dbp;
       beat.map = avg;
     } else {
-      beat.amplitude = mean3(y, p) - mean3(y, f);
+      beat.amplitude = vertex(y, p) - vertex(y, f);
       beat.dc = avg;
     }
     if (lm.edge[k] || (k + 1 >= count && end >= y.length)) add(beat, 'edge');
