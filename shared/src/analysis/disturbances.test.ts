@@ -84,6 +84,16 @@ describe('disturbed synthetic windows raise the right flag', () => {
     expect(Math.abs((r.indices.ppv.value as number) - (truthOverUsedCycles(r, w.truth, 'ppv') as number))).toBeLessThanOrEqual(1);
   });
 
+  it('other monitor sample rates (62.5–500 Hz): beats all found and PPV, ΔPOP within ±1 point (Zong windows scaled with fs)', () => {
+    for (const fs of [62.5, 100, 250, 500]) {
+      const w = generateWindow({ seed: 60 + fs, heartRate: 95, respiratoryRate: 16, ppv: 15, sampleRate: fs, channels: ['abp', 'pleth', 'paw'] });
+      const r = analyzeWindow({ channels: w.channels, context: CONTEXT });
+      expect(r.beats.abp!.acceptedCount, `fs ${fs}`).toBeGreaterThanOrEqual(w.truth.beats.abp.length - 2);
+      expect(Math.abs((r.indices.ppv.value as number) - (truthOverUsedCycles(r, w.truth, 'ppv') as number)), `fs ${fs}`).toBeLessThanOrEqual(1);
+      expect(Math.abs((r.indices.deltaPop.value as number) - (truthOverUsedCycles(r, w.truth, 'deltaPop') as number)), `fs ${fs}`).toBeLessThanOrEqual(1);
+    }
+  });
+
   it('without paw, cycles come from CO2 and PPV stays within ±1 point', () => {
     const w = generateWindow({ seed: 77, heartRate: 85, respiratoryRate: 14, ppv: 16, channels: ['abp', 'co2'] });
     const r = analyzeWindow({ channels: w.channels, context: CONTEXT });
