@@ -89,4 +89,5 @@ if (py) {
   console.log(`  NumPy ${py.numpy} / SciPy ${py.scipy}, one 1 h window: ${(py.hourSeconds * 1000).toFixed(1)} ms  ${mega(py.hourSeconds)} M samples/s  [wall ${mega(py.hourWall)}]  (${py.cyclesHour} cycles)`);
   console.log(`  ratio TypeScript / SciPy: ${(py.windowsSeconds / win.seconds).toFixed(2)}× (60 s windows), ${(py.hourSeconds / whole.seconds).toFixed(2)}× (1 h window)`);
 }
+console.log(`  OPENBLAS_CORETYPE ${process.env.OPENBLAS_CORETYPE ?? 'unset'} (the NumPy side uses BLAS for one matrix-vector product only)`);
 console.log(`  goal: ≥ 20 M samples/s on one core and ahead of SciPy`);
