@@ -8,7 +8,7 @@ import { createDataSource } from '../../src/db/data-source';
 import { DeliveryAttemptRow, DeliveryRow } from '../../src/delivery/delivery.entities';
 import { buildDelivery, FHIR_DESTINATION_ID, HL7_DESTINATION_ID, type DeliveryParts } from '../../src/delivery/delivery.module';
 import { startTestGateway, type TestGateway } from '../support/harness';
-import { insertBedAndMonitor, mockAdmin, storeAssessment, type MockAdmin } from './support';
+import { engineResult, insertBedAndMonitor, mockAdmin, storeAssessment, type MockAdmin } from './support';
 
 let ehr: RunningMockEhr;
 let gw: TestGateway;
@@ -107,5 +107,55 @@ describe('delivery modes', () => {
     for (const r of after) expect(counts.byIdentifier[IDENT + r.identifier]).toBe(1);
     const detail = await operator.get(`/api/v1/deliveries/${after[0]!.id}`);
     expect(detail.body.attempts.map((t: { outcome: string }) => t.outcome)).toEqual(['created', 'delivered']);
+  });
+
+  it('a reviewer marking a result in error through the API amends what was delivered; the assessment shows what was sent', async () => {
+    const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'OR-02');
+    const a = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, 8, 10)));
+    await drain(parts.worker);
+    const reviewer = await gw.signIn('reviewer');
+    const detail = await reviewer.get(`/api/v1/assessments/${a.id}`);
+    expect(detail.status).toBe(200);
+    const ppv = detail.body.observations.find((o: { index: string }) => o.index === 'ppv');
+    expect(ppv.resource.resourceType).toBe('Observation');
+    expect(ppv.deliveries.map((d: { status: string }) => d.status)).toEqual(['delivered', 'delivered']);
+    const marked = await reviewer.post(`/api/v1/assessments/${a.id}/mark-in-error`, { reason: 'arterial line was being flushed' });
+    expect(marked.status).toBe(200);
+    await drain(parts.worker);
+    const amends = (await rowsOf([a.id])).filter((r) => r.kind === 'amend');
+    expect(amends).toHaveLength(8); // 4 indices × 2 destinations
+    expect(amends.every((r) => r.status === 'delivered')).toBe(true);
+    const fhirAmend = amends.find((r) => r.destinationId === FHIR_DESTINATION_ID)!;
+    expect((fhirAmend.payload as { status: string; note: { text: string }[] }).status).toBe('entered-in-error');
+    expect((fhirAmend.payload as { note: { text: string }[] }).note.at(-1)!.text).toContain('arterial line was being flushed');
+    const hl7 = (await (await fetch(`${ehr.baseUrl}/_admin/hl7`)).json()) as { controlId: string; message: string }[];
+    const wrong = hl7.filter((m) => amends.some((r) => r.destinationId === HL7_DESTINATION_ID && m.controlId === `${r.identifier}-amend`));
+    expect(wrong).toHaveLength(4);
+    for (const m of wrong) expect(m.message.split('\r').find((x) => x.startsWith('OBX'))!.split('|')[11]).toBe('W');
+  });
+
+  it('site settings chosen by an admin apply to the next results: withhold not-valid, send valid as final', async () => {
+    const adminUser = await gw.signIn('admin');
+    const current = (await adminUser.get('/api/v1/settings')).body;
+    const put = await adminUser.put('/api/v1/settings', { ...current, delivery: { observationStatus: 'final', notValidPolicy: 'withhold' } });
+    expect(put.status).toBe(200);
+    await new Promise((r) => setTimeout(r, 3_100)); // settings are re-read at most every 3 s
+    const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'OR-03');
+    const notValid = engineResult({ seed: 12, disturbances: [{ kind: 'spontaneous-breaths', count: 4 }] });
+    expect(notValid.verdict).toBe('not-valid');
+    const bad = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, 8, 20)), notValid);
+    const good = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, 8, 21)));
+    await drain(parts.worker);
+    const badRows = await rowsOf([bad.id]);
+    // Indices the engine judged not valid (or could not compute) are withheld, never sent.
+    for (const r of badRows) {
+      const verdict = notValid.indexVerdicts[r.indexName as 'ppv'] ?? notValid.verdict;
+      const value = notValid.indices[r.indexName as 'ppv'].value;
+      expect(r.status).toBe(verdict === 'not-valid' || value === null ? 'withheld' : 'delivered');
+    }
+    expect(badRows.some((r) => r.status === 'withheld')).toBe(true);
+    const goodFhir = (await rowsOf([good.id])).filter((r) => r.destinationId === FHIR_DESTINATION_ID && r.status === 'delivered');
+    expect(goodFhir.length).toBeGreaterThan(0);
+    expect(goodFhir.every((r) => (r.payload as { status: string }).status === 'final')).toBe(true);
   });
 });
