@@ -22,14 +22,16 @@ export function detectArterialBeats(y: Float64Array, fs: number): BeatLandmarks 
   const n = y.length;
   const w = Math.max(2, Math.round(0.128 * fs));
   const ssf = new Float64Array(n);
+  // Running sum of the positive slopes over the last w samples; a ring holds what leaves it.
+  const ring = new Float64Array(w);
   let acc = 0;
+  let slot = 0;
   for (let i = 1; i < n; i++) {
     const d = y[i] - y[i - 1];
-    if (d > 0) acc += d;
-    if (i - w >= 1) {
-      const dOld = y[i - w] - y[i - w - 1];
-      if (dOld > 0) acc -= dOld;
-    }
+    const up = d > 0 ? d : 0;
+    acc += up - ring[slot];
+    ring[slot] = up;
+    slot = slot + 1 === w ? 0 : slot + 1;
     ssf[i] = acc > 0 ? acc : 0;
   }
   const initLen = Math.min(n, Math.round(8 * fs));

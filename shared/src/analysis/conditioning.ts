@@ -78,6 +78,8 @@ interface ScanResult {
  */
 function scan(src: ArrayLike<number>, scale: number, fs: number, o: ScanOptions, filled: Float64Array): ScanResult {
   const n = src.length;
+  const trackEqual = o.minClip <= n;
+  const trackHigh = o.highLevel !== Infinity;
   const gaps: SampleSpan[] = [];
   const flatLines: SampleSpan[] = [];
   const equalRuns: { a: number; b: number; v: number }[] = [];
@@ -121,15 +123,17 @@ function scan(src: ArrayLike<number>, scale: number, fs: number, o: ScanOptions,
         fLo = v;
         fHi = v;
       }
-      if (v !== eVal) {
+      if (trackEqual && v !== eVal) {
         if (eVal === eVal && i - eStart >= o.minClip) equalRuns.push({ a: eStart, b: i, v: eVal });
         eStart = i;
         eVal = v;
       }
-      if (v > o.highLevel) {
-        high++;
-        if (high > longestHigh) longestHigh = high;
-      } else high = 0;
+      if (trackHigh) {
+        if (v > o.highLevel) {
+          high++;
+          if (high > longestHigh) longestHigh = high;
+        } else high = 0;
+      }
     } else {
       if (fLo === fLo && i - fStart >= o.minFlat) flatLines.push(spanOf(fStart, i, fs));
       fLo = Number.NaN;
