@@ -89,8 +89,12 @@ export function runDemoScenario(opts: DemoOptions): RunningDemo {
     timers.push(setInterval(() => void tick().catch((err) => log(`simulator: ${String(err)}`)), 250));
     const outage = opts.ehrOutage === undefined ? EHR_OUTAGE : opts.ehrOutage;
     if (outage) {
-      timers.push(setTimeout(() => void setFaults(true).catch((e) => log(`simulator: could not start the EHR outage: ${String(e)}`)), outage.atSeconds * 1000));
-      timers.push(setTimeout(() => void setFaults(false).catch((e) => log(`simulator: could not end the EHR outage: ${String(e)}`)), (outage.atSeconds + outage.durationSeconds) * 1000));
+      const begin = async () => {
+        await setFaults(true);
+        // The outage lasts its full duration from the moment the faults are on.
+        timers.push(setTimeout(() => void setFaults(false).catch((e) => log(`simulator: could not end the EHR outage: ${String(e)}`)), outage.durationSeconds * 1000));
+      };
+      timers.push(setTimeout(() => void begin().catch((e) => log(`simulator: could not start the EHR outage: ${String(e)}`)), outage.atSeconds * 1000));
     }
   })();
 
