@@ -24,7 +24,7 @@ export function formatSummary(r: AnalysisResult): string {
   out.push(`Cycles (${r.respiration.source ?? 'none'}): ${r.cycles.length} found, ${usable} usable, ${r.cycles.filter((c) => c.usedInWindow).length} averaged`);
   if (r.flags.length) {
     out.push('Flags:');
-    for (const f of r.flags) out.push(`  [${f.severity}] ${f.code}${f.direction ? ` (likely ${f.direction})` : ''}: ${f.reason}`);
+    for (const f of r.flags) out.push(`  [${f.severity}] ${f.code}${f.source ? ` on ${f.source}` : ''}${f.direction ? ` (likely ${f.direction})` : ''}: ${f.reason}`);
   }
   out.push('Bands (context only, never an order to treat):');
   for (const b of r.bands) out.push(`  ${b.index} ${b.lower ?? '−∞'}–${b.upper ?? '∞'} ${b.unit}: ${b.label} [${b.source}]`);
