@@ -82,19 +82,19 @@ export function runDemoScenario(opts: DemoOptions): RunningDemo {
       spoolDir: opts.spoolDir,
       onEvent,
     });
-    log(`simulator: ${feeds.length} monitors over ${transport}, ${batchSeconds}-s batches, backfilling ${backfill} s`);
-    for (const f of feeds) log(`simulator: ${f.identifier} → ${f.scenario.id} (${f.scenario.title})`);
+    log(`${feeds.length} monitors over ${transport}, ${batchSeconds}-s batches, backfilling ${backfill} s`);
+    for (const f of feeds) log(`${f.identifier} → ${f.scenario.id} (${f.scenario.title})`);
     await tick();
     if (stopped) return;
-    timers.push(setInterval(() => void tick().catch((err) => log(`simulator: ${String(err)}`)), 250));
+    timers.push(setInterval(() => void tick().catch((err) => log(`${String(err)}`)), 250));
     const outage = opts.ehrOutage === undefined ? EHR_OUTAGE : opts.ehrOutage;
     if (outage) {
       const begin = async () => {
         await setFaults(true);
         // The outage lasts its full duration from the moment the faults are on.
-        timers.push(setTimeout(() => void setFaults(false).catch((e) => log(`simulator: could not end the EHR outage: ${String(e)}`)), outage.durationSeconds * 1000));
+        timers.push(setTimeout(() => void setFaults(false).catch((e) => log(`could not end the EHR outage: ${String(e)}`)), outage.durationSeconds * 1000));
       };
-      timers.push(setTimeout(() => void begin().catch((e) => log(`simulator: could not start the EHR outage: ${String(e)}`)), outage.atSeconds * 1000));
+      timers.push(setTimeout(() => void begin().catch((e) => log(`could not start the EHR outage: ${String(e)}`)), outage.atSeconds * 1000));
     }
   })();
 
@@ -114,7 +114,7 @@ export function runDemoScenario(opts: DemoOptions): RunningDemo {
       : await fetch(url, { method: 'DELETE' });
     if (!res.ok) throw new Error(`mock EHR answered ${res.status} to ${on ? 'PUT' : 'DELETE'} /_admin/faults`);
     outageActive = on;
-    log(on ? 'simulator: EHR outage begins (mock EHR: one Observation refused with 422, then 503 for everything)' : 'simulator: EHR outage over (mock EHR faults cleared)');
+    log(on ? 'EHR outage begins (mock EHR: one Observation refused with 422, then 503 for everything)' : 'EHR outage over (mock EHR faults cleared)');
   }
 
   return {
@@ -126,7 +126,7 @@ export function runDemoScenario(opts: DemoOptions): RunningDemo {
       await ready.catch(() => {});
       if (outageActive) await setFaults(false).catch(() => {});
       await sender?.close();
-      log(`simulator: stopped (${sender?.pending() ?? 0} batches left in ${opts.spoolDir})`);
+      log(`stopped (${sender?.pending() ?? 0} batches left in ${opts.spoolDir})`);
     },
   };
 }
@@ -139,16 +139,16 @@ function eventLogger(log: (m: string) => void, scenarios: Map<string, Scenario>)
   return (e) => {
     if (e.kind === 'accepted' && !firstAccepted.has(e.monitorId)) {
       firstAccepted.add(e.monitorId);
-      log(`simulator: ${e.monitorId} (${scenarios.get(e.monitorId)?.id}) streaming, first batch answered ${e.status}`);
+      log(`${e.monitorId} (${scenarios.get(e.monitorId)?.id}) streaming, first batch answered ${e.status}`);
     } else if (e.kind === 'rejected') {
       const n = (rejections.get(e.monitorId) ?? 0) + 1;
       rejections.set(e.monitorId, n);
-      if (n === 1 || n % 12 === 0) log(`simulator: ${e.monitorId} batch refused (${n} so far, kept in ${e.spoolFile}): ${e.reason}`);
+      if (n === 1 || n % 12 === 0) log(`${e.monitorId} batch refused (${n} so far, kept in ${e.spoolFile}): ${e.reason}`);
     } else if (e.kind === 'retrying') {
       retries++;
-      if (retries === 1 || retries % 20 === 0) log(`simulator: gateway busy or unreachable, retrying (${retries} retries so far): ${e.reason}`);
+      if (retries === 1 || retries % 20 === 0) log(`gateway busy or unreachable, retrying (${retries} retries so far): ${e.reason}`);
     } else if (e.kind === 'replaying') {
-      log(`simulator: replaying ${e.batches} unsent batches of ${e.monitors} monitors from the spool`);
+      log(`replaying ${e.batches} unsent batches of ${e.monitors} monitors from the spool`);
     }
   };
 }
