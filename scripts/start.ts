@@ -11,7 +11,7 @@ import { readDemoUsers } from '../gateway/src/seed/demo-users';
 import { ensureConsoleBuilt } from './lib/console-build';
 import { startPrivateMariaDb, type PrivateMariaDb } from './lib/mariadb';
 import { launchStack, type RunningStack } from './lib/stack';
-import { startDemo } from './lib/demo';
+import { DEMO_OVERRIDES, startDemo } from './lib/demo';
 
 const log = (m: string) => console.log(m);
 const env = process.env;
@@ -71,7 +71,9 @@ async function main() {
       mockEhrPort: port('EBBGATE_MOCK_EHR_PORT', 8481),
       smtpPort: port('EBBGATE_SMTP_PORT', 2526),
       hl7ReceiverPort: port('EBBGATE_HL7_RECEIVER_PORT', 2577),
-      logLevel: env.EBBGATE_LOG_LEVEL ?? 'warn',
+      logLevel: env.EBBGATE_LOG_LEVEL ?? 'info',
+      logFile: path.join(dataDir, 'logs/gateway.log'),
+      overrides: env.EBBGATE_SIMULATOR === 'off' ? {} : DEMO_OVERRIDES,
       log,
     });
     if (env.EBBGATE_SIMULATOR !== 'off') demo = await startDemo(stack, path.join(dataDir, 'spool'), log);
@@ -90,6 +92,7 @@ Ebbgate is running.
   MLLP listener     127.0.0.1:${stack.config.mllp.port}
   mock EHR (FHIR)   ${stack.mockEhr.fhirBaseUrl}
   mail catcher      ${stack.mockEhrUrl}/mail   (SMTP 127.0.0.1:${stack.mockEhr.smtpPort})
+  gateway log       .data/logs/gateway.log (JSON lines)
   database          ${db ? `private MariaDB on 127.0.0.1:${db.port}` : 'DATABASE_URL'}
   simulator         ${demo ? 'streaming the demo scenario' : 'off (EBBGATE_SIMULATOR=off)'}
 

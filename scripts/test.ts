@@ -32,7 +32,7 @@ async function main(): Promise<number> {
   ensureChromium();
   ensureConsoleBuilt(log);
   let stopDb: (() => Promise<void>) | undefined;
-  const env = { ...process.env, NODE_ENV: 'test' };
+  const env: NodeJS.ProcessEnv = { ...process.env, NODE_ENV: 'test' };
   if (process.env.DATABASE_URL) {
     env.EBBGATE_TEST_ADMIN_URL = process.env.DATABASE_URL;
   } else {

@@ -1,10 +1,21 @@
 /**
- * The demo scenario on top of a running stack: seed the invented hospital's monitors, give each
- * an API key and start the bedside simulator. Filled in as the devices and simulator land.
+ * The demo scenario on top of a running stack: the demo integrator provisions the simulated
+ * monitors through the gateway API (profile, beds, monitors, fresh API keys), then the bedside
+ * simulator streams the invented hospital's patients, with a timed EHR outage.
  */
+import { demoIntegrator, provisionDemoMonitors, runDemoScenario } from '@ebbgate/simulator';
+import { repoRoot } from '../../gateway/src/config/load';
 import type { RunningStack } from './stack';
 
-export async function startDemo(_stack: RunningStack, _spoolDir: string, log: (m: string) => void): Promise<{ stop(): Promise<void> } | undefined> {
-  log('ebbgate: demo simulator not wired yet');
-  return undefined;
+export async function startDemo(stack: RunningStack, spoolDir: string, log: (m: string) => void): Promise<{ stop(): Promise<void> }> {
+  const monitors = await provisionDemoMonitors(stack.gatewayUrl, await demoIntegrator(repoRoot), repoRoot);
+  log(`ebbgate: simulator streaming ${monitors.length} demo monitors over HTTP (backfilling the last minute)…`);
+  const demo = runDemoScenario({ gatewayUrl: stack.gatewayUrl, mockEhrUrl: stack.mockEhrUrl, monitors, spoolDir, log });
+  await demo.ready;
+  return demo;
 }
+
+/** Alerting tuned for the demo: the outage is short, so mail after 30 s down instead of minutes. */
+export const DEMO_OVERRIDES = {
+  delivery: { alerts: { downMinutes: 0.5, checkIntervalMs: 5000 } },
+};

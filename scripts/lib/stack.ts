@@ -7,6 +7,7 @@ import path from 'node:path';
 import { startMockEhr, type RunningMockEhr } from '@ebbgate/mock-ehr';
 import { loadConfig, repoRoot } from '../../gateway/src/config/load';
 import type { Config } from '../../gateway/src/config/schema';
+import { createLogger } from '../../gateway/src/http/logger';
 import { startGateway, type RunningGateway } from '../../gateway/src/server';
 
 export interface StackOptions {
@@ -20,6 +21,8 @@ export interface StackOptions {
   hl7ReceiverPort: number;
   nodeEnv?: 'development' | 'test';
   logLevel?: string;
+  /** Gateway log file (JSON lines); stdout when absent. */
+  logFile?: string;
   /** Extra config for the gateway (deep-merged last). */
   overrides?: Record<string, unknown>;
   log?: (m: string) => void;
@@ -58,7 +61,7 @@ export async function launchStack(opts: StackOptions): Promise<RunningStack> {
         opts.overrides ?? {},
       ),
     );
-    gateway = await startGateway({ config, migrate: true, seedDemo: true, services: true });
+    gateway = await startGateway({ config, logger: createLogger(config.log.level, opts.logFile), migrate: true, seedDemo: true, services: true });
   } catch (err) {
     await mockEhr.stop();
     throw err;

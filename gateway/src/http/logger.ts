@@ -23,8 +23,10 @@ export const REDACT_PATHS = [
   'patient',
 ];
 
-export function createLogger(level: string): Logger {
-  return pino({ level, redact: { paths: REDACT_PATHS, censor: '[redacted]' }, base: { service: 'ebbgate-gateway' } });
+/** JSON lines to stdout, or appended to `file` (npm start keeps the terminal for people). */
+export function createLogger(level: string, file?: string): Logger {
+  const options = { level, redact: { paths: REDACT_PATHS, censor: '[redacted]' }, base: { service: 'ebbgate-gateway' } };
+  return file ? pino(options, pino.destination({ dest: file, mkdir: true, sync: false })) : pino(options);
 }
 
 export function httpLogger(logger: Logger) {
@@ -38,6 +40,7 @@ export function httpLogger(logger: Logger) {
     autoLogging: { ignore: (req) => req.url === '/healthz' || req.url === '/metrics' },
     serializers: {
       req: (req: { id: string; method: string; url: string }) => ({ id: req.id, method: req.method, url: req.url?.split('?')[0] }),
+      res: (res: { statusCode: number }) => ({ statusCode: res.statusCode }),
     },
   });
 }

@@ -32,7 +32,7 @@ export const siteSettingsSchema = z.object({
   alerts: z.object({
     recipients: z.array(z.email()).max(50),
     /** Mail when a destination has been unreachable this long. */
-    destinationDownMinutes: z.number().int().min(1).max(1440),
+    destinationDownMinutes: z.number().min(0.1).max(1440),
     /** Mail when this many deliveries failed within the last hour. */
     failureThreshold: z.number().int().min(1).max(100000),
   }),
