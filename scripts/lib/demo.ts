@@ -10,7 +10,7 @@ import type { RunningStack } from './stack';
 export async function startDemo(stack: RunningStack, spoolDir: string, log: (m: string) => void): Promise<{ stop(): Promise<void> }> {
   const monitors = await provisionDemoMonitors(stack.gatewayUrl, await demoIntegrator(repoRoot), repoRoot);
   log(`ebbgate: simulator streaming ${monitors.length} demo monitors over HTTP (backfilling the last minute)…`);
-  const demo = runDemoScenario({ gatewayUrl: stack.gatewayUrl, mockEhrUrl: stack.mockEhrUrl, monitors, spoolDir, log });
+  const demo = runDemoScenario({ gatewayUrl: stack.gatewayUrl, mockEhrUrl: stack.mockEhrUrl, monitors, spoolDir, log: (m) => log(`simulator: ${m}`) });
   await demo.ready;
   return demo;
 }
