@@ -100,6 +100,7 @@ describe('durable sender over MLLP', () => {
     expect(obx[1].get('OBX.3.1').toString()).toBe('150036');
     expect(obx.map((r) => r.get('OBX.3.1').toString())).toContain('151868');
     expect(first.get('PID.8').toString()).toBe('M');
+    expect(first.get('PID.3').toString()).toBe(''); // no MRN known to the adapter: no half identifier
     expect(sender.stats.accepted).toBe(3);
   });
 

@@ -22,6 +22,7 @@ export interface OruNumeric {
 }
 
 export interface OruPatient {
+  /** Medical record number (PID-3); empty when the adapter only knows sex and the like. */
   mrn: string;
   assigningAuthority?: string;
   family?: string;
@@ -111,7 +112,8 @@ export function buildOruR01(m: OruMessageInput): string {
     const p = m.patient;
     const name = p.family || p.given?.length ? `${escapeHl7(p.family ?? '')}^${escapeHl7(p.given?.[0] ?? '')}^${escapeHl7(p.given?.slice(1).join(' ') ?? '')}` : '';
     const sex = p.sex === 'male' ? 'M' : p.sex === 'female' ? 'F' : '';
-    seg.push(['PID', '', '', `${escapeHl7(p.mrn)}^^^${escapeHl7(p.assigningAuthority ?? '')}^MR`, '', name, '', (p.birthDate ?? '').replace(/-/g, ''), sex].join('|'));
+    const id = p.mrn ? `${escapeHl7(p.mrn)}^^^${escapeHl7(p.assigningAuthority ?? '')}^MR` : '';
+    seg.push(['PID', '', '', id, '', name, '', (p.birthDate ?? '').replace(/-/g, ''), sex].join('|'));
   }
   if (m.location) seg.push(['PV1', '', 'I', `${escapeHl7(m.location.unit ?? '')}^^${escapeHl7(m.location.bed ?? '')}`].join('|'));
   seg.push(['OBR', '1', escapeHl7(m.controlId), '', cwe(OBR_SERVICE), '', '', ts].join('|'));
