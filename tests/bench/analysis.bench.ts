@@ -15,7 +15,7 @@ import { generateWindow } from '@ebbgate/shared/synthetic';
 const FS = 125;
 const HOUR = 3600;
 const WINDOW = 60;
-const REPEATS = 5;
+const REPEATS = 10;
 
 const hour = generateWindow({ seed: 2026, heartRate: 88, respiratoryRate: 16, ppv: 12, durationSeconds: HOUR, sampleRate: FS, channels: ['abp', 'paw'], disturbances: [{ kind: 'noise', level: 0.01 }, { kind: 'ectopic', count: 40 }] });
 const abp = hour.channels.find((c) => c.role === 'abp')!.samples;
