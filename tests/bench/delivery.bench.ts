@@ -69,6 +69,32 @@ async function startMockProcess() {
   return { fhirBaseUrl: `${baseUrl}/fhir`, tokenUrl: `${baseUrl}/oauth/token`, stop: async () => void child.kill('SIGTERM') };
 }
 
+/**
+ * A stub that answers every FHIR call at once (token, Location/Encounter search, Device, 201 for
+ * Observations) in its own process: what the gateway side alone can do, without the mock's work.
+ */
+const STUB = `
+const http = require('node:http'); let n = 0;
+const bundle = (r) => JSON.stringify({ resourceType: 'Bundle', type: 'searchset', entry: r ? [{ resource: r }] : [] });
+http.createServer((req, res) => { let b = ''; req.on('data', (c) => (b += c)); req.on('end', () => {
+  const u = req.url; res.setHeader('content-type', 'application/fhir+json');
+  if (u.startsWith('/oauth/token')) return res.end(JSON.stringify({ access_token: 't', token_type: 'Bearer', expires_in: 3600 }));
+  if (u.startsWith('/fhir/Location')) return res.end(bundle({ resourceType: 'Location', id: 'l1' }));
+  if (u.startsWith('/fhir/Encounter')) return res.end(bundle({ resourceType: 'Encounter', id: 'e1', subject: { reference: 'Patient/p1' } }));
+  if (u.startsWith('/fhir/Device')) return res.end(JSON.stringify({ resourceType: 'Device', id: 'd1' }));
+  if (req.method === 'POST' && u === '/fhir/') { const e = JSON.parse(b).entry; res.end(JSON.stringify({ resourceType: 'Bundle', type: 'transaction-response', entry: e.map(() => ({ response: { status: '201 Created', location: 'Observation/o' + (++n) + '/_history/1' } })) })); return; }
+  res.statusCode = 201; res.end(JSON.stringify({ resourceType: 'Observation', id: 'o' + (++n) }));
+}); }).listen(0, '127.0.0.1', function () { console.log('stub ready: http://127.0.0.1:' + this.address().port); });`;
+
+async function startStubProcess() {
+  const child = spawn(process.execPath, ['-e', STUB], { stdio: ['ignore', 'pipe', 'inherit'] });
+  const baseUrl = await new Promise<string>((resolve) => child.stdout!.on('data', (c: Buffer) => {
+    const m = /stub ready: (http:\/\/[^\s]+)/.exec(c.toString());
+    if (m) resolve(m[1]!);
+  }));
+  return { fhirBaseUrl: `${baseUrl}/fhir`, tokenUrl: `${baseUrl}/oauth/token`, stop: async () => void child.kill('SIGTERM') };
+}
+
 const { server, adminUrl } = await startTestMariaDb();
 process.env.EBBGATE_TEST_ADMIN_URL = adminUrl;
 const ehr = await startMockProcess();
@@ -84,6 +110,14 @@ try {
   await run('singly, 32 in flight', ds, ehr, { ...base, claimBatch: 400, concurrency: 32, bundleSize: 1 }, 3);
   await run('transaction bundles of 50', ds, ehr, { ...base, claimBatch: 200, concurrency: 8, bundleSize: 50 }, 4);
   await run('transaction bundles of 100', ds, ehr, { ...base, claimBatch: 400, concurrency: 8, bundleSize: 100 }, 5);
+  const stub = await startStubProcess();
+  try {
+    console.log('gateway side alone (a stub answers every call at once, own process):');
+    await run('  singly, 32 in flight', ds, stub, { ...base, claimBatch: 400, concurrency: 32, bundleSize: 1 }, 6);
+    await run('  transaction bundles of 100', ds, stub, { ...base, claimBatch: 400, concurrency: 8, bundleSize: 100 }, 7);
+  } finally {
+    await stub.stop();
+  }
 } finally {
   await ds.destroy();
   await db.drop();

@@ -10,7 +10,11 @@ export const deliveryConfigSchema = z.object({
   pollMs: z.number().int().min(10).max(60_000),
   /** Rows claimed per pass (FOR UPDATE SKIP LOCKED). */
   claimBatch: z.number().int().min(1).max(1000),
-  /** 1: one conditional-create POST per Observation; more: transaction Bundles of up to this many. */
+  /**
+   * 1: one conditional-create POST per Observation; more: transaction Bundles of up to this many
+   * (default 25: a backlog drains several times faster; a bundle the EHR rejects as a whole is
+   * re-sent entry by entry so only the bad Observation fails).
+   */
   bundleSize: z.number().int().min(1).max(500),
   /** Sends in flight at once per worker. */
   concurrency: z.number().int().min(1).max(64),

@@ -22,7 +22,7 @@ beforeAll(async () => {
       ehr: { fhirBaseUrl: ehr.fhirBaseUrl, tokenUrl: ehr.tokenUrl },
       mail: { smtpPort: ehr.smtpPort },
       delivery: {
-        pollMs: 30, leaseSeconds: 5, requestTimeoutMs: 2000,
+        pollMs: 30, leaseSeconds: 5, requestTimeoutMs: 2000, bundleSize: 1,
         retry: { limit: 50, baseMs: 40, maxMs: 200 },
         circuit: { failureThreshold: 5, openSeconds: 0.3 },
         patientContext: { cacheSeconds: 60, retrySeconds: 0.3 },

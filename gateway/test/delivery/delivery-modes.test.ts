@@ -158,4 +158,19 @@ describe('delivery modes', () => {
     expect(goodFhir.length).toBeGreaterThan(0);
     expect(goodFhir.every((r) => (r.payload as { status: string }).status === 'final')).toBe(true);
   });
+
+  it('a transaction Bundle rejected as a whole (422) is re-sent entry by entry, so good results still go', async () => {
+    await admin.faults([{ scope: 'Bundle', errorRate: 1, statusCodes: [422], remaining: 1 }]);
+    const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'ICU-04');
+    const a = [];
+    for (let i = 0; i < 3; i++) a.push(await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, 8, 40, 30 * i))));
+    await drain(parts.worker);
+    await admin.clearFaults();
+    const fhir = (await rowsOf(a.map((x) => x.id))).filter((r) => r.destinationId === FHIR_DESTINATION_ID);
+    expect(fhir.every((r) => r.status === 'delivered')).toBe(true);
+    const attempts = await gw.ctx.ds.getRepository(DeliveryAttemptRow).createQueryBuilder('t').where('t.delivery_id IN (:...ids)', { ids: fhir.map((r) => r.id) }).getMany();
+    expect(attempts.some((t) => t.mode === 'single')).toBe(true); // the fallback after the rejected bundle
+    const counts = await admin.observations();
+    for (const r of fhir) expect(counts.byIdentifier[IDENT + r.identifier]).toBe(1);
+  });
 });
