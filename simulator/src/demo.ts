@@ -98,11 +98,18 @@ export function runDemoScenario(opts: DemoOptions): RunningDemo {
     }
   })();
 
+  let ticking = false;
   async function tick(): Promise<void> {
-    const t = Date.now();
-    for (const f of feeds) {
-      if (stopped || !sender) return;
-      for (const b of f.due(t)) await sender.send(b);
+    if (ticking) return; // a slow disk must not make ticks pile up
+    ticking = true;
+    try {
+      const t = Date.now();
+      for (const f of feeds) {
+        if (stopped || !sender) return;
+        for (const b of f.due(t)) await sender.send(b);
+      }
+    } finally {
+      ticking = false;
     }
   }
 

@@ -181,3 +181,16 @@ describe('adapter client over HTTP (bare node:http server as the gateway)', () =
     await gw.close();
   });
 });
+
+describe('adapter client ordering', () => {
+  it('sends in call order even when send() calls overlap (no await between them)', async () => {
+    const gw = await fakeGateway(() => ({ status: 202 }));
+    const client = await createIngestClient({ gatewayUrl: gw.url, apiKeys: () => 'k', spoolDir: await tempDir() });
+    const sent = batches('EUI-7', 20);
+    await Promise.all(sent.map((b) => client.send(b)));
+    await client.drain(5000);
+    await client.close();
+    await gw.close();
+    expect(gw.seen.map((s) => s.batch.batchId)).toEqual(sent.map((b) => b.batchId));
+  });
+});

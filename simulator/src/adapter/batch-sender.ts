@@ -32,6 +32,9 @@ interface Entry {
   seq: number;
   file: string | null;
   attempts: number;
+  /** Resolves once the spool file is written (always mode); `writeError` is set if that failed. */
+  written?: Promise<void>;
+  writeError?: unknown;
 }
 
 export interface SenderStats {
@@ -78,12 +81,19 @@ export class BatchSender {
   /** Queues a batch; resolves once it is safely queued (on disk in `always` mode), not when sent. */
   async send(batch: IngestBatch): Promise<void> {
     if (this.closed) throw new Error('BatchSender is closed');
-    if (this.mode === 'always') {
-      const s = await this.spool.put(batch);
-      this.enqueue({ batch, seq: s.seq, file: s.file, attempts: 0 });
-    } else {
-      this.enqueue({ batch, seq: this.spool.reserveSeq(batch.monitorId), file: null, attempts: 0 });
-    }
+    // Queued synchronously, so the send order is the call order even when calls overlap.
+    const seq = this.spool.reserveSeq(batch.monitorId);
+    if (this.mode === 'on-failure') return this.enqueue({ batch, seq, file: null, attempts: 0 });
+    const e: Entry = { batch, seq, file: this.spool.fileFor(batch.monitorId, seq), attempts: 0 };
+    e.written = this.spool.putAt(batch, seq).then(
+      () => undefined,
+      (err: unknown) => {
+        e.writeError = err;
+      },
+    );
+    this.enqueue(e);
+    await e.written;
+    if (e.writeError) throw e.writeError;
   }
 
   /** Batches not yet accepted or rejected (one monitor, or all). */
@@ -133,6 +143,11 @@ export class BatchSender {
     const q = this.queues.get(monitorId)!;
     while (q.length && !this.closed) {
       const e = q[0];
+      if (e.written) await e.written;
+      if (e.writeError) {
+        q.shift(); // never on disk: the caller of send() got the error and still holds the batch
+        continue;
+      }
       const outcome: SendOutcome = await this.opts.transport
         .send(e.batch)
         .catch((err: unknown) => ({ kind: 'retry' as const, reason: `transport error: ${String(err)}` }));
