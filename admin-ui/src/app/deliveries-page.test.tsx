@@ -7,7 +7,7 @@ import { DeliveriesPage } from '@/app/pages';
 afterEach(() => vi.unstubAllGlobals());
 
 const delivery = (id: string) => ({
-  id, assessmentId: `a-${id}`, destinationId: 'ehr', indexName: 'ppv', kind: 'create', status: 'failed', patientRef: 'HGH-1', attemptCount: 3,
+  id, assessmentId: `a-${id}`, destinationId: 'ehr', index: 'ppv', kind: 'create', status: 'failed', patientRef: 'HGH-1', attemptCount: 3,
   nextAttemptAt: null, lastHttpStatus: 503, lastError: 'Service Unavailable', createdAt: '2026-12-01T21:00:00Z', deliveredAt: null,
 });
 
@@ -18,9 +18,12 @@ function gateway(roles: string[]) {
     if (c.url.pathname === '/api/v1/deliveries') return { body: { items: ['d1', 'd2', 'd3'].map(delivery), page: 1, pageSize: 25, total: 3 } };
     if (c.url.pathname === '/api/v1/deliveries/retry') {
       const [id] = (c.body as { ids: string[] }).ids;
-      if (id === 'd2') return { status: 409, body: { type: 'about:blank', title: 'Conflict', status: 409, detail: 'Destination is paused' } };
-      return { body: { results: [{ id, status: 'delivered' }] } };
+      // Answer shape of deliveryActionResultSchema (shared/src/schemas/delivery.ts).
+      if (id === 'd2') return { body: { updated: [], skipped: [{ id, reason: 'destination is paused' }] } };
+      return { body: { updated: [id], skipped: [] } };
     }
+    // After the requeue the console follows the item until the sender has tried it.
+    if (c.url.pathname === '/api/v1/deliveries/d1') return { body: { ...delivery('d1'), status: 'delivered', deliveredAt: '2026-12-01T22:00:00Z' } };
     return undefined;
   });
 }
@@ -39,10 +42,10 @@ describe('failed deliveries', () => {
     await userEvent.click(within(screen.getByRole('dialog', { name: 'Retry deliveries' })).getByRole('button', { name: 'Retry 2' }));
 
     const progress = await screen.findByRole('region', { name: 'Retry' });
-    await waitFor(() => expect(progress.querySelectorAll('[data-outcome="done"]')).toHaveLength(1));
+    await waitFor(() => expect(progress.querySelectorAll('[data-outcome="done"]')).toHaveLength(1), { timeout: 5_000 });
     await waitFor(() => expect(progress.querySelectorAll('[data-outcome="failed"]')).toHaveLength(1));
     expect(within(progress).getByText('delivered')).toBeTruthy();
-    expect(within(progress).getByText('Conflict: Destination is paused')).toBeTruthy();
+    expect(within(progress).getByText('not requeued: destination is paused')).toBeTruthy();
     const posts = gw.calls.filter((c) => c.url.pathname === '/api/v1/deliveries/retry').map((c) => c.body);
     expect(posts).toEqual(expect.arrayContaining([{ ids: ['d1'] }, { ids: ['d2'] }]));
     expect(posts).toHaveLength(2);

@@ -70,8 +70,8 @@ describe('console by role', () => {
         const screen = SCREENS[name]!;
         await page.goto(stack.gatewayUrl + screen.path);
         await page.getByRole('heading', { level: 1, name: screen.heading }).waitFor();
-        // Designed states only: a spinner or a blank page is not an answer.
-        await page.waitForFunction('!document.querySelector(\'[role="status"] .animate-spin\')', undefined, { timeout: 15_000 }).catch(() => {});
+        // Designed states only: wait until the loading indicator has given way to content.
+        await page.locator('[role="status"]').filter({ hasText: /^Loading/ }).first().waitFor({ state: 'detached', timeout: 15_000 }).catch(() => {});
         await screenshot(page, `${role}-${screen.path === '/' ? 'overview' : screen.path.slice(1)}`);
       }
 

@@ -1,28 +1,8 @@
 import { keepPreviousData, useQuery, useQueryClient } from '@tanstack/react-query';
-import type { Page } from '@ebbgate/shared';
+import type { Delivery, DeliveryActionResult, DeliveryDetail, Page } from '@ebbgate/shared';
 import { api, type Query } from '@/lib/api-client';
 
-export type DeliveryStatus = 'pending' | 'waiting-context' | 'delivered' | 'failed' | 'discarded' | 'withheld';
-
-export interface Delivery {
-  id: string;
-  assessmentId: string;
-  destinationId: string;
-  indexName: string;
-  kind: 'create' | 'amend';
-  status: DeliveryStatus;
-  identifier?: string;
-  patientRef: string | null;
-  attemptCount: number;
-  nextAttemptAt: string | null;
-  lastHttpStatus: number | null;
-  lastError: string | null;
-  discardReason?: string | null;
-  createdAt: string;
-  deliveredAt: string | null;
-}
-export interface DeliveryAttempt { at: string; durationMs?: number; httpStatus: number | null; outcome: string; detail?: string | null; response?: unknown }
-export interface DeliveryDetail extends Delivery { payload: unknown; attempts: DeliveryAttempt[] }
+export type { Delivery, DeliveryDetail, DeliveryActionResult } from '@ebbgate/shared';
 
 export const deliveryKeys = {
   all: ['deliveries'] as const,
@@ -48,8 +28,27 @@ export function optionList(data: DestinationOption[] | Page<DestinationOption> |
   return Array.isArray(data) ? data : data.items;
 }
 
-/** One retry per call so the screen can show each item's outcome. */
-export const retryDelivery = (id: string) => api.post<unknown>('/deliveries/retry', { ids: [id] });
+/** How long a bulk action follows one requeued delivery before reporting it as still queued. */
+const FOLLOW_TRIES = 30;
+
+/**
+ * Requeues one delivery (retry: same payload; replay: rebuilt as now), then follows it until the
+ * sender has tried it, so each item shows what the EHR actually answered.
+ */
+export async function requeueAndFollow(id: string, mode: 'retry' | 'replay'): Promise<string> {
+  const answer = await api.post<DeliveryActionResult>(`/deliveries/${mode}`, { ids: [id] });
+  const skipped = answer.skipped.find((s) => s.id === id);
+  if (skipped) throw new Error(`not requeued: ${skipped.reason}`);
+  for (let i = 0; i < FOLLOW_TRIES; i++) {
+    await new Promise((r) => setTimeout(r, 1_000));
+    const d = await api.get<Delivery>(`/deliveries/${enc(id)}`);
+    if (d.status === 'delivered') return 'delivered';
+    if (d.status === 'failed') throw new Error(`failed again: ${d.lastHttpStatus ?? ''} ${d.lastError ?? ''}`.trim());
+    if (d.status !== 'pending') return d.status;
+  }
+  return 'queued (still waiting for the sender)';
+}
+
 export const discardDelivery = (id: string, reason: string) => api.post<unknown>(`/deliveries/${enc(id)}/discard`, { reason });
 
 export function useInvalidateDeliveries() {

@@ -2,21 +2,20 @@ import { useState } from 'react';
 import { useMutation } from '@tanstack/react-query';
 import { errorMessage } from '@/lib/api-client';
 import { formatDateTime } from '@/lib/format';
-import { outcomeOf } from '@/lib/outcome';
 import { StatusBadge } from '@/components/ui/badge';
 import { Button } from '@/components/ui/button';
 import { ConfirmDialog, Dialog } from '@/components/ui/dialog';
 import { DefinitionList, JsonBlock } from '@/components/ui/page';
 import { ErrorState, LoadingState } from '@/components/ui/states';
 import { useToast } from '@/components/ui/toast';
-import { discardDelivery, retryDelivery, useDelivery, useInvalidateDeliveries } from '../api/deliveries';
+import { discardDelivery, requeueAndFollow, useDelivery, useInvalidateDeliveries } from '../api/deliveries';
 
 export function DeliveryDetailDialog({ id, onClose, canManage }: { id: string | null; onClose: () => void; canManage: boolean }) {
   const detail = useDelivery(id);
   const invalidate = useInvalidateDeliveries();
   const toast = useToast();
   const [discarding, setDiscarding] = useState(false);
-  const retry = useMutation({ mutationFn: retryDelivery, onSuccess: (r) => { toast.success(`Retry: ${outcomeOf(r) ?? 'sent'}`); invalidate(); }, onError: (e) => toast.error(errorMessage(e)) });
+  const retry = useMutation({ mutationFn: (did: string) => requeueAndFollow(did, 'retry'), onSuccess: (r) => { toast.success(`Retry: ${r}`); invalidate(); }, onError: (e) => { toast.error(`Retry: ${errorMessage(e)}`); invalidate(); } });
   const discard = useMutation({ mutationFn: ({ id: did, reason }: { id: string; reason: string }) => discardDelivery(did, reason), onSuccess: () => { toast.success('Delivery discarded'); setDiscarding(false); invalidate(); } });
   const d = detail.data;
   const open = d && (d.status === 'failed' || d.status === 'pending' || d.status === 'waiting-context');
@@ -33,7 +32,7 @@ export function DeliveryDetailDialog({ id, onClose, canManage }: { id: string | 
         {d && (
           <div className="flex flex-col gap-3">
             <DefinitionList items={[
-              ['Status', <StatusBadge key="s" status={d.status} />], ['Index', `${d.indexName} (${d.kind})`], ['Destination', d.destinationId],
+              ['Status', <StatusBadge key="s" status={d.status} />], ['Index', `${d.index} (${d.kind})`], ['Destination', d.destinationId],
               ['Patient', d.patientRef ?? '—'], ['Queued', formatDateTime(d.createdAt)], ['Delivered', formatDateTime(d.deliveredAt)],
               ['Next attempt', formatDateTime(d.nextAttemptAt)], ['Last error', d.lastError ?? '—'], ...(d.discardReason ? [['Discard reason', d.discardReason] as [string, string]] : []),
             ]} />

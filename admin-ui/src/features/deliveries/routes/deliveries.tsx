@@ -13,7 +13,7 @@ import { ConfirmDialog } from '@/components/ui/dialog';
 import { SelectField, TextField } from '@/components/ui/field';
 import { FilterBar, PageHeader } from '@/components/ui/page';
 import { useToast } from '@/components/ui/toast';
-import { discardDelivery, optionList, retryDelivery, useDeliveries, useDestinationOptions, useInvalidateDeliveries, type Delivery } from '../api/deliveries';
+import { discardDelivery, optionList, requeueAndFollow, useDeliveries, useDestinationOptions, useInvalidateDeliveries, type Delivery } from '../api/deliveries';
 import { DeliveryDetailDialog } from '../components/delivery-detail';
 
 const STATUSES = ['failed', 'pending', 'waiting-context', 'delivered', 'discarded', 'withheld'];
@@ -31,25 +31,27 @@ export function DeliveriesRoute({ destinations: destinationsPanel }: { destinati
   const manage = can('manageDeliveries');
   const [selected, setSelected] = useState<Set<string>>(new Set());
   const [open, setOpen] = useState<string | null>(null);
-  const [confirm, setConfirm] = useState<'retry' | 'discard' | null>(null);
-  const retry = useBulkAction<unknown>((id) => retryDelivery(id), outcomeOf);
+  const [confirm, setConfirm] = useState<'retry' | 'replay' | 'discard' | null>(null);
+  const retry = useBulkAction<string>((id) => requeueAndFollow(id, 'retry'), (r) => r);
+  const replay = useBulkAction<string>((id) => requeueAndFollow(id, 'replay'), (r) => r);
   const discard = useBulkAction<unknown, string>((id, reason) => discardDelivery(id, reason), outcomeOf);
   const destName = new Map(optionList(destinations.data).map((d) => [d.id, d.name]));
 
-  const runBulk = async (kind: 'retry' | 'discard', reason: string) => {
+  const runBulk = async (kind: 'retry' | 'replay' | 'discard', reason: string) => {
     const ids = [...selected];
     setConfirm(null);
     if (kind === 'retry') await retry.start(ids);
+    else if (kind === 'replay') await replay.start(ids);
     else await discard.start(ids, reason);
     setSelected(new Set());
     invalidate();
-    toast.info(`${kind === 'retry' ? 'Retry' : 'Discard'} finished for ${ids.length} item${ids.length === 1 ? '' : 's'}`);
+    toast.info(`${kind === 'retry' ? 'Retry' : kind === 'replay' ? 'Replay' : 'Discard'} finished for ${ids.length} item${ids.length === 1 ? '' : 's'}`);
   };
 
   const columns: Column<Delivery>[] = [
     { key: 'createdAt', header: 'Queued', sortField: 'createdAt', render: (d) => <span className="num whitespace-nowrap">{formatDateTime(d.createdAt)}</span> },
     { key: 'status', header: 'Status', sortField: 'status', render: (d) => <StatusBadge status={d.status} /> },
-    { key: 'index', header: 'Index', render: (d) => <span>{d.indexName}{d.kind === 'amend' ? <span className="text-xs text-muted"> (amend)</span> : null}</span> },
+    { key: 'index', header: 'Index', render: (d) => <span>{d.index}{d.kind === 'amend' ? <span className="text-xs text-muted"> (amend)</span> : null}</span> },
     { key: 'destination', header: 'Destination', render: (d) => destName.get(d.destinationId) ?? d.destinationId },
     { key: 'patient', header: 'Patient', render: (d) => d.patientRef ?? <span className="text-muted">—</span> },
     { key: 'attempts', header: 'Attempts', sortField: 'attemptCount', className: 'text-right', render: (d) => <span className="num">{d.attemptCount}</span> },
@@ -59,7 +61,7 @@ export function DeliveriesRoute({ destinations: destinationsPanel }: { destinati
   ];
 
   const clear = () => { list.clearFilters(); setFrom(''); setTo(''); };
-  const busy = retry.running || discard.running;
+  const busy = retry.running || replay.running || discard.running;
 
   return (
     <>
@@ -73,12 +75,14 @@ export function DeliveriesRoute({ destinations: destinationsPanel }: { destinati
         <TextField label="To" type="datetime-local" wrapClassName="w-48" value={to} onChange={(e) => { setTo(e.target.value); list.setFilter('to', localInputToIso(e.target.value)); }} />
         {manage && (
           <div className="ml-auto flex items-end gap-2 self-end">
-            <Button variant="primary" disabled={selected.size === 0} busy={retry.running} onClick={() => setConfirm('retry')}>Retry selected ({selected.size})</Button>
+            <Button variant="primary" disabled={selected.size === 0 || busy} busy={retry.running} onClick={() => setConfirm('retry')}>Retry selected ({selected.size})</Button>
+            <Button disabled={selected.size === 0 || busy} busy={replay.running} onClick={() => setConfirm('replay')} title="Rebuild with today's patient context, codes and settings, then send">Replay selected</Button>
             <Button variant="danger" disabled={selected.size === 0 || busy} busy={discard.running} onClick={() => setConfirm('discard')}>Discard selected…</Button>
           </div>
         )}
       </FilterBar>
       <BulkProgress title="Retry" items={retry.items} />
+      <BulkProgress title="Replay" items={replay.items} />
       <BulkProgress title="Discard" items={discard.items} />
       <DataTable caption="Deliveries" columns={columns} rows={deliveries.data?.items} total={deliveries.data?.total} rowId={(d) => d.id}
         params={list.params} onParamsChange={list.setParams} loading={deliveries.isPending} fetching={deliveries.isFetching} error={deliveries.error} onRetry={() => deliveries.refetch()}
@@ -87,6 +91,9 @@ export function DeliveriesRoute({ destinations: destinationsPanel }: { destinati
       <ConfirmDialog open={confirm === 'retry'} title="Retry deliveries" confirmLabel={`Retry ${selected.size}`}
         message={<>Send the {selected.size} selected Observation{selected.size === 1 ? '' : 's'} to the EHR again now. Each one's outcome is shown as it finishes.</>}
         onClose={() => setConfirm(null)} onConfirm={() => runBulk('retry', '')} />
+      <ConfirmDialog open={confirm === 'replay'} title="Replay deliveries" confirmLabel={`Replay ${selected.size}`}
+        message={<>Rebuild the {selected.size} selected Observation{selected.size === 1 ? '' : 's'} with the current patient context, codes and settings, and send again. The EHR sees the same identifier, so nothing is duplicated.</>}
+        onClose={() => setConfirm(null)} onConfirm={() => runBulk('replay', '')} />
       <ConfirmDialog open={confirm === 'discard'} title="Discard deliveries" danger confirmLabel={`Discard ${selected.size}`} reasonLabel="Reason (kept in the audit log)"
         message={<>The {selected.size} selected Observation{selected.size === 1 ? '' : 's'} will not be sent. The assessments stay stored.</>}
         onClose={() => setConfirm(null)} onConfirm={(reason) => runBulk('discard', reason)} />
