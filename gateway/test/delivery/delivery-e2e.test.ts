@@ -181,6 +181,42 @@ describe('delivery to the mock EHR', () => {
     expect((await admin.mail()).filter((m) => /rejects the configured credentials/.test(m.subject))).toHaveLength(1);
   });
 
+  it('failures past the threshold mail the on-call list once; an operator discards a failed message with a reason (audited)', async () => {
+    const adminUser = await gw.signIn('admin');
+    const current = (await adminUser.get('/api/v1/settings')).body;
+    expect((await adminUser.put('/api/v1/settings', { ...current, alerts: { ...current.alerts, destinationDownMinutes: 1, failureThreshold: 3 } })).status).toBe(200);
+    await new Promise((r) => setTimeout(r, 3_100)); // settings are re-read at most every 3 s
+    await admin.faults([{ scope: 'Observation', errorRate: 1, statusCodes: [400] }]);
+    const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'OR-02');
+    const a = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, 9, 55)));
+    await waitFor('all four failed', allSettled([a.id], ['failed']));
+    await admin.clearFaults();
+    await waitFor('failures alert mail', async () => (await admin.mail()).some((m) => /failed deliveries past the threshold/.test(m.subject)));
+    await new Promise((r) => setTimeout(r, 400));
+    expect((await admin.mail()).filter((m) => /failed deliveries past the threshold/.test(m.subject))).toHaveLength(1);
+
+    const operator = await gw.signIn('operator');
+    const [one] = await rowsOf([a.id]);
+    const res = await operator.post(`/api/v1/deliveries/${one!.id}/discard`, { reason: 'duplicate of a manual chart entry' });
+    expect(res.status).toBe(200);
+    expect(res.body).toMatchObject({ status: 'discarded', discardReason: 'duplicate of a manual chart entry' });
+    const audit = await adminUser.get(`/api/v1/audit?action=delivery.discard&entityId=${one!.id}`);
+    expect(audit.body.items).toHaveLength(1);
+    expect((await operator.post(`/api/v1/deliveries/${one!.id}/discard`, { reason: 'again' })).status).toBe(409);
+  });
+
+  it('readiness reports the EHR as a non-critical check: an EHR outage does not make the gateway unready', async () => {
+    const up = await fetch(`${gw.url}/readyz`).then((r) => r.json() as Promise<{ status: string; checks: { name: string; critical: boolean; ok: boolean }[] }>);
+    expect(up.checks.find((c) => c.name === 'ehr')).toEqual({ name: 'ehr', critical: false, ok: true });
+    await admin.faults([{ scope: 'metadata', errorRate: 1, statusCodes: [503] }]);
+    const res = await fetch(`${gw.url}/readyz`);
+    const down = (await res.json()) as typeof up;
+    await admin.clearFaults();
+    expect(res.status).toBe(200);
+    expect(down.status).toBe('ready');
+    expect(down.checks.find((c) => c.name === 'ehr')!.ok).toBe(false);
+  });
+
   it('the reviewer cannot retry and the operator cannot discard a delivered result', async () => {
     const reviewer = await gw.signIn('reviewer');
     expect((await reviewer.post('/api/v1/deliveries/retry', { ids: ['1'] })).status).toBe(403);
