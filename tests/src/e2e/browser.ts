@@ -1,16 +1,14 @@
 /**
- * Browser side of the end-to-end tests: Debian's Chromium driven by playwright-core (no browser
- * download), demo sign-ins read from config/demo/users.json, screenshots into artefacts/.
+ * Console helpers for the end-to-end tests: demo sign-ins read from config/demo/users.json (the
+ * one place the credentials live), navigation, full-page screenshots into artefacts/screenshots.
  */
-import { mkdirSync, mkdtempSync, readFileSync, rmSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { mkdirSync, readFileSync } from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { chromium, type BrowserContext, type Page } from 'playwright-core';
+import type { BrowserContext, Page } from 'playwright-core';
+import { launchBrowser, SCREENSHOT_DIR } from '../support/browser';
 
 export const repoRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../../..');
-export const SCREENSHOT_DIR = path.join(repoRoot, 'artefacts/screenshots');
-const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
 
 export type Role = 'admin' | 'integrator' | 'reviewer' | 'operator';
 interface DemoUser { username: string; password: string; roles: Role[]; displayName?: string }
@@ -26,24 +24,11 @@ export function demoUser(role: Role): DemoUser {
 
 export interface Browser { context: BrowserContext; page: Page; close(): Promise<void> }
 
-/** A fresh Chromium profile per call, laptop-sized viewport. */
+/** A fresh Chromium profile per call (the shared launcher), laptop-sized viewport. */
 export async function openBrowser(): Promise<Browser> {
-  const profile = mkdtempSync(path.join(tmpdir(), 'ebbgate-e2e-chromium-'));
-  const context = await chromium.launchPersistentContext(profile, {
-    executablePath: CHROMIUM,
-    headless: true,
-    viewport: { width: 1440, height: 900 },
-    args: ['--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
-  });
+  const { context, close } = await launchBrowser();
   const page = context.pages()[0] ?? (await context.newPage());
-  return {
-    context,
-    page,
-    close: async () => {
-      await context.close();
-      rmSync(profile, { recursive: true, force: true });
-    },
-  };
+  return { context, page, close };
 }
 
 /** Errors the page logs (CSP violations, uncaught exceptions), to assert there are none. */
