@@ -28,7 +28,10 @@ import { insertBedAndMonitor, storeAssessment } from '../../gateway/test/deliver
 
 const ASSESSMENTS = Number(process.env.BENCH_ASSESSMENTS ?? 300); // × 4 indices = Observations per run
 
-async function run(label: string, ds: DataSource, ehr: { fhirBaseUrl: string; tokenUrl: string }, delivery: Config['delivery'], minute: number): Promise<void> {
+// Windows inside the seeded encounters; each run has its own monitor, so runs may share times.
+const T0 = Date.now() - 3_600_000;
+
+async function run(label: string, ds: DataSource, ehr: { fhirBaseUrl: string; tokenUrl: string }, delivery: Config['delivery'], _run: number): Promise<void> {
   const codes = defaultCodeMap();
   const client = new EhrClient({ fhirBaseUrl: ehr.fhirBaseUrl, tokenUrl: ehr.tokenUrl, clientId: 'ebbgate-gateway', clientSecret: 'mock-ehr-dev-secret', requestTimeoutMs: 30_000 });
   const contexts = new PatientContextResolver(client, 300_000);
@@ -36,7 +39,7 @@ async function run(label: string, ds: DataSource, ehr: { fhirBaseUrl: string; to
   const worker = new DeliveryWorker(ds, new Map([[FHIR_DESTINATION_ID, handler]]), delivery, pino({ level: 'silent' }));
   const { bed, monitor } = await insertBedAndMonitor(ds, 'ICU-02');
   for (let i = 0; i < ASSESSMENTS; i++) {
-    const a = await storeAssessment(ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, minute, 0, 0) + i * 30_000), undefined, false);
+    const a = await storeAssessment(ds, { bedId: bed.id, monitorId: monitor.id }, new Date(T0 + i * 1000), undefined, false);
     await ds.transaction((m) => enqueueAssessment(m, a, [FHIR_DESTINATION_ID], codes, 'data-absent'));
   }
   const due = await ds.getRepository(DeliveryRow).countBy({ status: 'pending' });

@@ -34,7 +34,7 @@ export const deliveryConfigSchema = z.object({
     openSeconds: z.number().min(0.1).max(3600),
   }),
   patientContext: z.object({
-    /** Bed → patient answers are reused this long. */
+    /** Bed → patient answers are reused this long (short: a bed can change patients). */
     cacheSeconds: z.number().min(0).max(86_400),
     /** A result with no patient context is looked at again after this. */
     retrySeconds: z.number().min(0.1).max(86_400),

@@ -39,6 +39,13 @@ export interface PassReport {
   configurationError: string | null;
 }
 
+/** A result can be filed to an encounter only if its window started after the encounter did. */
+export function windowFitsEncounter(windowStart: Date, encounterStart: string | undefined): boolean {
+  if (!encounterStart) return true;
+  const t = Date.parse(encounterStart);
+  return !Number.isFinite(t) || windowStart.getTime() >= t;
+}
+
 export class FhirDestination {
   constructor(
     private readonly ds: DataSource,
@@ -115,6 +122,11 @@ export class FhirDestination {
     const context = await this.contexts.resolve(bed.locationIdentifier);
     if (!context) {
       this.waitForContext(report, row, `no patient context: no in-progress encounter at location ${bed.locationIdentifier}`);
+      return null;
+    }
+    if (!windowFitsEncounter(a.windowStart, context.encounterStart)) {
+      // Patient safety: a window from before this encounter began belongs to someone else.
+      this.waitForContext(report, row, `no patient context: the window (${a.windowStart.toISOString()}) is from before the current encounter at ${bed.locationIdentifier} began (${context.encounterStart})`);
       return null;
     }
     const monitor = maps.monitor.get(a.monitorId);

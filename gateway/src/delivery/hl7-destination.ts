@@ -14,7 +14,7 @@ import type { CodeMap, DeliveredIndex } from './code-map';
 import type { DeliveryConfig } from './delivery.config';
 import type { DeliveryRow } from './delivery.entities';
 import { errorText, type EhrClient } from './ehr-client';
-import type { DeliveryPolicy, PassReport } from './fhir-destination';
+import { windowFitsEncounter, type DeliveryPolicy, type PassReport } from './fhir-destination';
 import { buildObservation, enteredInErrorAmendment } from './observation-builder';
 import { buildOru } from './oru-message';
 import type { PatientContextResolver } from './patient-context';
@@ -65,7 +65,7 @@ export class Hl7Destination {
         const a = assessments.get(row.assessmentId)!;
         const bed = a.bedId ? await this.ds.getRepository(BedRow).findOneBy({ id: a.bedId }) : null;
         const context = bed ? await this.contexts.resolve(bed.locationIdentifier) : null;
-        if (!bed || !context) {
+        if (!bed || !context || !windowFitsEncounter(a.windowStart, context.encounterStart)) {
           report.results.push({ ...base, status: 'waiting-context', nextAttemptAt: new Date(Date.now() + this.cfg.patientContext.retrySeconds * 1000), countsAsTry: false, outcome: 'waiting-context', detail: 'no patient context', durationMs: 0 });
           continue;
         }

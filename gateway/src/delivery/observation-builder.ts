@@ -13,6 +13,8 @@ export interface PatientContext {
   patientId: string;
   encounterId: string;
   locationId: string;
+  /** Encounter.period.start, when the EHR gives it. */
+  encounterStart?: string;
 }
 
 export interface ObservationInput {

@@ -39,7 +39,8 @@ export class PatientContextResolver {
     const encounter = firstResource(await this.ehr.search('Encounter', { location: `Location/${locationId}`, status: 'in-progress' }));
     const subject = (encounter?.subject as { reference?: string } | undefined)?.reference;
     if (!encounter?.id || !subject?.startsWith('Patient/')) return null;
-    const value: PatientContext = { patientId: subject.slice('Patient/'.length), encounterId: String(encounter.id), locationId };
+    const start = (encounter.period as { start?: string } | undefined)?.start;
+    const value: PatientContext = { patientId: subject.slice('Patient/'.length), encounterId: String(encounter.id), locationId, ...(start ? { encounterStart: start } : {}) };
     if (this.ttlMs > 0) this.cache.set(locationIdentifier, { value, until: this.now() + this.ttlMs });
     return value;
   }

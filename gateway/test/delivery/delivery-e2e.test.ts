@@ -7,7 +7,7 @@ import { startMockEhr, type RunningMockEhr } from '@ebbgate/mock-ehr';
 import { DeliveryRow, DestinationRow } from '../../src/delivery/delivery.entities';
 import { FHIR_DESTINATION_ID } from '../../src/delivery/delivery.module';
 import { startTestGateway, type TestGateway } from '../support/harness';
-import { insertBedAndMonitor, markInError, mockAdmin, storeAssessment, waitFor, type MockAdmin } from './support';
+import { insertBedAndMonitor, markInError, mockAdmin, storeAssessment, waitFor, windowStart, type MockAdmin } from './support';
 
 let ehr: RunningMockEhr;
 let gw: TestGateway;
@@ -54,7 +54,7 @@ describe('delivery to the mock EHR', () => {
   it('delivers one Observation per index per assessment, with subject, encounter and one Device per monitor', async () => {
     const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'ICU-01');
     const a = [];
-    for (let i = 0; i < 3; i++) a.push(await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, 9, 0, 30 * i))));
+    for (let i = 0; i < 3; i++) a.push(await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, windowStart(i)));
     const rows = await waitFor('all delivered', allSettled(a.map((x) => x.id)));
     expect(rows).toHaveLength(12);
     const counts = await admin.observations();
@@ -70,7 +70,7 @@ describe('delivery to the mock EHR', () => {
     const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'ICU-02');
     await admin.faults([{ scope: 'Observation', errorRate: 1, statusCodes: [503, 502, 504], retryAfterSeconds: 0 }, { scope: 'all', timeoutRate: 0 }]);
     const a = [];
-    for (let i = 0; i < 5; i++) a.push(await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, 9, 10, 30 * i))));
+    for (let i = 0; i < 5; i++) a.push(await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, windowStart(i)));
     const down = await waitFor('destination down with an open circuit', async () => {
       const d = await gw.ctx.ds.getRepository(DestinationRow).findOneBy({ id: FHIR_DESTINATION_ID });
       return d?.downSince && d.circuitState !== 'closed' ? d : undefined;
@@ -100,7 +100,7 @@ describe('delivery to the mock EHR', () => {
   it('422 fails at once with the OperationOutcome kept; an operator sees it, retries it (audited) and it is delivered', async () => {
     const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'ICU-03');
     await admin.faults([{ scope: 'Observation', errorRate: 1, statusCodes: [422], remaining: 1 }]);
-    const a = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, 9, 20)));
+    const a = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, windowStart(0));
     await waitFor('three delivered, one failed', async () => {
       const rows = await rowsOf([a.id]);
       return rows.filter((r) => r.status === 'failed').length === 1 && rows.filter((r) => r.status === 'delivered').length === 3;
@@ -129,7 +129,7 @@ describe('delivery to the mock EHR', () => {
 
   it('a bed with no in-progress encounter waits as waiting-context (not failed) and is delivered once a patient is admitted', async () => {
     const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'ICU-05'); // empty in config/demo/hospital.json
-    const a = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, 9, 30)));
+    const a = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, windowStart(0));
     await waitFor('waiting-context', allSettled([a.id], ['waiting-context']));
     const token = await mockToken();
     const post = (type: string, body: object) =>
@@ -140,9 +140,18 @@ describe('delivery to the mock EHR', () => {
     expect((rows[0]!.payload as { subject: { reference: string } }).subject.reference).toBe(`Patient/${patient.id}`);
   });
 
+  it('a window from before the current encounter began is not filed to that patient (waits for context)', async () => {
+    const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'ICU-01');
+    // The mock's seeded encounters began three hours before it started; this window is older.
+    const a = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.now() - 6 * 3_600_000));
+    const rows = await waitFor('waiting-context', allSettled([a.id], ['waiting-context']));
+    expect(rows[0]!.lastError).toMatch(/before the current encounter/);
+    expect(rows.every((r) => r.payload === null)).toBe(true);
+  });
+
   it('marking a delivered result in error sends the amended resource with status entered-in-error', async () => {
     const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'ICU-04');
-    const a = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, 9, 40)));
+    const a = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, windowStart(0));
     const created = await waitFor('delivered', allSettled([a.id]));
     await markInError(gw.ctx.ds, a, 'reviewer', 'monitor was on the wrong patient');
     await waitFor('amendments delivered', async () => {
@@ -162,7 +171,7 @@ describe('delivery to the mock EHR', () => {
   it('403 marks the destination misconfigured and mails once; pause and resume are audited', async () => {
     await admin.faults([{ scope: 'Observation', errorRate: 1, statusCodes: [403] }]);
     const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'OR-01');
-    const a = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, 9, 50)));
+    const a = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, windowStart(0));
     await waitFor('configuration alert mail', async () => (await admin.mail()).some((m) => /rejects the configured credentials/.test(m.subject)));
     const operator = await gw.signIn('operator');
     const dests = await operator.get('/api/v1/destinations');
@@ -188,7 +197,7 @@ describe('delivery to the mock EHR', () => {
     await new Promise((r) => setTimeout(r, 3_100)); // settings are re-read at most every 3 s
     await admin.faults([{ scope: 'Observation', errorRate: 1, statusCodes: [400] }]);
     const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'OR-02');
-    const a = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, 9, 55)));
+    const a = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, windowStart(0));
     await waitFor('all four failed', allSettled([a.id], ['failed']));
     await admin.clearFaults();
     await waitFor('failures alert mail', async () => (await admin.mail()).some((m) => /failed deliveries past the threshold/.test(m.subject)));

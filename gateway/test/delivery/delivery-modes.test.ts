@@ -8,7 +8,7 @@ import { createDataSource } from '../../src/db/data-source';
 import { DeliveryAttemptRow, DeliveryRow } from '../../src/delivery/delivery.entities';
 import { buildDelivery, FHIR_DESTINATION_ID, HL7_DESTINATION_ID, type DeliveryParts } from '../../src/delivery/delivery.module';
 import { startTestGateway, type TestGateway } from '../support/harness';
-import { engineResult, insertBedAndMonitor, mockAdmin, storeAssessment, type MockAdmin } from './support';
+import { engineResult, insertBedAndMonitor, mockAdmin, storeAssessment, windowStart, type MockAdmin } from './support';
 
 let ehr: RunningMockEhr;
 let gw: TestGateway;
@@ -53,7 +53,7 @@ describe('delivery modes', () => {
   it('sends FHIR rows in transaction bundles and the same results as ORU^R01 over MLLP', async () => {
     const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'ICU-01');
     const a = [];
-    for (let i = 0; i < 5; i++) a.push(await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, 7, 0, 30 * i))));
+    for (let i = 0; i < 5; i++) a.push(await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, windowStart(i)));
     await drain(parts.worker);
     const rows = await rowsOf(a.map((x) => x.id));
     expect(rows).toHaveLength(40); // 5 assessments × 4 indices × 2 destinations
@@ -78,7 +78,7 @@ describe('delivery modes', () => {
   it('two workers on one outbox (SKIP LOCKED) never take the same row: one attempt each, no duplicate', async () => {
     const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'ICU-02');
     const a = [];
-    for (let i = 0; i < 10; i++) a.push(await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, 7, 30, 30 * i))));
+    for (let i = 0; i < 10; i++) a.push(await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, windowStart(i)));
     const ds2 = await createDataSource(gw.db.url, 4).initialize();
     try {
       const other = buildDelivery({ ...gw.ctx, ds: ds2 });
@@ -94,7 +94,7 @@ describe('delivery modes', () => {
 
   it('replay of delivered rows resends them and the EHR still holds each identifier once (conditional create)', async () => {
     const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'ICU-03');
-    const a = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, 7, 50)));
+    const a = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, windowStart(0));
     await drain(parts.worker);
     const fhir = (await rowsOf([a.id])).filter((r) => r.destinationId === FHIR_DESTINATION_ID);
     const operator = await gw.signIn('operator');
@@ -111,7 +111,7 @@ describe('delivery modes', () => {
 
   it('a reviewer marking a result in error through the API amends what was delivered; the assessment shows what was sent', async () => {
     const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'OR-02');
-    const a = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, 8, 10)));
+    const a = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, windowStart(0));
     await drain(parts.worker);
     const reviewer = await gw.signIn('reviewer');
     const detail = await reviewer.get(`/api/v1/assessments/${a.id}`);
@@ -143,8 +143,8 @@ describe('delivery modes', () => {
     const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'OR-03');
     const notValid = engineResult({ seed: 12, disturbances: [{ kind: 'spontaneous-breaths', count: 4 }] });
     expect(notValid.verdict).toBe('not-valid');
-    const bad = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, 8, 20)), notValid);
-    const good = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, 8, 21)));
+    const bad = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, windowStart(0), notValid);
+    const good = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, windowStart(2));
     await drain(parts.worker);
     const badRows = await rowsOf([bad.id]);
     // Indices the engine judged not valid (or could not compute) are withheld, never sent.
@@ -163,7 +163,7 @@ describe('delivery modes', () => {
     await admin.faults([{ scope: 'Bundle', errorRate: 1, statusCodes: [422], remaining: 1 }]);
     const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'ICU-04');
     const a = [];
-    for (let i = 0; i < 3; i++) a.push(await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, 8, 40, 30 * i))));
+    for (let i = 0; i < 3; i++) a.push(await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, windowStart(i)));
     await drain(parts.worker);
     await admin.clearFaults();
     const fhir = (await rowsOf(a.map((x) => x.id))).filter((r) => r.destinationId === FHIR_DESTINATION_ID);

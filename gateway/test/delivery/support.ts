@@ -61,6 +61,15 @@ export async function markInError(ds: DataSource, a: AssessmentRow, by: string, 
   });
 }
 
+/**
+ * Window starts for tests: an hour ago plus 30 s steps, so they fall inside the mock's seeded
+ * encounters (started three hours before it came up). Each test uses its own monitor.
+ */
+const T0 = Math.floor((Date.now() - 3_600_000) / 1000) * 1000;
+export function windowStart(i: number): Date {
+  return new Date(T0 + i * 30_000);
+}
+
 /** Polls until the check holds, at most `ms` (bounded wait, not a timed assertion). */
 export async function waitFor<T>(what: string, check: () => Promise<T | undefined | false>, ms = 20_000, every = 100): Promise<T> {
   const until = Date.now() + ms;

@@ -19,7 +19,7 @@ import { defaultCodeMap } from '../../../gateway/src/delivery/code-map';
 import { DeliveryRow } from '../../../gateway/src/delivery/delivery.entities';
 import { FHIR_DESTINATION_ID } from '../../../gateway/src/delivery/delivery.module';
 import { enqueueAssessment, syncDestinations } from '../../../gateway/src/delivery/outbox';
-import { insertBedAndMonitor, mockAdmin, storeAssessment, waitFor } from '../../../gateway/test/delivery/support';
+import { insertBedAndMonitor, mockAdmin, storeAssessment, waitFor, windowStart } from '../../../gateway/test/delivery/support';
 
 const ASSESSMENTS = 40;
 let ehr: RunningMockEhr;
@@ -65,7 +65,7 @@ beforeAll(async () => {
   const { bed, monitor } = await insertBedAndMonitor(ds, 'ICU-01');
   const codes = defaultCodeMap();
   for (let i = 0; i < ASSESSMENTS; i++) {
-    const a = await storeAssessment(ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.UTC(2026, 11, 1, 8, 0, 30 * i)), undefined, false);
+    const a = await storeAssessment(ds, { bedId: bed.id, monitorId: monitor.id }, windowStart(i), undefined, false);
     await ds.transaction((m) => enqueueAssessment(m, a, [FHIR_DESTINATION_ID], codes, 'data-absent'));
   }
 }, 120_000);
