@@ -34,7 +34,7 @@ export interface Capabilities {
 export function buildCapabilities(ctx: AppContext, _metrics: Metrics): Capabilities {
   const ingest = buildIngest(ctx);
   const analysis = buildAnalysis(ctx);
-  const delivery = buildDelivery(ctx);
+  const delivery = buildDelivery(ctx, _metrics);
   return {
     routers: [authRouter(ctx), usersRouter(ctx), auditRouter(ctx), settingsRouter(ctx), overviewRouter(ctx), devicesRouter(ctx), ...ingest.routers, ...analysis.routers, ...delivery.routers],
     rawBodyRouters: [...ingest.rawBodyRouters],

@@ -29,6 +29,8 @@ export class DeliveryWorker implements BackgroundService {
     private readonly handlers: Map<string, DestinationHandler>,
     private readonly cfg: DeliveryConfig,
     private readonly logger: Logger,
+    /** Told about every recorded pass (metrics). */
+    private readonly onPass?: (destinationId: string, report: PassReport) => void,
   ) {}
 
   async start(): Promise<void> {
@@ -84,6 +86,7 @@ export class DeliveryWorker implements BackgroundService {
       const report = await handler.process(rows);
       await recordAttempts(this.ds, report.results);
       await recordDestinationHealth(this.ds, d.id, report, this.cfg.circuit);
+      this.onPass?.(d.id, report);
       if (report.failed) this.logger.warn({ destination: d.id, failed: report.failed, error: report.lastError }, 'delivery attempts failed');
       await this.amendLateErrors(report);
     }

@@ -7,6 +7,7 @@ import type { AppContext } from '../app-context';
 import { deliveryStatusProviders, observationProviders, onAssessmentMarkedInError, onAssessmentStored } from '../assessments/events';
 import type { BackgroundService } from '../capabilities';
 import type { ReadinessCheck } from '../http/app';
+import type { Metrics } from '../http/metrics';
 import { getSiteSettings } from '../settings/settings.service';
 import { AlertWatcher } from './alert-watcher';
 import { defaultCodeMap, type CodeMap } from './code-map';
@@ -38,7 +39,7 @@ export function destinationSpecs(ctx: AppContext): DestinationSpec[] {
   return specs;
 }
 
-export function buildDelivery(ctx: AppContext, codes: CodeMap = defaultCodeMap()): DeliveryParts {
+export function buildDelivery(ctx: AppContext, metrics?: Metrics, codes: CodeMap = defaultCodeMap()): DeliveryParts {
   const cfg = ctx.config.delivery;
   const specs = destinationSpecs(ctx);
   let synced: Promise<void> | undefined;
@@ -65,7 +66,10 @@ export function buildDelivery(ctx: AppContext, codes: CodeMap = defaultCodeMap()
   const contexts = new PatientContextResolver(ehr, cfg.patientContext.cacheSeconds * 1000);
   const handlers = new Map<string, DestinationHandler>([[FHIR_DESTINATION_ID, new FhirDestination(ctx.ds, ehr, contexts, new DeviceSync(ehr, codes), codes, cfg, policy)]]);
   if (cfg.hl7.enabled) handlers.set(HL7_DESTINATION_ID, new Hl7Destination(ctx.ds, contexts, ehr, codes, cfg, policy));
-  const worker = new DeliveryWorker(ctx.ds, handlers, cfg, ctx.logger);
+  const attempts = metrics?.counter('ebbgate_delivery_attempts_total', 'Delivery attempts by destination and outcome', ['destination', 'outcome']);
+  const worker = new DeliveryWorker(ctx.ds, handlers, cfg, ctx.logger, (destination, report) => {
+    for (const r of report.results) attempts?.inc({ destination, outcome: r.outcome });
+  });
   const alerts = new AlertWatcher(ctx, async () => (await getSiteSettings(ctx)).alerts);
 
   const setup: BackgroundService = { name: 'delivery-destinations', start: () => ensureDestinations(), stop: async () => {} };

@@ -214,7 +214,7 @@ describe('delivery to the mock EHR', () => {
     expect((await operator.post(`/api/v1/deliveries/${one!.id}/discard`, { reason: 'again' })).status).toBe(409);
   });
 
-  it('readiness reports the EHR as a non-critical check: an EHR outage does not make the gateway unready', async () => {
+  it('readiness reports the EHR as a non-critical check (an EHR outage does not make the gateway unready); attempts are counted in /metrics', async () => {
     const up = await fetch(`${gw.url}/readyz`).then((r) => r.json() as Promise<{ status: string; checks: { name: string; critical: boolean; ok: boolean }[] }>);
     expect(up.checks.find((c) => c.name === 'ehr')).toEqual({ name: 'ehr', critical: false, ok: true });
     await admin.faults([{ scope: 'metadata', errorRate: 1, statusCodes: [503] }]);
@@ -224,6 +224,8 @@ describe('delivery to the mock EHR', () => {
     expect(res.status).toBe(200);
     expect(down.status).toBe('ready');
     expect(down.checks.find((c) => c.name === 'ehr')!.ok).toBe(false);
+    const metrics = await fetch(`${gw.url}/metrics`).then((r) => r.text());
+    expect(metrics).toMatch(/ebbgate_delivery_attempts_total\{destination="ehr-fhir",outcome="created"\} [1-9]/);
   });
 
   it('the reviewer cannot retry and the operator cannot discard a delivered result', async () => {
