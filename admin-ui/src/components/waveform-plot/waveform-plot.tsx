@@ -82,8 +82,8 @@ export function WaveformPlot({ waveform, analysis, width: fixedWidth }: Waveform
     const pleth = data.traces.find((t) => t.key === 'pleth');
     // Ticks only within a trace's own lane, so the shared plot area does not read as one scale.
     const inLane = (t: (typeof data.traces)[number]) => (_u: uPlot, splits: number[]) => splits.map((v) => (v >= t.extent[0] - 1e-9 && v <= t.extent[1] + 1e-9 ? v : null));
-    if (abp) axes.push({ scale: 'abp', stroke: COLORS.abp, grid: { show: false }, size: 50, label: displayUnit(abp.unit), labelSize: 14, filter: inLane(abp), space: 24 });
-    if (pleth) axes.push({ scale: 'pleth', side: 1, stroke: COLORS.pleth, grid: { show: false }, size: 50, label: pleth.unit === '1' ? 'pleth (a.u.)' : displayUnit(pleth.unit), labelSize: 14, filter: inLane(pleth), space: 18 });
+    if (abp) axes.push({ scale: 'abp', stroke: COLORS.abp, grid: { show: false }, size: 50, label: displayUnit(abp.unit), labelSize: 16, filter: inLane(abp), space: 24 });
+    if (pleth) axes.push({ scale: 'pleth', side: 1, stroke: COLORS.pleth, grid: { show: false }, size: 50, label: pleth.unit === '1' || pleth.unit === 'au' ? 'a.u.' : displayUnit(pleth.unit), labelSize: 16, filter: inLane(pleth), space: 18 });
     const opts: uPlot.Options = {
       width, height: HEIGHT, scales, series, axes,
       legend: { show: false },
@@ -144,7 +144,7 @@ export function WaveformPlot({ waveform, analysis, width: fixedWidth }: Waveform
       </div>
       <figcaption className="flex flex-wrap items-center gap-x-4 gap-y-1 text-xs text-muted">
         {data.traces.map((t) => (
-          <span key={t.key} className="inline-flex items-center gap-1"><svg width="18" height="6" aria-hidden><line x1="0" y1="3" x2="18" y2="3" stroke={COLORS[t.key]} strokeWidth="2" /></svg>{LABELS[t.key]} ({t.role}, {displayUnit(t.unit)}, {t.sampleRate} Hz)</span>
+          <span key={t.key} className="inline-flex items-center gap-1"><svg width="18" height="6" aria-hidden><line x1="0" y1="3" x2="18" y2="3" stroke={COLORS[t.key]} strokeWidth="2" /></svg>{LABELS[t.key]} ({t.role}, {displayUnit(t.unit) || 'a.u.'}, {t.sampleRate} Hz)</span>
         ))}
         <span className="inline-flex items-center gap-1"><span aria-hidden className="text-ink-900">▼</span>accepted beat</span>
         <span className="inline-flex items-center gap-1"><span aria-hidden className="font-bold text-notvalid">✕</span>rejected beat (hover or focus for reasons)</span>

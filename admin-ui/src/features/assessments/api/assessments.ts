@@ -1,5 +1,5 @@
 import { keepPreviousData, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
-import type { AssessmentSummary, Bed, Page } from '@ebbgate/shared';
+import type { AssessmentSummary, Bed, Delivery, Monitor, Page } from '@ebbgate/shared';
 import { asPage } from '@/lib/paging';
 import { api, type Query } from '@/lib/api-client';
 import type { AnalysisResult, Waveform } from '@/lib/analysis';
@@ -9,12 +9,11 @@ export const assessmentKeys = {
   list: (q: Query) => ['assessments', 'list', q] as const,
   detail: (id: string) => ['assessments', 'detail', id] as const,
   beds: ['assessments', 'bed-options'] as const,
+  monitor: (id: string) => ['assessments', 'monitor', id] as const,
 };
 
-/** One attempt to post an Observation to the EHR. */
-export interface DeliveryAttempt { at: string; httpStatus: number | null; outcome: string; response?: unknown }
-export interface ObservationDelivery { id?: string; destination?: string; destinationId?: string; status: string; attempts?: DeliveryAttempt[]; createdAt?: string; deliveredAt?: string | null; lastError?: string | null }
-export interface ObservationSent { index: string; resource: Record<string, unknown>; deliveries?: ObservationDelivery[] }
+/** One index's Observation as sent, and the outbox rows (shared Delivery) that carried it. */
+export interface ObservationSent { index: string; resource: Record<string, unknown> | null; deliveries?: Delivery[] }
 
 export interface AssessmentDetail {
   assessment: AssessmentSummary & {
@@ -45,4 +44,9 @@ export function useMarkInError(id: string) {
     mutationFn: (reason: string) => api.post<unknown>(`/assessments/${encodeURIComponent(id)}/mark-in-error`, { reason }),
     onSuccess: () => qc.invalidateQueries({ queryKey: assessmentKeys.all }),
   });
+}
+
+/** The monitor behind an assessment, for showing its identifier instead of an internal id. */
+export function useMonitorOf(id: string | undefined) {
+  return useQuery({ queryKey: assessmentKeys.monitor(id ?? ''), queryFn: ({ signal }) => api.get<Monitor>(`/monitors/${encodeURIComponent(id!)}`, undefined, signal), enabled: !!id, staleTime: 60_000 });
 }

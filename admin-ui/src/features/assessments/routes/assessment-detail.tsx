@@ -12,7 +12,7 @@ import { useToast } from '@/components/ui/toast';
 import { WaveformPlot } from '@/components/waveform-plot';
 import { IndicesPanel } from '@/components/analysis/indices-panel';
 import { CyclesTable } from '@/components/analysis/cycles-table';
-import { useAssessment, useMarkInError } from '../api/assessments';
+import { useAssessment, useBedOptions, useMarkInError, useMonitorOf } from '../api/assessments';
 import { ObservationsSent } from '../components/observations-sent';
 
 export function AssessmentDetailRoute() {
@@ -22,10 +22,12 @@ export function AssessmentDetailRoute() {
   const { can } = useAuth();
   const toast = useToast();
   const [confirming, setConfirming] = useState(false);
+  const monitor = useMonitorOf(detail.data?.assessment.monitorId);
 
   if (detail.isPending) return <LoadingState label="Loading assessment…" />;
   if (detail.error) return <ErrorState error={detail.error} onRetry={() => detail.refetch()} />;
   const { assessment: a, waveform, observations } = detail.data;
+  const patient = a.patientRef ?? observations.flatMap((o) => o.deliveries ?? []).find((d) => d.patientRef)?.patientRef ?? null;
 
   return (
     <>
@@ -41,14 +43,14 @@ export function AssessmentDetailRoute() {
       <div className="flex flex-col gap-3">
         <Panel title="Window">
           <DefinitionList items={[
-            ['Monitor', a.monitorId], ['Bed', a.bedId ?? 'unassigned'], ['Patient', a.patientRef ?? '—'],
+            ['Monitor', <span key="m" className="font-mono text-xs">{monitor.data?.identifier ?? a.monitorId}</span>], ['Bed', a.bedId ? <BedName key="b" id={a.bedId} /> : 'unassigned'], ['Patient', patient ?? '—'],
             ['Engine', a.engineVersion], ['EHR delivery', a.deliveryStatus ? <StatusBadge status={a.deliveryStatus} /> : '—'], ['Stored', formatDateTime(a.createdAt)],
           ]} />
         </Panel>
         <Panel title="Waveform of the stored window"><WaveformPlot waveform={waveform} analysis={a.result} /></Panel>
         <Panel title="Indices"><IndicesPanel analysis={a.result} /></Panel>
         <Panel title="Respiratory cycles"><CyclesTable analysis={a.result} /></Panel>
-        <Panel title="Sent to the EHR"><ObservationsSent observations={observations} /></Panel>
+        <Panel title="Sent to the EHR"><ObservationsSent observations={observations} attemptsLink={can('deliveries') ? `/deliveries?assessment=${encodeURIComponent(a.id)}` : undefined} /></Panel>
       </div>
       <ConfirmDialog open={confirming} title="Mark assessment in error" danger confirmLabel="Mark in error"
         message={<>The assessment stays stored but is shown as entered in error, and the Observations already in the EHR are amended to <code>entered-in-error</code>. This cannot be undone.</>}
@@ -57,4 +59,10 @@ export function AssessmentDetailRoute() {
         onConfirm={(reason) => mark.mutate(reason, { onSuccess: () => { setConfirming(false); toast.success('Marked in error; the EHR copy is being amended'); } })} />
     </>
   );
+}
+
+function BedName({ id }: { id: string }) {
+  const beds = useBedOptions();
+  const bed = beds.data?.items.find((b) => b.id === id);
+  return <>{bed ? `${bed.name} · ${bed.unit}` : id}</>;
 }

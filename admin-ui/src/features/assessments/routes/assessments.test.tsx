@@ -48,7 +48,7 @@ describe('assessment detail', () => {
     return gateway(roles, (c) => {
       if (c.url.pathname === '/api/v1/assessments/a1' && c.method === 'GET') {
         return { body: { assessment: { ...summary(1), verdict: 'questionable', enteredInErrorAt: null, enteredInErrorBy: null, enteredInErrorReason: null, result: analysis }, waveform,
-          observations: [{ index: 'ppv', resource: { resourceType: 'Observation', status: 'preliminary' }, deliveries: [{ id: 'd1', status: 'delivered', attempts: [{ at: '2026-12-01T21:01:02Z', httpStatus: 201, outcome: 'delivered' }] }] }] } };
+          observations: [{ index: 'ppv', resource: { resourceType: 'Observation', status: 'preliminary' }, deliveries: [{ id: 'd1', assessmentId: 'a1', destinationId: 'ehr-fhir', index: 'ppv', kind: 'create', status: 'delivered', identifier: 'a1-ppv', serverId: 'obs-1', patientRef: 'Patient/p1', tries: 1, attemptCount: 1, nextAttemptAt: '2026-12-01T21:01:02Z', lastHttpStatus: 201, lastError: null, discardReason: null, createdAt: '2026-12-01T21:01:01Z', updatedAt: '2026-12-01T21:01:02Z', deliveredAt: '2026-12-01T21:01:02Z' }] }] } };
       }
       if (c.url.pathname === '/api/v1/assessments/a1/mark-in-error') return { body: {} };
       return undefined;
@@ -61,7 +61,9 @@ describe('assessment detail', () => {
     renderApp(app, { route: '/assessments/a1' });
     expect(await screen.findByLabelText('FHIR resource for ppv')).toBeTruthy();
     expect(document.querySelectorAll('[data-mark="beat-rejected"]')).toHaveLength(1);
-    expect(within(screen.getByRole('table', { name: 'Delivery attempts' })).getByText('201')).toBeTruthy();
+    expect(within(screen.getByRole('table', { name: 'Deliveries of ppv' })).getByText('201')).toBeTruthy();
+    // An operator may open the deliveries list for every attempt.
+    expect(screen.getByRole('link', { name: /Every attempt/ }).getAttribute('href')).toBe('/deliveries?assessment=a1');
     expect(screen.getByTestId('cautions')).toBeTruthy();
     // Only reviewers may mark in error.
     expect(screen.queryByRole('button', { name: /Mark in error/ })).toBeNull();
