@@ -189,18 +189,22 @@ export async function recordDestinationHealth(
   await outboxTransaction(ds, async (m) => {
     const d = await m.getRepository(DestinationRow).createQueryBuilder('d').where('d.id = :id', { id: destinationId }).setLock('pessimistic_write').getOne();
     if (!d) return;
-    if (pass.answered > 0 && pass.failed === 0) {
-      Object.assign(d, { consecutiveFailures: 0, circuitState: 'closed', circuitOpenedAt: null, downSince: null, lastSuccessAt: now });
-      if (!pass.configurationError) d.configurationError = null;
+    if (pass.answered > 0) {
+      // It answered: not down. Failures in the same pass (an error rate) still count toward the circuit.
+      Object.assign(d, { consecutiveFailures: pass.failed, downSince: null, lastSuccessAt: now });
+      if (pass.failed === 0 || d.circuitState === 'half-open') Object.assign(d, { circuitState: 'closed', circuitOpenedAt: null });
+      if (!pass.configurationError && pass.failed === 0) d.configurationError = null;
     } else if (pass.failed > 0) {
       d.consecutiveFailures += pass.failed;
       d.downSince ??= now;
+    }
+    if (pass.failed > 0 && d.circuitState !== 'open' && (d.circuitState === 'half-open' ? pass.answered === 0 : d.consecutiveFailures >= circuit.failureThreshold)) {
+      d.circuitState = 'open';
+      d.circuitOpenedAt = now;
+    }
+    if (pass.failed > 0) {
       d.lastFailureAt = now;
       d.lastError = pass.lastError;
-      if (d.circuitState === 'half-open' || d.consecutiveFailures >= circuit.failureThreshold) {
-        d.circuitState = 'open';
-        d.circuitOpenedAt = now;
-      }
     }
     if (pass.configurationError) d.configurationError = pass.configurationError;
     d.updatedAt = now;

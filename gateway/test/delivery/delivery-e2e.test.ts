@@ -86,6 +86,9 @@ describe('delivery to the mock EHR', () => {
     const counts = await admin.observations();
     for (const r of rows) expect(counts.byIdentifier[IDENT + r.identifier]).toBe(1);
     expect(counts.duplicated).toEqual([]);
+    // Circuit breaker: a trial send in half-open succeeded, so it is closed and the destination up.
+    const healed = await gw.ctx.ds.getRepository(DestinationRow).findOneByOrFail({ id: FHIR_DESTINATION_ID });
+    expect([healed.circuitState, healed.downSince, healed.consecutiveFailures]).toEqual(['closed', null, 0]);
     await waitFor('the all-clear mail', async () => (await admin.mail()).some((m) => /^\[Ebbgate\] Cleared: .* was down/.test(m.subject)));
     // A few more checks pass: still one mail per incident.
     await new Promise((r) => setTimeout(r, 400));
