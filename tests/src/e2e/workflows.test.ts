@@ -190,3 +190,48 @@ describe('operator replays a failed delivery', () => {
     await screenshot(page, 'operator-assessment-detail');
   });
 });
+
+describe('reviewer and the screens with data', () => {
+  it('a reviewer marks an assessment in error with a reason; the detail then says so', async () => {
+    const { page, context } = browser;
+    await context.clearCookies();
+    await signIn(page, stack.gatewayUrl, 'reviewer');
+    await page.goto(`${stack.gatewayUrl}/assessments`);
+    const first = page.getByRole('table', { name: 'Assessments' }).getByRole('link').first();
+    await first.waitFor();
+    await screenshot(page, 'reviewer-assessments-with-data');
+    await first.click();
+    await page.getByRole('button', { name: 'Mark in error…' }).click();
+    const dialog = page.getByRole('dialog', { name: 'Mark assessment in error' });
+    await dialog.getByRole('button', { name: 'Mark in error' }).click();
+    await dialog.getByText('Give a reason (at least 3 characters)').waitFor();
+    await dialog.getByLabel(/Reason/).fill('E2E check: wrong bed assignment during the test');
+    await screenshot(page, 'reviewer-mark-in-error');
+    await dialog.getByRole('button', { name: 'Mark in error' }).click();
+    await page.getByText('Entered in error', { exact: true }).waitFor();
+    await screenshot(page, 'reviewer-assessment-entered-in-error');
+  });
+
+  it('overview, delivery detail and inbound detail show real data', async () => {
+    const { page, context } = browser;
+    await context.clearCookies();
+    await signIn(page, stack.gatewayUrl, 'operator');
+    await page.goto(`${stack.gatewayUrl}/`);
+    await page.getByRole('heading', { level: 1, name: 'Overview' }).waitFor();
+    const delivered = page.getByText('delivered', { exact: true }).first();
+    await delivered.waitFor();
+    await screenshot(page, 'operator-overview-with-data');
+
+    await page.goto(`${stack.gatewayUrl}/deliveries?status=delivered`);
+    await page.getByRole('button', { name: 'Details' }).first().click();
+    const detail = page.getByRole('dialog', { name: /^Delivery / });
+    await detail.getByRole('table', { name: 'Attempts' }).waitFor();
+    await screenshot(page, 'operator-delivery-detail');
+    await page.keyboard.press('Escape');
+
+    await page.goto(`${stack.gatewayUrl}/inbound?outcome=accepted`);
+    await page.getByRole('button', { name: 'Details' }).first().click();
+    await page.getByRole('dialog', { name: 'Inbound message' }).getByLabel('Raw message').waitFor();
+    await screenshot(page, 'operator-inbound-detail');
+  });
+});
