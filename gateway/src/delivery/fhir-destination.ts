@@ -39,6 +39,18 @@ export interface PassReport {
   configurationError: string | null;
 }
 
+/** FHIR R4 transaction Bundle of conditional creates (request.ifNoneExist on each identifier). */
+export function transactionBundle(codes: CodeMap, items: { resource: Observation; identifier: string }[]): Bundle {
+  return {
+    resourceType: 'Bundle',
+    type: 'transaction',
+    entry: items.map((p) => ({
+      resource: p.resource as unknown as Record<string, unknown>,
+      request: { method: 'POST', url: 'Observation', ifNoneExist: decodeURIComponent(ifNoneExistQuery({ system: codes.identifierSystems.observation, value: p.identifier })) },
+    })),
+  };
+}
+
 /** A result can be filed to an encounter only if its window started after the encounter did. */
 export function windowFitsEncounter(windowStart: Date, encounterStart: string | undefined): boolean {
   if (!encounterStart) return true;
@@ -180,14 +192,7 @@ export class FhirDestination {
 
   /** FHIR R4 transaction: all or nothing. A 400/422 for the whole bundle is retried entry by entry to find the bad one. */
   private async sendBundle(items: Prepared[], report: PassReport): Promise<void> {
-    const bundle: Bundle = {
-      resourceType: 'Bundle',
-      type: 'transaction',
-      entry: items.map((p) => ({
-        resource: p.payload as unknown as Record<string, unknown>,
-        request: { method: 'POST', url: 'Observation', ifNoneExist: decodeURIComponent(ifNoneExistQuery({ system: this.codes.identifierSystems.observation, value: p.row.identifier })) },
-      })),
-    };
+    const bundle = transactionBundle(this.codes, items.map((p) => ({ resource: p.payload, identifier: p.row.identifier })));
     const t0 = performance.now();
     const answer = await this.ehr.transaction(bundle);
     const ms = performance.now() - t0;

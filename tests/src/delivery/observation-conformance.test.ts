@@ -2,6 +2,8 @@ import { describe, expect, it } from 'vitest';
 import { DELIVERED_INDICES, defaultCodeMap } from '../../../gateway/src/delivery/code-map';
 import { buildObservation, enteredInErrorAmendment, type ObservationInput } from '../../../gateway/src/delivery/observation-builder';
 import type { Observation } from '../../../gateway/src/delivery/fhir-types';
+import { deviceResource } from '../../../gateway/src/delivery/device-sync';
+import { transactionBundle } from '../../../gateway/src/delivery/fhir-destination';
 import { scenarios } from './engine-results';
 import { failedInvariants, quantities, r4SchemaErrors, ucumStatus } from './fhir-conformance';
 
@@ -59,6 +61,20 @@ describe('Observations as posted conform to FHIR R4', () => {
     expect(amended.status).toBe('entered-in-error');
     expect(r4SchemaErrors(amended)).toEqual([]);
     expect(failedInvariants(amended)).toEqual([]);
+  });
+});
+
+describe('the other resources posted conform to FHIR R4 (JSON schema)', () => {
+  it('the Device per monitor', () => {
+    const d = deviceResource(codes, { identifier: '0123456789ABCDEF', manufacturer: 'Harrowmere Devices (invented)', model: 'HX-40', locationId: 'icu-01' });
+    expect(r4SchemaErrors(d)).toEqual([]);
+  });
+
+  it('the transaction Bundle of conditional creates', () => {
+    const b = transactionBundle(codes, all.slice(0, 5).map((o) => ({ resource: o.obs, identifier: o.obs.identifier[0]!.value! })));
+    expect(b.entry).toHaveLength(5);
+    expect(r4SchemaErrors(b)).toEqual([]);
+    expect(b.entry![0]!.request!.ifNoneExist).toBe(`identifier=urn:ebbgate:observation|${all[0]!.obs.identifier[0]!.value}`);
   });
 });
 
