@@ -5,13 +5,13 @@ import type { Permission } from '@/lib/authorization';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/states';
 
 export function RequireSession({ children }: { children: ReactNode }) {
-  const { session, loading, error } = useAuth();
+  const { session, loading, error, ended } = useAuth();
   const location = useLocation();
   if (loading) return <LoadingState label="Checking your session…" />;
   if (error) return <ErrorState error={error} onRetry={() => window.location.reload()} />;
   if (!session) {
     const next = encodeURIComponent(location.pathname + location.search);
-    return <Navigate to={`/sign-in?next=${next}`} replace />;
+    return <Navigate to={`/sign-in?next=${next}${ended ? '&ended=1' : ''}`} replace />;
   }
   return <>{children}</>;
 }

@@ -1,4 +1,4 @@
-import { createContext, useCallback, useContext, useEffect, useMemo, useRef, type ReactNode } from 'react';
+import { createContext, useCallback, useContext, useEffect, useMemo, useRef, useState, type ReactNode } from 'react';
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { Role, Session, SignIn } from '@ebbgate/shared';
 import { api, ApiError, onUnauthorized, setCsrfToken } from './api-client';
@@ -25,6 +25,8 @@ interface AuthValue {
   loading: boolean;
   error: unknown;
   roles: readonly Role[];
+  /** True after a session ended on its own (expiry, 401), so sign-in can say why it is shown. */
+  ended: boolean;
   can: (p: Permission) => boolean;
   signIn: ReturnType<typeof useSignIn>;
   signOut: () => Promise<void>;
@@ -49,19 +51,21 @@ export function AuthProvider({ children }: { children: ReactNode }) {
   const session = query.data ?? null;
   const signIn = useSignIn();
   const lastActivity = useRef(Date.now());
+  const [ended, setEnded] = useState(false);
 
   useEffect(() => {
     if (session) setCsrfToken(session.csrfToken);
   }, [session]);
 
-  const endSession = useCallback(() => {
+  const endSession = useCallback((byUser = false) => {
+    if (!byUser && qc.getQueryData(sessionKey)) setEnded(true);
     setCsrfToken(null);
     qc.setQueryData(sessionKey, null);
     // Nothing cached under the previous user may be shown to the next one.
     qc.removeQueries({ predicate: (q) => q.queryKey[0] !== 'auth' });
   }, [qc]);
 
-  useEffect(() => onUnauthorized(endSession), [endSession]);
+  useEffect(() => onUnauthorized(() => endSession()), [endSession]);
 
   useEffect(() => {
     const mark = () => { lastActivity.current = Date.now(); };
@@ -80,7 +84,7 @@ export function AuthProvider({ children }: { children: ReactNode }) {
     const wait = Math.max(1_000, expiresAt - Date.now() - RENEW_AHEAD_MS);
     const timer = window.setTimeout(async () => {
       if (Date.now() - lastActivity.current > IDLE_LIMIT_MS) {
-        window.setTimeout(endSession, Math.max(0, expiresAt - Date.now()));
+        window.setTimeout(() => endSession(), Math.max(0, expiresAt - Date.now()));
         return;
       }
       try {
@@ -98,14 +102,14 @@ export function AuthProvider({ children }: { children: ReactNode }) {
     try {
       await api.post('/auth/sign-out');
     } finally {
-      endSession();
+      endSession(true);
     }
   }, [endSession]);
 
   const value = useMemo<AuthValue>(() => {
     const roles = session?.user.roles ?? [];
-    return { session, loading: query.isPending, error: query.error, roles, can: (p) => can(roles, p), signIn, signOut };
-  }, [session, query.isPending, query.error, signIn, signOut]);
+    return { session, loading: query.isPending, error: query.error, roles, ended, can: (p) => can(roles, p), signIn, signOut };
+  }, [session, query.isPending, query.error, ended, signIn, signOut]);
 
   return <AuthContext.Provider value={value}>{children}</AuthContext.Provider>;
 }

@@ -23,6 +23,7 @@ export function SignInRoute() {
   const location = useLocation();
   const next = new URLSearchParams(location.search).get('next') ?? '/';
   const ended = new URLSearchParams(location.search).has('ended');
+  // The shell remembers that the previous session ran out; the address carries it across.
   const form = useForm<SignIn>({ resolver: zodResolver(signInSchema), defaultValues: { username: '', password: '' } });
 
   if (session) return <Navigate to={next.startsWith('/') ? next : '/'} replace />;
