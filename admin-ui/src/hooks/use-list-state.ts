@@ -1,4 +1,4 @@
-import { useCallback, useState } from 'react';
+import { useCallback, useEffect, useRef, useState } from 'react';
 import { useSearchParams } from 'react-router-dom';
 import { DEFAULT_LIST, cleanFilters, type Filters, type ListParams } from '@/lib/paging';
 
@@ -11,10 +11,21 @@ const PAGING_KEYS = new Set(['page', 'pageSize', 'sort', 'order']);
 export function useListState(initial: Partial<ListParams> = {}, initialFilters: Filters = {}) {
   const [search] = useSearchParams();
   const [params, setParams] = useState<ListParams>({ ...DEFAULT_LIST, ...initial });
-  const [filters, setFiltersRaw] = useState<Filters>(() => {
+  const fromAddress = () => {
     const fromUrl = Object.fromEntries([...search.entries()].filter(([k]) => !PAGING_KEYS.has(k)));
     return cleanFilters(Object.keys(fromUrl).length > 0 ? fromUrl : initialFilters);
-  });
+  };
+  const [filters, setFiltersRaw] = useState<Filters>(fromAddress);
+  // Following a link to the same screen with other filters (e.g. from a toast or a detail) applies them.
+  const address = search.toString();
+  const seen = useRef(address);
+  useEffect(() => {
+    if (seen.current === address) return;
+    seen.current = address;
+    setFiltersRaw(fromAddress());
+    setParams((p) => ({ ...p, page: 1 }));
+    // fromAddress reads `search`, which `address` stands for.
+  }, [address]);
   const setFilter = useCallback((key: string, value: string | undefined) => {
     setFiltersRaw((f) => cleanFilters({ ...f, [key]: value }));
     setParams((p) => ({ ...p, page: 1 }));

@@ -42,6 +42,17 @@ describe('assessments list', () => {
   });
 });
 
+describe('assessments list from a link', () => {
+  it('applies the filters in the address, as the overview links them', async () => {
+    const gw = gateway(['reviewer']);
+    renderApp(<Routes><Route path="/assessments" element={<AssessmentsRoute />} /></Routes>, { route: '/assessments?verdict=not-valid' });
+    await screen.findAllByText('HGH-1001');
+    const q = gw.calls.filter((c) => c.url.pathname === '/api/v1/assessments').at(-1)!.url.searchParams;
+    expect(q.get('verdict')).toBe('not-valid');
+    expect((screen.getByLabelText('Verdict') as HTMLSelectElement).value).toBe('not-valid');
+  });
+});
+
 describe('assessment detail', () => {
   function detailGateway(roles: string[]) {
     const { waveform, analysis } = fixtureWindow({ rejected: { 2: ['ectopic'] } });
