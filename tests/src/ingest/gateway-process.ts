@@ -1,0 +1,102 @@
+/**
+ * A gateway as its own OS process (`tsx gateway/src/main.ts`), configured only through the
+ * environment, for tests where several gateways share one database.
+ */
+import { spawn, type ChildProcess } from 'node:child_process';
+import net from 'node:net';
+import path from 'node:path';
+import { repoRoot } from '../../../gateway/src/config/load';
+
+export async function freePort(): Promise<number> {
+  return new Promise((resolve, reject) => {
+    const s = net.createServer();
+    s.once('error', reject);
+    s.listen(0, '127.0.0.1', () => {
+      const port = (s.address() as net.AddressInfo).port;
+      s.close(() => resolve(port));
+    });
+  });
+}
+
+export interface GatewayProcess {
+  url: string;
+  mllpPort: number | null;
+  child: ChildProcess;
+  output(): string;
+  stop(): Promise<void>;
+}
+
+export async function spawnGateway(opts: { databaseUrl: string; jwtSecret: string; mllp?: boolean; workers?: boolean; env?: Record<string, string> }): Promise<GatewayProcess> {
+  const port = await freePort();
+  const mllpPort = opts.mllp ? await freePort() : null;
+  const child = spawn(path.join(repoRoot, 'node_modules/.bin/tsx'), [path.join(repoRoot, 'gateway/src/main.ts')], {
+    cwd: repoRoot,
+    env: {
+      PATH: process.env.PATH ?? '',
+      HOME: process.env.HOME ?? '/tmp',
+      NODE_ENV: 'test',
+      DATABASE_URL: opts.databaseUrl,
+      EBBGATE_PORT: String(port),
+      EBBGATE_JWT_SECRET: opts.jwtSecret,
+      EBBGATE_MIGRATE_ON_START: 'true',
+      EBBGATE_SEED_DEMO: 'true',
+      EBBGATE_MLLP_ENABLED: opts.mllp ? 'true' : 'false',
+      EBBGATE_MLLP_PORT: String(mllpPort ?? 0),
+      EBBGATE_WORKERS: opts.workers === false ? 'false' : 'true',
+      EBBGATE_LOG_LEVEL: 'warn',
+      // Keep the delivery worker away from any real EHR port.
+      EBBGATE_EHR_FHIR_URL: 'http://127.0.0.1:9/fhir',
+      EBBGATE_EHR_TOKEN_URL: 'http://127.0.0.1:9/token',
+      ...opts.env,
+    },
+    stdio: ['ignore', 'pipe', 'pipe'],
+  });
+  let out = '';
+  child.stdout!.on('data', (d: Buffer) => (out = (out + d.toString()).slice(-20_000)));
+  child.stderr!.on('data', (d: Buffer) => (out = (out + d.toString()).slice(-20_000)));
+  const url = `http://127.0.0.1:${port}`;
+  const until = Date.now() + 60_000;
+  for (;;) {
+    if (child.exitCode !== null) throw new Error(`gateway exited with ${child.exitCode}:\n${out}`);
+    try {
+      const r = await fetch(`${url}/readyz`);
+      if (r.status === 200 || r.status === 503) break;
+    } catch {
+      // not listening yet
+    }
+    if (Date.now() > until) throw new Error(`gateway did not start:\n${out}`);
+    await new Promise((r) => setTimeout(r, 250));
+  }
+  return {
+    url,
+    mllpPort,
+    child,
+    output: () => out,
+    stop: () =>
+      new Promise<void>((resolve) => {
+        if (child.exitCode !== null) return resolve();
+        const force = setTimeout(() => child.kill('SIGKILL'), 15_000);
+        child.once('exit', () => {
+          clearTimeout(force);
+          resolve();
+        });
+        child.kill('SIGTERM');
+      }),
+  };
+}
+
+/** A signed-in person over plain fetch: session cookie plus the CSRF header on changes. */
+export async function signIn(url: string, username: string, password: string) {
+  const res = await fetch(`${url}/api/v1/auth/sign-in`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ username, password }) });
+  if (res.status !== 200) throw new Error(`sign-in ${res.status}: ${await res.text()}`);
+  const cookie = res.headers.getSetCookie().map((c) => c.split(';')[0]).join('; ');
+  const { csrfToken } = (await res.json()) as { csrfToken: string };
+  const call = async (method: string, p: string, body?: unknown) => {
+    const r = await fetch(`${url}/api/v1${p}`, { method, headers: { cookie, 'x-csrf-token': csrfToken, ...(body ? { 'content-type': 'application/json' } : {}) }, body: body ? JSON.stringify(body) : undefined });
+    const text = await r.text();
+    return { status: r.status, body: text ? (JSON.parse(text) as any) : undefined }; // eslint-disable-line @typescript-eslint/no-explicit-any
+  };
+  return { get: (p: string) => call('GET', p), post: (p: string, b?: unknown) => call('POST', p, b ?? {}), put: (p: string, b: unknown) => call('PUT', p, b), patch: (p: string, b: unknown) => call('PATCH', p, b) };
+}
+
+export const DEMO_INTEGRATOR = { username: 'ivo.integrator', password: 'Harrowmere-integrator-1' };
