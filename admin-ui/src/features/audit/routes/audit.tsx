@@ -10,7 +10,7 @@ import { SelectField, TextField } from '@/components/ui/field';
 import { FilterBar, JsonBlock, PageHeader, DefinitionList } from '@/components/ui/page';
 import { useAuditEntries } from '../api/audit';
 
-const ENTITY_TYPES = ['user', 'session', 'monitor', 'monitor-profile', 'bed', 'device-key', 'assessment', 'delivery', 'inbound-message', 'destination', 'settings'];
+const ENTITY_TYPES = ['user', 'monitor', 'monitor-profile', 'bed', 'assessment', 'delivery', 'destination', 'inbound-message', 'settings'];
 
 export function AuditRoute() {
   const list = useListState({ sort: 'at', order: 'desc' });
