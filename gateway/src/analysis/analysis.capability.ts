@@ -13,5 +13,5 @@ export interface AnalysisCapability {
 
 export function buildAnalysis(ctx: AppContext): AnalysisCapability {
   const worker = new AnalysisWorker(ctx);
-  return { worker, routers: [analysisRouter(ctx), assessmentsRouter(ctx)], services: [worker] };
+  return { worker, routers: [analysisRouter(ctx), assessmentsRouter(ctx)], services: ctx.config.analysis.workerEnabled ? [worker] : [] };
 }

@@ -36,6 +36,7 @@ const ENV_MAP: Record<string, { path: string; type: 'string' | 'number' | 'boole
   EBBGATE_ANALYSIS_STEP_SECONDS: { path: 'analysis.stepSeconds', type: 'number' },
   EBBGATE_ANALYSIS_POLL_MS: { path: 'analysis.pollMs', type: 'number' },
   EBBGATE_DB_POOL_SIZE: { path: 'database.poolSize', type: 'number' },
+  EBBGATE_ANALYSIS_WORKER: { path: 'analysis.workerEnabled', type: 'boolean' },
 };
 
 function setPath(target: Json, dotted: string, value: unknown): void {

@@ -64,6 +64,8 @@ export const configSchema = z.object({
     pollMs: z.number().int().min(10).max(60_000),
     /** Most windows one worker analyses per poll before yielding. */
     windowsPerPoll: z.number().int().min(1).max(1000),
+    /** Run the analysis worker in this process (with workers.enabled); off for ingest-only nodes. */
+    workerEnabled: z.boolean(),
     /** Upload limit of the test bench, bytes. */
     previewMaxBytes: z.number().int().min(1024).max(64 * 1024 * 1024),
   }),

@@ -1,0 +1,238 @@
+/**
+ * Benchmark: HTTP ingest batches/s with p50/p99 latency (autocannon) for 10-s, 2-channel, 125 Hz
+ * batches (base64 float32), beside a bare Node HTTP server that reads and parses the same body
+ * in the same run (ratio printed); MLLP PCD-01 messages/s; the gateway's resident memory under
+ * that load. The gateway runs as its own process (tsx gateway/src/main.ts) on a throwaway
+ * private MariaDB; the analysis worker is off (EBBGATE_ANALYSIS_WORKER=false) so the figures are ingest alone (analysis has its
+ * own benchmark). Prints figures only. Issue 4 floor: 400 batches/s with p99 < 100 ms; goal
+ * 1,000 batches/s, >= 30 % of the bare server, < 300 MB.
+ * Run: npm run bench:ingest   (BENCH_SECONDS, BENCH_CONNECTIONS, BENCH_MONITORS to change)
+ */
+import { spawn, type ChildProcess } from 'node:child_process';
+import { randomBytes } from 'node:crypto';
+import { readFileSync } from 'node:fs';
+import net from 'node:net';
+import { cpus, loadavg } from 'node:os';
+import autocannon from 'autocannon';
+import { encodeSamplesFloat32 } from '@ebbgate/shared';
+import { generateWindow } from '@ebbgate/shared/synthetic';
+import { startTestMariaDb } from '../../scripts/lib/test-mariadb';
+import { createTestDatabase } from '../../scripts/lib/test-database';
+import { repoRoot } from '../../gateway/src/config/load';
+import { corvaneProfile } from '../../gateway/test/devices/fixtures';
+import { buildPcd01 } from '../../gateway/test/ingest/pcd01-fixture';
+import { freePort, signIn, DEMO_INTEGRATOR } from '../src/ingest/gateway-process';
+
+const SECONDS = Number(process.env.BENCH_SECONDS ?? 10);
+const CONNECTIONS = Number(process.env.BENCH_CONNECTIONS ?? 20);
+const MONITORS = Number(process.env.BENCH_MONITORS ?? 200);
+const T0 = Date.parse('2026-11-30T00:00:00.000Z');
+
+const window = generateWindow({ seed: 1, durationSeconds: 10, heartRate: 80, respiratoryRate: 15, ppv: 12, channels: ['abp', 'paw'] });
+const abp64 = encodeSamplesFloat32(window.channels[0]!.samples).data;
+const paw64 = encodeSamplesFloat32(window.channels[1]!.samples).data;
+
+/** One batch body; only the ids and the start time change between requests. */
+function body(monitorId: string, seq: number): string {
+  return (
+    `{"monitorId":"${monitorId}","batchId":"bench-${seq}","startTime":"${new Date(T0 + seq * 10_000).toISOString()}",` +
+    `"channels":[{"code":"MDC_PRESS_BLD_ART_ABP","sampleRate":125,"unit":"mmHg","samples":{"encoding":"float32le-base64","data":"${abp64}"}},` +
+    `{"code":"MDC_PRESS_AWAY","sampleRate":125,"unit":"cmH2O","samples":{"encoding":"float32le-base64","data":"${paw64}"}}],` +
+    `"context":{"ventilationMode":"controlled","tidalVolumeMl":480}}`
+  );
+}
+
+function rssMb(pid: number): number {
+  const m = /VmRSS:\s+(\d+) kB/.exec(readFileSync(`/proc/${pid}/status`, 'utf8'));
+  return m ? Number(m[1]) / 1024 : Number.NaN;
+}
+
+async function waitHttp(url: string, child: ChildProcess, out: () => string): Promise<void> {
+  const until = Date.now() + 90_000;
+  for (;;) {
+    if (child.exitCode !== null) throw new Error(`process exited:\n${out()}`);
+    try {
+      await fetch(url);
+      return;
+    } catch {
+      if (Date.now() > until) throw new Error(`no answer from ${url}:\n${out()}`);
+      await new Promise((r) => setTimeout(r, 250));
+    }
+  }
+}
+
+function spawnLogged(cmd: string, args: string[], env: Record<string, string>) {
+  const child = spawn(cmd, args, { cwd: repoRoot, env: { PATH: process.env.PATH ?? '', HOME: process.env.HOME ?? '/tmp', ...env }, stdio: ['ignore', 'pipe', 'pipe'] });
+  let out = '';
+  child.stdout!.on('data', (d: Buffer) => (out = (out + d.toString()).slice(-10_000)));
+  child.stderr!.on('data', (d: Buffer) => (out = (out + d.toString()).slice(-10_000)));
+  return { child, out: () => out };
+}
+
+/** The bare peer: Node's http server reading the whole body and parsing it as JSON, answering 202. */
+const BARE_SERVER = `
+const http = require('node:http');
+http.createServer((req, res) => {
+  const chunks = [];
+  req.on('data', (c) => chunks.push(c));
+  req.on('end', () => {
+    try { JSON.parse(Buffer.concat(chunks).toString('utf8')); res.writeHead(202, { 'content-type': 'application/json' }); res.end('{"outcome":"accepted"}'); }
+    catch { res.writeHead(400); res.end(); }
+  });
+}).listen(Number(process.env.PORT), '127.0.0.1');
+`;
+
+interface Result {
+  rate: number;
+  p50: number;
+  p99: number;
+  non2xx: number;
+  errors: number;
+}
+
+async function cannon(url: string, keys: { identifier: string; apiKey: string }[], opts: { overallRate?: number; seqBase: number }): Promise<Result> {
+  let n = 0;
+  const seq = new Map<string, number>();
+  const r = await autocannon({
+    url: `${url}/api/v1/ingest/batches`,
+    method: 'POST',
+    connections: CONNECTIONS,
+    duration: SECONDS,
+    ...(opts.overallRate ? { overallRate: opts.overallRate } : {}),
+    headers: { 'content-type': 'application/json' },
+    requests: [
+      {
+        setupRequest: (req) => {
+          const k = keys[n++ % keys.length]!;
+          const s = (seq.get(k.identifier) ?? opts.seqBase) + 1;
+          seq.set(k.identifier, s);
+          return { ...req, headers: { ...req.headers, authorization: `Bearer ${k.apiKey}` }, body: body(k.identifier, s) };
+        },
+      },
+    ],
+  });
+  return { rate: r.requests.average, p50: r.latency.p50, p99: r.latency.p99, non2xx: r.non2xx, errors: r.errors };
+}
+
+const fmt = (r: Result) => `${r.rate.toFixed(0).padStart(6)} batches/s   p50 ${String(r.p50).padStart(4)} ms   p99 ${String(r.p99).padStart(4)} ms   non-2xx ${r.non2xx}   errors ${r.errors}`;
+
+/** MLLP: several connections, each sending PCD-01 messages one after another, waiting for each ACK. */
+async function mllpRate(port: number, identifiers: string[], seconds: number): Promise<{ rate: number; acks: Record<string, number> }> {
+  const until = Date.now() + seconds * 1000;
+  const counts: Record<string, number> = {};
+  let total = 0;
+  await Promise.all(
+    identifiers.map(
+      (identifier, c) =>
+        new Promise<void>((resolve, reject) => {
+          const socket = net.connect({ host: '127.0.0.1', port });
+          let buf = Buffer.alloc(0);
+          let i = 0;
+          const next = () => {
+            if (Date.now() > until) return socket.end(() => resolve());
+            const text = buildPcd01({ controlId: `mllp-${c}-${i}`, equipment: identifier, start: new Date(T0 + i * 10_000), waves: [{ code: '150036', refId: 'MDC_PRESS_BLD_ART_ABP', sampleRate: 125, samples: window.channels[0]!.samples }] });
+            i++;
+            socket.write(Buffer.concat([Buffer.from([0x0b]), Buffer.from(text), Buffer.from([0x1c, 0x0d])]));
+          };
+          socket.on('connect', next);
+          socket.on('error', reject);
+          socket.on('data', (d: Buffer) => {
+            buf = Buffer.concat([buf, d]);
+            const e = buf.indexOf(Buffer.from([0x1c, 0x0d]));
+            if (e < 0) return;
+            const ack = buf.subarray(1, e).toString();
+            buf = buf.subarray(e + 2);
+            const code = /\rMSA\|([A-Z]{2})/.exec(ack)?.[1] ?? '?';
+            counts[code] = (counts[code] ?? 0) + 1;
+            total++;
+            next();
+          });
+        }),
+    ),
+  );
+  return { rate: total / seconds, acks: counts };
+}
+
+async function main(): Promise<void> {
+  console.log(`ingest benchmark: ${cpus().length} cores, load average ${loadavg().map((l) => l.toFixed(2)).join(' ')}; ${SECONDS} s per run, ${CONNECTIONS} connections, ${MONITORS} monitors`);
+  let stopDb: (() => Promise<void>) | null = null;
+  if (!process.env.EBBGATE_TEST_ADMIN_URL) {
+    const { server, adminUrl } = await startTestMariaDb();
+    process.env.EBBGATE_TEST_ADMIN_URL = adminUrl;
+    stopDb = () => server.stop();
+  }
+  const db = await createTestDatabase();
+  const port = await freePort();
+  const mllpPort = await freePort();
+  // node --import tsx (not the tsx CLI, which forks) so the pid is the gateway's own, for its memory.
+  const gw = spawnLogged(process.execPath, ['--import', 'tsx', 'gateway/src/main.ts'], {
+    NODE_ENV: 'production' === process.env.BENCH_NODE_ENV ? 'production' : 'test',
+    DATABASE_URL: db.url,
+    EBBGATE_PORT: String(port),
+    EBBGATE_JWT_SECRET: randomBytes(32).toString('hex'),
+    EBBGATE_MIGRATE_ON_START: 'true',
+    EBBGATE_SEED_DEMO: 'true',
+    EBBGATE_MLLP_ENABLED: 'true',
+    EBBGATE_MLLP_PORT: String(mllpPort),
+    EBBGATE_WORKERS: 'true',
+    EBBGATE_ANALYSIS_WORKER: 'false',
+    EBBGATE_EHR_FHIR_URL: 'http://127.0.0.1:9/fhir',
+    EBBGATE_EHR_TOKEN_URL: 'http://127.0.0.1:9/token',
+    EBBGATE_LOG_LEVEL: 'warn',
+    EBBGATE_INGEST_BACKLOG_LIMIT: '100000000',
+    EBBGATE_DB_POOL_SIZE: '30',
+  });
+  const barePort = await freePort();
+  const bare = spawnLogged(process.execPath, ['-e', BARE_SERVER], { PORT: String(barePort) });
+  const gatewayUrl = `http://127.0.0.1:${port}`;
+  const bareUrl = `http://127.0.0.1:${barePort}`;
+  let peakRss = 0;
+  const sampler = setInterval(() => {
+    if (gw.child.pid && gw.child.exitCode === null) peakRss = Math.max(peakRss, rssMb(gw.child.pid));
+  }, 200);
+  try {
+    await waitHttp(`${gatewayUrl}/healthz`, gw.child, gw.out);
+    await waitHttp(bareUrl, bare.child, bare.out);
+    const integrator = await signIn(gatewayUrl, DEMO_INTEGRATOR.username, DEMO_INTEGRATOR.password);
+    const profile = await integrator.post('/profiles', corvaneProfile('Corvane bench'));
+    const keys: { identifier: string; apiKey: string }[] = [];
+    for (let i = 0; i < MONITORS; i++) {
+      const identifier = `BE0C${i.toString(16).toUpperCase().padStart(12, '0')}`;
+      const m = await integrator.post('/monitors', { identifier, profileId: profile.body.id });
+      keys.push({ identifier, apiKey: (await integrator.post(`/monitors/${m.body.id}/api-key`)).body.apiKey as string });
+    }
+    const bytes = Buffer.byteLength(body(keys[0]!.identifier, 1));
+    console.log(`batch body: ${bytes} bytes (2 channels × 1,250 float32 samples, base64)`);
+    const idleRss = rssMb(gw.child.pid!);
+    await cannon(gatewayUrl, keys, { seqBase: 0, overallRate: 100 }).catch(() => undefined); // warm-up (JIT, pools, key cache)
+    const bareMax = await cannon(bareUrl, keys, { seqBase: 0 });
+    const gwMax = await cannon(gatewayUrl, keys, { seqBase: 1_000_000 });
+    const floor = await cannon(gatewayUrl, keys, { seqBase: 2_000_000, overallRate: 400 });
+    const goal = await cannon(gatewayUrl, keys, { seqBase: 3_000_000, overallRate: 1000 });
+    console.log(`bare Node http server (max):   ${fmt(bareMax)}`);
+    console.log(`gateway ingest (max):          ${fmt(gwMax)}`);
+    console.log(`gateway at 400 batches/s:      ${fmt(floor)}`);
+    console.log(`gateway at 1,000 batches/s:    ${fmt(goal)}`);
+    console.log(`gateway / bare server: ${((gwMax.rate / bareMax.rate) * 100).toFixed(1)} % (goal >= 30 %)`);
+    const mllpIds = keys.slice(0, 8).map((k) => k.identifier);
+    const mllp = await mllpRate(mllpPort, mllpIds, SECONDS).catch((err: Error) => ({ rate: Number.NaN, acks: { error: err.message } as unknown as Record<string, number> }));
+    console.log(`MLLP PCD-01 (1 × 1,250-sample NA, 8 connections, ACK awaited): ${mllp.rate.toFixed(0)} messages/s, acks ${JSON.stringify(mllp.acks)}`);
+    console.log(`gateway resident memory: idle ${idleRss.toFixed(0)} MB, peak under load ${peakRss.toFixed(0)} MB (goal < 300 MB)`);
+    console.log(`load average after: ${loadavg().map((l) => l.toFixed(2)).join(' ')} (other work on the machine lowers every figure)`);
+  } finally {
+    clearInterval(sampler);
+    gw.child.kill('SIGTERM');
+    bare.child.kill('SIGTERM');
+    await new Promise((r) => setTimeout(r, 1500));
+    await db.drop().catch(() => undefined);
+    await stopDb?.();
+  }
+}
+
+main().then(
+  () => process.exit(0),
+  (err: unknown) => {
+    console.error(err);
+    process.exit(1);
+  },
+);
