@@ -36,8 +36,12 @@ describe('runDemoScenario', () => {
     });
     const faults: { method: string; body: string; at: number }[] = [];
     const ehr = await server((req, body, res) => {
-      if (req.url === '/_admin/faults') faults.push({ method: req.method!, body, at: Date.now() });
-      res.writeHead(req.method === 'DELETE' ? 204 : 200).end();
+      if (req.url !== '/_admin/faults') return void res.writeHead(404).end();
+      faults.push({ method: req.method!, body, at: Date.now() });
+      // The refusal rule is used up by the second look, as if Observations had arrived meanwhile.
+      const used = req.method === 'GET' && faults.filter((f) => f.method === 'GET').length >= 2;
+      if (req.method === 'DELETE') return void res.writeHead(204).end();
+      res.writeHead(200, { 'content-type': 'application/json' }).end(JSON.stringify({ rules: req.method === 'GET' && used ? [] : [{}] }));
     });
     const spoolDir = await mkdtemp(path.join(os.tmpdir(), 'ebbgate-demo-'));
     dirs.push(spoolDir);
@@ -46,7 +50,7 @@ describe('runDemoScenario', () => {
     const t0 = Date.now();
     const demo = runDemoScenario({ gatewayUrl: gw.url, mockEhrUrl: ehr.url, monitors, spoolDir, log: (m) => lines.push(m), ehrOutage: { atSeconds: 1, durationSeconds: 1 } });
     await demo.ready;
-    await new Promise((r) => setTimeout(r, 2600));
+    await new Promise((r) => setTimeout(r, 3200));
     await demo.stop();
     await gw.close();
     await ehr.close();
@@ -73,9 +77,13 @@ describe('runDemoScenario', () => {
     expect(odd[0].batch.channels.map((c) => c.code)).toContain('EBB_RESP_IMPEDANCE');
     expect(lines.some((l) => l.includes('refused') && l.includes('422'))).toBe(true);
 
-    expect(faults.map((f) => f.method)).toEqual(['PUT', 'DELETE']);
-    expect(JSON.parse(faults[0].body).rules[0]).toMatchObject({ scope: 'Observation', statusCodes: [422], remaining: 1 });
-    expect(faults[0].at - t0).toBeGreaterThanOrEqual(950);
-    expect(faults[1].at - faults[0].at).toBeGreaterThanOrEqual(950);
+    // Refusal phase, wait for the refusal to fire, outage phase, then cleared 1 s after it began.
+    const writes = faults.filter((f) => f.method !== 'GET');
+    expect(writes.map((f) => f.method)).toEqual(['PUT', 'PUT', 'DELETE']);
+    expect(JSON.parse(writes[0].body).rules).toEqual([{ scope: 'Observation', errorRate: 1, statusCodes: [422], remaining: 3 }]);
+    expect(JSON.parse(writes[1].body).rules[0]).toMatchObject({ scope: 'all', statusCodes: [503], retryAfterSeconds: 5 });
+    expect(faults.filter((f) => f.method === 'GET').length).toBeGreaterThanOrEqual(2);
+    expect(writes[0].at - t0).toBeGreaterThanOrEqual(950);
+    expect(writes[2].at - writes[1].at).toBeGreaterThanOrEqual(950);
   });
 });

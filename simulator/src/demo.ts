@@ -33,7 +33,7 @@ export interface DemoOptions {
   /** Seconds of past signal sent at start (default 60). */
   backfillSeconds?: number;
   /** EHR outage timing, or false for none (default: EHR_OUTAGE of the scenario catalogue). */
-  ehrOutage?: false | { atSeconds: number; durationSeconds: number };
+  ehrOutage?: false | { atSeconds: number; durationSeconds: number; refusalWaitSeconds?: number };
 }
 
 export interface RunningDemo {
@@ -72,7 +72,7 @@ export function runDemoScenario(opts: DemoOptions): RunningDemo {
   const apiKeys = new Map(opts.monitors.map((m) => [m.identifier, m.apiKey]));
   const timers: NodeJS.Timeout[] = [];
   let stopped = false;
-  let outageActive = false;
+  let faultsOn = false;
   let sender: BatchSender | null = null;
   const onEvent = eventLogger(log, scenarios);
 
@@ -90,9 +90,12 @@ export function runDemoScenario(opts: DemoOptions): RunningDemo {
     const outage = opts.ehrOutage === undefined ? EHR_OUTAGE : opts.ehrOutage;
     if (outage) {
       const begin = async () => {
-        await setFaults(true);
+        await putFaults(EHR_OUTAGE.refusalRules, 'EHR refuses the next Observation posts (mock EHR: 422)');
+        await refusalsUsed(outage.refusalWaitSeconds ?? EHR_OUTAGE.refusalWaitSeconds);
+        if (stopped) return;
+        await putFaults(EHR_OUTAGE.outageRules, 'EHR outage begins (mock EHR: 503 with Retry-After for everything)');
         // The outage lasts its full duration from the moment the faults are on.
-        timers.push(setTimeout(() => void setFaults(false).catch((e) => log(`could not end the EHR outage: ${String(e)}`)), outage.durationSeconds * 1000));
+        timers.push(setTimeout(() => void clearFaults().catch((e) => log(`could not end the EHR outage: ${String(e)}`)), outage.durationSeconds * 1000));
       };
       timers.push(setTimeout(() => void begin().catch((e) => log(`could not start the EHR outage: ${String(e)}`)), outage.atSeconds * 1000));
     }
@@ -113,15 +116,31 @@ export function runDemoScenario(opts: DemoOptions): RunningDemo {
     }
   }
 
-  async function setFaults(on: boolean): Promise<void> {
-    if (stopped && on) return;
-    const url = new URL('/_admin/faults', opts.mockEhrUrl).toString();
-    const res = on
-      ? await fetch(url, { method: 'PUT', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ rules: EHR_OUTAGE.rules }) })
-      : await fetch(url, { method: 'DELETE' });
-    if (!res.ok) throw new Error(`mock EHR answered ${res.status} to ${on ? 'PUT' : 'DELETE'} /_admin/faults`);
-    outageActive = on;
-    log(on ? 'EHR outage begins (mock EHR: one Observation refused with 422, then 503 for everything)' : 'EHR outage over (mock EHR faults cleared)');
+  const faultsUrl = new URL('/_admin/faults', opts.mockEhrUrl).toString();
+
+  async function putFaults(rules: readonly object[], message: string): Promise<void> {
+    if (stopped) return;
+    const res = await fetch(faultsUrl, { method: 'PUT', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ rules }) });
+    if (!res.ok) throw new Error(`mock EHR answered ${res.status} to PUT /_admin/faults`);
+    faultsOn = true;
+    log(message);
+  }
+
+  async function clearFaults(): Promise<void> {
+    const res = await fetch(faultsUrl, { method: 'DELETE' });
+    if (!res.ok) throw new Error(`mock EHR answered ${res.status} to DELETE /_admin/faults`);
+    faultsOn = false;
+    log('EHR outage over (mock EHR faults cleared)');
+  }
+
+  /** Waits until the refusal rule has used up its `remaining` faults (it then removes itself), at most `seconds`. */
+  async function refusalsUsed(seconds: number): Promise<void> {
+    const until = Date.now() + seconds * 1000;
+    while (!stopped && Date.now() < until) {
+      const view = (await (await fetch(faultsUrl)).json()) as { rules?: unknown[] };
+      if ((view.rules ?? []).length === 0) return;
+      await new Promise((r) => setTimeout(r, 250));
+    }
   }
 
   return {
@@ -131,7 +150,7 @@ export function runDemoScenario(opts: DemoOptions): RunningDemo {
       stopped = true;
       for (const t of timers) clearTimeout(t);
       await ready.catch(() => {});
-      if (outageActive) await setFaults(false).catch(() => {});
+      if (faultsOn) await clearFaults().catch(() => {});
       await sender?.close();
       log(`stopped (${sender?.pending() ?? 0} batches left in ${opts.spoolDir})`);
     },

@@ -123,16 +123,20 @@ export const SCENARIOS: Record<ScenarioId, Scenario> = {
 export const SCENARIO_IDS = Object.keys(SCENARIOS) as ScenarioId[];
 
 /**
- * EHR outage of the demo, through the mock EHR's fault admin API (PUT /_admin/faults): first one
- * Observation refused with 422 (a delivery the outbox marks failed at once), then every request
- * answered 503 with Retry-After until the faults are cleared (deliveries wait, retry and go through).
+ * EHR outage of the demo, through the mock EHR's fault admin API (PUT /_admin/faults). Two
+ * phases, because during a full outage the gateway never gets as far as posting an Observation
+ * (its token and patient-context requests fail first): first the EHR refuses the next Observation
+ * posts with 422 (deliveries the outbox marks failed at once); once those refusals have happened
+ * (the rule removes itself) or after `refusalWaitSeconds`, every request is answered 503 with Retry-After until the faults are
+ * cleared `durationSeconds` later (deliveries wait, retry and go through).
  */
 export const EHR_OUTAGE = {
-  atSeconds: 45,
-  durationSeconds: 75,
-  rules: [
-    { scope: 'Observation', errorRate: 1, statusCodes: [422], remaining: 1 },
-    { scope: 'all', errorRate: 1, statusCodes: [503], retryAfterSeconds: 5 },
-  ],
+  atSeconds: 40,
+  durationSeconds: 60,
+  refusalWaitSeconds: 20,
+  // Three refusals: a 422 on a transaction Bundle makes the gateway resend its entries one by one
+  // to find the bad one, so the first refusal may land on a Bundle and the next on a single post.
+  refusalRules: [{ scope: 'Observation', errorRate: 1, statusCodes: [422], remaining: 3 }],
+  outageRules: [{ scope: 'all', errorRate: 1, statusCodes: [503], retryAfterSeconds: 5 }],
   expect: 'one delivery failed with the EHR OperationOutcome; others pending and retried, delivered once the faults are cleared; an alert mail when the destination counts as down',
 } as const;
