@@ -165,7 +165,8 @@ async function main(): Promise<void> {
   const port = await freePort();
   const mllpPort = await freePort();
   // node --import tsx (not the tsx CLI, which forks) so the pid is the gateway's own, for its memory.
-  const gw = spawnLogged(process.execPath, ['--import', 'tsx', 'gateway/src/main.ts'], {
+  const profile = process.env.BENCH_CPU_PROF ? ['--cpu-prof', `--cpu-prof-dir=${process.env.BENCH_CPU_PROF}`] : [];
+  const gw = spawnLogged(process.execPath, [...profile, '--import', 'tsx', 'gateway/src/main.ts'], {
     NODE_ENV: 'production' === process.env.BENCH_NODE_ENV ? 'production' : 'test',
     DATABASE_URL: db.url,
     EBBGATE_PORT: String(port),

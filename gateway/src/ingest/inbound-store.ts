@@ -56,6 +56,17 @@ function contentHash(batch: ReceivedBatch, channels: MappedChannel[]): string {
   return h.digest('hex');
 }
 
+/**
+ * Runs a statement as a server-side prepared statement (mysql2 `execute`, binary protocol) on the
+ * query runner's connection: BLOB parameters travel as bytes instead of hex-escaped text, which
+ * halves what ingest sends to MariaDB and skips the string escaping (profiled hot spot).
+ */
+function exec<T = unknown>(qr: QueryRunner, sql: string, params: unknown[]): Promise<T> {
+  const conn = (qr as unknown as { databaseConnection?: { execute?: (sql: string, params: unknown[], cb: (err: Error | null, result: T) => void) => void } }).databaseConnection;
+  if (!conn?.execute) return qr.query(sql, params) as Promise<T>;
+  return new Promise<T>((resolve, reject) => conn.execute!(sql, params, (err, result) => (err ? reject(err) : resolve(result))));
+}
+
 const ms = (d: Date | string | null): number | null => (d === null ? null : new Date(d).getTime());
 
 export interface StoreRequest {
@@ -100,7 +111,7 @@ export async function storeBatch(ds: DataSource, req: StoreRequest, settings: St
 async function storeInTransaction(qr: QueryRunner, req: StoreRequest, hash: string, batchKey: string, settings: StreamSettings): Promise<StoredBatch> {
   const { batch, channels, monitor } = req;
   if (!channels.length) return storeWithoutWaveforms(qr, req, hash, batchKey);
-  const rows = (await qr.query('SELECT received_until, next_window_start FROM monitor WHERE id = ? FOR UPDATE', [monitor.id])) as { received_until: Date | null; next_window_start: Date | null }[];
+  const rows = (await exec(qr, 'SELECT received_until, next_window_start FROM monitor WHERE id = ? FOR UPDATE', [monitor.id])) as { received_until: Date | null; next_window_start: Date | null }[];
   const prevEnd = ms(rows[0]?.received_until ?? null);
   let next = ms(rows[0]?.next_window_start ?? null);
   const startMs = batch.startTime.getTime();
@@ -128,14 +139,14 @@ async function storeInTransaction(qr: QueryRunner, req: StoreRequest, hash: stri
   const contextJson = batch.context ? JSON.stringify(batch.context) : null;
   let messageId: string;
   if (req.reprocessOf) {
-    await qr.query(
+    await exec(qr,
       `UPDATE inbound_message SET outcome = 'reprocessed', reason = NULL, monitor_id = ?, batch_id = ?, batch_key = ?, content_hash = ?, batch_start = ?, context = ?,
        continuity = ?, continuity_ms = ?, handled_at = ?, handled_by = ? WHERE id = ?`,
       [monitor.id, batch.batchId, batchKey, hash, batch.startTime, contextJson, continuity, continuityMs, new Date(), req.handledBy ?? null, req.reprocessOf],
     );
     messageId = req.reprocessOf;
   } else {
-    const res = (await qr.query(
+    const res = (await exec(qr,
       `INSERT INTO inbound_message (received_at, transport, outcome, monitor_id, monitor_identifier, batch_id, batch_key, content_hash, size_bytes, raw, batch_start, context, continuity, continuity_ms)
        VALUES (?, ?, 'accepted', ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
       [req.receivedAt, req.transport, monitor.id, monitor.identifier, batch.batchId, batchKey, hash, req.raw.length, req.raw, batch.startTime, contextJson, continuity, continuityMs],
@@ -147,7 +158,7 @@ async function storeInTransaction(qr: QueryRunner, req: StoreRequest, hash: stri
   for (const c of channels) {
     values.push(monitor.id, messageId, c.code, c.role, c.unit, c.sampleRate, batch.startTime, new Date(startMs + (c.sampleCount / c.sampleRate) * 1000), c.sampleCount, c.gain, c.offset, c.samples);
   }
-  await qr.query(
+  await exec(qr,
     `INSERT INTO waveform_segment (monitor_id, inbound_message_id, channel_code, role, unit, sample_rate, start_time, end_time, sample_count, gain, value_offset, samples)
      VALUES ${channels.map(() => '(?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)').join(', ')}`,
     values,
@@ -156,14 +167,14 @@ async function storeInTransaction(qr: QueryRunner, req: StoreRequest, hash: stri
     const now = new Date();
     const w: unknown[] = [];
     for (const s of starts) w.push(monitor.id, new Date(s), new Date(s + windowMs), ENGINE_VERSION, now);
-    await qr.query(
+    await exec(qr,
       `INSERT IGNORE INTO analysis_window (monitor_id, window_start, window_end, engine_version, status, attempts, created_at)
        VALUES ${starts.map(() => "(?, ?, ?, ?, 'due', 0, ?)").join(', ')}`,
       w,
     );
   }
   const totalSamples = channels.reduce((a, c) => a + c.sampleCount, 0);
-  await qr.query('UPDATE monitor SET last_seen_at = ?, data_rate = ?, received_until = ?, next_window_start = ? WHERE id = ?', [
+  await exec(qr, 'UPDATE monitor SET last_seen_at = ?, data_rate = ?, received_until = ?, next_window_start = ? WHERE id = ?', [
     req.receivedAt,
     durationMs > 0 ? totalSamples / (durationMs / 1000) : null,
     new Date(coveredUntil),
