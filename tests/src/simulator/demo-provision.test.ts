@@ -20,7 +20,7 @@ let mllpPort: number;
 beforeAll(async () => {
   mllpPort = await freePort();
   gw = await startTestGateway(
-    { ehr: { fhirBaseUrl: 'http://127.0.0.1:9/fhir', tokenUrl: 'http://127.0.0.1:9/oauth/token' }, mllp: { enabled: true, host: '127.0.0.1', port: mllpPort } },
+    { ehr: { fhirBaseUrl: 'http://127.0.0.1:9/fhir', tokenUrl: 'http://127.0.0.1:9/oauth/token' }, delivery: { alerts: { enabled: false } }, mail: { smtpPort: 9 }, mllp: { enabled: true, host: '127.0.0.1', port: mllpPort } },
     { services: true },
   );
   dir = await mkdtemp(path.join(os.tmpdir(), 'ebbgate-e2e-provision-'));

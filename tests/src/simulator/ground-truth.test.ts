@@ -47,6 +47,8 @@ beforeAll(async () => {
     {
       // No EHR in this test: point delivery at a closed port so nothing reaches anyone's mock EHR.
       ehr: { fhirBaseUrl: 'http://127.0.0.1:9/fhir', tokenUrl: 'http://127.0.0.1:9/oauth/token' },
+      delivery: { alerts: { enabled: false } },
+      mail: { smtpPort: 9 },
       mllp: { enabled: true, host: '127.0.0.1', port: mllpPort },
       analysis: { windowSeconds: 30, stepSeconds: 10, pollMs: 100 },
     },
