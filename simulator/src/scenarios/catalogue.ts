@@ -40,7 +40,7 @@ export const SCENARIOS: Record<ScenarioId, Scenario> = {
     ventilator: controlled(16, 8),
     channels: [...standardChannels],
     disturbancesPerMinute: [{ kind: 'irregular-rhythm', variability: 0.3 }],
-    expect: { outcome: 'assessed', verdict: 'not-valid', flags: ['irregular-rhythm'], absentFlags: ['spontaneous-breathing'], ppvRecovered: false, reading: 'Arrhythmia gives false-high variation: not valid.' },
+    expect: { outcome: 'assessed', verdict: 'not-valid', flags: ['irregular-rhythm'], flagDirections: { 'irregular-rhythm': 'false-high' }, absentFlags: ['spontaneous-breathing'], ppvRecovered: false, reading: 'Arrhythmia gives false-high variation: not valid.' },
   },
   'spontaneous-breathing': {
     id: 'spontaneous-breathing',
@@ -50,7 +50,7 @@ export const SCENARIOS: Record<ScenarioId, Scenario> = {
     ventilator: controlled(14, 8),
     channels: [...standardChannels],
     disturbancesPerMinute: [{ kind: 'spontaneous-breaths', count: 4 }],
-    expect: { outcome: 'assessed', verdict: 'not-valid', flags: ['spontaneous-breathing'], absentFlags: ['irregular-rhythm'], ppvRecovered: false, reading: 'Patient effort gives false-high variation: not valid.' },
+    expect: { outcome: 'assessed', verdict: 'not-valid', flags: ['spontaneous-breathing'], flagDirections: { 'spontaneous-breathing': 'false-high' }, absentFlags: ['irregular-rhythm'], ppvRecovered: false, reading: 'Patient effort gives false-high variation: not valid.' },
   },
   'motion-artefact': {
     id: 'motion-artefact',
@@ -73,7 +73,7 @@ export const SCENARIOS: Record<ScenarioId, Scenario> = {
     ventilator: controlled(14, 8),
     channels: [...standardChannels],
     disturbancesPerMinute: [{ kind: 'damping', cutoffHz: 3 }],
-    expect: { outcome: 'assessed', verdict: 'questionable', flags: ['arterial-damped'], absentFlags: ['irregular-rhythm', 'spontaneous-breathing'], ppvRecovered: false, reading: 'Damped line gives false-low variation: questionable.' },
+    expect: { outcome: 'assessed', verdict: 'questionable', flags: ['arterial-damped'], flagDirections: { 'arterial-damped': 'false-low' }, absentFlags: ['irregular-rhythm', 'spontaneous-breathing'], ppvRecovered: false, reading: 'Damped line gives false-low variation: questionable.' },
   },
   'vasopressor-finger-probe': {
     id: 'vasopressor-finger-probe',
@@ -105,7 +105,7 @@ export const SCENARIOS: Record<ScenarioId, Scenario> = {
     ventilator: controlled(22, 5),
     channels: [...standardChannels],
     disturbancesPerMinute: [],
-    expect: { outcome: 'assessed', verdict: 'not-valid', flags: ['tidal-volume-low'], absentFlags: ['irregular-rhythm', 'spontaneous-breathing'], ppvRecovered: true, reading: 'Tidal volume < 8 mL/kg PBW gives false-low variation: not valid.' },
+    expect: { outcome: 'assessed', verdict: 'not-valid', flags: ['tidal-volume-low'], flagDirections: { 'tidal-volume-low': 'false-low' }, absentFlags: ['irregular-rhythm', 'spontaneous-breathing'], ppvRecovered: true, reading: 'Tidal volume < 8 mL/kg PBW gives false-low variation: not valid.' },
   },
   'unmapped-channel': {
     id: 'unmapped-channel',

@@ -23,6 +23,10 @@ export function checkWindow(result: Pick<AnalysisResult, 'verdict' | 'flags' | '
   if (expect.verdict && result.verdict !== expect.verdict) problems.push(`verdict ${result.verdict}, expected ${expect.verdict}`);
   for (const f of expect.flags) if (!codes.has(f)) problems.push(`flag ${f} missing`);
   for (const f of expect.absentFlags) if (codes.has(f)) problems.push(`flag ${f} present`);
+  for (const [code, direction] of Object.entries(expect.flagDirections ?? {})) {
+    const f = result.flags.find((x) => x.code === code);
+    if (f && f.direction !== direction) problems.push(`flag ${code} says ${f.direction ?? 'no direction'}, expected ${direction}`);
+  }
   for (const [index, v] of Object.entries(expect.indexVerdicts ?? {})) {
     const got = result.indexVerdicts[index as keyof typeof result.indexVerdicts];
     if (got !== v) problems.push(`${index} verdict ${got ?? result.verdict}, expected ${v}`);

@@ -46,6 +46,8 @@ export interface ScenarioExpectation {
   flags: FlagCode[];
   /** Flags no window may carry (the scenario is clean in these respects). */
   absentFlags: FlagCode[];
+  /** Likely direction of the error each expected flag must state (Ann Intensive Care 2016, doi 10.1186/s13613-016-0216-7). */
+  flagDirections?: Partial<Record<FlagCode, 'false-high' | 'false-low'>>;
   /** Per-index verdicts that differ from the window verdict. */
   indexVerdicts?: Partial<Record<'ppv' | 'deltaPop', Verdict>>;
   /** Whether the window PPV must match the generator's truth within the engine tolerance (±1 point). */
