@@ -173,8 +173,17 @@ export async function recordAttempts(ds: DataSource, results: AttemptResult[]): 
         detail: r.detail, response: (r.response ?? null) as object | null, mode: r.mode,
       })),
     );
-    await bulkUpdate(m, results.filter((r) => r.status === 'delivered'), at, false);
+    const delivered = results.filter((r) => r.status === 'delivered');
+    await bulkUpdate(m, delivered, at, false);
     await bulkUpdate(m, results.filter((r) => r.status !== 'delivered'), at, true);
+    // The patient the EHR filed it under is shown (and filtered on) with the assessment itself.
+    const filed = delivered.filter((r) => r.patientRef).map((r) => r.row.id);
+    if (filed.length) {
+      await m.query(
+        'UPDATE assessment a JOIN delivery d ON d.assessment_id = a.id SET a.patient_ref = d.patient_ref WHERE d.id IN (?) AND d.patient_ref IS NOT NULL AND (a.patient_ref IS NULL OR a.patient_ref <> d.patient_ref)',
+        [filed],
+      );
+    }
   });
 }
 

@@ -64,6 +64,9 @@ describe('delivery to the mock EHR', () => {
     expect(obs.subject.reference).toBe('Patient/patient-hgh-400117');
     expect(obs.encounter.reference).toBe('Encounter/enc-icu-01');
     expect(new Set(rows.map((r) => (r.payload as { device: { reference: string } }).device.reference)).size).toBe(1);
+    // The assessment shows the patient the EHR filed it under.
+    const stored = (await gw.ctx.ds.query('SELECT patient_ref FROM assessment WHERE id IN (?)', [a.map((x) => x.id)])) as { patient_ref: string }[];
+    expect(stored.map((r) => r.patient_ref)).toEqual(['Patient/patient-hgh-400117', 'Patient/patient-hgh-400117', 'Patient/patient-hgh-400117']);
   });
 
   it('outage → backlog → recovery: every result delivered exactly once, one alert mail and one all-clear', async () => {
