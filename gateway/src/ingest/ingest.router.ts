@@ -73,6 +73,40 @@ function rawBody(ctx: AppContext): RequestHandler {
   };
 }
 
+/**
+ * Lets an authentication failure through to the body reader, so a batch sent with an unknown,
+ * revoked or missing key is still kept (as rejected) before the 401 goes out.
+ */
+function authenticateKeepingFailures(ctx: AppContext): RequestHandler {
+  const auth = authenticate(ctx);
+  return (req, res, next) =>
+    auth(req, res, (err?: unknown) => {
+      if (err instanceof HttpProblem && err.status === 401) {
+        res.locals.authFailure = err;
+        return next();
+      }
+      next(err);
+    });
+}
+
+/** Keeps whatever a caller without a device key sent, then refuses it (401, or 403 for a person). */
+function keepRefusedCallers(ctx: AppContext): RequestHandler {
+  return (req, res, next) => {
+    if (req.principal?.kind === 'device') return next();
+    const failure = res.locals.authFailure as HttpProblem | undefined;
+    const raw = Buffer.isBuffer(req.body) ? req.body : Buffer.alloc(0);
+    const reason = failure
+      ? `${failure.detail ?? failure.title} Not processed.`
+      : req.principal
+        ? 'Sent by a signed-in person, not a monitor API key. Not processed.'
+        : 'No monitor API key (Authorization: Bearer). Not processed.';
+    recordInbound(ctx.ds, { transport: 'http', receivedAt: new Date(), outcome: 'rejected', reason, raw, sizeBytes: raw.length, monitorId: null, monitorIdentifier: null }).then(
+      () => next(failure),
+      (recordErr: unknown) => next(recordErr),
+    );
+  };
+}
+
 /** POST /ingest/batches: mounted before the JSON parser (see Capabilities.rawBodyRouters). */
 export function ingestRouter(ctx: AppContext, service: IngestService): Router {
   const router = Router();
@@ -84,7 +118,7 @@ export function ingestRouter(ctx: AppContext, service: IngestService): Router {
     summary:
       'Send one waveform batch (IngestBatch: monitorId, batchId, startTime, channels, context) with the monitor API key. 202 stored, 200 repeat of the same batch, 409 same batch id with other content, 400/422 kept in quarantine, 413 too large, 429 backlog full (Retry-After).',
     // Cookies are parsed so a signed-in person gets 403 (wrong role) rather than 401.
-    before: [cookieParser(), authenticate(ctx), rawBody(ctx)],
+    before: [cookieParser(), authenticateKeepingFailures(ctx), rawBody(ctx), keepRefusedCallers(ctx)],
     bodyType: 'application/json',
     response: ingestReceiptSchema,
     handler: async ({ req, res, principal }) => {
