@@ -1,22 +1,31 @@
 import { randomUUID } from 'node:crypto';
-import { IsNull, Not, type DataSource } from 'typeorm';
-import type { Bed, BedInput } from '@ebbgate/shared';
+import { In, type DataSource } from 'typeorm';
+import type { Bed, BedInput, BedQuery, Page } from '@ebbgate/shared';
 import { recordAudit } from '../audit/audit.service';
 import { conflict, notFound } from '../http/problem';
 import { isDuplicateKey, type ChangeBy } from './change-context';
 import { BedRow, MonitorRow } from './device.entities';
 import { forgetDevices } from './device-cache';
+import { likePattern, orderAndPage } from './device-paging';
 import { toBed } from './device-views';
 
-async function monitorsByBed(ds: DataSource): Promise<Map<string, string>> {
-  const rows = await ds.getRepository(MonitorRow).find({ where: { bedId: Not(IsNull()) }, select: { id: true, bedId: true } });
+/** The monitor on each of the given beds (a bed holds at most one). */
+async function monitorsByBed(ds: DataSource, bedIds: string[]): Promise<Map<string, string>> {
+  if (!bedIds.length) return new Map();
+  const rows = await ds.getRepository(MonitorRow).find({ where: { bedId: In(bedIds) }, select: { id: true, bedId: true } });
   return new Map(rows.map((r) => [r.bedId as string, r.id]));
 }
 
-export async function listBeds(ds: DataSource, q: { unit?: string }): Promise<Bed[]> {
-  const rows = await ds.getRepository(BedRow).find({ where: q.unit ? { unit: q.unit } : {}, order: { unit: 'ASC', name: 'ASC' } });
-  const assigned = await monitorsByBed(ds);
-  return rows.map((r) => toBed(r, assigned.get(r.id) ?? null));
+const BED_SORT: Record<string, string> = { name: 'b.name', unit: 'b.unit', locationIdentifier: 'b.location_identifier', createdAt: 'b.created_at', updatedAt: 'b.updated_at' };
+
+export async function listBeds(ds: DataSource, q: BedQuery): Promise<Page<Bed>> {
+  const qb = ds.getRepository(BedRow).createQueryBuilder('b');
+  if (q.unit) qb.andWhere('b.unit = :unit', { unit: q.unit });
+  if (q.search) qb.andWhere('(b.name LIKE :s OR b.unit LIKE :s OR b.location_identifier LIKE :s)', { s: likePattern(q.search) });
+  // Unsorted, beds come unit by unit, then by name.
+  const [rows, total] = await orderAndPage(qb, q, BED_SORT, ['b.unit', 'b.name'], 'b.name').getManyAndCount();
+  const assigned = await monitorsByBed(ds, rows.map((r) => r.id));
+  return { items: rows.map((r) => toBed(r, assigned.get(r.id) ?? null)), page: q.page, pageSize: q.pageSize, total };
 }
 
 export async function getBed(ds: DataSource, id: string): Promise<Bed> {

@@ -1,11 +1,12 @@
 import { randomUUID } from 'node:crypto';
 import { In, IsNull, type DataSource, type EntityManager } from 'typeorm';
-import type { CreateMonitor, Monitor, UpdateMonitor } from '@ebbgate/shared';
+import type { CreateMonitor, Monitor, MonitorQuery, Page, UpdateMonitor } from '@ebbgate/shared';
 import { recordAudit } from '../audit/audit.service';
 import { conflict, notFound, unprocessable } from '../http/problem';
 import { isDuplicateKey, isReferenced, type ChangeBy } from './change-context';
 import { BedRow, DeviceKeyRow, MonitorProfileRow, MonitorRow } from './device.entities';
 import { forgetDevices } from './device-cache';
+import { likePattern, orderAndPage } from './device-paging';
 import { toMonitor } from './device-views';
 
 async function liveKeyMonitors(m: EntityManager | DataSource, monitorIds: string[]): Promise<Set<string>> {
@@ -14,14 +15,24 @@ async function liveKeyMonitors(m: EntityManager | DataSource, monitorIds: string
   return new Set(keys.map((k) => k.monitorId));
 }
 
-export async function listMonitors(ds: DataSource, q: { profileId?: string; bedId?: string; search?: string }): Promise<Monitor[]> {
-  const qb = ds.getRepository(MonitorRow).createQueryBuilder('m').orderBy('m.identifier', 'ASC');
+const MONITOR_SORT: Record<string, string> = {
+  identifier: 'm.identifier',
+  enabled: 'm.enabled',
+  lastSeenAt: 'm.last_seen_at',
+  dataRate: 'm.data_rate',
+  createdAt: 'm.created_at',
+  updatedAt: 'm.updated_at',
+};
+
+export async function listMonitors(ds: DataSource, q: MonitorQuery): Promise<Page<Monitor>> {
+  const qb = ds.getRepository(MonitorRow).createQueryBuilder('m');
   if (q.profileId) qb.andWhere('m.profile_id = :profileId', { profileId: q.profileId });
   if (q.bedId) qb.andWhere('m.bed_id = :bedId', { bedId: q.bedId });
-  if (q.search) qb.andWhere('m.identifier LIKE :s', { s: `%${q.search}%` });
-  const rows = await qb.getMany();
+  if (q.enabled !== undefined) qb.andWhere('m.enabled = :enabled', { enabled: q.enabled });
+  if (q.search) qb.andWhere('m.identifier LIKE :s', { s: likePattern(q.search) });
+  const [rows, total] = await orderAndPage(qb, q, MONITOR_SORT, ['m.identifier'], 'm.identifier').getManyAndCount();
   const keyed = await liveKeyMonitors(ds, rows.map((r) => r.id));
-  return rows.map((r) => toMonitor(r, keyed.has(r.id)));
+  return { items: rows.map((r) => toMonitor(r, keyed.has(r.id))), page: q.page, pageSize: q.pageSize, total };
 }
 
 export async function getMonitor(ds: DataSource, id: string): Promise<Monitor> {

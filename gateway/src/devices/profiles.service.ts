@@ -1,17 +1,22 @@
 import { randomUUID } from 'node:crypto';
 import type { DataSource } from 'typeorm';
-import { monitorProfileInputSchema, type MonitorProfile, type MonitorProfileInput } from '@ebbgate/shared';
+import { monitorProfileInputSchema, type MonitorProfile, type MonitorProfileInput, type Page, type ProfileQuery } from '@ebbgate/shared';
 import { recordAudit } from '../audit/audit.service';
 import { unitConversion } from '@ebbgate/shared/analysis';
 import { badRequest, conflict, notFound } from '../http/problem';
 import { isDuplicateKey, isReferenced, type ChangeBy } from './change-context';
 import { MonitorProfileRow, MonitorRow } from './device.entities';
 import { forgetDevices } from './device-cache';
+import { likePattern, orderAndPage } from './device-paging';
 import { toProfile } from './device-views';
 
-export async function listProfiles(ds: DataSource): Promise<MonitorProfile[]> {
-  const rows = await ds.getRepository(MonitorProfileRow).find({ order: { name: 'ASC' } });
-  return rows.map(toProfile);
+const PROFILE_SORT: Record<string, string> = { name: 'p.name', manufacturer: 'p.manufacturer', model: 'p.model', createdAt: 'p.created_at', updatedAt: 'p.updated_at' };
+
+export async function listProfiles(ds: DataSource, q: ProfileQuery): Promise<Page<MonitorProfile>> {
+  const qb = ds.getRepository(MonitorProfileRow).createQueryBuilder('p');
+  if (q.search) qb.andWhere('(p.name LIKE :s OR p.manufacturer LIKE :s OR p.model LIKE :s)', { s: likePattern(q.search) });
+  const [rows, total] = await orderAndPage(qb, q, PROFILE_SORT, ['p.name'], 'p.name').getManyAndCount();
+  return { items: rows.map(toProfile), page: q.page, pageSize: q.pageSize, total };
 }
 
 export async function getProfile(ds: DataSource, id: string): Promise<MonitorProfile> {

@@ -81,7 +81,7 @@ describe('beds and monitors', () => {
     const key = await integrator.post(`/api/v1/monitors/${mon.body.id}/api-key`);
     expect(key.status).toBe(201);
     expect(key.body.apiKey).toMatch(/^ebk_/);
-    const listed = (await integrator.get('/api/v1/monitors')).body as { id: string; hasApiKey: boolean }[];
+    const listed = (await integrator.get('/api/v1/monitors?pageSize=500')).body.items as { id: string; hasApiKey: boolean }[];
     expect(listed.find((m) => m.id === mon.body.id)?.hasApiKey).toBe(true);
 
     // The key works for a device, then stops working once revoked.

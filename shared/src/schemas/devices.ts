@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { pageQuerySchema } from './common';
 import { channelRoleSchema, plethScalingSchema, probeSiteSchema } from './ingest';
 
 export const transportSchema = z.enum(['http', 'mllp']);
@@ -91,11 +92,29 @@ export const monitorSchema = z.object({
 });
 export type Monitor = z.infer<typeof monitorSchema>;
 
-export const monitorQuerySchema = z.object({
+/** `true` / `false` in a query string; anything else is a 400 rather than a silent guess. */
+const queryFlag = z.enum(['true', 'false']).transform((v) => v === 'true');
+const searchText = z.string().trim().max(64).optional();
+
+/** Columns a profile list may be sorted on (anything else is refused, so no raw column reaches SQL). */
+export const profileSortFields = ['name', 'manufacturer', 'model', 'createdAt', 'updatedAt'] as const;
+export const profileQuerySchema = pageQuerySchema.extend({
+  sort: z.enum(profileSortFields).optional(),
+  /** Part of the name, manufacturer or model. */
+  search: searchText,
+});
+export type ProfileQuery = z.infer<typeof profileQuerySchema>;
+
+export const monitorSortFields = ['identifier', 'enabled', 'lastSeenAt', 'dataRate', 'createdAt', 'updatedAt'] as const;
+export const monitorQuerySchema = pageQuerySchema.extend({
+  sort: z.enum(monitorSortFields).optional(),
   profileId: z.string().max(36).optional(),
   bedId: z.string().max(36).optional(),
-  search: z.string().max(64).optional(),
+  enabled: queryFlag.optional(),
+  /** Part of the identifier. */
+  search: searchText,
 });
+export type MonitorQuery = z.infer<typeof monitorQuerySchema>;
 
 export const apiKeyIssuedSchema = z.object({ apiKey: z.string(), keyId: z.string(), createdAt: z.string() });
 export type ApiKeyIssued = z.infer<typeof apiKeyIssuedSchema>;
@@ -117,3 +136,13 @@ export const bedSchema = bedInputSchema.extend({
   updatedAt: z.string(),
 });
 export type Bed = z.infer<typeof bedSchema>;
+
+
+export const bedSortFields = ['name', 'unit', 'locationIdentifier', 'createdAt', 'updatedAt'] as const;
+export const bedQuerySchema = pageQuerySchema.extend({
+  sort: z.enum(bedSortFields).optional(),
+  unit: z.string().max(64).optional(),
+  /** Part of the bed name, its unit or its EHR Location identifier. */
+  search: searchText,
+});
+export type BedQuery = z.infer<typeof bedQuerySchema>;

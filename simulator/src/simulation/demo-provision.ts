@@ -2,7 +2,7 @@ import { readFile } from 'node:fs/promises';
 import path from 'node:path';
 import { DEMO_MONITOR_PROFILE, DEMO_MONITORS } from '../scenarios/monitor-models';
 import type { DemoMonitorInput } from '../demo';
-import { signIn } from './provision';
+import { listAll, signIn } from './provision';
 
 interface HospitalBed {
   id: string;
@@ -26,9 +26,9 @@ export async function provisionDemoMonitors(gatewayUrl: string, creds: { usernam
     return r.body as Record<string, unknown> & { id: string };
   };
 
-  const profiles = (await must('GET', '/profiles')) as unknown as { id: string; name: string }[];
+  const profiles = await listAll<{ id: string; name: string }>(api, '/profiles', { search: DEMO_MONITOR_PROFILE.name });
   const profileId = profiles.find((p) => p.name === DEMO_MONITOR_PROFILE.name)?.id ?? (await must('POST', '/profiles', DEMO_MONITOR_PROFILE)).id;
-  const beds = (await must('GET', '/beds')) as unknown as { id: string; locationIdentifier: string }[];
+  const beds = await listAll<{ id: string; locationIdentifier: string }>(api, '/beds');
 
   const out: DemoMonitorInput[] = [];
   for (const m of DEMO_MONITORS) {
@@ -37,7 +37,7 @@ export async function provisionDemoMonitors(gatewayUrl: string, creds: { usernam
       const hb = hospital.beds.find((b) => b.id === m.bedId);
       if (hb) bedId = beds.find((b) => b.locationIdentifier === hb.locationIdentifier)?.id ?? (await must('POST', '/beds', { name: hb.name, unit: hb.unit, locationIdentifier: hb.locationIdentifier })).id;
     }
-    const existing = ((await must('GET', `/monitors?search=${encodeURIComponent(m.identifier)}`)) as unknown as { id: string; identifier: string }[]).find((x) => x.identifier === m.identifier);
+    const existing = (await listAll<{ id: string; identifier: string }>(api, '/monitors', { search: m.identifier })).find((x) => x.identifier === m.identifier);
     const monitorId = existing
       ? (await must('PATCH', `/monitors/${existing.id}`, { profileId, bedId, enabled: true })).id
       : (await must('POST', '/monitors', { identifier: m.identifier, profileId, bedId, enabled: true })).id;

@@ -19,6 +19,24 @@ export async function signIn(gatewayUrl: string, username: string, password: str
   };
 }
 
+type Api = Awaited<ReturnType<typeof signIn>>;
+
+/**
+ * Every item of a server-paginated list (`{items, page, pageSize, total}`), read 500 at a time
+ * (the largest page the gateway serves). `query` holds the filters, e.g. `search=...`.
+ */
+export async function listAll<T>(api: Api, p: string, query: Record<string, string> = {}): Promise<T[]> {
+  const out: T[] = [];
+  for (let page = 1; ; page++) {
+    const qs = new URLSearchParams({ ...query, page: String(page), pageSize: '500' });
+    const r = await api('GET', `${p}?${qs}`);
+    if (r.status !== 200) throw new Error(`GET ${p}: ${r.status} ${JSON.stringify(r.body)}`);
+    const body = r.body as { items: T[]; total: number };
+    out.push(...body.items);
+    if (!body.items.length || out.length >= body.total) return out;
+  }
+}
+
 /** The demo integrator's credentials from config/demo/users.json. */
 export async function demoIntegrator(repoRoot: string): Promise<{ username: string; password: string }> {
   const users = JSON.parse(await readFile(path.join(repoRoot, 'config/demo/users.json'), 'utf8')) as { username: string; password: string; roles: string[] }[];
@@ -36,7 +54,7 @@ export const loadMonitorId = (i: number) => `0EBB${i.toString(16).toUpperCase().
  */
 export async function provisionMonitors(gatewayUrl: string, creds: { username: string; password: string }, identifiers: string[]): Promise<Record<string, string>> {
   const api = await signIn(gatewayUrl, creds.username, creds.password);
-  const profiles = (await api('GET', '/profiles')).body as { id: string; name: string }[];
+  const profiles = await listAll<{ id: string; name: string }>(api, '/profiles', { search: DEMO_MONITOR_PROFILE.name });
   let profile = profiles.find((p) => p.name === DEMO_MONITOR_PROFILE.name);
   if (!profile) {
     const r = await api('POST', '/profiles', DEMO_MONITOR_PROFILE);
@@ -45,7 +63,7 @@ export async function provisionMonitors(gatewayUrl: string, creds: { username: s
   }
   const keys: Record<string, string> = {};
   for (const identifier of identifiers) {
-    const found = ((await api('GET', `/monitors?search=${encodeURIComponent(identifier)}`)).body as { id: string; identifier: string }[]).find((m) => m.identifier === identifier);
+    const found = (await listAll<{ id: string; identifier: string }>(api, '/monitors', { search: identifier })).find((m) => m.identifier === identifier);
     let id = found?.id;
     if (!id) {
       const r = await api('POST', '/monitors', { identifier, profileId: profile.id, enabled: true });

@@ -40,8 +40,8 @@ describe('demo provisioning', () => {
     expect(again.map((m) => m.apiKey)).not.toEqual(first.map((m) => m.apiKey)); // fresh keys each start
 
     const integrator = await gw.signIn('integrator');
-    const monitors = (await integrator.get('/api/v1/monitors')).body as { identifier: string; bedId: string | null; profileId: string | null }[];
-    const beds = (await integrator.get('/api/v1/beds')).body as { id: string; locationIdentifier: string }[];
+    const monitors = (await integrator.get('/api/v1/monitors?pageSize=500')).body.items as { identifier: string; bedId: string | null; profileId: string | null }[];
+    const beds = (await integrator.get('/api/v1/beds?pageSize=500')).body.items as { id: string; locationIdentifier: string }[];
     for (const d of DEMO_MONITORS) {
       const m = monitors.find((x) => x.identifier === d.identifier)!;
       expect(m.profileId).not.toBeNull();

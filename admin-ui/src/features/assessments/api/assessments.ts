@@ -1,6 +1,5 @@
 import { keepPreviousData, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { AssessmentSummary, Bed, Delivery, Monitor, Page } from '@ebbgate/shared';
-import { asPage } from '@/lib/paging';
 import { api, type Query } from '@/lib/api-client';
 import type { AnalysisResult, Waveform } from '@/lib/analysis';
 
@@ -35,7 +34,7 @@ export function useAssessment(id: string) {
 }
 
 export function useBedOptions() {
-  return useQuery({ queryKey: assessmentKeys.beds, queryFn: async ({ signal }) => asPage(await api.get<Bed[] | Page<Bed>>('/beds', { page: 1, pageSize: 500, sort: 'name', order: 'asc' }, signal), { pageSize: 500 }), staleTime: 60_000 });
+  return useQuery({ queryKey: assessmentKeys.beds, queryFn: ({ signal }) => api.get<Page<Bed>>('/beds', { page: 1, pageSize: 500, sort: 'name', order: 'asc' }, signal), staleTime: 60_000 });
 }
 
 export function useMarkInError(id: string) {

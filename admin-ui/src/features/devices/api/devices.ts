@@ -1,7 +1,6 @@
 import { keepPreviousData, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { ApiKeyIssued, Bed, BedInput, CreateMonitor, Monitor, MonitorProfile, MonitorProfileInput, Page, UpdateMonitor } from '@ebbgate/shared';
 import { api, type Query } from '@/lib/api-client';
-import { asPage } from '@/lib/paging';
 
 export const profileKeys = {
   all: ['profiles'] as const,
@@ -18,11 +17,11 @@ export const bedKeys = {
 };
 
 const enc = encodeURIComponent;
-/** Option lists for selects: one large page, sorted by name. */
+/** Option lists for selects: one page of the largest size the API allows (500), sorted by name. */
 const OPTIONS: Query = { page: 1, pageSize: 500, order: 'asc' };
 
 export function useProfiles(q: Query) {
-  return useQuery({ queryKey: profileKeys.list(q), queryFn: async ({ signal }) => asPage(await api.get<MonitorProfile[] | Page<MonitorProfile>>('/profiles', q, signal), q as never), placeholderData: keepPreviousData });
+  return useQuery({ queryKey: profileKeys.list(q), queryFn: ({ signal }) => api.get<Page<MonitorProfile>>('/profiles', q, signal), placeholderData: keepPreviousData });
 }
 export const useProfileOptions = () => useProfiles({ ...OPTIONS, sort: 'name' });
 export function useProfile(id: string | undefined) {
@@ -41,7 +40,7 @@ export function useDeleteProfile() {
 }
 
 export function useMonitors(q: Query) {
-  return useQuery({ queryKey: monitorKeys.list(q), queryFn: async ({ signal }) => asPage(await api.get<Monitor[] | Page<Monitor>>('/monitors', q, signal), q as never), placeholderData: keepPreviousData });
+  return useQuery({ queryKey: monitorKeys.list(q), queryFn: ({ signal }) => api.get<Page<Monitor>>('/monitors', q, signal), placeholderData: keepPreviousData });
 }
 export const useMonitorOptions = () => useMonitors({ ...OPTIONS, sort: 'identifier' });
 export function useCreateMonitor() {
@@ -69,7 +68,7 @@ export function useRevokeApiKey() {
 }
 
 export function useBeds(q: Query) {
-  return useQuery({ queryKey: bedKeys.list(q), queryFn: async ({ signal }) => asPage(await api.get<Bed[] | Page<Bed>>('/beds', q, signal), q as never), placeholderData: keepPreviousData });
+  return useQuery({ queryKey: bedKeys.list(q), queryFn: ({ signal }) => api.get<Page<Bed>>('/beds', q, signal), placeholderData: keepPreviousData });
 }
 export const useBedOptions = () => useBeds({ ...OPTIONS, sort: 'name' });
 export function useSaveBed() {

@@ -32,7 +32,7 @@ export function BedsRoute() {
   const columns: Column<Bed>[] = [
     { key: 'name', header: 'Bed', sortField: 'name', render: (b) => <span className="font-medium">{b.name}</span> },
     { key: 'unit', header: 'Unit', sortField: 'unit', render: (b) => b.unit },
-    { key: 'location', header: 'EHR location', render: (b) => <span className="font-mono text-xs">{b.locationIdentifier}</span> },
+    { key: 'location', header: 'EHR location', sortField: 'locationIdentifier', render: (b) => <span className="font-mono text-xs">{b.locationIdentifier}</span> },
     { key: 'monitor', header: 'Monitor', render: (b) => (b.monitorId ? <span className="font-mono text-xs">{monitorName.get(b.monitorId) ?? b.monitorId}</span> : <span className="text-muted">none</span>) },
     ...(manage ? [{ key: 'actions', header: 'Actions', render: (b: Bed) => (
       <span className="flex gap-1">
@@ -48,7 +48,7 @@ export function BedsRoute() {
       <PageHeader title="Beds" description="Beds and the EHR location each maps to; a monitor on a bed gives its Observations their location and patient."
         actions={manage ? <Button variant="primary" onClick={() => setPending({ kind: 'create' })}>Add bed</Button> : undefined} />
       <FilterBar onClear={list.clearFilters}>
-        <TextField label="Search" placeholder="bed or unit" wrapClassName="w-56" value={list.filters.search ?? ''} onChange={(e) => list.setFilter('search', e.target.value)} />
+        <TextField label="Search" placeholder="bed, unit or EHR location" wrapClassName="w-56" value={list.filters.search ?? ''} onChange={(e) => list.setFilter('search', e.target.value)} />
       </FilterBar>
       <DataTable caption="Beds" columns={columns} rows={beds.data?.items} total={beds.data?.total} rowId={(b) => b.id}
         params={list.params} onParamsChange={list.setParams} loading={beds.isPending} fetching={beds.isFetching} error={beds.error} onRetry={() => beds.refetch()}

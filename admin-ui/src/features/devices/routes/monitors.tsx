@@ -40,9 +40,9 @@ export function MonitorsRoute() {
     { key: 'identifier', header: 'Identifier', sortField: 'identifier', render: (m) => <span className="font-mono text-xs font-medium">{m.identifier}</span> },
     { key: 'profile', header: 'Profile', render: (m) => (m.profileId ? profileName.get(m.profileId) ?? m.profileId : <Badge tone="warn">no profile</Badge>) },
     { key: 'bed', header: 'Bed', render: (m) => (m.bedId ? bedName.get(m.bedId) ?? m.bedId : <span className="text-muted">not assigned</span>) },
-    { key: 'enabled', header: 'State', render: (m) => <StatusBadge status={m.enabled ? 'enabled' : 'disabled'} /> },
+    { key: 'enabled', header: 'State', sortField: 'enabled', render: (m) => <StatusBadge status={m.enabled ? 'enabled' : 'disabled'} /> },
     { key: 'lastSeenAt', header: 'Last data', sortField: 'lastSeenAt', render: (m) => <span className="num">{formatDateTime(m.lastSeenAt)}</span> },
-    { key: 'dataRate', header: 'Samples/s', className: 'text-right', render: (m) => <span className="num">{formatNumber(m.dataRate, 0)}</span> },
+    { key: 'dataRate', header: 'Samples/s', className: 'text-right', sortField: 'dataRate', render: (m) => <span className="num">{formatNumber(m.dataRate, 0)}</span> },
     { key: 'key', header: 'API key', render: (m) => (m.hasApiKey ? <Badge tone="good">issued</Badge> : <Badge>none</Badge>) },
     ...(manage ? [{ key: 'actions', header: 'Actions', render: (m: Monitor) => (
       <span className="flex flex-wrap gap-1">
@@ -71,6 +71,8 @@ export function MonitorsRoute() {
           options={(profiles.data?.items ?? []).map((p) => ({ value: p.id, label: p.name }))} />
         <SelectField label="Bed" placeholder="any" wrapClassName="w-44" value={list.filters.bedId ?? ''} onChange={(e) => list.setFilter('bedId', e.target.value)}
           options={(beds.data?.items ?? []).map((b) => ({ value: b.id, label: `${b.name} · ${b.unit}` }))} />
+        <SelectField label="State" placeholder="any" wrapClassName="w-36" value={list.filters.enabled ?? ''} onChange={(e) => list.setFilter('enabled', e.target.value)}
+          options={[{ value: 'true', label: 'enabled' }, { value: 'false', label: 'disabled' }]} />
       </FilterBar>
       <DataTable caption="Monitors" columns={columns} rows={monitors.data?.items} total={monitors.data?.total} rowId={(m) => m.id}
         params={list.params} onParamsChange={list.setParams} loading={monitors.isPending} fetching={monitors.isFetching} error={monitors.error} onRetry={() => monitors.refetch()}

@@ -1,6 +1,5 @@
 import { useMutation, useQuery } from '@tanstack/react-query';
 import type { Page } from '@ebbgate/shared';
-import { asPage } from '@/lib/paging';
 import { api } from '@/lib/api-client';
 import type { PreviewResult } from '@/lib/analysis';
 
@@ -13,7 +12,7 @@ export interface ProfileOption { id: string; name: string; manufacturer: string;
 export function useProfileOptions() {
   return useQuery({
     queryKey: testBenchKeys.profileOptions,
-    queryFn: async ({ signal }) => asPage(await api.get<ProfileOption[] | Page<ProfileOption>>('/profiles', { page: 1, pageSize: 200, sort: 'name', order: 'asc' }, signal), { pageSize: 500 }),
+    queryFn: ({ signal }) => api.get<Page<ProfileOption>>('/profiles', { page: 1, pageSize: 500, sort: 'name', order: 'asc' }, signal),
   });
 }
 
