@@ -1,4 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { bedSortFields, monitorSortFields, profileSortFields } from '@ebbgate/shared';
 import { startTestGateway, type SignedInClient, type TestGateway } from '../support/harness';
 import { corvaneProfile } from './fixtures';
 
@@ -161,5 +162,19 @@ describe('GET /beds (server paging)', () => {
 
   it('refuses an unknown sort field', async () => {
     await expectBadQuery('/api/v1/beds?sort=monitorId', 'sort');
+  });
+});
+
+describe('the API description of the device lists', () => {
+  it('documents the paging, sort whitelist and filters of each list (OpenAPI 3 parameters)', async () => {
+    const res = await integrator.get('/api/v1/openapi.json');
+    expect(res.status).toBe(200);
+    const paths = res.body.paths as Record<string, { get?: { parameters?: { name: string; in: string; schema?: { enum?: string[] } }[] } }>;
+    const params = (p: string) => Object.entries(paths).find(([k]) => k.endsWith(p))?.[1].get?.parameters ?? [];
+    for (const [p, filters, sorts] of [['/profiles', ['search'], profileSortFields], ['/monitors', ['search', 'profileId', 'bedId', 'enabled'], monitorSortFields], ['/beds', ['search', 'unit'], bedSortFields]] as const) {
+      const names = params(p).filter((x) => x.in === 'query').map((x) => x.name);
+      expect(names).toEqual(expect.arrayContaining(['page', 'pageSize', 'sort', 'order', ...filters]));
+      expect(params(p).find((x) => x.name === 'sort')?.schema?.enum).toEqual([...sorts]);
+    }
   });
 });
