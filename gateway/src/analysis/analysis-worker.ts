@@ -4,6 +4,7 @@ import type { EntityManager } from 'typeorm';
 import type { AnalysisContext } from '@ebbgate/shared';
 import { analyzeWindow, ENGINE_VERSION, type AnalysisInput, type AnalysisResult, type AnalysisSettings } from '@ebbgate/shared/analysis';
 import type { AppContext } from '../app-context';
+import { PollLoop } from '../lib/poll-loop';
 import type { BackgroundService } from '../capabilities';
 import { MonitorProfileRow, MonitorRow } from '../devices/device.entities';
 import { getSiteSettings } from '../settings/settings.service';
@@ -74,49 +75,33 @@ export async function analyseNextWindow(ctx: AppContext, engine: Engine, workerI
 export class AnalysisWorker implements BackgroundService {
   readonly name = 'analysis-worker';
   readonly workerId = `${hostname()}:${process.pid}:${randomBytes(3).toString('hex')}`;
-  private running = false;
-  private loop: Promise<void> | null = null;
-  private wake: (() => void) | null = null;
   analysed = 0;
+  private readonly loop: PollLoop;
 
   constructor(
     private readonly ctx: AppContext,
     private readonly engine: Engine = DEFAULT_ENGINE,
-  ) {}
+  ) {
+    this.loop = new PollLoop(() => this.pass(), () => ctx.config.analysis.pollMs, (err) => ctx.logger.error({ err }, 'analysis worker error'));
+  }
 
   async start(): Promise<void> {
-    this.running = true;
-    this.loop = this.run();
+    this.loop.start();
   }
 
   async stop(): Promise<void> {
-    this.running = false;
-    this.wake?.();
-    await this.loop;
+    await this.loop.stop();
   }
 
-  private async run(): Promise<void> {
-    const { pollMs, windowsPerPoll } = this.ctx.config.analysis;
-    while (this.running) {
-      let n = 0;
-      try {
-        while (this.running && n < windowsPerPoll && (await analyseNextWindow(this.ctx, this.engine, this.workerId))) {
-          n++;
-          this.analysed++;
-        }
-      } catch (err) {
-        this.ctx.logger.error({ err }, 'analysis worker error');
-      }
-      if (!this.running) break;
-      // A full round means more may be waiting: yield to the event loop, then go on at once.
-      await new Promise<void>((resolve) => {
-        const t = setTimeout(resolve, n >= windowsPerPoll ? 0 : pollMs);
-        this.wake = () => {
-          clearTimeout(t);
-          resolve();
-        };
-      });
+  /** Up to `windowsPerPoll` windows; true when the round was full, so more may be waiting. */
+  private async pass(): Promise<boolean> {
+    const { windowsPerPoll } = this.ctx.config.analysis;
+    let n = 0;
+    while (this.loop.isRunning && n < windowsPerPoll && (await analyseNextWindow(this.ctx, this.engine, this.workerId))) {
+      n++;
+      this.analysed++;
     }
+    return n >= windowsPerPoll;
   }
 }
 

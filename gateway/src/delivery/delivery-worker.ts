@@ -9,6 +9,7 @@ import type { DataSource } from 'typeorm';
 import { In, IsNull, Not } from 'typeorm';
 import { AssessmentRow } from '../assessments/assessment.entity';
 import type { BackgroundService } from '../capabilities';
+import { PollLoop } from '../lib/poll-loop';
 import type { DeliveryConfig } from './delivery.config';
 import { DeliveryRow, DestinationRow } from './delivery.entities';
 import type { PassReport } from './fhir-destination';
@@ -20,9 +21,7 @@ export interface DestinationHandler {
 
 export class DeliveryWorker implements BackgroundService {
   readonly name = 'delivery-worker';
-  private running = false;
-  private loop: Promise<void> | undefined;
-  private wake: (() => void) | undefined;
+  private readonly loop: PollLoop;
 
   constructor(
     private readonly ds: DataSource,
@@ -31,37 +30,16 @@ export class DeliveryWorker implements BackgroundService {
     private readonly logger: Logger,
     /** Told about every recorded pass (metrics). */
     private readonly onPass?: (destinationId: string, report: PassReport) => void,
-  ) {}
+  ) {
+    this.loop = new PollLoop(async () => (await this.runOnce()) > 0, () => cfg.pollMs, (err) => logger.error({ err }, 'delivery pass failed'));
+  }
 
   async start(): Promise<void> {
-    this.running = true;
-    this.loop = this.run();
+    this.loop.start();
   }
 
   async stop(): Promise<void> {
-    this.running = false;
-    this.wake?.();
-    await this.loop;
-  }
-
-  private async run(): Promise<void> {
-    while (this.running) {
-      let handled = 0;
-      try {
-        handled = await this.runOnce();
-      } catch (err) {
-        this.logger.error({ err }, 'delivery pass failed');
-      }
-      if (handled === 0 && this.running) {
-        await new Promise<void>((resolve) => {
-          const t = setTimeout(resolve, this.cfg.pollMs);
-          this.wake = () => {
-            clearTimeout(t);
-            resolve();
-          };
-        });
-      }
-    }
+    await this.loop.stop();
   }
 
   /** One pass over every destination; returns the number of rows handled. */
