@@ -34,6 +34,14 @@ describe('PCD-01 decoding (IHE PCD TF-2 rules in handbook standards.md)', () => 
     expect(d.numerics.map((n) => n.refId)).toEqual(['MDC_ECG_HEART_RATE', 'MDC_VENT_RESP_RATE_SET', 'MDC_VOL_AWAY_TIDAL_SET']);
   });
 
+  it('reads the patient sex from PID-8 (HL7 table 0001: F, M) as analysis context', () => {
+    const text = buildPcd01({ controlId: 'M9', equipment: 'AB', start, waves: [wave], tidalVolumeMl: 450 });
+    const withSex = (sex: string) => decodePcd01(Buffer.from(text.replace('PID|||HGH-400117^^^HGH^MR||Quillfeather^Maren', `PID|||HGH-400117^^^HGH^MR||Quillfeather^Maren||19610423|${sex}`))).batch.context;
+    expect(withSex('F')).toEqual({ patientSex: 'female', tidalVolumeMl: 450 });
+    expect(withSex('M')).toMatchObject({ patientSex: 'male' });
+    expect(withSex('U')).toEqual({ tidalVolumeMl: 450 });
+  });
+
   it('inherits the time from OBR-7 when OBX-14 is empty (OBX-14 overrides the ancestor, which overrides OBR-7)', () => {
     const text = buildPcd01({ controlId: 'M2', equipment: 'AA', start, waves: [wave] }).replace(/(OBX\|\d+\|NA\|[^\r]*\|R\|\|\|)[0-9.+]+/, '$1');
     expect(decodePcd01(Buffer.from(text)).batch.startTime.toISOString()).toBe(start.toISOString());

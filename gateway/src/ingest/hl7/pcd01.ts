@@ -92,11 +92,16 @@ export function decodePcd01(raw: Buffer): Pcd01Decoded {
   if (header.messageType !== 'ORU^R01') throw fail(`Only ORU^R01 is accepted here, not ${header.messageType}.`, 'MSH-9', `unsupported message type ${header.messageType}`, 200);
 
   let obrTime: Date | null = null;
+  // PID-8 administrative sex (HL7 table 0001): F / M; anything else leaves the sex unknown.
+  let patientSex: AnalysisContext['patientSex'];
   const timeBySubId = new Map<string, Date>();
   const equipmentBySubId = new Map<string, string>();
   const rows: { seg: Segment; subId: string }[] = [];
   for (const seg of msg.segments) {
-    if (seg.name === 'OBR') {
+    if (seg.name === 'PID') {
+      const sex = field(seg, 8, d).toUpperCase();
+      patientSex = sex === 'F' ? 'female' : sex === 'M' ? 'male' : undefined;
+    } else if (seg.name === 'OBR') {
       const t = component(seg, 7, 1, d);
       obrTime = t ? parseHl7Time(t) : null;
       if (t && !obrTime) throw fail('OBR-7 is not an HL7 date/time.', `OBR[${seg.index}]-7`, `"${t}"`, 102);
@@ -123,7 +128,7 @@ export function decodePcd01(raw: Buffer): Pcd01Decoded {
 
   const channels: ReceivedChannel[] = [];
   const numerics: Numeric[] = [];
-  const context: AnalysisContext = {};
+  const context: AnalysisContext = patientSex ? { patientSex } : {};
   const warnings: string[] = [];
   let startTime: Date | null = null;
   for (const { seg, subId } of rows) {
