@@ -33,6 +33,15 @@ describe('facts of the trade', () => {
     expect(r.verdict).toBe('valid'); // PPV from the arterial line is not affected
   });
 
+  it('a low tidal volume makes the dynamic indices not valid but leaves the measured heart rate valid (Ann Intensive Care 2021 checklist: the limits are for PPV/ΔPOP)', () => {
+    const r = analyzeWindow({ channels: window(), context: { ...CONTEXT, tidalVolumeMl: 300 } });
+    expect(r.verdict).toBe('not-valid');
+    expect(r.flags.some((f) => f.code === 'tidal-volume-low')).toBe(true);
+    expect(r.indices.heartRate.value).not.toBeNull();
+    expect(r.indexVerdicts.heartRate).toBe('valid');
+    expect(r.indexVerdicts.respiratoryRate).toBe('valid');
+  });
+
   it('a running vasopressor flags the pleth (common practice: norepinephrine changes vessel-wall tone)', () => {
     const r = analyzeWindow({ channels: window(), context: { ...CONTEXT, vasopressorRunning: true } });
     expect(r.flags.find((x) => x.code === 'vasopressor-running')?.severity).toBe('warning');

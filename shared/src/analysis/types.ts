@@ -318,7 +318,7 @@ export interface AnalysisResult {
   cycles: RespiratoryCycle[];
   indices: Indices;
   verdict: Verdict;
-  /** Verdict per index where it differs from the window verdict. */
+  /** Verdict per index where it differs from the window verdict; rates (HR, RR, HR/RR) are judged as measurements, not by the validity conditions of the dynamic indices. */
   indexVerdicts: Partial<Record<IndexName, Verdict>>;
   flags: Flag[];
   arterialLine: ArterialLineReport | null;

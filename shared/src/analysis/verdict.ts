@@ -187,9 +187,18 @@ export function judge(flags: Flag[], indices: Indices, hasAbp: boolean): { verdi
     }
     per[name] = v;
   }
+  // Rates are measurements in their own right: the validity conditions of the dynamic indices
+  // (ventilation, tidal volume, rhythm) do not make them wrong. A rate taken from the set
+  // ventilator rate rather than the signal is only as good as that setting.
+  const inferred = flags.some((f) => f.code === 'respiration-inferred');
+  per.heartRate = 'valid';
+  per.respiratoryRate = inferred ? 'questionable' : 'valid';
+  per.hrRrRatio = per.respiratoryRate;
   const verdict = (hasAbp ? per.ppv : per.deltaPop) ?? 'not-valid';
   const indexVerdicts: Partial<Record<IndexName, Verdict>> = {};
   // Indices without a value say why in notComputableReason; only computed ones get a verdict here.
-  for (const name of names) if (indices[name].value !== null && per[name] !== verdict) indexVerdicts[name] = per[name];
+  for (const name of [...names, 'heartRate', 'respiratoryRate', 'hrRrRatio'] as IndexName[]) {
+    if (indices[name].value !== null && per[name] !== verdict) indexVerdicts[name] = per[name];
+  }
   return { verdict, indexVerdicts };
 }
