@@ -109,7 +109,7 @@ export class AnalysisWorker implements BackgroundService {
  * Queues re-analysis of already analysed windows with `engineVersion` (a newer engine). The
  * earlier assessments stay; the new ones are added beside them.
  */
-export async function requestReanalysis(ctx: AppContext, q: { engineVersion: string; monitorId?: string; from?: Date; to?: Date }): Promise<number> {
+export async function requestReanalysis(ctx: AppContext, q: { engineVersion: string; monitorId?: string; from?: Date; to?: Date }, m: EntityManager = ctx.ds.manager): Promise<number> {
   const where: string[] = ["status = 'done'", 'engine_version <> ?'];
   const params: unknown[] = [q.engineVersion, new Date(), q.engineVersion];
   const add = (clause: string, value: unknown) => {
@@ -119,7 +119,7 @@ export async function requestReanalysis(ctx: AppContext, q: { engineVersion: str
   if (q.monitorId) add('monitor_id = ?', q.monitorId);
   if (q.from) add('window_start >= ?', q.from);
   if (q.to) add('window_start < ?', q.to);
-  const res = (await ctx.ds.query(
+  const res = (await m.query(
     `INSERT IGNORE INTO analysis_window (monitor_id, window_start, window_end, engine_version, status, attempts, created_at)
      SELECT DISTINCT monitor_id, window_start, window_end, ?, 'due', 0, ? FROM analysis_window WHERE ${where.join(' AND ')}`,
     params,

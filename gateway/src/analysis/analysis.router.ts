@@ -1,9 +1,12 @@
 import { Router } from 'express';
 import multer from 'multer';
-import { previewFieldsSchema, previewResultSchema } from '@ebbgate/shared';
+import { previewFieldsSchema, previewResultSchema, reanalysisAnswerSchema, reanalysisRequestSchema } from '@ebbgate/shared';
+import { ENGINE_VERSION } from '@ebbgate/shared/analysis';
+import { recordAudit } from '../audit/audit.service';
 import type { AppContext } from '../app-context';
 import { badRequest } from '../http/problem';
 import { defineRoute } from '../http/route';
+import { requestReanalysis } from './analysis-worker';
 import { previewCapture } from './preview.service';
 
 export function analysisRouter(ctx: AppContext): Router {
@@ -23,6 +26,23 @@ export function analysisRouter(ctx: AppContext): Router {
       if (!req.file) throw badRequest('Attach the capture as the multipart field "file".', [{ path: 'file', message: 'required' }]);
       return previewCapture(ctx, req.file, body.profileId);
     },
+  });
+  defineRoute(router, {
+    method: 'post',
+    path: '/analysis/reanalyse',
+    permission: 'analysis.reanalyse',
+    tag: 'analysis',
+    summary: "Queue stored windows analysed by an older engine for analysis with this gateway's engine (optionally one monitor, a time range). Earlier assessments stay beside the new ones.",
+    body: reanalysisRequestSchema,
+    response: reanalysisAnswerSchema,
+    status: 202,
+    handler: ({ body, principal, req }) =>
+      ctx.ds.transaction(async (m) => {
+        const q = { engineVersion: ENGINE_VERSION, monitorId: body.monitorId, from: body.from ? new Date(body.from) : undefined, to: body.to ? new Date(body.to) : undefined };
+        const queued = await requestReanalysis(ctx, q, m);
+        await recordAudit(m, { principal, action: 'analysis.reanalyse', entityType: 'analysis-window', entityId: body.monitorId ?? null, after: { ...body, engineVersion: ENGINE_VERSION, queued }, requestId: String(req.id) });
+        return { engineVersion: ENGINE_VERSION, queued };
+      }),
   });
   return router;
 }

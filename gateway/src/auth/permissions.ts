@@ -25,6 +25,7 @@ export const PERMISSIONS = {
   'inbound.reprocess': ['integrator'],
   'inbound.discard': ['integrator', 'operator'],
   'analysis.preview': ['integrator'],
+  'analysis.reanalyse': ['integrator'],
   'assessments.read': ALL_PEOPLE,
   'assessments.mark-in-error': ['reviewer'],
   'deliveries.read': ['operator', 'reviewer', 'admin'],

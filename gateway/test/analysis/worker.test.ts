@@ -97,6 +97,24 @@ describe('analysis scheduling', () => {
     expect(rows.map((r: { engine_version: string }) => r.engine_version)).toEqual([DEFAULT_ENGINE.version, DEFAULT_ENGINE.version, '99.0.0-test', '99.0.0-test']);
   });
 
+  it('an integrator queues re-analysis with the running engine through the API; audited, reviewers refused', async () => {
+    const m = await registerMonitor(integrator, 'A0B1C2D3E4F50006');
+    await sendRecording(gw, m.apiKey, 'A0B1C2D3E4F50006', T0, spec);
+    await drain();
+    // As if an older engine had analysed them.
+    await gw.ctx.ds.query("UPDATE analysis_window SET engine_version = '0.9.0' WHERE monitor_id = ?", [m.monitorId]);
+    await gw.ctx.ds.query("UPDATE assessment SET engine_version = '0.9.0' WHERE monitor_id = ?", [m.monitorId]);
+    const res = await integrator.post('/api/v1/analysis/reanalyse', { monitorId: m.monitorId });
+    expect(res.status).toBe(202);
+    expect(res.body).toEqual({ engineVersion: DEFAULT_ENGINE.version, queued: 2 });
+    expect((await drain()).length).toBe(2);
+    const reviewer = await gw.signIn('reviewer');
+    expect((await reviewer.post('/api/v1/analysis/reanalyse', {})).status).toBe(403);
+    const admin = await gw.signIn('admin');
+    const audit = (await admin.get('/api/v1/audit?action=analysis.reanalyse')).body.items;
+    expect(audit[0]).toMatchObject({ entityId: m.monitorId, after: { queued: 2 } });
+  });
+
   it('never analyses a window twice when two workers race (SELECT … FOR UPDATE SKIP LOCKED)', async () => {
     const m = await registerMonitor(integrator, 'A0B1C2D3E4F50005');
     await sendRecording(gw, m.apiKey, 'A0B1C2D3E4F50005', T0, { ...spec, durationSeconds: 120 });

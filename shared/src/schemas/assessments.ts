@@ -77,3 +77,13 @@ export const previewResultSchema = z.object({
 });
 export type PreviewResult = z.infer<typeof previewResultSchema>;
 export const previewFieldsSchema = z.object({ profileId: z.string().max(36).optional() });
+
+/** Re-analysis of stored windows with the engine this gateway runs; earlier assessments stay. */
+export const reanalysisRequestSchema = z
+  .object({
+    monitorId: z.string().max(36).optional(),
+    from: z.iso.datetime({ offset: true }).optional(),
+    to: z.iso.datetime({ offset: true }).optional(),
+  })
+  .refine((q) => !q.from || !q.to || q.from < q.to, { message: 'from must be before to', path: ['to'] });
+export const reanalysisAnswerSchema = z.object({ engineVersion: z.string(), queued: z.number().int() });
