@@ -5,7 +5,7 @@
  */
 import path from 'node:path';
 import { startMockEhr, type RunningMockEhr } from '@ebbgate/mock-ehr';
-import { loadConfig, repoRoot } from '../../gateway/src/config/load';
+import { deepMerge, loadConfig, repoRoot } from '../../gateway/src/config/load';
 import type { Config } from '../../gateway/src/config/schema';
 import { createLogger } from '../../gateway/src/http/logger';
 import { startGateway, type RunningGateway } from '../../gateway/src/server';
@@ -79,13 +79,4 @@ export async function launchStack(opts: StackOptions): Promise<RunningStack> {
       await mockEhr.stop();
     },
   };
-}
-
-function deepMerge(base: Record<string, unknown>, over: Record<string, unknown>): Record<string, unknown> {
-  const out: Record<string, unknown> = { ...base };
-  for (const [k, v] of Object.entries(over)) {
-    const b = out[k];
-    out[k] = v && typeof v === 'object' && !Array.isArray(v) && b && typeof b === 'object' ? deepMerge(b as Record<string, unknown>, v as Record<string, unknown>) : v;
-  }
-  return out;
 }

@@ -49,7 +49,8 @@ function setPath(target: Json, dotted: string, value: unknown): void {
   node[keys[keys.length - 1] as string] = value;
 }
 
-function deepMerge(base: Json, over: Json): Json {
+/** Merges `over` into `base` object by object; arrays and values in `over` replace. */
+export function deepMerge(base: Json, over: Json): Json {
   const out: Json = { ...base };
   for (const [k, v] of Object.entries(over)) {
     const b = out[k];

@@ -6,7 +6,7 @@ import { randomBytes } from 'node:crypto';
 import request from 'supertest';
 import type { Role } from '@ebbgate/shared';
 import { createTestDatabase, type TestDatabase } from '../../../scripts/lib/test-database';
-import { loadConfig } from '../../src/config/load';
+import { deepMerge, loadConfig } from '../../src/config/load';
 import type { Config } from '../../src/config/schema';
 import { readDemoUsers, type DemoUser } from '../../src/seed/demo-users';
 import { startGateway, type RunningGateway } from '../../src/server';
@@ -34,7 +34,7 @@ export async function startTestGateway(overrides: Record<string, unknown> = {}, 
   const db = await createTestDatabase();
   const config = loadConfig(
     { NODE_ENV: 'test' },
-    deepMergeOverrides(
+    deepMerge(
       {
         database: { url: db.url, poolSize: 5 },
         gateway: { port: 0, consoleDir: '/nonexistent' },
@@ -84,13 +84,4 @@ export async function startTestGateway(overrides: Record<string, unknown> = {}, 
       await db.drop();
     },
   };
-}
-
-function deepMergeOverrides(base: Record<string, unknown>, over: Record<string, unknown>): Record<string, unknown> {
-  const out: Record<string, unknown> = { ...base };
-  for (const [k, v] of Object.entries(over)) {
-    const b = out[k];
-    out[k] = v && typeof v === 'object' && !Array.isArray(v) && b && typeof b === 'object' ? deepMergeOverrides(b as Record<string, unknown>, v as Record<string, unknown>) : v;
-  }
-  return out;
 }
