@@ -1,6 +1,5 @@
 import type { Router } from 'express';
-import type { AppContext } from '../app-context';
-import type { BackgroundService } from '../capabilities';
+import type { AppContext, BackgroundService } from '../app-context';
 import { AnalysisWorker } from './analysis-worker';
 import { analysisRouter } from './analysis.router';
 import { assessmentsRouter } from '../assessments/assessments.router';

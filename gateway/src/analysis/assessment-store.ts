@@ -2,7 +2,7 @@ import { randomUUID } from 'node:crypto';
 import type { EntityManager } from 'typeorm';
 import type { AnalysisResult } from '@ebbgate/shared/analysis';
 import { AssessmentRow } from '../assessments/assessment.entity';
-import { onAssessmentStored } from '../assessments/events';
+import { assessmentEvents } from '../assessments/events';
 
 /** Stores an engine result as an assessment row (headline values as columns) and runs the hooks. */
 export async function storeAssessment(
@@ -33,6 +33,6 @@ export async function storeAssessment(
     createdAt: new Date(),
   });
   await m.insert(AssessmentRow, row);
-  for (const hook of onAssessmentStored) await hook(m, row);
+  for (const hook of assessmentEvents(m.connection).stored) await hook(m, row);
   return row;
 }

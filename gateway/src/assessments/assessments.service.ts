@@ -5,7 +5,7 @@ import type { Principal } from '../auth/principal';
 import { assembleWindow } from '../analysis/window-assembly';
 import { conflict, notFound } from '../http/problem';
 import { AssessmentRow } from './assessment.entity';
-import { deliveryStatusProviders, observationProviders, onAssessmentMarkedInError } from './events';
+import { assessmentEvents } from './events';
 
 const SORTABLE: Record<string, string> = {
   windowStart: 'a.window_start',
@@ -24,6 +24,8 @@ interface SummaryRaw {
   monitorId: string;
   bedId: string | null;
   patientRef: string | null;
+  patientName: string | null;
+  patientMrn: string | null;
   windowStart: Date;
   windowEnd: Date;
   verdict: AssessmentSummary['verdict'];
@@ -47,6 +49,8 @@ function toSummary(r: SummaryRaw, deliveryStatus: string | null): AssessmentSumm
     monitorId: r.monitorId,
     bedId: r.bedId,
     patientRef: r.patientRef,
+    patientName: r.patientName ?? null,
+    patientMrn: r.patientMrn ?? null,
     windowStart: new Date(r.windowStart).toISOString(),
     windowEnd: new Date(r.windowEnd).toISOString(),
     verdict: r.verdict,
@@ -72,6 +76,8 @@ function summaryQuery(ds: DataSource) {
     .addSelect('a.monitor_id', 'monitorId')
     .addSelect('a.bed_id', 'bedId')
     .addSelect('a.patient_ref', 'patientRef')
+    .addSelect('a.patient_name', 'patientName')
+    .addSelect('a.patient_mrn', 'patientMrn')
     .addSelect('a.window_start', 'windowStart')
     .addSelect('a.window_end', 'windowEnd')
     .addSelect('a.verdict', 'verdict')
@@ -89,7 +95,7 @@ function summaryQuery(ds: DataSource) {
 
 async function deliveryStatuses(ds: DataSource, ids: string[]): Promise<Map<string, string>> {
   const out = new Map<string, string>();
-  for (const p of deliveryStatusProviders) for (const [k, v] of await p(ds, ids)) out.set(k, v);
+  for (const p of assessmentEvents(ds).deliveryStatus) for (const [k, v] of await p(ds, ids)) out.set(k, v);
   return out;
 }
 
@@ -129,7 +135,7 @@ export async function getAssessment(ds: DataSource, id: string) {
     channels: input.channels.map((c) => ({ role: c.role, unit: c.unit, sampleRate: c.sampleRate, samples: Array.from(c.samples, (v) => (Number.isFinite(v) ? v : null)) })),
   };
   const observations: Record<string, unknown>[] = [];
-  for (const p of observationProviders) observations.push(...(await p(ds, id)));
+  for (const p of assessmentEvents(ds).observations) observations.push(...(await p(ds, id)));
   return {
     assessment: {
       ...toSummary(raw, statuses.get(id) ?? null),
@@ -155,7 +161,7 @@ export async function markInError(ds: DataSource, id: string, reason: string, by
     row.enteredInErrorReason = reason;
     await m.update(AssessmentRow, { id }, { enteredInErrorAt: row.enteredInErrorAt, enteredInErrorBy: who, enteredInErrorReason: reason });
     await recordAudit(m, { principal: by.principal, action: 'assessment.mark-in-error', entityType: 'assessment', entityId: id, before: { enteredInError: false }, after: { enteredInError: true, reason }, requestId: by.requestId });
-    for (const hook of onAssessmentMarkedInError) await hook(m, row, reason);
+    for (const hook of assessmentEvents(ds).markedInError) await hook(m, row, reason);
   });
   return (await listAssessmentsById(ds, id))!;
 }

@@ -14,9 +14,10 @@ import { Foundation1764600000000 } from './migrations/1764600000000-foundation';
 import { Assessments1764650000000 } from './migrations/1764650000000-assessments';
 import { SiteSettings1764900000000 } from './migrations/1764900000000-site-settings';
 
-import { AlertIncidentRow, DeliveryAttemptRow, DeliveryRow, DestinationRow } from '../delivery/delivery.entities';
+import { AlertIncidentRow, AlertMailRow, DeliveryAttemptRow, DeliveryRow, DestinationRow } from '../delivery/delivery.entities';
 import { Delivery1764800000001 } from './migrations/1764800000001-delivery';
+import { DeliveryReliability1765400000000 } from './migrations/1765400000000-delivery-reliability';
 
-export const ENTITIES = [UserRow, UserSessionRow, AuditEntryRow, MonitorProfileRow, BedRow, MonitorRow, DeviceKeyRow, AssessmentRow, InboundMessageRow, WaveformSegmentRow, AnalysisWindowRow, DestinationRow, DeliveryRow, DeliveryAttemptRow, AlertIncidentRow, SiteSettingRow];
+export const ENTITIES = [UserRow, UserSessionRow, AuditEntryRow, MonitorProfileRow, BedRow, MonitorRow, DeviceKeyRow, AssessmentRow, InboundMessageRow, WaveformSegmentRow, AnalysisWindowRow, DestinationRow, DeliveryRow, DeliveryAttemptRow, AlertIncidentRow, AlertMailRow, SiteSettingRow];
 
-export const MIGRATIONS = [Foundation1764600000000, Assessments1764650000000, Ingest1764700000001, Delivery1764800000001, SiteSettings1764900000000];
+export const MIGRATIONS = [Foundation1764600000000, Assessments1764650000000, Ingest1764700000001, Delivery1764800000001, SiteSettings1764900000000, DeliveryReliability1765400000000];

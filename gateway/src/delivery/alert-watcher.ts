@@ -4,8 +4,7 @@
  * while open), one mail when it opens and one when it clears, even with several gateway processes.
  */
 import type { SiteSettings } from '@ebbgate/shared';
-import type { AppContext } from '../app-context';
-import type { BackgroundService } from '../capabilities';
+import type { AppContext, BackgroundService } from '../app-context';
 import { createMailer, type Mailer } from '../mail/mailer';
 import { AlertIncidentRow, DestinationRow, type IncidentKind } from './delivery.entities';
 

@@ -16,7 +16,7 @@ const iso = (d: Date | null) => (d ? d.toISOString() : null);
 export function toDelivery(r: DeliveryRow): Delivery {
   return {
     id: String(r.id), assessmentId: r.assessmentId, destinationId: r.destinationId, index: r.indexName as Delivery['index'], kind: r.kind,
-    status: r.status, identifier: r.identifier, serverId: r.serverId, patientRef: r.patientRef, tries: r.tries, attemptCount: r.attemptCount,
+    status: r.status, identifier: r.identifier, serverId: r.serverId, patientRef: r.patientRef, patientName: r.patientName, patientMrn: r.patientMrn, tries: r.tries, attemptCount: r.attemptCount,
     nextAttemptAt: r.nextAttemptAt.toISOString(), lastHttpStatus: r.lastHttpStatus, lastError: r.lastError, discardReason: r.discardReason,
     createdAt: r.createdAt.toISOString(), updatedAt: r.updatedAt.toISOString(), deliveredAt: iso(r.deliveredAt),
   };

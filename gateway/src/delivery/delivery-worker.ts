@@ -8,7 +8,7 @@ import type { Logger } from 'pino';
 import type { DataSource } from 'typeorm';
 import { In, IsNull, Not } from 'typeorm';
 import { AssessmentRow } from '../assessments/assessment.entity';
-import type { BackgroundService } from '../capabilities';
+import type { BackgroundService } from '../app-context';
 import { PollLoop } from '../lib/poll-loop';
 import type { DeliveryConfig } from './delivery.config';
 import { DeliveryRow, DestinationRow } from './delivery.entities';

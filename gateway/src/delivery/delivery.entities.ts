@@ -45,6 +45,17 @@ export class DeliveryRow {
   /** The EHR's id of the Observation once delivered. */
   @Column({ name: 'server_id', type: 'varchar', length: 64, nullable: true }) serverId!: string | null;
   @Column({ name: 'patient_ref', type: 'varchar', length: 128, nullable: true }) patientRef!: string | null;
+  /** `Encounter/<id>` the result was filed under (with the patient, for reconciliation). */
+  @Column({ name: 'encounter_ref', type: 'varchar', length: 128, nullable: true }) encounterRef!: string | null;
+  /** Name and MRN from the EHR's Patient resource, fetched with the context (shown in the console). */
+  @Column({ name: 'patient_name', type: 'varchar', length: 200, nullable: true }) patientName!: string | null;
+  @Column({ name: 'patient_mrn', type: 'varchar', length: 64, nullable: true }) patientMrn!: string | null;
+  /**
+   * Fencing token: set by each claim, checked by every state change of the claim's holder, so a
+   * worker whose lease ran out (and whose row another worker has claimed since) changes nothing.
+   */
+  @Column({ name: 'claim_id', type: 'varchar', length: 36, nullable: true }) claimId!: string | null;
+  @Column({ name: 'claimed_at', type: 'datetime', precision: 3, nullable: true }) claimedAt!: Date | null;
   /** Attempts counted toward the retry limit (reset by a manual retry). */
   @Column({ type: 'int', default: 0 }) tries!: number;
   @Column({ name: 'attempt_count', type: 'int', default: 0 }) attemptCount!: number;
@@ -90,4 +101,27 @@ export class AlertIncidentRow {
   @Column({ type: 'text' }) detail!: string;
   @Column({ name: 'opened_mail_at', type: 'datetime', precision: 3, nullable: true }) openedMailAt!: Date | null;
   @Column({ name: 'cleared_mail_at', type: 'datetime', precision: 3, nullable: true }) clearedMailAt!: Date | null;
+}
+
+export type AlertMailEvent = 'opened' | 'cleared';
+export type AlertMailStatus = 'pending' | 'sent';
+
+/**
+ * Alert mail as an outbox row: queued with the incident change, claimed (lease + fencing token),
+ * sent, then marked. A process that dies after claiming leaves it due again: at-least-once, and
+ * the stable Message-ID lets a mail client recognise a resend.
+ */
+@Entity('alert_mail')
+export class AlertMailRow {
+  @PrimaryGeneratedColumn({ type: 'bigint' }) id!: string;
+  @Column({ name: 'incident_id', type: 'bigint' }) incidentId!: string;
+  @Column({ type: 'varchar', length: 16 }) event!: AlertMailEvent;
+  @Column({ name: 'message_id', type: 'varchar', length: 200 }) messageId!: string;
+  @Column({ type: 'varchar', length: 16 }) status!: AlertMailStatus;
+  @Column({ name: 'claim_id', type: 'varchar', length: 36, nullable: true }) claimId!: string | null;
+  @Column({ name: 'claimed_until', type: 'datetime', precision: 3, nullable: true }) claimedUntil!: Date | null;
+  @Column({ type: 'int', default: 0 }) tries!: number;
+  @Column({ name: 'last_error', type: 'text', nullable: true }) lastError!: string | null;
+  @Column({ name: 'created_at', type: 'datetime', precision: 3 }) createdAt!: Date;
+  @Column({ name: 'sent_at', type: 'datetime', precision: 3, nullable: true }) sentAt!: Date | null;
 }

@@ -3,10 +3,8 @@
  * worker per destination, the alert watcher, the operator routes and a non-critical EHR check.
  */
 import type { Router } from 'express';
-import type { AppContext } from '../app-context';
-import { deliveryStatusProviders, observationProviders, onAssessmentMarkedInError, onAssessmentStored } from '../assessments/events';
-import type { BackgroundService } from '../capabilities';
-import type { ReadinessCheck } from '../http/app';
+import type { AppContext, BackgroundService, ReadinessCheck } from '../app-context';
+import { assessmentEvents } from '../assessments/events';
 import type { Metrics } from '../http/metrics';
 import { getSiteSettings } from '../settings/settings.service';
 import { AlertWatcher } from './alert-watcher';
@@ -49,18 +47,14 @@ export function buildDelivery(ctx: AppContext, metrics?: Metrics, codes: CodeMap
   }));
   const policy = async (): Promise<DeliveryPolicy> => (await getSiteSettings(ctx)).delivery;
 
-  // Hooks are process-wide lists; each gateway answers only for its own database.
-  onAssessmentStored.push(async (m, a) => {
-    if (m.connection !== ctx.ds) return;
+  const events = assessmentEvents(ctx.ds);
+  events.stored.push(async (m, a) => {
     await ensureDestinations();
     await enqueueAssessment(m, a, specs.map((s) => s.id), codes, (await policy()).notValidPolicy);
   });
-  onAssessmentMarkedInError.push(async (m, a) => {
-    if (m.connection !== ctx.ds) return;
-    await markAssessmentInError(m, a);
-  });
-  deliveryStatusProviders.push(async (ds, ids) => (ds === ctx.ds ? assessmentDeliveryStatus(ds, ids) : new Map()));
-  observationProviders.push(async (ds, id) => (ds === ctx.ds ? assessmentObservations(ds, id) : []));
+  events.markedInError.push((m, a) => markAssessmentInError(m, a));
+  events.deliveryStatus.push(assessmentDeliveryStatus);
+  events.observations.push(assessmentObservations);
 
   const ehr = new EhrClient({ ...ctx.config.ehr, requestTimeoutMs: cfg.requestTimeoutMs });
   const contexts = new PatientContextResolver(ehr, cfg.patientContext.cacheSeconds * 1000);

@@ -1,7 +1,6 @@
 import type { Router } from 'express';
 import type { Transport } from '@ebbgate/shared';
-import type { AppContext } from '../app-context';
-import type { BackgroundService } from '../capabilities';
+import type { AppContext, BackgroundService } from '../app-context';
 import { decodeJsonBatch, type ReceivedBatch } from './decoded-batch';
 import { inboundRouter } from './inbound.router';
 import { ingestRouter } from './ingest.router';

@@ -1,5 +1,4 @@
-import type { AppContext } from '../app-context';
-import type { BackgroundService } from '../capabilities';
+import type { AppContext, BackgroundService } from '../app-context';
 
 export interface PurgeCounts {
   segments: number;

@@ -9,6 +9,9 @@ export const assessmentSummarySchema = z.object({
   monitorId: z.string(),
   bedId: z.string().nullable(),
   patientRef: z.string().nullable(),
+  /** Name and MRN from the EHR's Patient resource, set with patientRef once a delivery files it (null before). */
+  patientName: z.string().nullable(),
+  patientMrn: z.string().nullable(),
   windowStart: z.string(),
   windowEnd: z.string(),
   verdict: verdictSchema,

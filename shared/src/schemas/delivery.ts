@@ -30,6 +30,9 @@ export const deliverySchema = z.object({
   identifier: z.string(),
   serverId: z.string().nullable(),
   patientRef: z.string().nullable(),
+  /** The patient's name and MRN as the EHR's Patient resource gave them when the context was resolved (null before). */
+  patientName: z.string().nullable(),
+  patientMrn: z.string().nullable(),
   tries: z.number().int(),
   attemptCount: z.number().int(),
   nextAttemptAt: isoDateTime,

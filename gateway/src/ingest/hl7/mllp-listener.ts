@@ -1,6 +1,5 @@
 import net from 'node:net';
-import type { AppContext } from '../../app-context';
-import type { BackgroundService } from '../../capabilities';
+import type { AppContext, BackgroundService } from '../../app-context';
 import { recordInbound } from '../inbound-store';
 import type { IngestService } from '../ingest.service';
 import { IngestRefusal } from '../refusal';
