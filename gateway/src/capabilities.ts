@@ -9,6 +9,7 @@ import { authRouter } from './auth/auth.router';
 import type { ReadinessCheck } from './http/app';
 import type { Metrics } from './http/metrics';
 import { overviewRouter } from './overview/overview.router';
+import { boardRouter } from './board/board.router';
 import { settingsRouter } from './settings/settings.router';
 import { usersRouter } from './users/users.router';
 import { devicesRouter } from './devices/devices.router';
@@ -36,7 +37,7 @@ export function buildCapabilities(ctx: AppContext, _metrics: Metrics): Capabilit
   const analysis = buildAnalysis(ctx);
   const delivery = buildDelivery(ctx, _metrics);
   return {
-    routers: [authRouter(ctx), usersRouter(ctx), auditRouter(ctx), settingsRouter(ctx), overviewRouter(ctx), devicesRouter(ctx), ...ingest.routers, ...analysis.routers, ...delivery.routers],
+    routers: [authRouter(ctx), usersRouter(ctx), auditRouter(ctx), settingsRouter(ctx), overviewRouter(ctx), boardRouter(ctx), devicesRouter(ctx), ...ingest.routers, ...analysis.routers, ...delivery.routers],
     rawBodyRouters: [...ingest.rawBodyRouters],
     readiness: [...delivery.readiness],
     services: [...ingest.services, ...analysis.services, ...delivery.services],

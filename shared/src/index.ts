@@ -8,4 +8,5 @@ export * from './schemas/inbound';
 export * from './schemas/assessments';
 export * from './schemas/settings';
 export * from './schemas/overview';
+export * from './schemas/board';
 export * from './schemas/delivery';

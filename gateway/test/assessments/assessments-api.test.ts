@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { analyseNextWindow, DEFAULT_ENGINE } from '../../src/analysis/analysis-worker';
-import { onAssessmentMarkedInError } from '../../src/assessments/events';
+import { assessmentEvents } from '../../src/assessments/events';
 import { startTestGateway, type SignedInClient, type TestGateway } from '../support/harness';
 import { registerMonitor } from '../devices/fixtures';
 import { sendRecording } from '../analysis/ingest-helpers';
@@ -92,10 +92,10 @@ describe('POST /assessments/:id/mark-in-error', () => {
   it('lets a reviewer mark a result in error once, audited, calling the delivery hook', async () => {
     const [item] = (await reviewer.get(`/api/v1/assessments?monitor=${monitorB}`)).body.items;
     const seen: string[] = [];
-    onAssessmentMarkedInError.push(async (_m, a, reason) => void seen.push(`${a.id}:${reason}`));
+    assessmentEvents(gw.ctx.ds).markedInError.push(async (_m, a, reason) => void seen.push(`${a.id}:${reason}`));
     expect((await integrator.post(`/api/v1/assessments/${item.id}/mark-in-error`, { reason: 'arterial line was flushed' })).status).toBe(403);
     const res = await reviewer.post(`/api/v1/assessments/${item.id}/mark-in-error`, { reason: 'arterial line was flushed' });
-    onAssessmentMarkedInError.pop();
+    assessmentEvents(gw.ctx.ds).markedInError.pop();
     expect(res.status).toBe(200);
     expect(res.body.enteredInError).toBe(true);
     expect(seen).toEqual([`${item.id}:arterial line was flushed`]);

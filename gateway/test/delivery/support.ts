@@ -7,7 +7,7 @@ import type { DataSource, EntityManager } from 'typeorm';
 import { analyzeWindow, type AnalysisContext, type AnalysisResult } from '@ebbgate/shared/analysis';
 import { generateWindow, type SyntheticSpec } from '@ebbgate/shared/synthetic';
 import { AssessmentRow } from '../../src/assessments/assessment.entity';
-import { onAssessmentMarkedInError, onAssessmentStored } from '../../src/assessments/events';
+import { assessmentEvents } from '../../src/assessments/events';
 import { BedRow, MonitorRow } from '../../src/devices/device.entities';
 
 export const VENTILATED: AnalysisContext = { ventilationMode: 'controlled', tidalVolumeMl: 650, patientHeightCm: 175, patientSex: 'male', plethScaling: 'raw' };
@@ -47,7 +47,7 @@ export async function storeAssessment(ds: DataSource, at: { bedId: string | null
   } as AssessmentRow;
   await ds.transaction(async (m: EntityManager) => {
     await m.getRepository(AssessmentRow).insert(row);
-    if (hooks) for (const h of onAssessmentStored) await h(m, row);
+    if (hooks) for (const h of assessmentEvents(ds).stored) await h(m, row);
   });
   return row;
 }
@@ -57,7 +57,7 @@ export async function markInError(ds: DataSource, a: AssessmentRow, by: string, 
   await ds.transaction(async (m) => {
     Object.assign(a, { enteredInErrorAt: new Date(), enteredInErrorBy: by, enteredInErrorReason: reason });
     await m.getRepository(AssessmentRow).save(a);
-    for (const h of onAssessmentMarkedInError) await h(m, a, reason);
+    for (const h of assessmentEvents(ds).markedInError) await h(m, a, reason);
   });
 }
 
