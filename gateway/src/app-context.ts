@@ -1,5 +1,12 @@
+/**
+ * The shared types every layer may use: what a capability is given (AppContext), what it gives
+ * back to the composition (BackgroundService, ReadinessCheck), and who asks for a change
+ * (ChangeBy). This module sits at the bottom of the gateway: it imports types only, and nothing
+ * from a capability, so any module can import it without a cycle.
+ */
 import type { Logger } from 'pino';
 import type { DataSource } from 'typeorm';
+import type { Principal } from './auth/principal';
 import type { Config } from './config/schema';
 
 /** What every capability is given: the config, the database and the logger. */
@@ -7,4 +14,26 @@ export interface AppContext {
   config: Config;
   ds: DataSource;
   logger: Logger;
+}
+
+/** A worker or listener the gateway starts after the HTTP server and stops on shutdown. */
+export interface BackgroundService {
+  name: string;
+  start(): Promise<void>;
+  /** Finish in-flight work, then stop. */
+  stop(): Promise<void>;
+}
+
+/** One line of /readyz. */
+export interface ReadinessCheck {
+  name: string;
+  /** A failing critical check makes /readyz answer 503. */
+  critical: boolean;
+  check: () => Promise<void>;
+}
+
+/** Who made this change, for the audit log: the signed-in person or device (none: the system) and the request. */
+export interface ChangeBy {
+  principal: Principal | undefined;
+  requestId?: string;
 }

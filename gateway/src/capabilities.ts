@@ -3,10 +3,9 @@
  * readiness checks, and background services (workers, listeners) with start/stop.
  */
 import type { Router } from 'express';
-import type { AppContext } from './app-context';
+import type { AppContext, BackgroundService, ReadinessCheck } from './app-context';
 import { auditRouter } from './audit/audit.router';
 import { authRouter } from './auth/auth.router';
-import type { ReadinessCheck } from './http/app';
 import type { Metrics } from './http/metrics';
 import { overviewRouter } from './overview/overview.router';
 import { boardRouter } from './board/board.router';
@@ -16,13 +15,6 @@ import { devicesRouter } from './devices/devices.router';
 import { buildIngest } from './ingest/ingest.capability';
 import { buildAnalysis } from './analysis/analysis.capability';
 import { buildDelivery } from './delivery/delivery.module';
-
-export interface BackgroundService {
-  name: string;
-  start(): Promise<void>;
-  /** Finish in-flight work, then stop. */
-  stop(): Promise<void>;
-}
 
 export interface Capabilities {
   routers: Router[];

@@ -3,7 +3,7 @@ import path from 'node:path';
 import cookieParser from 'cookie-parser';
 import express, { type Express, type RequestHandler, type Router } from 'express';
 import helmet from 'helmet';
-import type { AppContext } from '../app-context';
+import type { AppContext, ReadinessCheck } from '../app-context';
 import { authenticate } from '../auth/auth.middleware';
 import { API_PAGE_CSS, buildOpenApi, renderApiPage } from './openapi';
 import { createMetrics, type Metrics } from './metrics';
@@ -11,13 +11,6 @@ import { HttpProblem, notFoundHandler, problemHandler } from './problem';
 import { httpLogger } from './logger';
 
 export const GATEWAY_VERSION = '0.1.0';
-
-export interface ReadinessCheck {
-  name: string;
-  /** A failing critical check makes /readyz answer 503. */
-  critical: boolean;
-  check: () => Promise<void>;
-}
 
 export interface AppParts {
   /** Routers mounted under /api/v1, in order. */
