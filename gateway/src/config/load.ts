@@ -14,6 +14,8 @@ type Json = Record<string, unknown>;
 /** Environment variables the gateway understands, and where each lands in the config. */
 const ENV_MAP: Record<string, { path: string; type: 'string' | 'number' | 'boolean' }> = {
   DATABASE_URL: { path: 'database.url', type: 'string' },
+  DATABASE_MIGRATION_URL: { path: 'database.migrationUrl', type: 'string' },
+  EBBGATE_METRICS_TOKEN: { path: 'gateway.metricsToken', type: 'string' },
   EBBGATE_HOST: { path: 'gateway.host', type: 'string' },
   EBBGATE_PORT: { path: 'gateway.port', type: 'number' },
   EBBGATE_PUBLIC_URL: { path: 'gateway.publicUrl', type: 'string' },

@@ -19,18 +19,44 @@ export const configSchema = z.object({
     migrateOnStart: z.boolean(),
     /** Create the demo users from config/demo/users.json when missing. */
     seedDemo: z.boolean(),
+    /** Time a client has to send the request headers / the whole request, ms (slow-drip senders). */
+    headersTimeoutMs: z.number().int().min(1000).max(600_000),
+    requestTimeoutMs: z.number().int().min(1000).max(3_600_000),
+    /** When set, /metrics needs `Authorization: Bearer <token>`. */
+    metricsToken: z.string().min(16, 'at least 16 characters').nullable(),
+    /** API requests per minute per device key or session (perKey), and per source address for anonymous callers. */
+    rateLimit: z.object({ perSourcePerMinute: z.number().int().min(1), perKeyPerMinute: z.number().int().min(1) }),
   }),
   database: z.object({
+    /** The runtime user: data privileges only (SELECT, INSERT, UPDATE, DELETE). */
     url: z.string().regex(/^(mysql|mariadb):\/\//, 'a mysql:// or mariadb:// URL'),
+    /** The user that applies migrations (DDL); when null, migrations use `url`. */
+    migrationUrl: z.string().regex(/^(mysql|mariadb):\/\//, 'a mysql:// or mariadb:// URL').nullable(),
     poolSize: z.number().int().min(1).max(500),
+    /** Requests waiting for a pooled connection beyond this fail at once instead of queueing without bound. */
+    queueLimit: z.number().int().min(1).max(100_000),
   }),
   log: z.object({ level: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']) }),
   auth: z.object({
     jwtSecret: z.string().min(32, 'at least 32 characters'),
+    /** Idle lifetime: a session not renewed within this ends. */
     sessionMinutes: z.number().int().min(1).max(24 * 60),
-    lockoutThreshold: z.number().int().min(1).max(100),
-    lockoutMinutes: z.number().int().min(1),
+    /** Absolute lifetime from sign-in: renewing never goes past it. */
+    sessionAbsoluteMinutes: z.number().int().min(1).max(7 * 24 * 60),
     signInAttemptsPerMinute: z.number().int().min(1),
+    /**
+     * Failed sign-ins per account (username as typed, known or not) and per source address: after
+     * the free failures each further one doubles the wait before the next try, up to the maximum.
+     * Counts are forgotten after `forgetMinutes` without failures.
+     */
+    throttle: z.object({
+      accountFreeFailures: z.number().int().min(1).max(1000),
+      sourceFreeFailures: z.number().int().min(1).max(100_000),
+      baseDelaySeconds: z.number().int().min(1).max(3600),
+      accountMaxDelaySeconds: z.number().int().min(1).max(3600),
+      sourceMaxDelaySeconds: z.number().int().min(1).max(24 * 3600),
+      forgetMinutes: z.number().int().min(1).max(7 * 24 * 60),
+    }),
   }),
   mllp: z.object({ enabled: z.boolean(), host: z.string(), port: z.number().int().min(0).max(65535) }),
   ehr: z.object({
