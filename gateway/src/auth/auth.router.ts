@@ -43,7 +43,7 @@ export function authRouter(ctx: AppContext): Router {
     body: signInSchema,
     response: sessionSchema,
     handler: async ({ body, res, req }) => {
-      const issued = await signIn(ctx, body.username, body.password, String(req.id));
+      const issued = await signIn(ctx, body.username, body.password, { ip: req.ip ?? req.socket.remoteAddress ?? 'unknown', requestId: String(req.id) });
       setCookies(res, issued);
       return issued.session;
     },
@@ -55,8 +55,8 @@ export function authRouter(ctx: AppContext): Router {
     permission: 'session.read',
     tag: 'auth',
     summary: 'End the session',
-    handler: async ({ principal, res }) => {
-      await signOut(ctx.ds, asUser(principal).sessionId);
+    handler: async ({ principal, res, req }) => {
+      await signOut(ctx, asUser(principal), String(req.id));
       res.clearCookie(SESSION_COOKIE, { path: '/' });
       res.clearCookie(CSRF_COOKIE, { path: '/' });
       return undefined;

@@ -1,12 +1,12 @@
 import { randomUUID } from 'node:crypto';
-import type { DataSource } from 'typeorm';
 import type { Session } from '@ebbgate/shared';
 import type { AppContext } from '../app-context';
 import { recordAudit } from '../audit/audit.service';
 import { HttpProblem } from '../http/problem';
 import { UserRow, UserSessionRow } from '../users/user.entity';
-import { DUMMY_HASH, verifyPassword } from './passwords';
+import { dummyHash, hashPassword, needsRehash, verifyPassword } from './passwords';
 import type { Principal } from './principal';
+import { accountSubject, blockedUntil, clearAccount, countFailure } from './sign-in-throttle';
 import { csrfTokenFor, signSession, verifySession } from './tokens';
 
 export interface IssuedSession {
@@ -14,12 +14,20 @@ export interface IssuedSession {
   session: Session;
 }
 
-const invalidCredentials = () => new HttpProblem(401, 'Sign-in failed', 'Unknown username or wrong password.');
+/** Where a sign-in came from, for throttling and the audit log. */
+export interface SignInSource {
+  ip: string;
+  requestId?: string;
+}
+
+/** One answer for every failed sign-in: unknown user, wrong password, disabled account. */
+const invalidCredentials = () => new HttpProblem(401, 'Sign-in failed', 'Unknown username or wrong password, or the account cannot sign in.');
 
 function issue(ctx: AppContext, user: UserRow, sessionId: string, expiresAt: Date): IssuedSession {
-  const { jwtSecret, sessionMinutes } = ctx.config.auth;
+  const { jwtSecret } = ctx.config.auth;
+  const minutes = Math.max(1, Math.ceil((expiresAt.getTime() - Date.now()) / 60_000));
   return {
-    token: signSession({ sub: user.id, sid: sessionId }, jwtSecret, sessionMinutes),
+    token: signSession({ sub: user.id, sid: sessionId }, jwtSecret, minutes),
     session: {
       user: { id: user.id, username: user.username, displayName: user.displayName, roles: user.roles },
       csrfToken: csrfTokenFor(sessionId, jwtSecret),
@@ -28,36 +36,46 @@ function issue(ctx: AppContext, user: UserRow, sessionId: string, expiresAt: Dat
   };
 }
 
-/** Checks the password, counts failures, locks after the threshold, opens a session. */
-export async function signIn(ctx: AppContext, username: string, password: string, requestId?: string): Promise<IssuedSession> {
-  const { lockoutThreshold, lockoutMinutes, sessionMinutes } = ctx.config.auth;
-  const users = ctx.ds.getRepository(UserRow);
-  const user = await users.findOneBy({ username });
-  if (!user) {
-    await verifyPassword(password, DUMMY_HASH);
+/** The end of a session renewed now: the idle period, never past the absolute lifetime. */
+function nextExpiry(ctx: AppContext, createdAt: Date, now = new Date()): Date {
+  const { sessionMinutes, sessionAbsoluteMinutes } = ctx.config.auth;
+  return new Date(Math.min(now.getTime() + sessionMinutes * 60_000, createdAt.getTime() + sessionAbsoluteMinutes * 60_000));
+}
+
+/**
+ * Checks the password and opens a session. Every failure (unknown user, wrong password, disabled
+ * account) costs one password verification and one counted failure, and answers the same 401;
+ * a throttled account or source answers 429 with Retry-After, whether or not the user exists.
+ */
+export async function signIn(ctx: AppContext, username: string, password: string, source: SignInSource): Promise<IssuedSession> {
+  const { requestId } = source;
+  const until = await blockedUntil(ctx.ds, username, source.ip);
+  if (until) {
+    const wait = Math.max(1, Math.ceil((until.getTime() - Date.now()) / 1000));
+    await recordAudit(ctx.ds.manager, { principal: undefined, action: 'auth.sign-in-throttled', entityType: 'user', entityId: null, after: { username, source: source.ip }, requestId });
+    throw new HttpProblem(429, 'Too many sign-in attempts', `Too many failed sign-ins for this account or from this address; try again in ${wait} s.`, { headers: { 'Retry-After': String(wait) } });
+  }
+  const user = await ctx.ds.getRepository(UserRow).findOneBy({ username });
+  const ok = await verifyPassword(password, user?.passwordHash ?? (await dummyHash()));
+  if (!user || !ok || user.disabled) {
+    await countFailure(ctx.ds, ctx.config.auth.throttle, username, source.ip);
+    // The console shows the account's wait as `lockedUntil`; the count itself is atomic here too.
+    if (user) await ctx.ds.query(`UPDATE app_user SET failed_attempts = failed_attempts + 1, locked_until = (SELECT blocked_until FROM sign_in_throttle WHERE scope = 'account' AND subject = ?) WHERE id = ?`, [accountSubject(username), user.id]);
+    const reason = !user ? 'unknown-user' : !ok ? 'wrong-password' : 'disabled';
+    await recordAudit(ctx.ds.manager, { principal: undefined, action: 'auth.sign-in-failed', entityType: 'user', entityId: user?.id ?? null, after: { username, reason, source: source.ip }, requestId });
     throw invalidCredentials();
   }
   const now = new Date();
-  if (user.lockedUntil && user.lockedUntil > now) {
-    throw new HttpProblem(423, 'Account locked', `Too many failed sign-ins; try again after ${user.lockedUntil.toISOString()} or ask an admin.`);
-  }
-  const ok = await verifyPassword(password, user.passwordHash);
-  if (!ok) {
-    const failed = user.failedAttempts + 1;
-    const lock = failed >= lockoutThreshold;
-    await users.update(user.id, { failedAttempts: lock ? 0 : failed, lockedUntil: lock ? new Date(now.getTime() + lockoutMinutes * 60_000) : null });
-    if (lock) {
-      await recordAudit(ctx.ds.manager, { principal: undefined, action: 'user.lock', entityType: 'user', entityId: user.id, after: { username, reason: `${failed} failed sign-ins` }, requestId });
-    }
-    throw invalidCredentials();
-  }
-  if (user.disabled) throw new HttpProblem(403, 'Account disabled', 'This account is disabled; ask an admin.');
   const sessionId = randomUUID();
-  const expiresAt = new Date(now.getTime() + sessionMinutes * 60_000);
+  const expiresAt = nextExpiry(ctx, now, now);
+  const rehash = needsRehash(user.passwordHash) ? await hashPassword(password) : null;
+  const principal: Principal = { kind: 'user', userId: user.id, username: user.username, displayName: user.displayName, roles: user.roles, sessionId };
   await ctx.ds.transaction(async (m) => {
-    await m.update(UserRow, user.id, { failedAttempts: 0, lockedUntil: null, lastSignInAt: now });
+    await m.update(UserRow, user.id, { failedAttempts: 0, lockedUntil: null, lastSignInAt: now, ...(rehash ? { passwordHash: rehash } : {}) });
     await m.insert(UserSessionRow, { id: sessionId, userId: user.id, createdAt: now, expiresAt, revokedAt: null });
+    await recordAudit(m, { principal, action: 'auth.sign-in', entityType: 'user', entityId: user.id, after: { username: user.username, source: source.ip, sessionId, ...(rehash ? { passwordRehashed: true } : {}) }, requestId });
   });
+  await clearAccount(ctx.ds, username);
   return issue(ctx, user, sessionId, expiresAt);
 }
 
@@ -69,16 +87,22 @@ export async function principalFromSession(ctx: AppContext, token: string): Prom
     .getRepository(UserSessionRow)
     .createQueryBuilder('s')
     .innerJoin(UserRow, 'u', 'u.id = s.user_id')
-    .select(['s.id AS sid', 's.expires_at AS expiresAt', 's.revoked_at AS revokedAt', 'u.id AS userId', 'u.username AS username', 'u.display_name AS displayName', 'u.roles AS roles', 'u.disabled AS disabled'])
+    .select(['s.id AS sid', 's.created_at AS createdAt', 's.expires_at AS expiresAt', 's.revoked_at AS revokedAt', 'u.id AS userId', 'u.username AS username', 'u.display_name AS displayName', 'u.roles AS roles', 'u.disabled AS disabled'])
     .where('s.id = :sid AND s.user_id = :uid', { sid: claims.sid, uid: claims.sub })
-    .getRawOne<{ sid: string; expiresAt: Date; revokedAt: Date | null; userId: string; username: string; displayName: string; roles: string; disabled: number }>();
-  if (!row || row.revokedAt || new Date(row.expiresAt) <= new Date() || Number(row.disabled)) return null;
+    .getRawOne<{ sid: string; createdAt: Date; expiresAt: Date; revokedAt: Date | null; userId: string; username: string; displayName: string; roles: string; disabled: number }>();
+  if (!row || row.revokedAt || Number(row.disabled)) return null;
+  const now = Date.now();
+  const absoluteEnd = new Date(row.createdAt).getTime() + ctx.config.auth.sessionAbsoluteMinutes * 60_000;
+  if (new Date(row.expiresAt).getTime() <= now || absoluteEnd <= now) return null;
   return { kind: 'user', userId: row.userId, username: row.username, displayName: row.displayName, roles: JSON.parse(row.roles), sessionId: row.sid };
 }
 
+/** Extends the session by the idle period, never past its absolute lifetime. */
 export async function renewSession(ctx: AppContext, principal: Extract<Principal, { kind: 'user' }>): Promise<IssuedSession> {
-  const expiresAt = new Date(Date.now() + ctx.config.auth.sessionMinutes * 60_000);
-  await ctx.ds.getRepository(UserSessionRow).update(principal.sessionId, { expiresAt });
+  const sessions = ctx.ds.getRepository(UserSessionRow);
+  const s = await sessions.findOneByOrFail({ id: principal.sessionId });
+  const expiresAt = nextExpiry(ctx, s.createdAt);
+  await sessions.update(principal.sessionId, { expiresAt });
   const user = await ctx.ds.getRepository(UserRow).findOneByOrFail({ id: principal.userId });
   return issue(ctx, user, principal.sessionId, expiresAt);
 }
@@ -89,6 +113,9 @@ export async function currentSession(ctx: AppContext, principal: Extract<Princip
   return issue(ctx, user, s.id, s.expiresAt).session;
 }
 
-export async function signOut(ds: DataSource, sessionId: string): Promise<void> {
-  await ds.getRepository(UserSessionRow).update(sessionId, { revokedAt: new Date() });
+export async function signOut(ctx: AppContext, principal: Extract<Principal, { kind: 'user' }>, requestId?: string): Promise<void> {
+  await ctx.ds.transaction(async (m) => {
+    await m.update(UserSessionRow, principal.sessionId, { revokedAt: new Date() });
+    await recordAudit(m, { principal, action: 'auth.sign-out', entityType: 'user', entityId: principal.userId, after: { username: principal.username, sessionId: principal.sessionId }, requestId });
+  });
 }

@@ -1,8 +1,9 @@
 import { randomUUID } from 'node:crypto';
-import type { DataSource } from 'typeorm';
-import type { CreateUser, Page, PageQuery, UpdateUser, User } from '@ebbgate/shared';
+import type { DataSource, EntityManager } from 'typeorm';
+import type { CreateUser, Page, PageQuery, Role, UpdateUser, User } from '@ebbgate/shared';
 import { recordAudit } from '../audit/audit.service';
 import { hashPassword } from '../auth/passwords';
+import { accountSubject } from '../auth/sign-in-throttle';
 import type { Principal } from '../auth/principal';
 import { conflict, notFound } from '../http/problem';
 import { UserRow, UserSessionRow } from './user.entity';
@@ -65,6 +66,7 @@ export async function updateUser(ds: DataSource, id: string, patch: UpdateUser, 
     const row = await m.findOneBy(UserRow, { id });
     if (!row) throw notFound(`User ${id}`);
     const before = toUser(row);
+    await keepOneActiveAdmin(m, row, patch);
     if (patch.displayName !== undefined) row.displayName = patch.displayName;
     if (patch.roles !== undefined) row.roles = [...new Set(patch.roles)];
     if (patch.disabled !== undefined) row.disabled = patch.disabled;
@@ -77,6 +79,22 @@ export async function updateUser(ds: DataSource, id: string, patch: UpdateUser, 
   });
 }
 
+const isActiveAdmin = (u: { disabled: boolean | number; roles: Role[] }) => !Number(u.disabled) && u.roles.includes('admin');
+
+/**
+ * Refuses (409) a change that would leave no active admin: nobody could then manage users. The
+ * active users' rows are locked (FOR UPDATE), so two admins demoting each other at the same time
+ * cannot both succeed.
+ */
+async function keepOneActiveAdmin(m: EntityManager, row: UserRow, patch: UpdateUser): Promise<void> {
+  if (!isActiveAdmin(row)) return;
+  const after = { disabled: patch.disabled ?? row.disabled, roles: patch.roles ?? row.roles };
+  if (isActiveAdmin(after)) return;
+  const active = (await m.query('SELECT id, roles FROM app_user WHERE disabled = 0 FOR UPDATE')) as { id: string; roles: string }[];
+  const others = active.filter((u) => u.id !== row.id && (JSON.parse(u.roles) as Role[]).includes('admin'));
+  if (others.length === 0) throw conflict(`${row.username} is the last active admin; make another user an admin before disabling or demoting this one.`);
+}
+
 /** Sets a new password, unlocks the account and ends its open sessions. */
 export async function resetPassword(ds: DataSource, id: string, password: string, actor: Actor): Promise<void> {
   const passwordHash = await hashPassword(password);
@@ -84,6 +102,7 @@ export async function resetPassword(ds: DataSource, id: string, password: string
     const row = await m.findOneBy(UserRow, { id });
     if (!row) throw notFound(`User ${id}`);
     await m.update(UserRow, id, { passwordHash, passwordChangedAt: new Date(), failedAttempts: 0, lockedUntil: null });
+    await m.query(`DELETE FROM sign_in_throttle WHERE scope = 'account' AND subject = ?`, [accountSubject(row.username)]);
     await m.update(UserSessionRow, { userId: id }, { revokedAt: new Date() });
     await recordAudit(m, { ...actor, action: 'user.reset-password', entityType: 'user', entityId: id, after: { username: row.username } });
   });

@@ -45,8 +45,27 @@ describe('user administration', () => {
     await admin.post(`/api/v1/users/${id}/password`, { password: 'Brand-new-pass-2' }).expect(204);
     await gw.signIn({ username: 'tom.temp', password: 'Brand-new-pass-2' });
     const audit = await auditFor(id);
-    expect(audit.map((a) => a.action)).toEqual(['user.create', 'user.change-roles', 'user.disable', 'user.enable', 'user.reset-password']);
-    expect(audit[1]).toMatchObject({ before: { roles: ['reviewer'] }, after: { roles: ['integrator'] } });
+    expect(audit.map((a) => a.action).filter((a) => a.startsWith('user.'))).toEqual(['user.create', 'user.change-roles', 'user.disable', 'user.enable', 'user.reset-password']);
+    expect(audit.find((a) => a.action === 'user.change-roles')).toMatchObject({ before: { roles: ['reviewer'] }, after: { roles: ['integrator'] } });
+  });
+
+  it('refuses (409) to disable or demote the last active admin, and allows it once another admin exists', async () => {
+    const me = (await admin.get('/api/v1/auth/session')).body.user.id as string;
+    for (const patch of [{ disabled: true }, { roles: ['integrator'] }]) {
+      const res = await admin.patch(`/api/v1/users/${me}`, patch);
+      expect(res.status).toBe(409);
+      expect(res.headers['content-type']).toMatch(/application\/problem\+json/);
+      expect(res.body.detail).toMatch(/last active admin/);
+    }
+    const [{ n }] = (await gw.ctx.ds.query(`SELECT COUNT(*) AS n FROM app_user WHERE disabled = 0 AND roles LIKE '%"admin"%'`)) as { n: number }[];
+    expect(Number(n)).toBe(1);
+    // Two admins demoting each other at once: exactly one of the two changes may succeed.
+    const second = await admin.post('/api/v1/users', { username: 'sam.second', displayName: 'Sam', password: 'Second-admin-9', roles: ['admin'] });
+    const sam = await gw.signIn({ username: 'sam.second', password: 'Second-admin-9' });
+    const both = await Promise.all([admin.patch(`/api/v1/users/${second.body.id}`, { roles: ['reviewer'] }), sam.patch(`/api/v1/users/${me}`, { roles: ['reviewer'] })]);
+    expect(both.map((r) => r.status).sort()).toEqual([200, 409]);
+    const [{ m }] = (await gw.ctx.ds.query(`SELECT COUNT(*) AS m FROM app_user WHERE disabled = 0 AND roles LIKE '%"admin"%'`)) as { m: number }[];
+    expect(Number(m)).toBe(1);
   });
 
   it('lists users with server paging', async () => {
