@@ -1,13 +1,11 @@
 import { Router } from 'express';
 import multer from 'multer';
 import { previewFieldsSchema, previewResultSchema, reanalysisAnswerSchema, reanalysisRequestSchema } from '@ebbgate/shared';
-import { ENGINE_VERSION } from '@ebbgate/shared/analysis';
-import { recordAudit } from '../audit/audit.service';
 import type { AppContext } from '../app-context';
 import { badRequest } from '../http/problem';
 import { defineRoute } from '../http/route';
-import { requestReanalysis } from './analysis-worker';
 import { previewCapture } from './preview.service';
+import { queueReanalysis } from './reanalysis.service';
 
 export function analysisRouter(ctx: AppContext): Router {
   const router = Router();
@@ -36,13 +34,7 @@ export function analysisRouter(ctx: AppContext): Router {
     body: reanalysisRequestSchema,
     response: reanalysisAnswerSchema,
     status: 202,
-    handler: ({ body, principal, req }) =>
-      ctx.ds.transaction(async (m) => {
-        const q = { engineVersion: ENGINE_VERSION, monitorId: body.monitorId, from: body.from ? new Date(body.from) : undefined, to: body.to ? new Date(body.to) : undefined };
-        const queued = await requestReanalysis(ctx, q, m);
-        await recordAudit(m, { principal, action: 'analysis.reanalyse', entityType: 'analysis-window', entityId: body.monitorId ?? null, after: { ...body, engineVersion: ENGINE_VERSION, queued }, requestId: String(req.id) });
-        return { engineVersion: ENGINE_VERSION, queued };
-      }),
+    handler: ({ body, principal, req }) => queueReanalysis(ctx, body, { principal, requestId: String(req.id) }),
   });
   return router;
 }

@@ -1,7 +1,7 @@
 import type { DataSource } from 'typeorm';
 import type { AssessmentQuery, AssessmentSummary, Page, Waveform } from '@ebbgate/shared';
 import { recordAudit } from '../audit/audit.service';
-import type { Principal } from '../auth/principal';
+import type { ChangeBy } from '../app-context';
 import { assembleWindow } from '../analysis/window-assembly';
 import { conflict, notFound } from '../http/problem';
 import { AssessmentRow } from './assessment.entity';
@@ -150,7 +150,7 @@ export async function getAssessment(ds: DataSource, id: string) {
 }
 
 /** Marks a result entered in error (reviewer), audited; delivery hooks send the amendment. */
-export async function markInError(ds: DataSource, id: string, reason: string, by: { principal: Principal | undefined; requestId?: string }) {
+export async function markInError(ds: DataSource, id: string, reason: string, by: ChangeBy) {
   await ds.transaction(async (m) => {
     const row = await m.findOne(AssessmentRow, { where: { id }, lock: { mode: 'pessimistic_write' } });
     if (!row) throw notFound(`Assessment ${id}`);

@@ -6,7 +6,7 @@ import type { Delivery, DeliveryActionResult, DeliveryDetail, DeliveryQuery, Des
 import type { DataSource } from 'typeorm';
 import { In } from 'typeorm';
 import { recordAudit } from '../audit/audit.service';
-import type { Principal } from '../auth/principal';
+import type { ChangeBy } from '../app-context';
 import { actorOf } from '../auth/principal';
 import { notFound, conflict } from '../http/problem';
 import { DeliveryAttemptRow, DeliveryRow, DestinationRow } from './delivery.entities';
@@ -50,17 +50,12 @@ export async function getDelivery(ds: DataSource, id: string): Promise<DeliveryD
   };
 }
 
-export interface ActionContext {
-  principal: Principal | undefined;
-  requestId?: string;
-}
-
 /**
  * retry: send the kept payload again, with a fresh retry budget.
  * replay: rebuild the payload (patient context, code map and settings as they are now) and send;
  * also allowed on delivered rows: conditional create on the identifier makes it harmless.
  */
-export async function requeue(ds: DataSource, ids: string[], mode: 'retry' | 'replay', act: ActionContext): Promise<DeliveryActionResult> {
+export async function requeue(ds: DataSource, ids: string[], mode: 'retry' | 'replay', act: ChangeBy): Promise<DeliveryActionResult> {
   const allowed = mode === 'retry' ? ['failed', 'waiting-context', 'pending'] : ['failed', 'waiting-context', 'pending', 'delivered', 'discarded', 'withheld'];
   const result: DeliveryActionResult = { updated: [], skipped: [] };
   await ds.transaction(async (m) => {
@@ -93,7 +88,7 @@ export async function requeue(ds: DataSource, ids: string[], mode: 'retry' | 're
   return result;
 }
 
-export async function discardDelivery(ds: DataSource, id: string, reason: string, act: ActionContext): Promise<Delivery> {
+export async function discardDelivery(ds: DataSource, id: string, reason: string, act: ChangeBy): Promise<Delivery> {
   return ds.transaction(async (m) => {
     const r = await m.getRepository(DeliveryRow).createQueryBuilder('d').where({ id }).setLock('pessimistic_write').getOne();
     if (!r) throw notFound(`Delivery ${id}`);
@@ -123,7 +118,7 @@ export async function listDestinations(ds: DataSource): Promise<Destination[]> {
   }));
 }
 
-export async function setPaused(ds: DataSource, id: string, paused: boolean, act: ActionContext): Promise<Destination> {
+export async function setPaused(ds: DataSource, id: string, paused: boolean, act: ChangeBy): Promise<Destination> {
   await ds.transaction(async (m) => {
     const d = await m.getRepository(DestinationRow).createQueryBuilder('d').where({ id }).setLock('pessimistic_write').getOne();
     if (!d) throw notFound(`Destination ${id}`);

@@ -7,6 +7,7 @@ import type { DataSource, EntityManager } from 'typeorm';
 import { In } from 'typeorm';
 import type { AnalysisResult } from '@ebbgate/shared/analysis';
 import type { AssessmentRow } from '../assessments/assessment.entity';
+import { isRetryableLockError } from '../db/errors';
 import { DELIVERED_INDICES, type CodeMap } from './code-map';
 import type { DeliveryConfig } from './delivery.config';
 import { DeliveryAttemptRow, DeliveryRow, DestinationRow, type DeliveryStatus, type DestinationKind } from './delivery.entities';
@@ -59,13 +60,6 @@ export async function enqueueAssessment(m: EntityManager, a: AssessmentRow, dest
     }
   }
   if (rows.length) await m.createQueryBuilder().insert().into(DeliveryRow).values(rows).orIgnore().execute();
-}
-
-/** MariaDB's deadlock and lock-wait errors: the transaction was rolled back and may simply be run again. */
-function isRetryableLockError(err: unknown): boolean {
-  const e = err as { errno?: number; driverError?: { errno?: number } };
-  const n = e?.driverError?.errno ?? e?.errno;
-  return n === 1213 || n === 1205;
 }
 
 /**

@@ -15,14 +15,11 @@ import {
   updateBedSchema,
   updateMonitorSchema,
 } from '@ebbgate/shared';
-import type { AppContext } from '../app-context';
-import { issueDeviceKey, revokeDeviceKeys } from '../auth/device-keys';
+import type { AppContext, ChangeBy } from '../app-context';
 import { defineRoute, type RouteContext } from '../http/route';
 import { createBed, deleteBed, getBed, listBeds, updateBed } from './beds.service';
-import type { ChangeBy } from './change-context';
-import { getMonitor } from './monitors.service';
-import { createMonitor, deleteMonitor, listMonitors, updateMonitor } from './monitors.service';
-import { forgetDevices } from './device-cache';
+import { issueMonitorKey, revokeMonitorKey } from './monitor-keys.service';
+import { createMonitor, deleteMonitor, getMonitor, listMonitors, updateMonitor } from './monitors.service';
 import { createProfile, deleteProfile, getProfile, listProfiles, replaceProfile } from './profiles.service';
 
 const by = (c: RouteContext<unknown, unknown, unknown>): ChangeBy => ({ principal: c.principal, requestId: String(c.req.id) });
@@ -53,11 +50,7 @@ export function devicesRouter(ctx: AppContext): Router {
     params: idParam,
     response: apiKeyIssuedSchema,
     status: 201,
-    handler: async (c) => {
-      const issued = await issueDeviceKey(ctx, c.params.id, c.principal, String(c.req.id));
-      forgetDevices();
-      return issued;
-    },
+    handler: (c) => issueMonitorKey(ctx, c.params.id, by(c)),
   });
   defineRoute(router, {
     method: 'delete',
@@ -66,11 +59,7 @@ export function devicesRouter(ctx: AppContext): Router {
     tag,
     summary: "Revoke the monitor's API key",
     params: idParam,
-    handler: async (c) => {
-      await getMonitor(ds, c.params.id);
-      await revokeDeviceKeys(ctx, c.params.id, c.principal, String(c.req.id));
-      return undefined;
-    },
+    handler: async (c) => void (await revokeMonitorKey(ctx, c.params.id, by(c))),
   });
 
   defineRoute(router, { method: 'get', path: '/beds', permission: 'beds.read', tag, summary: 'List beds (paged; unit, search, sort)', query: bedQuerySchema, response: pageOf(bedSchema), handler: (c) => listBeds(ds, c.query) });

@@ -4,7 +4,8 @@ import { monitorProfileInputSchema, type MonitorProfile, type MonitorProfileInpu
 import { recordAudit } from '../audit/audit.service';
 import { unitConversion } from '@ebbgate/shared/analysis';
 import { badRequest, conflict, notFound } from '../http/problem';
-import { isDuplicateKey, isReferenced, type ChangeBy } from './change-context';
+import type { ChangeBy } from '../app-context';
+import { isDuplicateKey, isReferenced } from '../db/errors';
 import { MonitorProfileRow, MonitorRow } from './device.entities';
 import { forgetDevices } from './device-cache';
 import { likePattern, orderAndPage } from './device-paging';

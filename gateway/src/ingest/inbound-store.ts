@@ -2,7 +2,7 @@ import { createHash } from 'node:crypto';
 import type { DataSource, QueryRunner } from 'typeorm';
 import type { Continuity, InboundOutcome, Transport } from '@ebbgate/shared';
 import { ENGINE_VERSION } from '@ebbgate/shared/analysis';
-import { isDuplicateKey } from '../devices/change-context';
+import { isDuplicateKey } from '../db/errors';
 import type { MonitorForIngest } from '../devices/device-cache';
 import type { MappedChannel } from './channel-mapping';
 import type { ReceivedBatch } from './decoded-batch';

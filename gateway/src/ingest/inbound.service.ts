@@ -1,6 +1,7 @@
 import type { DataSource } from 'typeorm';
 import type { InboundMessage, InboundMessageDetail, InboundQuery, Page, Transport } from '@ebbgate/shared';
 import { recordAudit } from '../audit/audit.service';
+import type { ChangeBy } from '../app-context';
 import type { Principal } from '../auth/principal';
 import { conflict, notFound } from '../http/problem';
 import type { ReceivedBatch } from './decoded-batch';
@@ -68,7 +69,7 @@ export async function reprocessInbound(
   service: IngestService,
   decoders: Record<Transport, (raw: Buffer) => ReceivedBatch>,
   id: string,
-  by: { principal: Principal | undefined; requestId?: string },
+  by: ChangeBy,
 ) {
   const row = await ds.getRepository(InboundMessageRow).findOneBy({ id });
   if (!row) throw notFound(`Inbound message ${id}`);
@@ -91,7 +92,7 @@ export async function reprocessInbound(
   return { message: toInboundMessage(after), result: after.outcome === 'rejected' ? ('rejected' as const) : result, reason: reason ?? after.reason };
 }
 
-export async function discardInbound(ds: DataSource, id: string, reason: string, by: { principal: Principal | undefined; requestId?: string }) {
+export async function discardInbound(ds: DataSource, id: string, reason: string, by: ChangeBy) {
   return ds.transaction(async (m) => {
     const row = await m.findOne(InboundMessageRow, { where: { id }, lock: { mode: 'pessimistic_write' } });
     if (!row) throw notFound(`Inbound message ${id}`);

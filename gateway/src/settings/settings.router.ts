@@ -23,7 +23,7 @@ export function settingsRouter(ctx: AppContext): Router {
     summary: 'Replace the site settings (audited per section)',
     body: siteSettingsSchema,
     response: siteSettingsSchema,
-    handler: ({ body, principal, req }) => putSiteSettings(ctx, body, principal, String(req.id)),
+    handler: ({ body, principal, req }) => putSiteSettings(ctx, body, { principal, requestId: String(req.id) }),
   });
   return router;
 }

@@ -1,8 +1,7 @@
 import { siteSettingsSchema, type SiteSettings } from '@ebbgate/shared';
 import { DEFAULT_SETTINGS } from '@ebbgate/shared/analysis';
-import type { AppContext } from '../app-context';
+import type { AppContext, ChangeBy } from '../app-context';
 import { recordAudit } from '../audit/audit.service';
-import type { Principal } from '../auth/principal';
 import { SiteSettingRow } from './site-setting.entity';
 
 type Section = keyof SiteSettings;
@@ -40,13 +39,13 @@ export async function getSiteSettings(ctx: AppContext): Promise<SiteSettings> {
 }
 
 /** Replaces the site settings (whole object, validated by the route), audited section by section. */
-export async function putSiteSettings(ctx: AppContext, next: SiteSettings, principal: Principal | undefined, requestId?: string): Promise<SiteSettings> {
+export async function putSiteSettings(ctx: AppContext, next: SiteSettings, by: ChangeBy): Promise<SiteSettings> {
   const before = await getSiteSettings(ctx);
   await ctx.ds.transaction(async (m) => {
     for (const section of SECTIONS) {
       if (JSON.stringify(before[section]) === JSON.stringify(next[section])) continue;
-      await m.save(SiteSettingRow, { section, value: next[section], updatedAt: new Date(), updatedBy: principal?.kind === 'user' ? principal.username : null });
-      await recordAudit(m, { principal, action: 'settings.update', entityType: 'settings', entityId: section, before: before[section], after: next[section], requestId });
+      await m.save(SiteSettingRow, { section, value: next[section], updatedAt: new Date(), updatedBy: by.principal?.kind === 'user' ? by.principal.username : null });
+      await recordAudit(m, { principal: by.principal, action: 'settings.update', entityType: 'settings', entityId: section, before: before[section], after: next[section], requestId: by.requestId });
     }
   });
   cache.delete(ctx);
