@@ -1,11 +1,14 @@
 import type { ConditionedChannel } from './conditioning';
+import { FLUSH_LEVEL_MMHG } from './conditioning';
 import { hasArtefact } from './beat-quality';
 import { median } from './signal-utils';
-import type { ArterialLineReport, BeatSeries } from './types';
+import type { ArterialLineReport, BeatSeries, DampingEstimate, FlushTestResult, GardnerRegion } from './types';
 
 /**
- * Arterial-line checks (Gardner, Anesthesiology 1981; common practice): an over-damped line loses
- * the dicrotic notch and slows the upstroke; a fast flush shows a plateau near the bag pressure.
+ * Arterial-line dynamic response (Gardner, Anesthesiology 1981;54:227). With a fast-flush test in
+ * the window, natural frequency and damping ratio come from the ringing after release; without
+ * one, over- and under-damping are estimated from the beat shape (no dicrotic notch and a slow
+ * upstroke; oscillation riding on the systolic peak).
  */
 export function checkArterialLine(ch: ConditionedChannel, series: BeatSeries): ArterialLineReport {
   const y = ch.smooth;
@@ -13,6 +16,8 @@ export function checkArterialLine(ch: ConditionedChannel, series: BeatSeries): A
   const beats = series.beats;
   let withNotch = 0;
   let examined = 0;
+  let ringing = 0;
+  let ringExamined = 0;
   const rises: number[] = [];
   let suffix = new Float64Array(256);
   for (let k = 0; k + 1 < beats.length; k++) {
@@ -21,6 +26,10 @@ export function checkArterialLine(ch: ConditionedChannel, series: BeatSeries): A
     if (hasArtefact(b)) continue;
     const next = beats[k + 1].footSample;
     rises.push((b.peakSample - b.footSample) / fs);
+    if (b.pp !== null && b.pp > 0) {
+      ringExamined++;
+      if (ringsAfterPeak(ch.filled, b.footSample, b.peakSample, next, fs, b.pp)) ringing++;
+    }
     const end = next - Math.round(0.15 * (next - b.footSample));
     if (end - b.peakSample < 6) continue;
     examined++;
@@ -49,11 +58,51 @@ export function checkArterialLine(ch: ConditionedChannel, series: BeatSeries): A
     if (found) withNotch++;
   }
   const notchFraction = examined ? withNotch / examined : null;
-  const rise = median(rises);
-  const dampingSuspected = notchFraction !== null && notchFraction < 0.3 && rise > 0.15;
+  const rise = rises.length ? median(rises) : null;
+  // Beat shape (checked on a second-order catheter model over fn 5–25 Hz, ζ 0.05–1.6 in the tests):
+  // over-damping removes the notch and stretches the upstroke; under-damping rings on the peak.
+  const underByShape = ringExamined >= 5 && ringing / ringExamined >= 0.5;
+  const overByShape = !underByShape && notchFraction !== null && rise !== null && notchFraction < 0.3 && rise > 0.13;
+  const dampingEstimate: DampingEstimate = notchFraction === null || rise === null ? 'unknown' : underByShape ? 'under-damped' : overByShape ? 'over-damped' : 'adequate';
   // Flush: a plateau above 250 mmHg lasting 0.3 s (runs measured during conditioning).
   const flushSuspected = ch.longestHighRun >= Math.round(0.3 * fs);
-  return { notchFraction, dampingSuspected, flushSuspected };
+  const flushTests = flushSuspected || ch.longestHighRun >= Math.round(0.15 * fs) ? findFlushTests(ch.filled, fs) : [];
+  const measured = flushTests.filter((f) => f.region !== 'unacceptable' || f.dampingRatio !== null);
+  const last = measured.length ? measured[measured.length - 1] : null;
+  // A measured flush test overrides the shape estimate (it is the direct test).
+  const dampingSuspected = last ? last.region === 'over-damped' : dampingEstimate === 'over-damped';
+  const underDampingSuspected = last ? last.region === 'under-damped' || (last.region === 'unacceptable' && (last.dampingRatio ?? 1) < 0.5) : dampingEstimate === 'under-damped';
+  return { notchFraction, dampingSuspected, underDampingSuspected, flushSuspected, flushTests, dampingEstimate, upstrokeSeconds: rise };
+}
+
+/**
+ * Oscillation riding on the systolic peak: at least three alternating extrema, each swing above
+ * 6 % of the pulse pressure, between the peak and 0.2 s after it (before the dicrotic notch).
+ */
+function ringsAfterPeak(x: Float64Array, foot: number, peak: number, next: number, fs: number, pp: number): boolean {
+  const from = Math.max(foot + 1, peak - Math.round(0.03 * fs));
+  const to = Math.min(next, peak + Math.round(0.2 * fs), x.length);
+  const h = 0.06 * pp;
+  let count = 0;
+  let dir = 0;
+  let ext = x[from];
+  for (let i = from + 1; i < to; i++) {
+    const v = x[i];
+    if (dir >= 0) {
+      if (v > ext) ext = v;
+      else if (ext - v > h) {
+        if (dir > 0) count++;
+        dir = -1;
+        ext = v;
+      }
+    } else if (v < ext) ext = v;
+    else if (v - ext > h) {
+      count++;
+      dir = 1;
+      ext = v;
+    }
+  }
+  return count >= 3;
 }
 
 /** Damping coefficient from the amplitude ratio of successive flush oscillations (Gardner 1981): ζ = −ln AR / √(π² + ln² AR). */
@@ -61,4 +110,139 @@ export function dampingCoefficient(amplitudeRatio: number): number {
   if (!(amplitudeRatio > 0 && amplitudeRatio < 1)) throw new RangeError(`amplitude ratio must lie in (0, 1), got ${amplitudeRatio}`);
   const l = Math.log(amplitudeRatio);
   return -l / Math.sqrt(Math.PI * Math.PI + l * l);
+}
+
+/**
+ * Region of Gardner's chart (Anesthesiology 1981;54:227, Fig. of natural frequency against damping
+ * coefficient; region boundaries approximated from the chart, from memory): below ~7 Hz no
+ * damping is adequate; the adequate band narrows towards ζ 0.5–0.75 as fn falls.
+ */
+export function gardnerRegion(fn: number | null, zeta: number | null): GardnerRegion {
+  if (zeta === null) return 'over-damped';
+  if (fn === null) return zeta > 1 ? 'over-damped' : 'unacceptable';
+  const upper = Math.min(1.05, 0.6 + 0.02 * fn);
+  const lower = Math.max(0.1, 0.65 - 0.022 * fn);
+  if (zeta > upper) return 'over-damped';
+  if (fn < 7) return 'unacceptable';
+  if (zeta < lower) return 'under-damped';
+  if (fn >= 12 && zeta >= lower + 0.15 && zeta <= upper - 0.1) return 'optimal';
+  return 'adequate';
+}
+
+const REGION_TEXT: Record<GardnerRegion, string> = {
+  optimal: 'optimal: the line reproduces the waveform faithfully',
+  adequate: 'adequate: small distortion of the waveform',
+  'over-damped': 'over-damped: systolic pressure and its swing understated, diastolic overstated',
+  'under-damped': 'under-damped: systolic overshoot and ringing, systolic pressure and its swing overstated',
+  unacceptable: 'unacceptable: natural frequency too low for any damping to reproduce the waveform',
+};
+
+export function gardnerRegionText(r: GardnerRegion): string {
+  return REGION_TEXT[r];
+}
+
+/**
+ * Fast-flush tests: a plateau above 250 mmHg for at least 0.15 s, then the square-wave release.
+ * After release the zig-zag extrema (hysteresis max(1 mmHg, 1 % of the step)) give the swings
+ * D1, D2 … of the ringing; the amplitude ratio D2/D1 gives ζ by Gardner's relation and the time
+ * between two minima the damped period Td, so fn = 1 / (Td √(1 − ζ²)). No ringing at all is an
+ * over-damped line (ζ beyond ~0.9 leaves no measurable overshoot).
+ */
+export function findFlushTests(x: Float64Array, fs: number): FlushTestResult[] {
+  const out: FlushTestResult[] = [];
+  const minRun = Math.round(0.15 * fs);
+  let run = 0;
+  for (let i = 0; i < x.length; i++) {
+    if (x[i] > FLUSH_LEVEL_MMHG) {
+      run++;
+      continue;
+    }
+    if (run >= minRun) {
+      const plateauStart = i - run;
+      const plateau = median(Array.from(x.subarray(Math.max(plateauStart, i - Math.round(0.1 * fs)), i)));
+      const r = measureRinging(x, fs, i - 1, plateau);
+      if (r) out.push(r);
+    }
+    run = 0;
+  }
+  return out;
+}
+
+function measureRinging(x: Float64Array, fs: number, release: number, plateau: number): FlushTestResult | null {
+  const end = Math.min(x.length, release + Math.round(1.0 * fs));
+  if (end - release < Math.round(0.2 * fs)) return null;
+  // Resting level after the ringing: median of 0.6–1.0 s after release.
+  const restFrom = Math.min(end - 1, release + Math.round(0.6 * fs));
+  const rest = median(Array.from(x.subarray(restFrom, end)));
+  const step = plateau - rest;
+  if (!(step > 20)) return null;
+  const h = Math.max(1, 0.01 * step);
+  // Zig-zag extrema after release, starting downwards.
+  const ext: { i: number; v: number }[] = [];
+  let dir = -1;
+  let ei = release;
+  let ev = x[release];
+  for (let i = release + 1; i < end && ext.length < 7; i++) {
+    const v = x[i];
+    if (dir < 0) {
+      if (v < ev) {
+        ev = v;
+        ei = i;
+      } else if (v - ev > h) {
+        ext.push({ i: ei, v: ev });
+        dir = 1;
+        ev = v;
+        ei = i;
+      }
+    } else if (v > ev) {
+      ev = v;
+      ei = i;
+    } else if (ev - v > h) {
+      ext.push({ i: ei, v: ev });
+      dir = -1;
+      ev = v;
+      ei = i;
+    }
+  }
+  const releaseTime = release / fs;
+  // The first extremum is the undershoot; it must lie below the resting level to be ringing.
+  const refined = ext.map((e) => ({ t: refineTime(x, e.i) / fs, v: e.v }));
+  if (refined.length === 0 || refined[0].v > rest - h) {
+    const region = gardnerRegion(null, null);
+    return { releaseTime, naturalFrequencyHz: null, dampingRatio: null, amplitudeRatio: null, oscillations: 0, region, regionText: gardnerRegionText(region) };
+  }
+  let ar: number | null = null;
+  if (refined.length >= 3) {
+    const d1 = refined[1].v - refined[0].v;
+    const d2 = refined[1].v - refined[2].v;
+    if (d1 > 0 && d2 > 0 && d2 < d1) ar = d2 / d1;
+  }
+  if (ar === null) {
+    // Only the undershoot: its depth below the resting level against the step (same relation).
+    const q = (rest - refined[0].v) / step;
+    if (q > 0 && q < 1) ar = q;
+  }
+  const zeta = ar !== null ? dampingCoefficient(ar) : null;
+  let fn: number | null = null;
+  if (zeta !== null && refined.length >= 3) {
+    const td = refined.length >= 3 ? refined[2].t - refined[0].t : NaN;
+    if (td > 0) fn = 1 / (td * Math.sqrt(Math.max(1e-6, 1 - zeta * zeta)));
+  } else if (zeta !== null && refined.length >= 2) {
+    const td = 2 * (refined[1].t - refined[0].t);
+    if (td > 0) fn = 1 / (td * Math.sqrt(Math.max(1e-6, 1 - zeta * zeta)));
+  }
+  const region = gardnerRegion(fn, zeta);
+  return { releaseTime, naturalFrequencyHz: fn, dampingRatio: zeta, amplitudeRatio: ar, oscillations: refined.length, region, regionText: gardnerRegionText(region) };
+}
+
+/** Sub-sample time of an extremum by a parabola through its neighbours. */
+function refineTime(x: Float64Array, i: number): number {
+  if (i <= 0 || i + 1 >= x.length) return i;
+  const a = x[i - 1];
+  const b = x[i];
+  const c = x[i + 1];
+  const den = a - 2 * b + c;
+  if (den === 0) return i;
+  const off = (0.5 * (a - c)) / den;
+  return off > -1 && off < 1 ? i + off : i;
 }

@@ -1,5 +1,6 @@
 import type { BeatLandmarks } from './beats-abp';
 import type { ConditionedChannel } from './conditioning';
+import { SIGNAL_LOSS_PULSE_MMHG } from './signal-loss';
 import { finiteOrNull, median, overlapsAny } from './signal-utils';
 import type { AnalysisSettings, Beat, BeatRejectReason, BeatSeries, BeatSource } from './types';
 
@@ -42,7 +43,10 @@ function vertex(y: Float64Array, i: number): number {
 }
 
 /** Reasons that mean the beat's landmarks (and so its interval) cannot be trusted. */
-const ARTEFACT: BeatRejectReason[] = ['edge', 'gap', 'flat-line', 'clipped', 'noisy-slope', 'template-mismatch'];
+const ARTEFACT: BeatRejectReason[] = ['edge', 'gap', 'flat-line', 'signal-loss', 'clipped', 'noisy-slope', 'template-mismatch'];
+/** Reasons that leave no measurable beat at all (used to compare kept with dropped cycles). */
+const HARD: BeatRejectReason[] = ['edge', 'gap', 'flat-line', 'signal-loss', 'clipped'];
+export const hasHardArtefact = (b: Beat): boolean => b.rejectReasons.some((r) => HARD.includes(r));
 const hasArtefact = (b: Beat): boolean => b.rejectReasons.some((r) => ARTEFACT.includes(r));
 
 /** Builds per-beat values (SBP/DBP/PP/MAP or amplitude/DC) from the landmarks. */
@@ -109,10 +113,23 @@ function measure(ch: ConditionedChannel, lm: BeatLandmarks, source: BeatSource, 
   return beats;
 }
 
-/** ABP beat abnormality rules (Sun, Reisner, Mark; Computers in Cardiology 2006). */
+/**
+ * Pulse-pressure floor of a plausible beat, mmHg: Sun 2006's fixed 20 mmHg is a rule for adult
+ * monitoring populations and, in a patient whose pulse pressure is uniformly narrow (shock), rejects
+ * the smallest beats of each breath, so the cycles kept are those with the least swing. The floor
+ * is therefore relative to the patient's own beats: half the window's median pulse pressure, never
+ * above Sun's 20 mmHg and never below the signal-loss floor.
+ */
+export function pulsePressureFloor(medianPp: number): number {
+  const rel = 0.5 * medianPp;
+  return Math.max(SIGNAL_LOSS_PULSE_MMHG, Math.min(20, rel === rel ? rel : 20));
+}
+
+/** ABP beat abnormality rules (Sun, Reisner, Mark; Computers in Cardiology 2006), PP floor relative. */
 function sunRules(beats: Beat[], ch: ConditionedChannel, lm: BeatLandmarks, negativeSlope: number[]): void {
   const fs = ch.fs;
   const slopeScale = fs / 125; // the rule's −3 is per 8 ms sample at 125 Hz
+  const ppFloor = pulsePressureFloor(median(beats.filter((b) => !hasArtefact(b)).map((b) => b.pp as number)));
   for (let k = 0; k < beats.length; k++) {
     const b = beats[k];
     const sbp = b.sbp as number;
@@ -123,7 +140,7 @@ function sunRules(beats: Beat[], ch: ConditionedChannel, lm: BeatLandmarks, nega
     if (sbp > 300) add(b, 'sbp-high');
     if (map < 30 || map > 200) add(b, 'map-out-of-range');
     if (b.ibi !== null && (60 / b.ibi < 20 || 60 / b.ibi > 200)) add(b, 'hr-out-of-range');
-    if (pp < 20) add(b, 'pp-low');
+    if (pp < ppFloor) add(b, 'pp-low');
     if (k > 0) {
       const prev = beats[k - 1];
       if (Math.abs(sbp - (prev.sbp as number)) > 20) add(b, 'sbp-jump');
@@ -221,7 +238,7 @@ export function qualifyBeats(ch: ConditionedChannel, lm: BeatLandmarks, source: 
   const negativeSlope: number[] = [];
   const residual = { sum2: 0, count: 0 };
   const beats = measure(ch, lm, source, negativeSlope, residual);
-  const { gaps, flatLines, clipping } = ch.report;
+  const { gaps, flatLines, clipping, signalLoss } = ch.report;
   for (let k = 0; k < beats.length; k++) {
     const b = beats[k];
     const end = k + 1 < beats.length ? beats[k + 1].footSample : b.peakSample + 1;
@@ -229,6 +246,7 @@ export function qualifyBeats(ch: ConditionedChannel, lm: BeatLandmarks, source: 
     const from = k > 0 ? beats[k - 1].footSample + 1 : b.footSample;
     if (overlapsAny(gaps, from, end)) add(b, 'gap');
     if (overlapsAny(flatLines, from, end)) add(b, 'flat-line');
+    if (signalLoss.length && overlapsAny(signalLoss, from, end)) add(b, 'signal-loss');
     if (overlapsAny(clipping, b.footSample, end)) add(b, 'clipped');
   }
   if (source === 'abp') sunRules(beats, ch, lm, negativeSlope);

@@ -15,9 +15,15 @@ export interface BeatLandmarks {
  * Cardiology 2003): SSF(n) = Σ max(0, Δy) over 128 ms; adaptive threshold starting at 3 × mean SSF
  * of the first 8 s, moved 1/10 of the way to each detected SSF maximum, detection at 1/3 of it;
  * onset where the SSF rise fades; 250 ms refractory period. Windows scale with fs instead of
- * resampling to 125 Hz. The foot (DBP) is the pressure minimum just before the onset; the peak
+ * resampling to 125 Hz. After 2.5 s without a beat the threshold halves, but never below a floor
+ * (the open-source reference implementation, PhysioNet's wabp, likewise steps down to a minimum
+ * threshold): SSF_MIN_MMHG, an upstroke of 3 mmHg within 128 ms, so noise on a lost line (a
+ * fraction of a mmHg per sample) never reads as beats. The foot (DBP) is the pressure minimum just before the onset; the peak
  * (SBP) the maximum of the following 300 ms.
  */
+/** Lowest detection threshold of the slope sum, mmHg (rise within the 128 ms window). */
+export const SSF_MIN_MMHG = 3;
+
 export function detectArterialBeats(y: Float64Array, fs: number): BeatLandmarks {
   const n = y.length;
   const w = Math.max(2, Math.round(0.128 * fs));
@@ -51,8 +57,8 @@ export function detectArterialBeats(y: Float64Array, fs: number): BeatLandmarks 
   let lastPeak = -1;
   let i = 1;
   while (i < n) {
-    const thr = base / 3;
-    if (ssf[i] > thr && thr > 0) {
+    const thr = base / 3 > SSF_MIN_MMHG ? base / 3 : SSF_MIN_MMHG;
+    if (ssf[i] > thr) {
       const mEnd = Math.min(n, i + searchMax);
       const m = argMax(ssf, i, mEnd);
       const ssfMax = ssf[m];
@@ -76,7 +82,7 @@ export function detectArterialBeats(y: Float64Array, fs: number): BeatLandmarks 
     }
     // Nothing for 2.5 s (gap, flat line, a sudden drop in pulse size): relax the threshold.
     if (i - lastDetect > quiet) {
-      base *= 0.5;
+      base = Math.max(base * 0.5, 3 * SSF_MIN_MMHG);
       lastDetect = i;
     }
     i++;

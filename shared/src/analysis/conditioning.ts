@@ -1,5 +1,6 @@
 import type { ChannelRole } from '../schemas/ingest';
 import { cachedButterSos, sosfiltfilt } from './filters';
+import { findSignalLoss } from './signal-loss';
 import { robustPercentiles } from './signal-utils';
 import type { AnalysisChannel, AnalysisSettings, ChannelReport, FilterReport, SampleSpan } from './types';
 
@@ -199,6 +200,7 @@ export function conditionChannel(ch: AnalysisChannel, settings: AnalysisSettings
     gaps,
     flatLines,
     clipping,
+    signalLoss: ch.role === 'abp' && hasSignal ? findSignalLoss(smooth, fs, settings.minFlatLineSeconds) : [],
     gapFraction: gapCount / n,
     filter,
     resampledTo: null,

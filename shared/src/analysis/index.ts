@@ -10,12 +10,14 @@ import { detectArterialBeats } from './beats-abp';
 import { detectPlethBeats } from './beats-pleth';
 import { CAUTIONS } from './cautions';
 import { AnalysisInputError, conditionChannel, type ConditionedChannel } from './conditioning';
-import { breathsFromAirwayPressure, breathsFromCo2, breathsInferred, type BreathBoundaries } from './cycles';
-import { buildCycles, computeIndices, selectCycles } from './indices';
+import { findBreaths, spontaneousEvidence } from './breath-source';
+import { buildCycles, computeIndices, keptVersusDropped, selectCycles, selectionReport } from './indices';
+import { respiratoryMechanics } from './mechanics';
 import { predictedBodyWeightKg } from './pbw';
 import { resolveSettings } from './settings';
 import type { AnalysisInput, AnalysisResult, AnalysisSettings, ChannelRole, SampleSpan } from './types';
-import { buildFlags, judge } from './verdict';
+import { buildFlags, judge, type ResolvedChecklist } from './verdict';
+import { CHECKLIST_CONTEXT_KEYS, type ChecklistContext } from '../schemas/ingest';
 import { ENGINE_VERSION } from './version';
 
 export * from './types';
@@ -26,7 +28,8 @@ export { predictedBodyWeightKg, tidalVolumePerKg } from './pbw';
 export { AnalysisInputError, unitConversion } from './conditioning';
 export { butter, butterSos, filtfilt, sosfiltfilt, lfilter, lfilterZi } from './filters';
 export { percentVariation } from './signal-utils';
-export { dampingCoefficient } from './arterial-line';
+export { dampingCoefficient, findFlushTests, gardnerRegion, gardnerRegionText } from './arterial-line';
+export { SIGNAL_LOSS_PULSE_MMHG } from './signal-loss';
 export { formatSummary } from './summary';
 export { DEFAULT_CODE_ROLES, roleForCode, batchToAnalysisInput, parseBatchJson, parseCsvCapture, readCapture, CaptureParseError } from './input';
 
@@ -55,8 +58,19 @@ function sanitize<T>(value: T): T {
   return value;
 }
 
+/** Checklist items from the batch, else from the bed settings; each remembers where it came from. */
+function resolveChecklist(batch: ChecklistContext, bed: ChecklistContext | undefined): ResolvedChecklist {
+  const out: ResolvedChecklist = {};
+  for (const key of CHECKLIST_CONTEXT_KEYS) {
+    if (batch[key] !== undefined) {
+      if (batch[key]) out[key] = 'batch';
+    } else if (bed?.[key]) out[key] = 'bed';
+  }
+  return out;
+}
+
 /** Analyses one window. Throws AnalysisInputError for input it cannot read (unit, rate, duplicates). */
-export function analyzeWindow(input: AnalysisInput, partialSettings?: Partial<AnalysisSettings>): AnalysisResult {
+export function analyseWindow(input: AnalysisInput, partialSettings?: Partial<AnalysisSettings>): AnalysisResult {
   const settings = resolveSettings(partialSettings);
   const context = input.context ?? {};
   if (!input.channels || input.channels.length === 0) throw new AnalysisInputError('no channels in the analysis window');
@@ -71,27 +85,7 @@ export function analyzeWindow(input: AnalysisInput, partialSettings?: Partial<An
   const plethQ = beatsFor(byRole.get('pleth'), settings);
   const arterialLine = abpQ ? checkArterialLine(byRole.get('abp') as ConditionedChannel, abpQ.series) : null;
 
-  // Respiratory cycles: airway pressure, else CO2, else the set rate with the phase from the pulse.
-  let bounds: BreathBoundaries | null = null;
-  const paw = byRole.get('paw');
-  const co2 = byRole.get('co2');
-  const reasons: string[] = [];
-  if (paw?.hasSignal) {
-    bounds = breathsFromAirwayPressure(paw);
-    if (bounds.reason) reasons.push(bounds.reason);
-  }
-  if ((!bounds || bounds.onsets.length < 2) && co2?.hasSignal) {
-    bounds = breathsFromCo2(co2);
-    if (bounds.reason) reasons.push(bounds.reason);
-  }
-  const primary = abpQ ?? plethQ;
-  if ((!bounds || bounds.onsets.length < 2) && primary) {
-    const ch = byRole.get(primary.series.source) as ConditionedChannel;
-    bounds = breathsInferred(primary.series.beats, ch.fs, ch.filled.length, context.setRespiratoryRate);
-    if (bounds.reason) reasons.push(bounds.reason);
-  }
-  if (bounds && bounds.onsets.length < 2 && reasons.length) bounds.reason = reasons.join('; ');
-
+  const bounds = findBreaths(byRole, abpQ ?? plethQ, context);
   const gaps: SampleSpan[] = conditioned.flatMap((c) => c.report.gaps);
   const cycles = bounds && bounds.onsets.length >= 2 ? buildCycles(bounds, abpQ?.series ?? null, plethQ?.series ?? null, gaps, settings) : [];
   const used = selectCycles(cycles, settings.cyclesToAverage);
@@ -100,7 +94,26 @@ export function analyzeWindow(input: AnalysisInput, partialSettings?: Partial<An
   const pbw = context.patientHeightCm !== undefined && context.patientSex ? predictedBodyWeightKg(context.patientHeightCm, context.patientSex) : null;
   const vtPerKg = pbw !== null && pbw > 0 && context.tidalVolumeMl !== undefined ? context.tidalVolumeMl / pbw : null;
   const channels = conditioned.map((c) => c.report);
-  const flags = buildFlags({ context, settings, channels, abp: abpQ, pleth: plethQ, arterialLine, bounds, cycles, used, indices, tidalVolumeMlPerKg: vtPerKg });
+  const mechanics = respiratoryMechanics(byRole.get('paw'), bounds, context);
+  const selection = selectionReport(cycles, abpQ?.series ?? null);
+  const kvd = keptVersusDropped(cycles);
+  const flags = buildFlags({
+    context,
+    settings,
+    channels,
+    abp: abpQ,
+    pleth: plethQ,
+    arterialLine,
+    bounds,
+    cycles,
+    used,
+    indices,
+    tidalVolumeMlPerKg: vtPerKg,
+    checklist: resolveChecklist(context, input.bedContext),
+    mechanics,
+    effortEvidence: spontaneousEvidence(byRole, bounds, context),
+    selection: { ...kvd, droppedFraction: selection.droppedFraction, total: selection.cyclesTotal },
+  });
   const { verdict, indexVerdicts } = judge(flags, indices, abpQ !== null);
 
   const result: AnalysisResult = {
@@ -126,6 +139,11 @@ export function analyzeWindow(input: AnalysisInput, partialSettings?: Partial<An
     bands: settings.bands.map((b) => ({ ...b })),
     predictedBodyWeightKg: pbw,
     tidalVolumeMlPerKg: vtPerKg,
+    respiratoryMechanics: mechanics,
+    selection,
   };
   return sanitize(result);
 }
+
+/** American spelling kept as an alias for callers written before 2.0.0. */
+export const analyzeWindow = analyseWindow;

@@ -1,6 +1,7 @@
+import { hasHardArtefact } from './beat-quality';
 import type { BreathBoundaries } from './cycles';
 import { finiteOrNull, mean, median, percentVariation } from './signal-utils';
-import type { AnalysisContext, AnalysisSettings, Beat, BeatSeries, CycleRejectReason, IndexValue, Indices, RespiratoryCycle, SampleSpan } from './types';
+import type { AnalysisContext, AnalysisSettings, Beat, BeatSeries, CycleRejectReason, IndexValue, Indices, RespiratoryCycle, SampleSpan, SelectionReport } from './types';
 
 const MIN_BEATS_PER_CYCLE = (s: AnalysisSettings): number => Math.ceil(s.minHrRrRatio + 1e-9);
 
@@ -76,6 +77,8 @@ export function buildCycles(
     const spv = abp && check.ok && sbp.length >= 2 ? Math.max(...sbp) - Math.min(...sbp) : null; // Perel 1987
     const deltaPop = plethOk ? percentVariation(pop) : null; // Cannesson 2005
     const primaryValue = abp ? ppv : deltaPop;
+    const measurable = primary ? primaryIdx.filter((k) => !hasHardArtefact(primary.beats[k])) : [];
+    const variationAllBeats = primary && measurable.length >= minBeats ? percentVariation(measurable.map((k) => (abp ? abp.beats[k].pp : primary.beats[k].amplitude) as number)) : null;
     if (primaryValue !== null && (primaryValue < 0 || primaryValue > settings.plausibleMaxPercent)) reasons.push('value-implausible');
     cycles.push({
       n: j,
@@ -98,6 +101,7 @@ export function buildCycles(
       popMax: pop.length ? Math.max(...pop) : null,
       popMin: pop.length ? Math.min(...pop) : null,
       usedInWindow: false,
+      variationAllBeats: finiteOrNull(variationAllBeats),
     });
   }
   return cycles;
@@ -170,4 +174,43 @@ export function computeIndices(
       ? { value: heartRate.value / respiratoryRate.value, unit: '1', spread: null, cyclesUsed: 0 }
       : notComputable('1', 'heart rate or respiratory rate not computable');
   return { ppv, spv, deltaPop, perfusionIndex, heartRate, respiratoryRate, hrRrRatio };
+}
+
+/** Reasons a cycle is dropped that have their own flag (so they say nothing about selection bias). */
+const FLAGGED_ELSEWHERE: CycleRejectReason[] = ['ectopic-beat', 'gap', 'spontaneous-effort', 'irregular-length', 'partial'];
+
+/**
+ * Kept against dropped cycles: the share dropped, the mean variation of every cycle (whatever was
+ * kept), and the pulse pressure of kept against dropped cycles. A selection that keeps only the
+ * cycles with the least swing reads low; this is what the selection-bias flag looks at.
+ */
+export function selectionReport(cycles: RespiratoryCycle[], abp: BeatSeries | null): SelectionReport {
+  const dropped = cycles.filter((c) => !c.usable);
+  const all = cycles.map((c) => c.variationAllBeats).filter((v): v is number => v !== null);
+  let pulsePressureDifference: number | null = null;
+  if (abp) {
+    const pp = (cs: RespiratoryCycle[]): number[] => cs.flatMap((c) => c.abpBeatIndices.filter((k) => !hasHardArtefact(abp.beats[k])).map((k) => abp.beats[k].pp as number));
+    const kept = pp(cycles.filter((c) => c.usable));
+    const out = pp(dropped.filter((c) => !c.rejectReasons.some((r) => FLAGGED_ELSEWHERE.includes(r))));
+    if (kept.length && out.length) pulsePressureDifference = mean(kept) - mean(out);
+  }
+  return {
+    cyclesTotal: cycles.length,
+    cyclesDropped: dropped.length,
+    droppedFraction: cycles.length ? dropped.length / cycles.length : 0,
+    ppvAllCycles: all.length ? finiteOrNull(mean(all)) : null,
+    pulsePressureDifference: finiteOrNull(pulsePressureDifference),
+  };
+}
+
+/**
+ * Mean variation of the kept (usable) cycles and of the cycles dropped for a reason without a flag
+ * of its own (a rejected beat, too few beats, an implausible value), over every measurable beat.
+ */
+export function keptVersusDropped(cycles: RespiratoryCycle[]): { kept: number | null; dropped: number | null; droppedCount: number } {
+  const kept = cycles.filter((c) => c.usable && c.variationAllBeats !== null).map((c) => c.variationAllBeats as number);
+  const dropped = cycles
+    .filter((c) => !c.usable && c.variationAllBeats !== null && !c.rejectReasons.some((r) => FLAGGED_ELSEWHERE.includes(r)))
+    .map((c) => c.variationAllBeats as number);
+  return { kept: kept.length ? mean(kept) : null, dropped: dropped.length ? mean(dropped) : null, droppedCount: dropped.length };
 }

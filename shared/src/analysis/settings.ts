@@ -60,7 +60,7 @@ export const DEFAULT_SETTINGS: AnalysisSettings = {
   plethFilterOrder: 2,
   respirationLowpassHz: 4,
   minHrRrRatio: 3.6, // De Backer et al., Anesthesiology 2009
-  minTidalVolumeMlPerKg: 8, // Ann Intensive Care 2021 checklist
+  minTidalVolumeMlPerKg: 8, // De Backer et al., Intensive Care Med 2005 (from memory); Ann Intensive Care 2021 checklist
   lowComplianceMlPerCmH2O: 30, // Monnet et al. 2012, from memory
   minTemplateCorrelation: 0.86, // Li & Clifford, Physiol Meas 2012, from memory
   ectopicIntervalFraction: 0.2,
@@ -71,6 +71,11 @@ export const DEFAULT_SETTINGS: AnalysisSettings = {
   flatLineTolerance: 0.005,
   minClipSeconds: 0.04,
   plausibleMaxPercent: 50, // common practice: PPV outside 0–50 % is an artefact
+  maxDroppedCycleFraction: 0.5,
+  selectionBiasPoints: 2,
+  challengeThresholdPoints: 3.5, // Myatra et al., Crit Care Med 2017, from memory
+  challengeMinStepMlPerKg: 1.5, // Myatra 2017 stepped 6 → 8 mL/kg; 1.5 leaves room for rounding of the set volume
+  challengeMinHoldSeconds: 60, // Myatra 2017: PPV read after one minute at 8 mL/kg
   bands: DEFAULT_BANDS,
 };
 
@@ -92,6 +97,11 @@ export function resolveSettings(partial: Partial<AnalysisSettings> = {}): Analys
     'flatLineTolerance',
     'minClipSeconds',
     'plausibleMaxPercent',
+    'maxDroppedCycleFraction',
+    'selectionBiasPoints',
+    'challengeThresholdPoints',
+    'challengeMinStepMlPerKg',
+    'challengeMinHoldSeconds',
   ];
   for (const key of positive) {
     const v = s[key];

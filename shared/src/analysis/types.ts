@@ -5,9 +5,9 @@
  * (never NaN, never typed arrays), so it can be stored, posted and compared bit for bit.
  * Backward compatibility: fields are only ever added, never renamed or removed.
  */
-import type { AnalysisContext, ChannelRole } from '../schemas/ingest';
+import type { AnalysisContext, ChannelRole, ChecklistContext } from '../schemas/ingest';
 
-export type { AnalysisContext, ChannelRole };
+export type { AnalysisContext, ChannelRole, ChecklistContext };
 
 /** One synchronised channel of the analysis window; gaps are NaN samples. */
 export interface AnalysisChannel {
@@ -22,6 +22,11 @@ export interface AnalysisChannel {
 export interface AnalysisInput {
   channels: AnalysisChannel[];
   context?: AnalysisContext;
+  /**
+   * Checklist items set on the bed by a person (audited by the gateway). The batch's own value
+   * wins where both give one; flags say which source they came from.
+   */
+  bedContext?: ChecklistContext;
   /** ISO 8601 time of the first sample; echoed in the result, never used in the computation. */
   startTime?: string;
 }
@@ -88,6 +93,16 @@ export interface AnalysisSettings {
   minClipSeconds: number;
   /** Index values outside this range are artefacts (common practice: PPV 0–50 %). */
   plausibleMaxPercent: number;
+  /** Share of respiratory cycles dropped above which the window is flagged (cycles-dropped). */
+  maxDroppedCycleFraction: number;
+  /** Kept and dropped cycles differing by more than this (points of PPV/ΔPOP) is selection bias. */
+  selectionBiasPoints: number;
+  /** Tidal volume challenge: rise of PPV, points, at or above which the test is positive (Myatra 2017: 3.5). */
+  challengeThresholdPoints: number;
+  /** Tidal volume challenge: smallest step, mL/kg PBW (Myatra 2017 used 6 → 8, i.e. 2). */
+  challengeMinStepMlPerKg: number;
+  /** Tidal volume challenge: time the higher volume must be held before PPV is read, s (Myatra 2017: one minute). */
+  challengeMinHoldSeconds: number;
   /** Decision bands shown with the values. */
   bands: DecisionBand[];
 }
@@ -121,6 +136,8 @@ export interface ChannelReport {
   gaps: SampleSpan[];
   flatLines: SampleSpan[];
   clipping: SampleSpan[];
+  /** Arterial only: spans where the pressure swings less than a pulse (lost line, even with noise). */
+  signalLoss: SampleSpan[];
   /** Fraction of samples that are NaN. */
   gapFraction: number;
   filter: FilterReport | null;
@@ -135,12 +152,13 @@ export type BeatRejectReason =
   | 'edge' // beat cut by the window start/end
   | 'gap' // beat overlaps a gap (NaN)
   | 'flat-line'
+  | 'signal-loss' // inside a span where the arterial pressure swings less than a pulse
   | 'clipped'
   | 'dbp-low' // Sun 2006: DBP < 20 mmHg
   | 'sbp-high' // Sun 2006: SBP > 300 mmHg
   | 'map-out-of-range' // Sun 2006: MAP < 30 or > 200 mmHg
   | 'hr-out-of-range' // Sun 2006: HR < 20 or > 200 /min
-  | 'pp-low' // Sun 2006: PP < 20 mmHg
+  | 'pp-low' // PP below max(Sun 2006's 20 mmHg × fraction, 40 % of the window's median PP): see beat-quality.ts
   | 'sbp-jump' // Sun 2006: beat-to-beat SBP change > 20 mmHg
   | 'dbp-jump' // Sun 2006: beat-to-beat DBP change > 20 mmHg
   | 'period-jump' // Sun 2006: beat period change > 0.5 s
@@ -154,7 +172,10 @@ export type BeatRejectReason =
 export interface Beat {
   /** Ordinal of the beat within its series. */
   n: number;
-  /** Onset (ABP, slope sum function) or foot/trough (pleth), sample index on the source channel. */
+  /**
+   * Foot, sample index on the source channel: for ABP the pressure minimum just before the slope
+   * sum function's onset (its value is the DBP); for pleth the trough before the peak.
+   */
   footSample: number;
   footTime: number;
   peakSample: number;
@@ -225,13 +246,18 @@ export interface RespiratoryCycle {
   popMin: number | null;
   /** Whether this cycle is among those averaged into the window value. */
   usedInWindow: boolean;
+  /**
+   * Variation of the primary pulse over every beat in the cycle that is free of hard artefact
+   * (edge, gap, flat line, signal loss, clipping), usable or not: compares kept with dropped cycles.
+   */
+  variationAllBeats: number | null;
 }
 
 export interface RespirationReport {
   source: CycleSource | null;
   /** Sample rate the cycle sample indices refer to. */
   sampleRate: number | null;
-  /** Respiratory rate from the cycles, /min, or the set rate when inferred. */
+  /** Where the respiratory rate comes from: `measured` from the cycles, `set` (the set ventilator rate) when inferred. */
   rateSource: 'measured' | 'set' | null;
   /** Why no cycles could be found, if so. */
   reason: string | null;
@@ -258,7 +284,11 @@ export interface Indices {
 
 export type Verdict = 'valid' | 'questionable' | 'not-valid';
 export type FlagSeverity = 'info' | 'warning' | 'critical';
-export type ErrorDirection = 'false-high' | 'false-low';
+/**
+ * Likely direction of the error: `either` when the literature or the model says it can go both
+ * ways, `unknown` when the direction could not be decided (and the flag says so).
+ */
+export type ErrorDirection = 'false-high' | 'false-low' | 'either' | 'unknown';
 
 /** Stable flag codes. */
 export type FlagCode =
@@ -288,23 +318,183 @@ export type FlagCode =
   /** Pleth fails window-level quality rules (Orphanidou et al., IEEE JBHI 2015). */
   | 'pleth-quality-low'
   /** Pleth present but whether it is raw or auto-scaled was not declared. */
-  | 'pleth-processing-unknown';
+  | 'pleth-processing-unknown'
+  /** Ventilation mode unknown or not given: controlled ventilation cannot be assumed. */
+  | 'ventilation-unconfirmed'
+  /** The cycles kept differ systematically from the cycles dropped (pulse size or swing). */
+  | 'selection-bias'
+  /** More than a set share of the respiratory cycles was dropped. */
+  | 'cycles-dropped'
+  /** Arterial line under-damped (ringing): from a flush test or the beat shape. */
+  | 'arterial-underdamped'
+  /** Pulse pressure of the "beats" below a physiological floor for a sustained span: signal lost. */
+  | 'signal-loss'
+  /** Checklist context (batch context or bed settings). */
+  | 'open-chest'
+  | 'intra-abdominal-pressure-high'
+  | 'right-ventricular-dysfunction'
+  | 'extracorporeal-support'
+  | 'prone-position'
+  | 'paediatric-patient'
+  /** Compliance computed with the peak pressure in place of a plateau (no end-inspiratory pause). */
+  | 'compliance-estimated';
 
 export interface Flag {
   code: FlagCode;
   severity: FlagSeverity;
-  /** Likely direction of the error where the literature says. */
+  /** Likely direction of the error where the literature says (for the window's primary index). */
   direction?: ErrorDirection;
+  /** Direction per index where it differs between indices (e.g. damping: SPV low, PPV unknown). */
+  directionByIndex?: Partial<Record<IndexName, ErrorDirection>>;
   reason: string;
   /** Channel or index the flag is about, e.g. `abp`, `pleth`, `ppv`. */
   source?: string;
+  /** For checklist flags: where the fact came from (`batch` context or the `bed` settings). */
+  contextSource?: ContextSource;
+  /** Published source of the rule, e.g. `Michard et al., Am J Respir Crit Care Med 2000`. */
+  reference?: string;
+}
+
+/** Where a checklist fact came from: the batch's own context or the bed settings a person set. */
+export type ContextSource = 'batch' | 'bed';
+
+/**
+ * Region of the Gardner chart (Gardner, Anesthesiology 1981;54:227) a flush test falls in:
+ * natural frequency against damping ratio.
+ */
+export type GardnerRegion = 'optimal' | 'adequate' | 'over-damped' | 'under-damped' | 'unacceptable';
+
+/** One fast-flush test found in the arterial pressure, with the line's dynamic response. */
+export interface FlushTestResult {
+  /** Time the flush valve was released (end of the square wave), s from window start. */
+  releaseTime: number;
+  /** Natural frequency from the period of the oscillations after release, Hz. */
+  naturalFrequencyHz: number | null;
+  /** Damping ratio from the amplitude ratio of successive oscillations (Gardner 1981). */
+  dampingRatio: number | null;
+  /** Ratio of the second to the first overshoot amplitude, or null when there is no ringing. */
+  amplitudeRatio: number | null;
+  /** Number of oscillation peaks measured. */
+  oscillations: number;
+  region: GardnerRegion;
+  /** The Gardner chart region in words, for the console. */
+  regionText: string;
+}
+
+/** Over- or under-damping estimated from beat shape alone (no flush in the window). */
+export type DampingEstimate = 'over-damped' | 'under-damped' | 'adequate' | 'unknown';
+
+/** Respiratory mechanics from airway pressure and the tidal volume in context. */
+export interface RespiratoryMechanics {
+  peepCmH2O: number | null;
+  peakCmH2O: number | null;
+  plateauCmH2O: number | null;
+  /** How the plateau was found: an end-inspiratory pause, or the peak used in its place. */
+  plateauSource: 'end-inspiratory-pause' | 'estimated-from-peak' | null;
+  /** Plateau − PEEP, cmH2O. */
+  drivingPressureCmH2O: number | null;
+  /** Vt / (plateau − PEEP), mL/cmH2O (or the value given in context when no airway pressure). */
+  complianceMlPerCmH2O: number | null;
+  complianceSource: 'airway-pressure' | 'context' | null;
+  /** Median airway-pressure swing (peak − PEEP) per breath, cmH2O. */
+  pressureSwingCmH2O: number | null;
+}
+
+/** How the cycles kept compare with the cycles dropped. */
+export interface SelectionReport {
+  cyclesTotal: number;
+  cyclesDropped: number;
+  /** Share of complete cycles dropped. */
+  droppedFraction: number;
+  /** Mean PPV of all complete cycles with a computable value (kept or not), %. */
+  ppvAllCycles: number | null;
+  /** Mean pulse pressure of the beats in kept minus in dropped cycles, mmHg. */
+  pulsePressureDifference: number | null;
+}
+
+/** Verdict of a tidal volume challenge. */
+export type ChallengeVerdict = 'positive' | 'negative' | 'cannot-be-judged';
+
+/** Stable reason codes when a tidal volume challenge cannot be judged. */
+export type ChallengeReason =
+  | 'no-step' // no rise of tidal volume found
+  | 'step-too-small' // the step is under the minimum (mL/kg PBW, or share of Vt without PBW)
+  | 'step-too-short' // the higher volume was not held for the minimum time
+  | 'baseline-not-low' // baseline tidal volume not near 6 mL/kg PBW
+  | 'airway-pressure-not-risen' // airway-pressure swing did not rise with the step
+  | 'baseline-not-valid' // no valid PPV window at the low volume
+  | 'challenge-not-valid' // no valid PPV window at the higher volume
+  | 'irregular-rhythm'
+  | 'spontaneous-effort'
+  | 'ventilation-unconfirmed';
+
+/**
+ * Tidal volume challenge (Myatra et al., Crit Care Med 2017, from memory): in patients ventilated
+ * at 6 mL/kg PBW, tidal volume raised to 8 mL/kg for one minute; an absolute rise of PPV of about
+ * 3.5 points or more predicted fluid responsiveness.
+ */
+export interface TidalVolumeChallengeResult {
+  engineVersion: string;
+  /** PPV of the last valid window at the low volume, %. */
+  baselinePpv: number | null;
+  /** PPV after (at least) one minute at the higher volume, %. */
+  challengePpv: number | null;
+  /** challengePpv − baselinePpv, percentage points. */
+  deltaPpv: number | null;
+  /** Rise in points at or above which the verdict is positive. */
+  threshold: number;
+  thresholdSource: string;
+  verdict: ChallengeVerdict;
+  /** Why the challenge cannot be judged (empty when judged), codes and words. */
+  reasons: ChallengeReason[];
+  reasonTexts: string[];
+  baselineTidalVolumeMl: number | null;
+  challengeTidalVolumeMl: number | null;
+  baselineMlPerKg: number | null;
+  challengeMlPerKg: number | null;
+  /** When the step happened, s from the start of the first segment. */
+  stepAtSeconds: number | null;
+  /** How long the higher volume was held in the input, s. */
+  challengeHeldSeconds: number | null;
+  baselineVerdict: Verdict | null;
+  challengeVerdict: Verdict | null;
+  /** Airway-pressure swing before and after the step, cmH2O, when airway pressure is present. */
+  baselinePressureSwingCmH2O: number | null;
+  challengePressureSwingCmH2O: number | null;
+  /** Flag codes of the two windows, for the reader. */
+  baselineFlags: FlagCode[];
+  challengeFlags: FlagCode[];
+  cautions: string[];
+}
+
+/**
+ * A whole tidal volume challenge for the engine: consecutive segments (each an analysis window
+ * with its own context), earliest first, or one window with context changes inside it.
+ */
+export interface ChallengeInput {
+  segments: AnalysisInput[];
+}
+
+/** A context change inside one batch: from `atSeconds` on, `context` applies. */
+export interface ContextChange {
+  atSeconds: number;
+  context: AnalysisContext;
 }
 
 export interface ArterialLineReport {
   /** Fraction of accepted beats showing a dicrotic notch. */
   notchFraction: number | null;
+  /** Over-damping suspected (from the flush test when there is one, else from beat shape). */
   dampingSuspected: boolean;
+  /** Under-damping (ringing) suspected. */
+  underDampingSuspected: boolean;
   flushSuspected: boolean;
+  /** Fast-flush tests found in the window (Gardner 1981), earliest first. */
+  flushTests: FlushTestResult[];
+  /** Damping from beat shape alone (used when no flush test could be measured). */
+  dampingEstimate: DampingEstimate;
+  /** Median upstroke (foot to peak) duration of clean beats, s. */
+  upstrokeSeconds: number | null;
 }
 
 export interface AnalysisResult {
@@ -328,4 +518,8 @@ export interface AnalysisResult {
   predictedBodyWeightKg: number | null;
   /** Tidal volume per kg PBW, when known. */
   tidalVolumeMlPerKg: number | null;
+  /** Compliance and driving pressure, when airway pressure and tidal volume allow. */
+  respiratoryMechanics: RespiratoryMechanics | null;
+  /** Kept against dropped cycles. */
+  selection: SelectionReport;
 }

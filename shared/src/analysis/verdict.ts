@@ -1,6 +1,11 @@
 import type { QualifiedBeats } from './beat-quality';
 import type { BreathBoundaries } from './cycles';
 import type {
+  ChecklistContext,
+  ContextSource,
+  ErrorDirection,
+  FlagCode,
+  RespiratoryMechanics,
   AnalysisContext,
   AnalysisSettings,
   ArterialLineReport,
@@ -24,7 +29,64 @@ export interface VerdictInput {
   used: RespiratoryCycle[];
   indices: Indices;
   tidalVolumeMlPerKg: number | null;
+  /** Checklist context merged from batch and bed, with where each item came from. */
+  checklist: ResolvedChecklist;
+  mechanics: RespiratoryMechanics | null;
+  /** Evidence of spontaneous effort beyond the dips below PEEP. */
+  effortEvidence: string[];
+  selection: { kept: number | null; dropped: number | null; droppedCount: number; droppedFraction: number; total: number };
 }
+
+export type ResolvedChecklist = Partial<Record<keyof ChecklistContext, ContextSource>>;
+
+/** Checklist items: each with severity, direction and the published source (figures from memory). */
+const CHECKLIST: Record<keyof ChecklistContext, { code: FlagCode; severity: Flag['severity']; direction: ErrorDirection; reason: string; reference: string }> = {
+  openChest: {
+    code: 'open-chest',
+    severity: 'critical',
+    direction: 'false-low',
+    reason: 'chest open: heart–lung interaction is weakened, PPV understates fluid responsiveness and its thresholds do not apply',
+    reference: 'de Waal et al., Crit Care Med 2009 (open chest, from memory); Ann Intensive Care 2021 checklist',
+  },
+  intraAbdominalPressureHigh: {
+    code: 'intra-abdominal-pressure-high',
+    severity: 'warning',
+    direction: 'false-high',
+    reason: 'raised intra-abdominal pressure increases PPV independently of preload; the usual thresholds read too high',
+    reference: 'Duperret et al., Intensive Care Med 2007 (intra-abdominal hypertension, from memory)',
+  },
+  rightVentricularDysfunction: {
+    code: 'right-ventricular-dysfunction',
+    severity: 'warning',
+    direction: 'false-high',
+    reason: 'right ventricular dysfunction: a high PPV can come from right ventricular afterload, not preload dependence',
+    reference: 'Mahjoub et al., Crit Care Med 2009 (false positives with RV dysfunction, from memory)',
+  },
+  extracorporealSupport: {
+    code: 'extracorporeal-support',
+    severity: 'critical',
+    direction: 'unknown',
+    reason: 'ECMO or other extracorporeal support: the pulse is not the native output alone; PPV is not validated and the direction of its error is unknown',
+    reference: 'common practice (no validation of PPV under extracorporeal support)',
+  },
+  pronePosition: {
+    code: 'prone-position',
+    severity: 'warning',
+    direction: 'unknown',
+    reason: 'prone position changes chest-wall and abdominal compliance; PPV thresholds from supine patients may not apply (direction not established)',
+    reference: 'Yonis et al., Crit Care 2017 (prone position, from memory)',
+  },
+  paediatricPatient: {
+    code: 'paediatric-patient',
+    severity: 'warning',
+    direction: 'unknown',
+    reason: 'paediatric patient: PPV thresholds are from adults, and the predicted body weight formula is not validated below adult height',
+    reference: 'Gan et al., Anesth Analg 2013 (dynamic indices in children, from memory); Devine formula (ARDSNet) defined for adults',
+  },
+};
+
+/** Height below which the predicted body weight formula leaves its adult range (60 in; ARDSNet, common practice). */
+const ADULT_HEIGHT_CM = 152.4;
 
 /**
  * White noise above this fraction of the pulse size overstates PPV by about a point (checked on the
@@ -72,6 +134,11 @@ export function buildFlags(v: VerdictInput): Flag[] {
     }
   }
   for (const ch of v.channels) {
+    const lost = ch.signalLoss.filter((sl) => !ch.flatLines.some((f) => f.startSample <= sl.startSample + 1 && f.endSample >= sl.endSample - 1));
+    if (lost.length) {
+      const secs = lost.reduce((a, f) => a + f.endTime - f.startTime, 0);
+      push({ code: 'signal-loss', severity: secs > 0.5 * ch.durationSeconds ? 'critical' : 'warning', direction: 'unknown', source: ch.role, reference: 'common practice', reason: `${ch.role} swings less than a pulse for ${secs.toFixed(1)} s (line lost, closed or disconnected; noise is not beats)` });
+    }
     const dur = ch.durationSeconds;
     const flatSeconds = ch.flatLines.reduce((a, f) => a + f.endTime - f.startTime, 0);
     if (ch.flatLines.length) {
@@ -81,8 +148,19 @@ export function buildFlags(v: VerdictInput): Flag[] {
       push({ code: 'gap', severity: ch.gapFraction > 0.5 ? 'critical' : 'warning', source: ch.role, reason: `${ch.role} has ${ch.gaps.length} gap(s), ${(ch.gapFraction * 100).toFixed(1)} % of samples missing` });
     }
   }
-  if (v.arterialLine?.dampingSuspected) {
-    push({ code: 'arterial-damped', severity: 'warning', direction: 'false-low', source: 'abp', reason: 'arterial waveform looks over-damped (no dicrotic notch, slow upstroke): systolic pressure and its swing are understated' });
+  const al = v.arterialLine;
+  const flushTest = al?.flushTests.length ? al.flushTests[al.flushTests.length - 1] : null;
+  const how = flushTest
+    ? `flush test: ${flushTest.naturalFrequencyHz !== null ? `natural frequency ${flushTest.naturalFrequencyHz.toFixed(1)} Hz, ` : ''}${flushTest.dampingRatio !== null ? `damping ratio ${flushTest.dampingRatio.toFixed(2)}, ` : 'no ringing after release, '}${flushTest.regionText}`
+    : null;
+  // Directions per index from a second-order catheter model (checked in arterial-line.test.ts):
+  // the systolic swing (SPV) shrinks with over-damping and grows with ringing; PPV is a ratio of
+  // two pulse pressures both distorted, and its error can go either way.
+  if (al?.dampingSuspected) {
+    push({ code: 'arterial-damped', severity: 'warning', direction: 'unknown', directionByIndex: { spv: 'false-low', ppv: 'unknown' }, source: 'abp', reference: 'Gardner, Anesthesiology 1981;54:227', reason: `arterial line over-damped (${how ?? 'no dicrotic notch, slow upstroke'}): systolic pressure and SPV understated; the direction of the PPV error is not known` });
+  }
+  if (al?.underDampingSuspected) {
+    push({ code: 'arterial-underdamped', severity: 'warning', direction: 'unknown', directionByIndex: { spv: 'false-high', ppv: 'unknown' }, source: 'abp', reference: 'Gardner, Anesthesiology 1981;54:227', reason: `arterial line under-damped (${how ?? 'ringing on the systolic peak'}): systolic overshoot, SPV overstated; the direction of the PPV error is not known` });
   }
   if (v.arterialLine?.flushSuspected) {
     push({ code: 'arterial-flush', severity: 'warning', source: 'abp', reason: 'pressure plateau above 250 mmHg: line flush or zeroing in the window' });
@@ -97,6 +175,12 @@ export function buildFlags(v: VerdictInput): Flag[] {
   const irregularCycles = v.cycles.filter((c) => c.rejectReasons.includes('irregular-length')).length;
   if (efforts > 0 || (v.cycles.length >= 4 && irregularCycles / v.cycles.length > 0.25)) {
     push({ code: 'spontaneous-breathing', severity: 'critical', direction: 'false-high', source: 'paw', reason: `${efforts} inspiratory effort(s) below PEEP and ${irregularCycles} irregular breath(s): dynamic indices assume controlled ventilation without patient effort` });
+  }
+  if (v.effortEvidence.length && !flags.some((f) => f.code === 'spontaneous-breathing')) {
+    push({ code: 'spontaneous-breathing', severity: 'critical', direction: 'false-high', source: 'paw', reference: 'Heenen et al., Crit Care 2006 (from memory); Ann Intensive Care 2021 checklist', reason: `signs of spontaneous effort: ${v.effortEvidence.join('; ')}` });
+  }
+  if (cx.ventilationMode === undefined || cx.ventilationMode === 'unknown') {
+    push({ code: 'ventilation-unconfirmed', severity: 'warning', direction: 'either', reference: 'Michard, Anesthesiology 2005 (controlled ventilation is the first validity condition)', reason: `ventilation mode ${cx.ventilationMode === 'unknown' ? 'declared unknown' : 'not given'}: controlled ventilation without patient effort cannot be assumed` });
   }
   if (cx.ventilationMode === 'spontaneous' || cx.ventilationMode === 'assisted') {
     push({ code: 'ventilation-not-controlled', severity: 'critical', direction: 'false-high', reason: `ventilation mode declared "${cx.ventilationMode}": indices are validated under controlled mechanical ventilation only` });
@@ -114,8 +198,33 @@ export function buildFlags(v: VerdictInput): Flag[] {
   } else if (v.tidalVolumeMlPerKg < s.minTidalVolumeMlPerKg) {
     push({ code: 'tidal-volume-low', severity: 'critical', direction: 'false-low', reason: `tidal volume ${v.tidalVolumeMlPerKg.toFixed(1)} mL/kg PBW < ${s.minTidalVolumeMlPerKg}` });
   }
-  if (cx.complianceMlPerCmH2O !== undefined && cx.complianceMlPerCmH2O <= s.lowComplianceMlPerCmH2O) {
-    push({ code: 'compliance-low', severity: 'warning', direction: 'false-low', reason: `respiratory-system compliance ${cx.complianceMlPerCmH2O} mL/cmH2O ≤ ${s.lowComplianceMlPerCmH2O}` });
+  const mech = v.mechanics;
+  const c = mech?.complianceMlPerCmH2O ?? null;
+  if (c !== null && c <= s.lowComplianceMlPerCmH2O) {
+    const from = mech?.complianceSource === 'airway-pressure' ? `Vt / (${mech.plateauSource === 'end-inspiratory-pause' ? 'plateau' : 'peak'} − PEEP)` : 'as given';
+    push({ code: 'compliance-low', severity: 'warning', direction: 'false-low', reference: 'Monnet et al., Crit Care Med 2012 (from memory)', reason: `respiratory-system compliance ${c.toFixed(1)} mL/cmH2O (${from}) ≤ ${s.lowComplianceMlPerCmH2O}: PPV less reliable, may read low` });
+  }
+  // An estimate from the peak understates compliance: it only matters when it makes compliance "low".
+  if (c !== null && c <= s.lowComplianceMlPerCmH2O && mech?.complianceSource === 'airway-pressure' && mech.plateauSource === 'estimated-from-peak') {
+    push({ code: 'compliance-estimated', severity: 'info', direction: 'false-low', reference: 'common practice', reason: 'no end-inspiratory pause: compliance estimated with the peak pressure in place of the plateau (compliance understated, driving pressure overstated)' });
+  }
+  for (const key of Object.keys(CHECKLIST) as (keyof ChecklistContext)[]) {
+    const from = v.checklist[key];
+    if (!from) continue;
+    const item = CHECKLIST[key];
+    push({ code: item.code, severity: item.severity, direction: item.direction, contextSource: from, reference: item.reference, reason: `${item.reason} (set in the ${from === 'bed' ? 'bed settings' : 'batch context'})` });
+  }
+  if (!v.checklist.paediatricPatient && cx.patientHeightCm !== undefined && cx.patientHeightCm < ADULT_HEIGHT_CM) {
+    const item = CHECKLIST.paediatricPatient;
+    push({ code: item.code, severity: 'warning', direction: 'unknown', contextSource: 'batch', reference: item.reference, reason: `height ${cx.patientHeightCm} cm below the adult range of the predicted body weight formula (${ADULT_HEIGHT_CM} cm): mL/kg PBW not validated` });
+  }
+  const sel = v.selection;
+  if (sel.kept !== null && sel.dropped !== null && sel.droppedCount >= 2 && Math.abs(sel.dropped - sel.kept) > Math.max(s.selectionBiasPoints, 0.2 * sel.kept)) {
+    const low = sel.kept < sel.dropped;
+    push({ code: 'selection-bias', severity: 'warning', direction: low ? 'false-low' : 'false-high', reference: 'common practice (averaging consecutive cycles assumes the cycles kept represent the window)', reason: `cycles kept vary by ${sel.kept.toFixed(1)} % on average, the ${sel.droppedCount} dropped ones by ${sel.dropped.toFixed(1)} %: the value likely reads ${low ? 'low' : 'high'}` });
+  }
+  if (sel.total >= 4 && sel.droppedFraction > s.maxDroppedCycleFraction) {
+    push({ code: 'cycles-dropped', severity: 'warning', direction: 'unknown', reference: 'common practice', reason: `${Math.round(sel.droppedFraction * 100)} % of the respiratory cycles were dropped (more than ${Math.round(s.maxDroppedCycleFraction * 100)} %): the cycles kept may not represent the window` });
   }
   // Pleth confounders (common practice): vasomotor tone, probe site, monitor processing.
   if (cx.vasopressorRunning) {

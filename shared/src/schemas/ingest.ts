@@ -16,6 +16,28 @@ export const ventilationModeSchema = z.enum(['controlled', 'assisted', 'spontane
 export type VentilationMode = z.infer<typeof ventilationModeSchema>;
 
 /**
+ * Checklist items that make PPV unreliable whatever the signal looks like; travel with a batch or
+ * are set on the bed (audited). Each becomes a flag with its source and direction.
+ */
+export const checklistContextShape = {
+  /** Chest open (sternotomy, thoracotomy). */
+  openChest: z.boolean().optional(),
+  /** Raised intra-abdominal pressure (intra-abdominal hypertension). */
+  intraAbdominalPressureHigh: z.boolean().optional(),
+  /** Right ventricular dysfunction. */
+  rightVentricularDysfunction: z.boolean().optional(),
+  /** ECMO or other extracorporeal support. */
+  extracorporealSupport: z.boolean().optional(),
+  /** Prone position. */
+  pronePosition: z.boolean().optional(),
+  /** Paediatric patient (predicted body weight formula not validated). */
+  paediatricPatient: z.boolean().optional(),
+};
+export const checklistContextSchema = z.object(checklistContextShape);
+export type ChecklistContext = z.infer<typeof checklistContextSchema>;
+export const CHECKLIST_CONTEXT_KEYS = Object.keys(checklistContextShape) as (keyof ChecklistContext)[];
+
+/**
  * Clinical and device context that travels with a batch (or is set on the monitor profile) and
  * decides whether the indices are valid at all.
  */
@@ -34,6 +56,7 @@ export const analysisContextSchema = z.object({
   plethScaling: plethScalingSchema.optional(),
   /** Free-text description of the monitor's own filtering of its waveform output, if any. */
   builtInFiltering: z.string().max(200).optional(),
+  ...checklistContextShape,
 });
 export type AnalysisContext = z.infer<typeof analysisContextSchema>;
 
