@@ -17,5 +17,5 @@ export async function startDemo(stack: RunningStack, spoolDir: string, log: (m: 
 
 /** Alerting tuned for the demo: the outage is short, so mail after 30 s down instead of minutes. */
 export const DEMO_OVERRIDES = {
-  delivery: { alerts: { downMinutes: 0.5, checkIntervalMs: 5000 } },
+  delivery: { alerts: { destinationDownMinutes: 0.5, checkIntervalMs: 5000 } },
 };

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { deliveryConfigSchema } from '../delivery/delivery.config';
+import { deliveryConfigSchema } from './delivery.schema';
 
 /**
  * The gateway's one typed configuration. Built once (load.ts) from config/default.json, an

@@ -13,7 +13,7 @@ export function defaultSiteSettings(ctx: AppContext): SiteSettings {
   return {
     analysis: { cyclesToAverage: analysis.cyclesPerWindow ?? DEFAULT_SETTINGS.cyclesToAverage, windowSeconds: analysis.windowSeconds, bands: DEFAULT_SETTINGS.bands },
     delivery: { observationStatus: delivery.observationStatus, notValidPolicy: delivery.notValidPolicy },
-    alerts: { recipients: delivery.alerts.recipients, destinationDownMinutes: delivery.alerts.downMinutes, failureThreshold: delivery.alerts.failureThreshold },
+    alerts: { recipients: delivery.alerts.recipients, destinationDownMinutes: delivery.alerts.destinationDownMinutes, failureThreshold: delivery.alerts.failureThreshold },
   };
 }
 

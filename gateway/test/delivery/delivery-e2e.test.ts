@@ -26,7 +26,7 @@ beforeAll(async () => {
         retry: { limit: 50, baseMs: 40, maxMs: 200 },
         circuit: { failureThreshold: 5, openSeconds: 0.3 },
         patientContext: { cacheSeconds: 60, retrySeconds: 0.3 },
-        alerts: { enabled: true, checkIntervalMs: 100, downMinutes: 0.01, failureThreshold: 1000, failureWindowMinutes: 60, recipients: ['icu-oncall@harrowmere.example'], consoleUrl: 'http://console.harrowmere.example' },
+        alerts: { enabled: true, checkIntervalMs: 100, destinationDownMinutes: 0.01, failureThreshold: 1000, failureWindowMinutes: 60, recipients: ['icu-oncall@harrowmere.example'], consoleUrl: 'http://console.harrowmere.example' },
       },
     },
     { services: true },

@@ -33,7 +33,7 @@ export const siteSettingsSchema = z.object({
     recipients: z.array(z.email()).max(50),
     /** Mail when a destination has been unreachable this long. */
     destinationDownMinutes: z.number().min(0.1).max(1440),
-    /** Mail when this many deliveries failed within the last hour. */
+    /** Mail when this many deliveries failed within the alert window (config `delivery.alerts.failureWindowMinutes`, 15 min by default). */
     failureThreshold: z.number().int().min(1).max(100000),
   }),
 });

@@ -29,7 +29,7 @@ beforeAll(async () => {
     delivery: {
       retry: { limit: 8, baseMs: 300, maxMs: 2000 },
       circuit: { failureThreshold: 50, openSeconds: 1 },
-      alerts: { enabled: true, checkIntervalMs: 200, downMinutes: 0.05, failureThreshold: 1, failureWindowMinutes: 5, recipients: ['icu-oncall@harrowmere.example'], consoleUrl: null },
+      alerts: { enabled: true, checkIntervalMs: 200, destinationDownMinutes: 0.05, failureThreshold: 1, failureWindowMinutes: 5, recipients: ['icu-oncall@harrowmere.example'], consoleUrl: null },
     },
   });
   const users = (await import('../../../config/demo/users.json', { with: { type: 'json' } })).default as { username: string; password: string; roles: string[] }[];
