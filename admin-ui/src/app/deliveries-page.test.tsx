@@ -14,7 +14,7 @@ const delivery = (id: string) => ({
 function gateway(roles: string[]) {
   return fakeGateway((c) => {
     if (c.url.pathname === '/api/v1/auth/session') return { body: SESSION(roles) };
-    if (c.url.pathname === '/api/v1/destinations') return { body: [{ id: 'ehr', name: 'Demo EHR', kind: 'fhir', paused: false, circuitState: 'open', consecutiveFailures: 5 }] };
+    if (c.url.pathname === '/api/v1/destinations') return { body: [{ id: 'ehr', name: 'Demo EHR', kind: 'fhir', paused: false, circuitState: 'open', consecutiveFailures: 5, state: 'circuit-open' }] };
     if (c.url.pathname === '/api/v1/deliveries') return { body: { items: ['d1', 'd2', 'd3'].map(delivery), page: 1, pageSize: 25, total: 3 } };
     if (c.url.pathname === '/api/v1/deliveries/retry') {
       const [id] = (c.body as { ids: string[] }).ids;
@@ -34,7 +34,7 @@ describe('failed deliveries', () => {
     renderApp(<DeliveriesPage />);
     await screen.findByText('1–3 of 3');
     expect(gw.calls.find((c) => c.url.pathname === '/api/v1/deliveries')!.url.searchParams.get('status')).toBe('failed');
-    expect(within(screen.getByRole('region', { name: 'Destinations' })).getByText('down')).toBeTruthy();
+    expect(within(screen.getByRole('region', { name: 'Destinations' })).getByText('circuit open')).toBeTruthy(); // the API's state, in the same words as the overview
 
     await userEvent.click(screen.getByLabelText('Select d1'));
     await userEvent.click(screen.getByLabelText('Select d2'));

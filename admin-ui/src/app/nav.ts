@@ -6,7 +6,8 @@ export interface NavGroup { label: string; items: NavItem[] }
 /** Side navigation, grouped by what the person is there to do. */
 export const NAV: NavGroup[] = [
   { label: 'Watch', items: [
-    { to: '/', label: 'Overview', permission: 'overview' },
+    { to: '/board', label: 'Beds board', permission: 'board' },
+    { to: '/overview', label: 'Overview', permission: 'overview' },
     { to: '/assessments', label: 'Assessments', permission: 'assessments' },
   ] },
   { label: 'Connect', items: [

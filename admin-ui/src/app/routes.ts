@@ -2,7 +2,11 @@ import { lazyNamed, type AppRoute } from './lazy';
 
 // Each feature's screens load on first visit, so the plot library only ships to those who plot.
 export const routes: AppRoute[] = [
-  { path: '/', permission: 'overview', component: lazyNamed(() => import('@/features/overview/routes/overview'), 'OverviewRoute') },
+  // The first screen: the beds board for reviewers and operators, the overview for admins and integrators.
+  { path: '/', permission: 'overview', component: lazyNamed(() => import('./home'), 'HomePage') },
+  { path: '/overview', permission: 'overview', component: lazyNamed(() => import('@/features/overview/routes/overview'), 'OverviewRoute') },
+  { path: '/board', permission: 'board', component: lazyNamed(() => import('@/features/board/routes/board'), 'BoardRoute') },
+  { path: '/board/beds/:bedId', permission: 'board', component: lazyNamed(() => import('@/features/board/routes/bed-trend'), 'BedTrendRoute') },
   { path: '/users', permission: 'users', component: lazyNamed(() => import('@/features/users/routes/users'), 'UsersRoute') },
   { path: '/audit', permission: 'audit', component: lazyNamed(() => import('@/features/audit/routes/audit'), 'AuditRoute') },
   { path: '/test-bench', permission: 'testBench', component: lazyNamed(() => import('@/features/test-bench/routes/test-bench'), 'TestBenchRoute') },

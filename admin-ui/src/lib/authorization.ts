@@ -8,6 +8,7 @@ import type { Role } from '@ebbgate/shared';
 const ALL: readonly Role[] = ['admin', 'integrator', 'reviewer', 'operator'];
 export const ACCESS = {
   overview: ALL,
+  board: ALL,
   assessments: ALL,
   markInError: ['reviewer'],
   testBench: ['integrator'],

@@ -24,7 +24,7 @@ export function CyclesTable({ analysis }: { analysis: AnalysisResult }) {
         </thead>
         <tbody>
           {analysis.cycles.map((c) => (
-            <tr key={c.n} className={`border-t border-line/70 ${c.usable ? '' : 'bg-notvalid-bg/30'}`}>
+            <tr key={c.n} className={`border-t border-line/70 ${c.usable ? '' : 'bg-error-bg/30'}`}>
               <td className="num px-2 py-0.5">C{c.n}</td>
               <td className="num px-2 py-0.5">{formatNumber(c.startTime)}–{formatNumber(c.endTime)}</td>
               <td className="num px-2 py-0.5 text-right">{c.abpBeatIndices.length} / {c.plethBeatIndices.length}</td>
@@ -35,7 +35,7 @@ export function CyclesTable({ analysis }: { analysis: AnalysisResult }) {
               <td className="px-2 py-0.5">
                 {c.usable
                   ? <Badge tone={c.usedInWindow ? 'good' : 'neutral'}>{c.usedInWindow ? 'averaged' : 'usable'}</Badge>
-                  : <span className="text-xs text-notvalid">{c.rejectReasons.map(humanize).join(', ')}</span>}
+                  : <span className="text-xs text-error">{c.rejectReasons.map(humanize).join(', ')}</span>}
               </td>
             </tr>
           ))}

@@ -16,7 +16,7 @@ export function FlagsList({ flags }: { flags: Flag[] }) {
             <span>
               <span className="font-medium">{humanize(f.code)}</span>
               {f.source && <span className="text-muted"> · {f.source}</span>}
-              {f.direction && <span className="text-questionable"> · {DIRECTION[f.direction]}</span>}
+              {f.direction && <span className="text-caution"> · {DIRECTION[f.direction]}</span>}
               <span className="block text-xs text-muted">{f.reason}</span>
             </span>
           </li>

@@ -1,7 +1,7 @@
 import type { ItemState } from '@/hooks/use-bulk-action';
 
 const LABEL: Record<ItemState['status'], string> = { waiting: 'waiting', running: 'working…', done: 'done', failed: 'failed' };
-const TONE: Record<ItemState['status'], string> = { waiting: 'text-muted', running: 'text-ink-700', done: 'text-valid', failed: 'text-notvalid' };
+const TONE: Record<ItemState['status'], string> = { waiting: 'text-muted', running: 'text-ink-700', done: 'text-valid', failed: 'text-error' };
 
 /** Per-item progress and outcome of a bulk action. */
 export function BulkProgress({ title, items, label }: { title: string; items: ItemState[]; label?: (id: string) => string }) {

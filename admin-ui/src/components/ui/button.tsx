@@ -4,7 +4,7 @@ type Variant = 'primary' | 'secondary' | 'danger' | 'ghost';
 const styles: Record<Variant, string> = {
   primary: 'bg-ink-700 text-white hover:bg-ink-800 border-ink-700',
   secondary: 'bg-white text-ink-900 hover:bg-ink-50 border-line',
-  danger: 'bg-notvalid text-white hover:brightness-95 border-notvalid',
+  danger: 'bg-error text-white hover:brightness-95 border-error',
   ghost: 'bg-transparent text-ink-700 hover:bg-ink-50 border-transparent',
 };
 

@@ -92,7 +92,7 @@ export function ConfirmDialog({ open, title, message, confirmLabel, danger, reas
           <TextAreaField label={reasonLabel} rows={3} value={reason} error={reasonError}
             onChange={(e) => setReason(e.target.value)} onBlur={() => setTouched(true)} />
         )}
-        {error && <p role="alert" className="rounded border border-notvalid/30 bg-notvalid-bg px-2 py-1 text-notvalid">{error}</p>}
+        {error && <p role="alert" className="rounded border border-error/30 bg-error-bg px-2 py-1 text-error">{error}</p>}
       </div>
     </Dialog>
   );

@@ -2,7 +2,7 @@ import { forwardRef, useId, type InputHTMLAttributes, type ReactNode, type Selec
 
 const control =
   'block w-full rounded border border-line bg-white px-2 py-1 text-sm text-ink-950 placeholder:text-muted/70 ' +
-  'focus:border-ink-500 focus:outline-none focus-visible:outline-2 focus-visible:outline-sand-500 aria-[invalid=true]:border-notvalid';
+  'focus:border-ink-500 focus:outline-none focus-visible:outline-2 focus-visible:outline-sand-500 aria-[invalid=true]:border-error';
 
 interface FieldShellProps {
   id: string;
@@ -20,7 +20,7 @@ export function FieldShell({ id, label, error, hint, children, className = '' }:
       <label htmlFor={id} className="text-xs font-medium text-ink-800">{label}</label>
       {children}
       {hint && !error && <p id={`${id}-hint`} className="text-xs text-muted">{hint}</p>}
-      {error && <p id={`${id}-error`} role="alert" className="text-xs text-notvalid">{error}</p>}
+      {error && <p id={`${id}-error`} role="alert" className="text-xs text-error">{error}</p>}
     </div>
   );
 }
@@ -100,7 +100,7 @@ export function CheckboxGroup<T extends string>({ legend, options, value, onChan
           </label>
         ))}
       </div>
-      {error && <p id={`${id}-error`} role="alert" className="text-xs text-notvalid">{error}</p>}
+      {error && <p id={`${id}-error`} role="alert" className="text-xs text-error">{error}</p>}
     </fieldset>
   );
 }

@@ -7,7 +7,7 @@ const ToastContext = createContext<((tone: ToastTone, text: string) => void) | n
 
 const toneClass: Record<ToastTone, string> = {
   success: 'border-valid/40 bg-valid-bg text-valid',
-  error: 'border-notvalid/40 bg-notvalid-bg text-notvalid',
+  error: 'border-error/40 bg-error-bg text-error',
   info: 'border-ink-300 bg-ink-50 text-ink-900',
 };
 

@@ -147,9 +147,9 @@ export function WaveformPlot({ waveform, analysis, width: fixedWidth }: Waveform
           <span key={t.key} className="inline-flex items-center gap-1"><svg width="18" height="6" aria-hidden><line x1="0" y1="3" x2="18" y2="3" stroke={COLORS[t.key]} strokeWidth="2" /></svg>{LABELS[t.key]} ({t.role}, {displayUnit(t.unit) || 'a.u.'}, {t.sampleRate} Hz)</span>
         ))}
         <span className="inline-flex items-center gap-1"><span aria-hidden className="text-ink-900">▼</span>accepted beat</span>
-        <span className="inline-flex items-center gap-1"><span aria-hidden className="font-bold text-notvalid">✕</span>rejected beat (hover or focus for reasons)</span>
+        <span className="inline-flex items-center gap-1"><span aria-hidden className="font-bold text-error">✕</span>rejected beat (hover or focus for reasons)</span>
         <span className="inline-flex items-center gap-1"><span aria-hidden className="inline-block h-3 w-4 border border-valid/40 bg-valid-bg" />usable cycle</span>
-        <span className="inline-flex items-center gap-1"><span aria-hidden className="inline-block h-3 w-4 border border-notvalid/40 bg-notvalid-bg" />unusable cycle</span>
+        <span className="inline-flex items-center gap-1"><span aria-hidden className="inline-block h-3 w-4 border border-error/40 bg-error-bg" />unusable cycle</span>
         <span className="num">{beats.filter((b) => b.accepted).length} accepted · {beats.filter((b) => !b.accepted).length} rejected beats · {cycles.filter((c) => c.usable).length}/{cycles.length} usable cycles</span>
       </figcaption>
     </figure>

@@ -29,7 +29,7 @@ export function ObservationsSent({ observations, attemptsLink }: { observations:
                       <td className="pr-2"><StatusBadge status={d.status} /></td>
                       <td className="pr-2">{d.destinationId}</td>
                       <td className="num pr-2 text-right">{d.attemptCount}</td>
-                      <td className="pr-2">{d.lastHttpStatus ?? '—'}{d.lastError ? <span className="block text-notvalid">{d.lastError}</span> : null}</td>
+                      <td className="pr-2">{d.lastHttpStatus ?? '—'}{d.lastError ? <span className="block text-error">{d.lastError}</span> : null}</td>
                       <td className="num">{formatDateTime(d.deliveredAt)}</td>
                     </tr>
                   ))}

@@ -36,7 +36,7 @@ export function AssessmentDetailRoute() {
         description={<span className="flex items-center gap-2"><VerdictBadge verdict={a.verdict} /> window {formatDateTime(a.windowStart)} – {formatDateTime(a.windowEnd)}</span>}
         actions={can('markInError') && !a.enteredInError ? <Button variant="danger" onClick={() => setConfirming(true)}>Mark in error…</Button> : undefined} />
       {a.enteredInError && (
-        <div role="status" className="mb-3 rounded border border-notvalid/40 bg-notvalid-bg px-3 py-2 text-sm text-notvalid">
+        <div role="status" className="mb-3 rounded border border-error/40 bg-error-bg px-3 py-2 text-sm text-error">
           <strong>Entered in error</strong> by {a.enteredInErrorBy ?? 'unknown'} on {formatDateTime(a.enteredInErrorAt)}: {a.enteredInErrorReason}. The EHR copy was amended to status entered-in-error.
         </div>
       )}

@@ -47,7 +47,7 @@ export function SignInRoute() {
           {ended && !signIn.error && <p role="status" className="rounded bg-sand-100 px-2 py-1 text-xs text-ink-900">Your session ended. Sign in again to continue.</p>}
           <TextField label="User name" autoComplete="username" autoFocus {...form.register('username')} error={form.formState.errors.username?.message} />
           <TextField label="Password" type="password" autoComplete="current-password" {...form.register('password')} error={form.formState.errors.password?.message} />
-          {signIn.error && <p role="alert" className="rounded border border-notvalid/30 bg-notvalid-bg px-2 py-1 text-sm text-notvalid">{signInFailure(signIn.error)}</p>}
+          {signIn.error && <p role="alert" className="rounded border border-error/30 bg-error-bg px-2 py-1 text-sm text-error">{signInFailure(signIn.error)}</p>}
           <Button type="submit" variant="primary" busy={signIn.isPending} className="justify-center">Sign in</Button>
           <p className="text-xs text-muted">Decision support for trained clinicians. Access is logged.</p>
         </form>

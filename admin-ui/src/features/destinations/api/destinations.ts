@@ -1,10 +1,14 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
-import type { Page } from '@ebbgate/shared';
+import type { Destination as ApiDestination, Page } from '@ebbgate/shared';
+
+type DestinationState = ApiDestination['state'];
 import { api } from '@/lib/api-client';
 
 export interface Destination {
   id: string; name: string; kind: string; paused: boolean; circuitState?: string; consecutiveFailures?: number;
-  downSince?: string | null; lastSuccessAt?: string | null; lastFailureAt?: string | null; lastError?: string | null; configurationError?: string | null; state?: string;
+  downSince?: string | null; lastSuccessAt?: string | null; lastFailureAt?: string | null; lastError?: string | null; configurationError?: string | null;
+  /** The API's health state: up, paused, circuit-open, down, misconfigured. */
+  state: DestinationState;
 }
 
 export const destinationKeys = { all: ['destinations'] as const };

@@ -1,4 +1,6 @@
-import type { Page } from '@ebbgate/shared';
+import type { Destination as ApiDestination, Page } from '@ebbgate/shared';
+
+type DestinationState = ApiDestination['state'];
 import { useAuth } from '@/lib/auth';
 import { errorMessage } from '@/lib/api-client';
 import { formatDateTime } from '@/lib/format';
@@ -13,14 +15,9 @@ export function destinationList(data: Destination[] | Page<Destination> | undefi
   return Array.isArray(data) ? data : data.items;
 }
 
-/** A destination's health in one word: paused, down (circuit open), degraded or healthy. */
-export function destinationState(d: Destination): string {
-  if (d.state) return d.state;
-  if (d.paused) return 'paused';
-  if (d.configurationError) return 'failed';
-  if (d.circuitState === 'open') return 'down';
-  if (d.circuitState === 'half-open' || (d.consecutiveFailures ?? 0) > 0) return 'degraded';
-  return 'healthy';
+/** A destination's health: the API's own state (the overview shows the same words); no second vocabulary here. */
+export function destinationState(d: Destination): DestinationState {
+  return d.state;
 }
 
 /** Each EHR destination with its health, and pause/resume for operators. */
@@ -43,7 +40,7 @@ export function DestinationsPanel() {
           <div className="min-w-0">
             <p className="flex items-center gap-2 font-medium">{d.name} <StatusBadge status={destinationState(d)} /></p>
             <p className="text-xs text-muted">{d.kind} · last success {formatDateTime(d.lastSuccessAt)}</p>
-            {(d.configurationError || d.lastError) && <p className="truncate text-xs text-notvalid" title={d.configurationError ?? d.lastError ?? ''}>{d.configurationError ?? d.lastError}</p>}
+            {(d.configurationError || d.lastError) && <p className="truncate text-xs text-error" title={d.configurationError ?? d.lastError ?? ''}>{d.configurationError ?? d.lastError}</p>}
           </div>
           {can('manageDestinations') && (
             <Button size="sm" busy={toggle.isPending && toggle.variables?.id === d.id} onClick={() => onToggle(d)}>{d.paused ? 'Resume' : 'Pause'}</Button>

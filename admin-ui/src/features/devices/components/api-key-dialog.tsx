@@ -19,7 +19,7 @@ export function ApiKeyDialog({ issued, monitor, onClose }: { issued: ApiKeyIssue
           <code data-testid="api-key" className="flex-1 select-all break-all rounded border border-line bg-paper px-2 py-1 font-mono text-xs">{issued?.apiKey}</code>
           <Button onClick={copy}>{copied === 'yes' ? 'Copied' : 'Copy'}</Button>
         </div>
-        {copied === 'failed' && <p role="alert" className="text-xs text-notvalid">The browser refused clipboard access; select the key and copy it by hand.</p>}
+        {copied === 'failed' && <p role="alert" className="text-xs text-error">The browser refused clipboard access; select the key and copy it by hand.</p>}
         <p className="text-xs text-muted">Key id {issued?.keyId}. The adapter sends it as <code>Authorization: Bearer …</code>.</p>
       </div>
     </Dialog>

@@ -16,7 +16,7 @@ export function BedForm({ bed, busy, error, onSubmit, onCancel }: { bed?: Bed; b
       <TextField label="Bed name" {...form.register('name')} error={e.name?.message} />
       <TextField label="Unit" {...form.register('unit')} error={e.unit?.message} hint="Ward or care unit, e.g. ICU East" />
       <TextField label="EHR location identifier" {...form.register('locationIdentifier')} error={e.locationIdentifier?.message} hint="The FHIR Location identifier the EHR knows this bed by" />
-      {error !== null && error !== undefined && <p role="alert" className="text-sm text-notvalid">{errorMessage(error)}</p>}
+      {error !== null && error !== undefined && <p role="alert" className="text-sm text-error">{errorMessage(error)}</p>}
       <div className="flex justify-end gap-2">
         <Button onClick={onCancel} disabled={busy}>Cancel</Button>
         <Button type="submit" variant="primary" busy={busy}>{bed ? 'Save bed' : 'Add bed'}</Button>

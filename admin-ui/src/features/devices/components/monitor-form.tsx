@@ -30,7 +30,7 @@ export function MonitorForm({ monitor, busy, error, onSubmit, onCancel }: { moni
       <SelectField label="Bed" placeholder="not assigned" {...form.register('bedId', { setValueAs: nullIfEmpty })} error={e.bedId?.message}
         options={(beds.data?.items ?? []).map((b) => ({ value: b.id, label: `${b.name} · ${b.unit}${b.monitorId && b.monitorId !== monitor?.id ? ' (has a monitor)' : ''}` }))} />
       <label className="inline-flex items-center gap-2 text-sm"><input type="checkbox" className="accent-ink-700" {...form.register('enabled')} /> Accept data from this monitor</label>
-      {error !== null && error !== undefined && <p role="alert" className="text-sm text-notvalid">{errorMessage(error)}</p>}
+      {error !== null && error !== undefined && <p role="alert" className="text-sm text-error">{errorMessage(error)}</p>}
       <div className="flex justify-end gap-2">
         <Button onClick={onCancel} disabled={busy}>Cancel</Button>
         <Button type="submit" variant="primary" busy={busy}>{monitor ? 'Save monitor' : 'Add monitor'}</Button>

@@ -58,7 +58,7 @@ export function ProfileForm({ profile, busy, error, onSubmit, onCancel }: { prof
       <fieldset className="flex flex-col gap-2">
         <legend className="mb-1 text-sm font-semibold">Channel mapping</legend>
         <p className="text-xs text-muted">Each code the monitor sends (IEEE 11073 MDC code or its own label) maps to a role. Physical value = gain × raw + offset.</p>
-        {channelsError && <p role="alert" className="text-xs text-notvalid">{channelsError}</p>}
+        {channelsError && <p role="alert" className="text-xs text-error">{channelsError}</p>}
         <div className="overflow-x-auto rounded border border-line">
           <table className="w-full text-sm">
             <thead className="bg-ink-50 text-left text-xs text-ink-800">
@@ -88,7 +88,7 @@ export function ProfileForm({ profile, busy, error, onSubmit, onCancel }: { prof
       </fieldset>
 
       <TextAreaField label="Notes" rows={2} {...form.register('notes')} error={e.notes?.message} />
-      {error !== null && error !== undefined && <p role="alert" className="text-sm text-notvalid">{errorMessage(error)}</p>}
+      {error !== null && error !== undefined && <p role="alert" className="text-sm text-error">{errorMessage(error)}</p>}
       <div className="flex justify-end gap-2">
         <Button onClick={onCancel} disabled={busy}>Cancel</Button>
         <Button type="submit" variant="primary" busy={busy}>{profile ? 'Save profile' : 'Create profile'}</Button>

@@ -71,7 +71,7 @@ export function BedsRoute() {
           <SelectField label="Monitor" placeholder="choose a monitor" value={monitorId} onChange={(e) => setMonitorId(e.target.value)}
             options={(monitors.data?.items ?? []).map((m) => ({ value: m.id, label: `${m.identifier}${m.bedId && m.bedId !== pending.bed.id ? ' (on another bed)' : ''}` }))}
             hint="A monitor sits on one bed at a time; assigning it here moves it." />
-          {assign.error && <p role="alert" className="mt-2 text-sm text-notvalid">{errorMessage(assign.error)}</p>}
+          {assign.error && <p role="alert" className="mt-2 text-sm text-error">{errorMessage(assign.error)}</p>}
         </Dialog>
       )}
       <ConfirmDialog open={pending?.kind === 'delete'} title="Remove bed" danger confirmLabel="Remove"

@@ -9,6 +9,8 @@ import { Cautions } from '@/components/analysis/cautions';
 import { useOverview } from '../api/overview';
 import { Stat } from '../components/stat';
 
+import { VERDICT_COLOR } from '@/components/analysis/verdict-mark';
+
 const C = { good: '#2f6f4a', warn: '#8a5a00', bad: '#a3352b', ink: '#24505f' };
 
 export function OverviewRoute() {
@@ -37,10 +39,10 @@ export function OverviewRoute() {
         <Panel title="Assessments by verdict">
           <div className="grid grid-cols-3 gap-2">
             <Stat label="valid" value={o.assessments.valid} tone="good" to={link('assessments', '/assessments?verdict=valid')} />
-            <Stat label="questionable" value={o.assessments.questionable} tone="warn" to={link('assessments', '/assessments?verdict=questionable')} />
-            <Stat label="not valid" value={o.assessments.notValid} tone="bad" to={link('assessments', '/assessments?verdict=not-valid')} />
+            <Stat label="questionable" value={o.assessments.questionable} tone="questionable" to={link('assessments', '/assessments?verdict=questionable')} />
+            <Stat label="not valid" value={o.assessments.notValid} tone="not-valid" to={link('assessments', '/assessments?verdict=not-valid')} />
           </div>
-          <Sparkline label="Assessments per minute by verdict" series={[col(o.assessments.series, 'valid'), col(o.assessments.series, 'questionable'), col(o.assessments.series, 'notValid')]} colors={[C.good, C.warn, C.bad]} />
+          <Sparkline label="Assessments per minute by verdict" series={[col(o.assessments.series, 'valid'), col(o.assessments.series, 'questionable'), col(o.assessments.series, 'notValid')]} colors={[VERDICT_COLOR.valid, VERDICT_COLOR.questionable, VERDICT_COLOR['not-valid']]} />
         </Panel>
         <Panel title="Delivery to the EHR">
           <div className="grid grid-cols-3 gap-2">

@@ -99,8 +99,8 @@ export function SettingsForm({ settings, readOnly, busy, error, onSubmit }: { se
           </div>
         </section>
       </fieldset>
-      {e.root?.message && <p role="alert" className="text-sm text-notvalid">{e.root.message}</p>}
-      {error !== null && error !== undefined && <p role="alert" className="text-sm text-notvalid">{errorMessage(error)}</p>}
+      {e.root?.message && <p role="alert" className="text-sm text-error">{e.root.message}</p>}
+      {error !== null && error !== undefined && <p role="alert" className="text-sm text-error">{errorMessage(error)}</p>}
       {!readOnly && <div className="flex justify-end gap-2"><Button onClick={() => form.reset(toForm(settings))} disabled={busy}>Undo changes</Button><Button type="submit" variant="primary" busy={busy}>Save settings</Button></div>}
     </form>
   );

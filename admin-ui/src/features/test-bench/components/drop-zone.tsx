@@ -40,7 +40,7 @@ export function DropZone({ file, onFile, disabled }: { file: File | null; onFile
         <input ref={input} type="file" accept={ACCEPT} className="sr-only" aria-label="Capture file" tabIndex={-1}
           onChange={(e) => { take(e.target.files?.[0]); e.target.value = ''; }} />
       </div>
-      {problem && <p role="alert" className="mt-1 text-xs text-notvalid">{problem}</p>}
+      {problem && <p role="alert" className="mt-1 text-xs text-error">{problem}</p>}
     </div>
   );
 }

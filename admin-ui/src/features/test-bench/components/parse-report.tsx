@@ -13,7 +13,7 @@ export function ParseReportView({ report }: { report: ParseReport }) {
           {report.channels.map((c) => (
             <tr key={c.code} className="border-t border-line/70">
               <td className="py-0.5 pr-2 font-mono text-xs">{c.code}</td>
-              <td className="pr-2">{c.role ?? <span className="text-questionable">not mapped</span>}</td>
+              <td className="pr-2">{c.role ?? <span className="text-caution">not mapped</span>}</td>
               <td className="pr-2">{c.unit}</td>
               <td className="num pr-2 text-right">{c.sampleRate} Hz</td>
               <td className="num text-right">{c.samples.toLocaleString('en-GB')}</td>
@@ -23,7 +23,7 @@ export function ParseReportView({ report }: { report: ParseReport }) {
       </table>
       {report.warnings.length > 0 && (
         <ul className="flex flex-col gap-0.5" aria-label="Parse warnings">
-          {report.warnings.map((w) => <li key={w} className="rounded bg-questionable-bg px-2 py-0.5 text-xs text-questionable">{w}</li>)}
+          {report.warnings.map((w) => <li key={w} className="rounded bg-caution-bg px-2 py-0.5 text-xs text-caution">{w}</li>)}
         </ul>
       )}
     </div>

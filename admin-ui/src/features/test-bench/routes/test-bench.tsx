@@ -43,7 +43,7 @@ export function TestBenchRoute() {
               <Button variant="primary" onClick={run} disabled={!file} busy={preview.isPending}>Analyse capture</Button>
             </div>
             {preview.error && (
-              <div role="alert" className="rounded border border-notvalid/30 bg-notvalid-bg px-3 py-2 text-sm text-notvalid">
+              <div role="alert" className="rounded border border-error/30 bg-error-bg px-3 py-2 text-sm text-error">
                 <p className="font-semibold">{preview.error instanceof ApiError ? preview.error.problem.title : 'Analysis failed'}</p>
                 <p>{preview.error instanceof ApiError ? preview.error.problem.detail : errorMessage(preview.error)}</p>
                 {preview.error instanceof ApiError && (preview.error.problem.errors?.length ?? 0) > 0 && (

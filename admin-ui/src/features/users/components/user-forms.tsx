@@ -26,7 +26,7 @@ export function CreateUserForm({ busy, error, onSubmit, onCancel }: { busy: bool
       <Controller control={form.control} name="roles" render={({ field }) => (
         <CheckboxGroup legend="Roles" options={roleOptions} value={field.value} onChange={field.onChange} error={e.roles?.message} />
       )} />
-      {error !== null && error !== undefined && <p role="alert" className="text-sm text-notvalid">{errorMessage(error)}</p>}
+      {error !== null && error !== undefined && <p role="alert" className="text-sm text-error">{errorMessage(error)}</p>}
       <div className="flex justify-end gap-2">
         <Button onClick={onCancel} disabled={busy}>Cancel</Button>
         <Button type="submit" variant="primary" busy={busy}>Create user</Button>
@@ -44,7 +44,7 @@ export function RolesForm({ user, busy, error, onSubmit, onCancel }: { user: Use
       <Controller control={form.control} name="roles" render={({ field }) => (
         <CheckboxGroup legend={`Roles of ${user.displayName}`} options={roleOptions} value={field.value} onChange={field.onChange} error={form.formState.errors.roles?.message} />
       )} />
-      {error !== null && error !== undefined && <p role="alert" className="text-sm text-notvalid">{errorMessage(error)}</p>}
+      {error !== null && error !== undefined && <p role="alert" className="text-sm text-error">{errorMessage(error)}</p>}
       <div className="flex justify-end gap-2">
         <Button onClick={onCancel} disabled={busy}>Cancel</Button>
         <Button type="submit" variant="primary" busy={busy}>Save roles</Button>
@@ -64,7 +64,7 @@ export function ResetPasswordForm({ user, busy, error, onSubmit, onCancel }: { u
       <p className="text-sm text-muted">Sets a new password for <strong>{user.displayName}</strong>. Tell them through a channel you trust.</p>
       <TextField label="New password" type="password" autoComplete="new-password" {...form.register('password')} error={e.password?.message} />
       <TextField label="Repeat new password" type="password" autoComplete="new-password" {...form.register('confirm')} error={e.confirm?.message} />
-      {error !== null && error !== undefined && <p role="alert" className="text-sm text-notvalid">{errorMessage(error)}</p>}
+      {error !== null && error !== undefined && <p role="alert" className="text-sm text-error">{errorMessage(error)}</p>}
       <div className="flex justify-end gap-2">
         <Button onClick={onCancel} disabled={busy}>Cancel</Button>
         <Button type="submit" variant="primary" busy={busy}>Set password</Button>
