@@ -15,7 +15,8 @@ import { buildCycles, computeIndices, keptVersusDropped, selectCycles, selection
 import { respiratoryMechanics } from './mechanics';
 import { predictedBodyWeightKg } from './pbw';
 import { resolveSettings } from './settings';
-import type { AnalysisInput, AnalysisResult, AnalysisSettings, ChannelRole, SampleSpan } from './types';
+import { evaluateTidalVolumeChallenge } from './challenge';
+import type { AnalysisInput, AnalysisResult, AnalysisSettings, ChallengeInput, ChannelRole, SampleSpan } from './types';
 import { buildFlags, judge, type ResolvedChecklist } from './verdict';
 import { CHECKLIST_CONTEXT_KEYS, type ChecklistContext } from '../schemas/ingest';
 import { ENGINE_VERSION } from './version';
@@ -31,7 +32,7 @@ export { percentVariation } from './signal-utils';
 export { dampingCoefficient, findFlushTests, gardnerRegion, gardnerRegionText } from './arterial-line';
 export { SIGNAL_LOSS_PULSE_MMHG } from './signal-loss';
 export { formatSummary } from './summary';
-export { DEFAULT_CODE_ROLES, roleForCode, batchToAnalysisInput, parseBatchJson, parseCsvCapture, readCapture, CaptureParseError } from './input';
+export { DEFAULT_CODE_ROLES, roleForCode, batchToAnalysisInput, parseBatchJson, parseCsvCapture, readCapture, readChallengeCapture, CaptureParseError } from './input';
 
 function beatsFor(ch: ConditionedChannel | undefined, settings: AnalysisSettings): QualifiedBeats | null {
   if (!ch || !ch.hasSignal || ch.filled.length < 2 * ch.fs) return null;
@@ -147,3 +148,13 @@ export function analyseWindow(input: AnalysisInput, partialSettings?: Partial<An
 
 /** American spelling kept as an alias for callers written before 2.0.0. */
 export const analyzeWindow = analyseWindow;
+
+export { CHALLENGE_THRESHOLD_SOURCE, concatenateSegments, splitAtContextChanges } from './challenge';
+
+/**
+ * Tidal volume challenge over a whole challenge (segments before and after the step, each with its
+ * context): baseline PPV, challenge PPV, ΔPPV, threshold with its source, verdict and reasons.
+ */
+export function analyseTidalVolumeChallenge(input: ChallengeInput, partialSettings?: Partial<AnalysisSettings>) {
+  return evaluateTidalVolumeChallenge(input, analyseWindow, partialSettings);
+}

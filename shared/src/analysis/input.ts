@@ -1,5 +1,7 @@
-import { CHANNEL_ROLES, decodeSamples, ingestBatchSchema, type ChannelRole, type IngestBatch } from '../schemas/ingest';
-import type { AnalysisChannel, AnalysisInput } from './types';
+import { z } from 'zod';
+import { analysisContextSchema, CHANNEL_ROLES, decodeSamples, ingestBatchSchema, type ChannelRole, type IngestBatch } from '../schemas/ingest';
+import { splitAtContextChanges } from './challenge';
+import type { AnalysisChannel, AnalysisInput, ChallengeInput } from './types';
 
 /** A capture file that cannot be read, with the 1-based line and column of the problem. */
 export class CaptureParseError extends Error {
@@ -149,6 +151,60 @@ export function parseCsvCapture(text: string): AnalysisInput {
   const step = (times[n - 1] - times[0]) / (n - 1);
   const fs = Math.round((1 / step) * 1e6) / 1e6;
   return { channels: cols.map((c, i) => ({ role: c.role, unit: c.unit, sampleRate: fs, samples: data[i] })) };
+}
+
+/** A batch with context changes inside it (a whole tidal volume challenge in one capture). */
+const challengeBatchSchema = ingestBatchSchema.extend({
+  contextChanges: z.array(z.object({ atSeconds: z.number().min(0).max(86_400), context: analysisContextSchema })).min(1).max(16),
+});
+
+function parseJson(text: string): unknown {
+  try {
+    return JSON.parse(text);
+  } catch (e) {
+    const msg = (e as Error).message;
+    const m = /position (\d+)/.exec(msg);
+    const { line, column } = m ? lineCol(text, Number(m[1])) : { line: 1, column: 1 };
+    throw new CaptureParseError(`not valid JSON (${msg.replace(/ in JSON at position \d+.*/, '')})`, line, column);
+  }
+}
+
+function toInput(batch: IngestBatch): AnalysisInput {
+  const { skipped, ...input } = batchToAnalysisInput(batch);
+  if (input.channels.length === 0) throw new CaptureParseError(`no channel with a known role (codes: ${skipped.join(', ')})`, 1, 1);
+  return input;
+}
+
+/**
+ * Reads a whole tidal volume challenge: a JSON array of batches (one per context segment, in time
+ * order) or one batch with `contextChanges: [{ atSeconds, context }]`. Null when the text is a
+ * plain single window.
+ */
+export function readChallengeCapture(text: string): ChallengeInput | null {
+  const head = text.trimStart();
+  if (!head.startsWith('[') && !(head.startsWith('{') && /"contextChanges"\s*:/.test(text))) return null;
+  const raw = parseJson(text);
+  if (Array.isArray(raw)) {
+    if (raw.length < 2) throw new CaptureParseError('a challenge needs at least two batches (before and after the step)', 1, 1);
+    const segments = raw.map((item, k) => {
+      const parsed = ingestBatchSchema.safeParse(item);
+      if (!parsed.success) {
+        const issue = parsed.error.issues[0];
+        const { line, column } = locatePath(text, [k, ...issue.path]);
+        throw new CaptureParseError(`[${k}].${issue.path.join('.') || '(root)'}: ${issue.message}`, line, column);
+      }
+      return toInput(parsed.data);
+    });
+    return { segments };
+  }
+  const parsed = challengeBatchSchema.safeParse(raw);
+  if (!parsed.success) {
+    const issue = parsed.error.issues[0];
+    const { line, column } = locatePath(text, issue.path);
+    throw new CaptureParseError(`${issue.path.join('.') || '(root)'}: ${issue.message}`, line, column);
+  }
+  const { contextChanges, ...batch } = parsed.data;
+  return { segments: splitAtContextChanges(toInput(batch), contextChanges) };
 }
 
 /** Reads a capture file's text into engine input, choosing the format by content (JSON batch or CSV). */

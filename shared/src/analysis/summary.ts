@@ -1,4 +1,4 @@
-import type { AnalysisResult, IndexValue } from './types';
+import type { AnalysisResult, IndexValue, TidalVolumeChallengeResult } from './types';
 
 const fmt = (v: IndexValue, digits = 1): string =>
   v.value === null ? `not computable (${v.notComputableReason ?? 'no value'})` : `${v.value.toFixed(digits)} ${v.unit}${v.spread !== null ? ` (spread ${v.spread.toFixed(digits)}, ${v.cyclesUsed} cycles)` : ''}`;
@@ -30,5 +30,19 @@ export function formatSummary(r: AnalysisResult): string {
   for (const b of r.bands) out.push(`  ${b.index} ${b.lower ?? '−∞'}–${b.upper ?? '∞'} ${b.unit}: ${b.label} [${b.source}]`);
   out.push('Cautions:');
   for (const c of r.cautions) out.push(`  - ${c}`);
+  return out.join('\n');
+}
+
+/** Plain-text summary of a tidal volume challenge (the CLI's --pretty). */
+export function formatChallengeSummary(t: TidalVolumeChallengeResult): string {
+  const n = (v: number | null, d = 1, unit = ''): string => (v === null ? '—' : `${v.toFixed(d)}${unit}`);
+  const out = [
+    `Tidal volume challenge (engine ${t.engineVersion}): ${t.verdict.toUpperCase()}`,
+    `  tidal volume  ${n(t.baselineTidalVolumeMl, 0, ' mL')} → ${n(t.challengeTidalVolumeMl, 0, ' mL')}  (${n(t.baselineMlPerKg)} → ${n(t.challengeMlPerKg)} mL/kg PBW), held ${n(t.challengeHeldSeconds, 0, ' s')}`,
+    `  PPV           ${n(t.baselinePpv, 1, ' %')} → ${n(t.challengePpv, 1, ' %')}  ΔPPV ${n(t.deltaPpv, 1, ' points')}  (threshold ${t.threshold} points)`,
+    `  source        ${t.thresholdSource}`,
+  ];
+  if (t.reasonTexts.length) out.push('Cannot be judged:', ...t.reasonTexts.map((r) => `  - ${r}`));
+  out.push('Cautions:', ...t.cautions.map((c) => `  - ${c}`));
   return out.join('\n');
 }

@@ -41,6 +41,49 @@ function damp(x: Float64Array, fs: number, cutoffHz: number): void {
   }
 }
 
+/** Fast flush as the catheter sees it: a square wave at 300 mmHg (the bag pressure), released at once. */
+function flushSquare(x: Float64Array, fs: number, start: number, duration: number): void {
+  const [a, b] = span(fs, x.length, start, duration);
+  for (let i = a; i < b; i++) x[i] = 300;
+}
+
+/**
+ * Second-order catheter–transducer model x'' + 2ζωn x' + ωn² x = ωn² u (Gardner 1981), integrated
+ * with classical Runge–Kutta at 16 sub-steps per sample, input linearly interpolated; starts at
+ * rest on the first sample.
+ */
+export function catheterResponse(u: Float64Array, fs: number, fn: number, zeta: number): Float64Array {
+  const w = 2 * Math.PI * fn;
+  const sub = 16;
+  const h = 1 / (fs * sub);
+  const out = new Float64Array(u.length);
+  let x = u[0];
+  let v = 0;
+  out[0] = x;
+  const acc = (xx: number, vv: number, uu: number): number => w * w * (uu - xx) - 2 * zeta * w * vv;
+  for (let i = 1; i < u.length; i++) {
+    const u0 = u[i - 1];
+    const du = u[i] - u0;
+    for (let s = 0; s < sub; s++) {
+      const ua = u0 + (du * s) / sub;
+      const um = u0 + (du * (s + 0.5)) / sub;
+      const ub = u0 + (du * (s + 1)) / sub;
+      const k1x = v;
+      const k1v = acc(x, v, ua);
+      const k2x = v + 0.5 * h * k1v;
+      const k2v = acc(x + 0.5 * h * k1x, v + 0.5 * h * k1v, um);
+      const k3x = v + 0.5 * h * k2v;
+      const k3v = acc(x + 0.5 * h * k2x, v + 0.5 * h * k2v, um);
+      const k4x = v + h * k3v;
+      const k4v = acc(x + h * k3x, v + h * k3v, ub);
+      x += (h / 6) * (k1x + 2 * k2x + 2 * k3x + k4x);
+      v += (h / 6) * (k1v + 2 * k2v + 2 * k3v + k4v);
+    }
+    out[i] = x;
+  }
+  return out;
+}
+
 /** Fast flush: ramp to ~300 mmHg plateau, then an under-damped ringing back (Gardner 1981 shape). */
 function flush(x: Float64Array, fs: number, start: number, duration: number): void {
   const [a, b] = span(fs, x.length, start, duration);
@@ -76,9 +119,14 @@ export function applySignalDisturbances(signals: SignalSet, list: Disturbance[],
   for (const d of list) {
     if (d.kind === 'damping' && signals.abp) damp(signals.abp, fs, d.cutoffHz);
   }
+  const catheter = list.find((d): d is Extract<Disturbance, { kind: 'catheter' }> => d.kind === 'catheter');
+  if (catheter && signals.abp) {
+    for (const d of list) if (d.kind === 'flush') flushSquare(signals.abp, fs, d.start, d.duration);
+    signals.abp.set(catheterResponse(signals.abp, fs, catheter.naturalFrequencyHz, catheter.dampingRatio));
+  }
   for (const d of list) {
     const abp = signals.abp;
-    if (d.kind === 'flush' && abp) flush(abp, fs, d.start, d.duration);
+    if (d.kind === 'flush' && abp && !catheter) flush(abp, fs, d.start, d.duration);
     if (d.kind === 'clipping' && abp) {
       let sum = 0;
       for (const v of abp) sum += v;

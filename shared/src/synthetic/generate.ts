@@ -57,7 +57,10 @@ export function generateWindow(spec: SyntheticSpec): SyntheticWindow {
   const rrPeriod = 60 / spec.respiratoryRate;
   const ti = rrPeriod * ((spec.ieRatio ?? 0.5) / (1 + (spec.ieRatio ?? 0.5)));
   const peep = spec.peep ?? 5;
-  const pip = spec.peakPressure ?? 22;
+  const pause = spec.inspiratoryPauseSeconds ?? 0;
+  // With volume and compliance the plateau is PEEP + Vt/C; the resistive part adds 30 % of the elastic swing.
+  const plateau = spec.tidalVolumeMl !== undefined && spec.complianceMlPerCmH2O ? peep + spec.tidalVolumeMl / spec.complianceMlPerCmH2O : null;
+  const pip = plateau !== null ? plateau + 0.3 * (plateau - peep) : (spec.peakPressure ?? 22);
 
   const planned: PlannedBeat[] = planBeats(
     {
@@ -131,7 +134,7 @@ export function generateWindow(spec: SyntheticSpec): SyntheticWindow {
       const t = i / fs;
       const j = breathIndexAt(breaths, t);
       const u = t - breaths[Math.max(0, j)];
-      paw[i] = airwayPressure(u, rrPeriod, ti, peep, pip);
+      paw[i] = airwayPressure(u, rrPeriod, ti, peep, pip, pause, plateau);
       co2[i] = capnogram(u, ti, spec.etco2 ?? 38);
       for (const e of efforts) {
         const v = t - e;
@@ -170,6 +173,10 @@ export function generateWindow(spec: SyntheticSpec): SyntheticWindow {
     });
   }
   const ibis = truthAbp.slice(1).map((b, k) => b.footTime - truthAbp[k].footTime);
+  const withPpv = cycles.filter((c) => c.ppv !== null);
+  const clean = withPpv.filter((c) => !c.containsEctopic && !c.containsSpontaneousEffort).slice(-3);
+  const avg = (xs: TruthCycle[]): number | null => (xs.length ? xs.reduce((a, c) => a + (c.ppv as number), 0) / xs.length : null);
+  const plat = pause > 0 ? (plateau ?? pip - 0.3 * (pip - peep)) : null;
   const truth: SyntheticTruth = {
     spec,
     heartRate: ibis.length ? 60 / (ibis.reduce((a, b) => a + b, 0) / ibis.length) : spec.heartRate,
@@ -181,6 +188,15 @@ export function generateWindow(spec: SyntheticSpec): SyntheticWindow {
     cycles,
     spontaneousEfforts: efforts,
     disturbances,
+    ppvAllCycles: avg(withPpv),
+    ppvLastCleanCycles: avg(clean),
+    airway: {
+      peep,
+      peak: pip,
+      plateau: plat,
+      drivingPressure: plat !== null ? plat - peep : null,
+      compliance: spec.tidalVolumeMl !== undefined && plat !== null ? spec.tidalVolumeMl / (plat - peep) : (spec.complianceMlPerCmH2O ?? null),
+    },
   };
   return { channels, truth };
 }

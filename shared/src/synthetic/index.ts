@@ -11,6 +11,8 @@ import { encodeSamplesFloat32, type IngestBatch, type AnalysisContext } from '..
 import type { SyntheticWindow } from './types';
 
 export { generateWindow } from './generate';
+export { generateChallenge, type ChallengeKind, type ChallengeSpec, type ChallengeSegment, type SyntheticChallenge } from './challenge';
+export { catheterResponse } from './disturbances';
 export { createPrng, type Prng } from './prng';
 export type * from './types';
 

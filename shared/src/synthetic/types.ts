@@ -25,8 +25,13 @@ export type Disturbance =
   | { kind: 'spontaneous-breaths'; count: number }
   /** Motion artefact: large smoothed random swings on abp and pleth (amplitude fraction). */
   | { kind: 'motion'; start: number; duration: number; amplitude: number }
-  /** Fast-flush of the arterial line: plateau near 300 mmHg, then ringing. */
-  | { kind: 'flush'; start: number; duration: number };
+  /** Fast-flush of the arterial line: plateau near 300 mmHg, then ringing (or, with a `catheter`, a square wave the catheter model rings on). */
+  | { kind: 'flush'; start: number; duration: number }
+  /**
+   * Catheter–transducer as a second-order system (Gardner, Anesthesiology 1981):
+   * x'' + 2ζωn x' + ωn² x = ωn² u, applied to the arterial pressure (after any flush square wave).
+   */
+  | { kind: 'catheter'; naturalFrequencyHz: number; dampingRatio: number };
 
 export type DisturbanceKind = Disturbance['kind'];
 
@@ -60,7 +65,14 @@ export interface SyntheticSpec {
   /** Inspiratory : expiratory time as a fraction (default 0.5, i.e. 1:2). */
   ieRatio?: number;
   peep?: number;
+  /** Peak airway pressure, cmH2O (ignored when tidalVolumeMl and complianceMlPerCmH2O are given). */
   peakPressure?: number;
+  /** Delivered tidal volume, mL: with compliance, the plateau is PEEP + Vt / C. */
+  tidalVolumeMl?: number;
+  /** Respiratory-system compliance, mL/cmH2O. */
+  complianceMlPerCmH2O?: number;
+  /** End-inspiratory pause, s (default 0: no plateau). */
+  inspiratoryPauseSeconds?: number;
   etco2?: number;
   /** Heart-rate variability of a regular rhythm, fraction (default 0.01). */
   hrVariability?: number;
@@ -119,6 +131,12 @@ export interface SyntheticTruth {
   cycles: TruthCycle[];
   /** Times of the spontaneous efforts added, s. */
   spontaneousEfforts: number[];
+  /** Mean PPV over every complete cycle put in (whatever an engine would keep), %. */
+  ppvAllCycles: number | null;
+  /** Mean PPV over the last three clean cycles put in (no ectopic beat, no effort), %. */
+  ppvLastCleanCycles: number | null;
+  /** Airway pressures put in, cmH2O (plateau null without a pause). */
+  airway: { peep: number; peak: number; plateau: number | null; drivingPressure: number | null; compliance: number | null };
   disturbances: Disturbance[];
 }
 

@@ -54,11 +54,23 @@ export function pulseValue(b: PulseBeat, shape: PulseShape, t: number): number {
   return runoff + bump;
 }
 
-/** Airway pressure of a volume-controlled breath at time u into a breath of length period. */
-export function airwayPressure(u: number, period: number, ti: number, peep: number, peak: number): number {
-  const resistive = 0.3 * (peak - peep);
-  if (u < ti) return peep + resistive * (1 - Math.exp(-u / 0.03)) + (peak - peep - resistive) * (u / ti);
-  const end = peep + resistive * (1 - Math.exp(-ti / 0.03)) + (peak - peep - resistive);
+/**
+ * Airway pressure of a volume-controlled breath at time u into a breath of length period: a
+ * resistive step plus an elastic ramp to the peak; with an end-inspiratory pause (the last `pause`
+ * seconds of inspiration, no flow) the resistive part falls away and the pressure rests at the
+ * plateau (given, or the elastic part of the peak).
+ */
+export function airwayPressure(u: number, period: number, ti: number, peep: number, peak: number, pause = 0, plateau: number | null = null): number {
+  const resistive = pause > 0 && plateau !== null ? peak - plateau : 0.3 * (peak - peep);
+  const flowTime = Math.max(0.05, ti - pause);
+  const elastic = peak - peep - resistive;
+  if (u < flowTime) return peep + resistive * (1 - Math.exp(-u / 0.03)) + elastic * (u / flowTime);
+  const atEnd = peep + resistive * (1 - Math.exp(-flowTime / 0.03)) + elastic;
+  if (pause > 0 && u < ti) {
+    // No flow: the resistive pressure decays within ~50 ms, leaving the plateau.
+    return peep + elastic + (atEnd - peep - elastic) * Math.exp(-(u - flowTime) / 0.02);
+  }
+  const end = pause > 0 ? peep + elastic : atEnd;
   return peep + (end - peep) * Math.exp(-(u - ti) / 0.15);
 }
 
