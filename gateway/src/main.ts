@@ -8,6 +8,8 @@ try {
   const shutdown = () => void gateway.stop().then(() => process.exit(0), () => process.exit(1));
   process.once('SIGINT', shutdown);
   process.once('SIGTERM', shutdown);
+  // Started by a launcher with an IPC channel (npm start, npm run cluster): stop when it goes away.
+  process.once('disconnect', shutdown);
 } catch (err) {
   if (err instanceof ConfigError || err instanceof StartupRefused) {
     console.error(`ebbgate gateway: ${err.message}`);

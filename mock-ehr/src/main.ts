@@ -21,7 +21,8 @@ const ehr = await startMockEhr({
 console.log(`mock EHR ready: ${ehr.baseUrl} (FHIR ${ehr.fhirBaseUrl}, token ${ehr.tokenUrl}, mail page ${ehr.baseUrl}/mail)`);
 
 let stopping = false;
-for (const signal of ['SIGINT', 'SIGTERM'] as const) {
+// 'disconnect': started by a launcher with an IPC channel (npm start) that went away.
+for (const signal of ['SIGINT', 'SIGTERM', 'disconnect'] as const) {
   process.on(signal, () => {
     if (stopping) return;
     stopping = true;

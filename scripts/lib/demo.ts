@@ -5,9 +5,14 @@
  */
 import { demoIntegrator, provisionDemoMonitors, runDemoScenario } from '@ebbgate/simulator';
 import { repoRoot } from '../../gateway/src/config/load';
-import type { RunningStack } from './stack';
 
-export async function startDemo(stack: RunningStack, spoolDir: string, log: (m: string) => void): Promise<{ stop(): Promise<void> }> {
+/** Where the demo streams to: a running stack (in-process) or the URLs of separate processes. */
+export interface DemoTarget {
+  gatewayUrl: string;
+  mockEhrUrl: string;
+}
+
+export async function startDemo(stack: DemoTarget, spoolDir: string, log: (m: string) => void): Promise<{ stop(): Promise<void> }> {
   const monitors = await provisionDemoMonitors(stack.gatewayUrl, await demoIntegrator(repoRoot), repoRoot);
   log(`ebbgate: simulator streaming ${monitors.length} demo monitors over HTTP (backfilling the last minute)…`);
   const demo = runDemoScenario({ gatewayUrl: stack.gatewayUrl, mockEhrUrl: stack.mockEhrUrl, monitors, spoolDir, log: (m) => log(`simulator: ${m}`) });

@@ -5,7 +5,7 @@
  */
 import { execFileSync, spawn, type ChildProcess } from 'node:child_process';
 import { randomBytes } from 'node:crypto';
-import { existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs';
+import { existsSync, mkdirSync, readdirSync, readFileSync, rmSync } from 'node:fs';
 import { createServer } from 'node:net';
 import path from 'node:path';
 import * as mariadb from 'mariadb';
@@ -101,6 +101,79 @@ export interface StartOptions {
   /** Fixed password (kept by the caller, e.g. in .data/secrets.json); generated when absent. */
   password?: string;
   log?: (m: string) => void;
+  /**
+   * A server left running on this data folder by an earlier launcher that died (SIGKILL, crash):
+   * adopt it when it answers on the expected port, otherwise stop it before starting a new one
+   * (two servers on one data folder fail on the Aria/InnoDB locks). Default: stop it first.
+   */
+  leftover?: 'adopt' | 'stop';
+}
+
+const alive = (pid: number) => {
+  try {
+    process.kill(pid, 0);
+    return true;
+  } catch {
+    return false;
+  }
+};
+
+function cmdlineOf(pid: number): string[] {
+  try {
+    return readFileSync(`/proc/${pid}/cmdline`, 'utf8').split('\0');
+  } catch {
+    return [];
+  }
+}
+
+/** The pid of a mariadbd serving `dataDir` (by its pid file, else by scanning /proc), if any. */
+export function findLeftoverServer(dataDir: string): number | undefined {
+  const owns = (pid: number) => alive(pid) && cmdlineOf(pid).includes(`--datadir=${dataDir}`);
+  const pidFile = `${dataDir}.pid`;
+  if (existsSync(pidFile)) {
+    const pid = Number(readFileSync(pidFile, 'utf8').trim());
+    if (Number.isInteger(pid) && pid > 0 && owns(pid)) return pid;
+  }
+  for (const entry of readdirSync('/proc')) {
+    const pid = Number(entry);
+    if (Number.isInteger(pid) && pid > 0 && pid !== process.pid && owns(pid)) return pid;
+  }
+  return undefined;
+}
+
+async function waitForExit(pid: number, timeoutMs: number): Promise<boolean> {
+  const deadline = Date.now() + timeoutMs;
+  while (Date.now() < deadline) {
+    if (!alive(pid)) return true;
+    await new Promise((r) => setTimeout(r, 100));
+  }
+  return !alive(pid);
+}
+
+/** SIGTERM (clean InnoDB shutdown), then SIGKILL if it does not exit in time. */
+export async function stopServerByPid(pid: number, timeoutMs = 30_000): Promise<void> {
+  if (!alive(pid)) return;
+  process.kill(pid, 'SIGTERM');
+  if (await waitForExit(pid, timeoutMs)) return;
+  process.kill(pid, 'SIGKILL');
+  await waitForExit(pid, 5_000);
+}
+
+async function answersOnPort(socket: string, port: number): Promise<boolean> {
+  for (let i = 0; i < 20; i++) {
+    try {
+      const conn = await mariadb.createConnection({ socketPath: socket, user: 'root', connectTimeout: 1000 });
+      try {
+        const [row] = (await conn.query('SELECT @@port AS port')) as { port: number }[];
+        return Number(row?.port) === port;
+      } finally {
+        await conn.end();
+      }
+    } catch {
+      await new Promise((r) => setTimeout(r, 250));
+    }
+  }
+  return false;
 }
 
 export async function startPrivateMariaDb(opts: StartOptions): Promise<PrivateMariaDb> {
@@ -110,6 +183,15 @@ export async function startPrivateMariaDb(opts: StartOptions): Promise<PrivateMa
   const port = opts.port ?? (await freePort());
   const socket = `${dataDir}.sock`;
   const errLog = `${dataDir}.err`;
+  const leftover = findLeftoverServer(dataDir);
+  if (leftover !== undefined) {
+    if (opts.leftover === 'adopt' && (await answersOnPort(socket, port))) {
+      log(`ebbgate: adopting the MariaDB left running by an earlier start (pid ${leftover}, port ${port})`);
+      return provisioned(opts, { port, socket, stop: () => stopServerByPid(leftover) });
+    }
+    log(`ebbgate: stopping the MariaDB left running by an earlier start (pid ${leftover}) before starting a new one…`);
+    await stopServerByPid(leftover);
+  }
   if (!existsSync(path.join(dataDir, 'mysql'))) {
     mkdirSync(dataDir, { recursive: true });
     execFileSync(
@@ -137,16 +219,6 @@ export async function startPrivateMariaDb(opts: StartOptions): Promise<PrivateMa
   );
   await waitUntilAnswers(socket, child, errLog);
 
-  const database = opts.database ?? 'ebbgate';
-  const user = opts.user ?? 'ebbgate_app';
-  const password = opts.password ?? randomBytes(18).toString('base64url');
-  const root = await mariadb.createConnection({ socketPath: socket, user: 'root' });
-  try {
-    await provisionDatabase(root, database, user, password);
-  } finally {
-    await root.end();
-  }
-
   let stopped: Promise<void> | undefined;
   const stop = () =>
     (stopped ??= new Promise<void>((resolve) => {
@@ -160,6 +232,20 @@ export async function startPrivateMariaDb(opts: StartOptions): Promise<PrivateMa
       });
       child.kill('SIGTERM');
     }));
+  return provisioned(opts, { port, socket, stop });
+}
+
+async function provisioned(opts: StartOptions, server: { port: number; socket: string; stop(): Promise<void> }): Promise<PrivateMariaDb> {
+  const { port, socket, stop } = server;
+  const database = opts.database ?? 'ebbgate';
+  const user = opts.user ?? 'ebbgate_app';
+  const password = opts.password ?? randomBytes(18).toString('base64url');
+  const root = await mariadb.createConnection({ socketPath: socket, user: 'root' });
+  try {
+    await provisionDatabase(root, database, user, password);
+  } finally {
+    await root.end();
+  }
 
   return {
     port,
