@@ -4,7 +4,7 @@ import type { DataSource } from 'typeorm';
 import type { AppContext } from './app-context';
 import { buildCapabilities } from './capabilities';
 import type { Config } from './config/schema';
-import { createDataSource, migrate } from './db/data-source';
+import { createDataSource, migrateWith } from './db/data-source';
 import { createApp } from './http/app';
 import { createLogger } from './http/logger';
 import { createMetrics } from './http/metrics';
@@ -35,9 +35,9 @@ export class StartupRefused extends Error {
 export async function startGateway(opts: GatewayOptions): Promise<RunningGateway> {
   const { config } = opts;
   const logger = opts.logger ?? createLogger(config.log.level);
-  const ds: DataSource = await createDataSource(config.database.url, config.database.poolSize).initialize();
+  if (opts.migrate) await migrateWith(config.database);
+  const ds: DataSource = await createDataSource(config.database.url, config.database.poolSize, config.database.queueLimit).initialize();
   try {
-    if (opts.migrate) await migrate(ds);
     if (opts.seedDemo) await seedDemoUsers(ds);
     if (config.env === 'production') {
       const unchanged = await unchangedDemoCredentials(ds);

@@ -12,6 +12,8 @@ import { startGateway, type RunningGateway } from '../../gateway/src/server';
 
 export interface StackOptions {
   databaseUrl: string;
+  /** The migration user's URL (DDL); the gateway itself runs as `databaseUrl` (data privileges only). */
+  migrationDatabaseUrl?: string;
   jwtSecret: string;
   /** 0 = any free port. */
   gatewayPort: number;
@@ -50,7 +52,7 @@ export async function launchStack(opts: StackOptions): Promise<RunningStack> {
       { NODE_ENV: opts.nodeEnv ?? 'development' },
       deepMerge(
         {
-          database: { url: opts.databaseUrl },
+          database: { url: opts.databaseUrl, migrationUrl: opts.migrationDatabaseUrl ?? null },
           gateway: { port: opts.gatewayPort, consoleDir: CONSOLE_DIR, migrateOnStart: true, seedDemo: true },
           auth: { jwtSecret: opts.jwtSecret },
           log: { level: opts.logLevel ?? 'warn' },

@@ -1,14 +1,19 @@
 /**
  * Throwaway databases for tests. The test runner (scripts/test.ts, or the vitest global setup
  * when a suite is run alone) provides EBBGATE_TEST_ADMIN_URL: an account allowed to create
- * databases and users. Each test file gets its own database and application user.
+ * databases and users. Each test file gets its own database and its two users: `runtimeUrl` (the
+ * application user, data privileges only, as the gateway runs) and `url` (the migration user, all
+ * privileges on that database: for migrations and for tests that reach into the schema).
  */
 import { randomBytes } from 'node:crypto';
 import * as mariadb from 'mariadb';
-import { provisionDatabase } from './mariadb';
+import { migrationCredentials, provisionDatabase } from './mariadb';
 
 export interface TestDatabase {
+  /** The migration user (DDL): pass as `database.migrationUrl`, or use for schema-level checks. */
   url: string;
+  /** The application user (SELECT, INSERT, UPDATE, DELETE only): pass as `database.url`. */
+  runtimeUrl: string;
   name: string;
   drop(): Promise<void>;
 }
@@ -36,14 +41,16 @@ export async function createTestDatabase(): Promise<TestDatabase> {
     await conn.end();
   }
   const u = new URL(adminUrl());
+  const migration = migrationCredentials(user, password);
   return {
     name,
-    url: `mysql://${user}:${password}@${u.hostname}:${u.port}/${name}`,
+    url: `mysql://${migration.user}:${encodeURIComponent(migration.password)}@${u.hostname}:${u.port}/${name}`,
+    runtimeUrl: `mysql://${user}:${password}@${u.hostname}:${u.port}/${name}`,
     drop: async () => {
       const c = await adminConnection();
       try {
         await c.query(`DROP DATABASE IF EXISTS \`${name}\``);
-        await c.query(`DROP USER IF EXISTS '${user}'@'127.0.0.1'`);
+        await c.query(`DROP USER IF EXISTS '${user}'@'127.0.0.1', '${migration.user}'@'127.0.0.1'`);
       } finally {
         await c.end();
       }

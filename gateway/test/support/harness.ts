@@ -36,7 +36,8 @@ export async function startTestGateway(overrides: Record<string, unknown> = {}, 
     { NODE_ENV: 'test' },
     deepMerge(
       {
-        database: { url: db.url, poolSize: 5 },
+        // The gateway runs as the data-only user; migrations run as the migration user.
+        database: { url: db.runtimeUrl, migrationUrl: db.url, poolSize: 5 },
         gateway: { port: 0, consoleDir: '/nonexistent' },
         auth: { jwtSecret: randomBytes(32).toString('hex'), signInAttemptsPerMinute: 1000 },
         log: { level: 'silent' },

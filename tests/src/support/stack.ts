@@ -18,7 +18,8 @@ export async function startStack(overrides: Record<string, unknown> = {}): Promi
   ensureConsoleBuilt(() => {});
   const db = await createTestDatabase();
   const stack = await launchStack({
-    databaseUrl: db.url,
+    databaseUrl: db.runtimeUrl,
+    migrationDatabaseUrl: db.url,
     jwtSecret: randomBytes(32).toString('hex'),
     gatewayPort: 0,
     mllpPort: 0,
