@@ -2,7 +2,8 @@
  * Benchmark: HTTP ingest batches/s with p50/p99 latency (autocannon) for 10-s, 2-channel, 125 Hz
  * batches (base64 float32), beside a bare Node HTTP server that reads and parses the same body
  * in the same run (ratio printed); MLLP PCD-01 messages/s; the gateway's resident memory under
- * that load. The gateway runs as its own process (tsx gateway/src/main.ts) on a throwaway
+ * that load. The gateway runs as its own process on the compiled build (node gateway/dist/main.js, built
+ * first when stale; BENCH_FROM_SOURCE=1 runs gateway/src/main.ts under tsx instead) on a throwaway
  * private MariaDB; the analysis worker is off (EBBGATE_ANALYSIS_WORKER=false) so the figures are ingest alone (analysis has its
  * own benchmark). Prints figures only. Issue 4 floor: 400 batches/s with p99 < 100 ms; goal
  * 1,000 batches/s, >= 30 % of the bare server, < 300 MB.
@@ -19,6 +20,8 @@ import { generateWindow } from '@ebbgate/shared/synthetic';
 import { startTestMariaDb } from '../../scripts/lib/test-mariadb';
 import { createTestDatabase } from '../../scripts/lib/test-database';
 import { repoRoot } from '../../gateway/src/config/load';
+import { buildAll, buildIsStale } from '../../scripts/build';
+import { NODE_RUNTIME_FLAGS } from '../../scripts/lib/supervisor';
 import { corvaneProfile } from '../../gateway/test/devices/fixtures';
 import { buildPcd01 } from '../../gateway/test/ingest/pcd01-fixture';
 import { freePort, signIn, DEMO_INTEGRATOR } from '../src/ingest/gateway-process';
@@ -164,9 +167,13 @@ async function main(): Promise<void> {
   const db = await createTestDatabase();
   const port = await freePort();
   const mllpPort = await freePort();
-  // node --import tsx (not the tsx CLI, which forks) so the pid is the gateway's own, for its memory.
+  // node (not the tsx CLI, which forks) so the pid is the gateway's own, for its memory.
   const profile = process.env.BENCH_CPU_PROF ? ['--cpu-prof', `--cpu-prof-dir=${process.env.BENCH_CPU_PROF}`] : [];
-  const gw = spawnLogged(process.execPath, [...profile, '--import', 'tsx', 'gateway/src/main.ts'], {
+  const fromSource = process.env.BENCH_FROM_SOURCE === '1';
+  if (!fromSource && buildIsStale()) await buildAll();
+  const entry = fromSource ? ['--import', 'tsx', 'gateway/src/main.ts'] : [...NODE_RUNTIME_FLAGS, 'gateway/dist/main.js'];
+  console.log(`gateway: ${fromSource ? 'from source (tsx)' : 'compiled build (node gateway/dist/main.js)'}`);
+  const gw = spawnLogged(process.execPath, [...profile, ...entry], {
     NODE_ENV: 'production' === process.env.BENCH_NODE_ENV ? 'production' : 'test',
     DATABASE_URL: db.url,
     EBBGATE_PORT: String(port),
