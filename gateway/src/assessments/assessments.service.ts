@@ -6,6 +6,7 @@ import { assembleWindow } from '../analysis/window-assembly';
 import { conflict, notFound } from '../http/problem';
 import { AssessmentRow } from './assessment.entity';
 import { assessmentEvents } from './events';
+import { sortColumn } from '../http/sort';
 
 const SORTABLE: Record<string, string> = {
   windowStart: 'a.window_start',
@@ -113,7 +114,7 @@ export async function listAssessments(ds: DataSource, q: AssessmentQuery): Promi
   if (q.to) qb.andWhere('a.window_start <= :to', { to: new Date(q.to) });
   const total = await qb.getCount();
   const dir = q.order === 'asc' ? 'ASC' : 'DESC';
-  qb.orderBy(SORTABLE[q.sort ?? ''] ?? 'a.window_start', dir).addOrderBy('a.id', dir);
+  qb.orderBy(sortColumn(SORTABLE, q.sort, 'a.window_start'), dir).addOrderBy('a.id', dir);
   const rows = (await qb.offset((q.page - 1) * q.pageSize).limit(q.pageSize).getRawMany()) as SummaryRaw[];
   const statuses = await deliveryStatuses(ds, rows.map((r) => r.id));
   return { items: rows.map((r) => toSummary(r, statuses.get(r.id) ?? null)), page: q.page, pageSize: q.pageSize, total };

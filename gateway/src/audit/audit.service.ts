@@ -1,6 +1,7 @@
 import type { DataSource, EntityManager } from 'typeorm';
 import type { AuditEntry, AuditQuery, Page } from '@ebbgate/shared';
 import { actorOf, type Principal } from '../auth/principal';
+import { sortColumn } from '../http/sort';
 import { AuditEntryRow } from './audit-entry.entity';
 
 export interface AuditEvent {
@@ -59,7 +60,7 @@ export function toAuditEntry(row: AuditEntryRow): AuditEntry {
   };
 }
 
-const SORTABLE = new Set(['at', 'action', 'entityType', 'actorName']);
+const SORTABLE: Record<string, string> = { at: 'a.at', action: 'a.action', entityType: 'a.entityType', actorName: 'a.actorName' };
 
 export async function listAudit(ds: DataSource, q: AuditQuery): Promise<Page<AuditEntry>> {
   const qb = ds.getRepository(AuditEntryRow).createQueryBuilder('a');
@@ -69,8 +70,7 @@ export async function listAudit(ds: DataSource, q: AuditQuery): Promise<Page<Aud
   if (q.entityId) qb.andWhere('a.entity_id = :entityId', { entityId: q.entityId });
   if (q.from) qb.andWhere('a.at >= :from', { from: new Date(q.from) });
   if (q.to) qb.andWhere('a.at <= :to', { to: new Date(q.to) });
-  const sort = q.sort && SORTABLE.has(q.sort) ? q.sort : 'at';
-  qb.orderBy(`a.${sort}`, q.order === 'asc' ? 'ASC' : 'DESC').addOrderBy('a.id', q.order === 'asc' ? 'ASC' : 'DESC');
+  qb.orderBy(sortColumn(SORTABLE, q.sort, 'a.at'), q.order === 'asc' ? 'ASC' : 'DESC').addOrderBy('a.id', q.order === 'asc' ? 'ASC' : 'DESC');
   const [rows, total] = await qb.skip((q.page - 1) * q.pageSize).take(q.pageSize).getManyAndCount();
   return { items: rows.map(toAuditEntry), page: q.page, pageSize: q.pageSize, total };
 }

@@ -10,6 +10,7 @@ import type { ChangeBy } from '../app-context';
 import { actorOf } from '../auth/principal';
 import { notFound, conflict } from '../http/problem';
 import { DeliveryAttemptRow, DeliveryRow, DestinationRow } from './delivery.entities';
+import { sortColumn } from '../http/sort';
 
 const iso = (d: Date | null) => (d ? d.toISOString() : null);
 
@@ -34,7 +35,7 @@ export async function listDeliveries(ds: DataSource, q: DeliveryQuery): Promise<
   if (q.from) qb.andWhere('d.updated_at >= :from', { from: new Date(q.from) });
   if (q.to) qb.andWhere('d.updated_at <= :to', { to: new Date(q.to) });
   const order = q.order === 'asc' ? 'ASC' : 'DESC';
-  qb.orderBy(SORTABLE[q.sort ?? ''] ?? 'd.updated_at', order).addOrderBy('d.id', order);
+  qb.orderBy(sortColumn(SORTABLE, q.sort, 'd.updated_at'), order).addOrderBy('d.id', order);
   const [rows, total] = await qb.skip((q.page - 1) * q.pageSize).take(q.pageSize).getManyAndCount();
   return { items: rows.map(toDelivery), page: q.page, pageSize: q.pageSize, total };
 }

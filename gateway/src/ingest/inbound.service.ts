@@ -8,6 +8,7 @@ import type { ReceivedBatch } from './decoded-batch';
 import { InboundMessageRow } from './ingest.entities';
 import type { IngestService } from './ingest.service';
 import { IngestRefusal } from './refusal';
+import { sortColumn } from '../http/sort';
 
 export function toInboundMessage(r: InboundMessageRow): InboundMessage {
   return {
@@ -38,7 +39,7 @@ export async function listInbound(ds: DataSource, q: InboundQuery): Promise<Page
   if (q.monitor) qb.andWhere('(m.monitor_identifier = :monitor OR m.monitor_id = :monitor)', { monitor: q.monitor });
   if (q.from) qb.andWhere('m.received_at >= :from', { from: new Date(q.from) });
   if (q.to) qb.andWhere('m.received_at <= :to', { to: new Date(q.to) });
-  const col = SORTABLE[q.sort ?? ''] ?? 'received_at';
+  const col = sortColumn(SORTABLE, q.sort, 'received_at');
   const dir = q.order === 'asc' ? 'ASC' : 'DESC';
   qb.orderBy(`m.${col}`, dir).addOrderBy('m.id', dir);
   const [rows, total] = await qb.skip((q.page - 1) * q.pageSize).take(q.pageSize).getManyAndCount();

@@ -6,6 +6,7 @@ import { hashPassword } from '../auth/passwords';
 import { accountSubject } from '../auth/sign-in-throttle';
 import type { Principal } from '../auth/principal';
 import { conflict, notFound } from '../http/problem';
+import { sortColumn } from '../http/sort';
 import { UserRow, UserSessionRow } from './user.entity';
 
 export function toUser(row: UserRow): User {
@@ -31,7 +32,7 @@ const SORTABLE: Record<string, string> = { username: 'u.username', displayName: 
 export async function listUsers(ds: DataSource, q: PageQuery & { search?: string }): Promise<Page<User>> {
   const qb = ds.getRepository(UserRow).createQueryBuilder('u');
   if (q.search) qb.where('(u.username LIKE :s OR u.display_name LIKE :s)', { s: `%${q.search}%` });
-  qb.orderBy(SORTABLE[q.sort ?? ''] ?? 'u.username', q.order === 'desc' && q.sort ? 'DESC' : 'ASC');
+  qb.orderBy(sortColumn(SORTABLE, q.sort, 'u.username'), q.order === 'desc' && q.sort ? 'DESC' : 'ASC');
   const [rows, total] = await qb.skip((q.page - 1) * q.pageSize).take(q.pageSize).getManyAndCount();
   return { items: rows.map(toUser), page: q.page, pageSize: q.pageSize, total };
 }
