@@ -12,13 +12,9 @@ import { MonitorFeed } from './simulation/monitor-feed';
 import { simulatorTransport } from './simulation/transports';
 import { BedStream } from './stream/bed-stream';
 
-export { provisionDemoMonitors } from './simulation/demo-provision';
+import type { DemoMonitorInput } from './simulation/demo-provision';
 
-export interface DemoMonitorInput {
-  identifier: string;
-  apiKey: string;
-  scenario?: string;
-}
+export { provisionDemoMonitors, type DemoMonitorInput } from './simulation/demo-provision';
 
 export interface DemoOptions {
   gatewayUrl: string;

@@ -1,8 +1,14 @@
 import { readFile } from 'node:fs/promises';
 import path from 'node:path';
 import { DEMO_MONITOR_PROFILE, DEMO_MONITORS } from '../scenarios/monitor-models';
-import type { DemoMonitorInput } from '../demo';
 import { listAll, signIn } from './provision';
+
+/** A provisioned demo monitor: what the demo scenario needs to stream as it. */
+export interface DemoMonitorInput {
+  identifier: string;
+  apiKey: string;
+  scenario?: string;
+}
 
 interface HospitalBed {
   id: string;
