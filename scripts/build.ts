@@ -8,7 +8,7 @@
  * condition (`node --conditions=ebbgate-dist`), so tests, tsx and Vite keep reading `src`.
  * `--if-stale` builds only when a source is newer than the last build (used by `npm start`).
  */
-import { existsSync, readdirSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync, readdirSync, statSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { build, type Plugin } from 'esbuild';
@@ -159,9 +159,10 @@ export async function buildAll(log: (m: string) => void = console.log, names?: s
   const started = Date.now();
   for (const t of TARGETS) {
     if (names && !names.includes(t.name)) continue;
-    rmSync(t.out, { recursive: true, force: true });
+    // Overwritten in place, not emptied first: a running process (npm start, a test) keeps its files.
     const entries = sourcesOf(t.src, t.only ? (f) => !t.only!(f) : undefined);
     await buildTarget(t, entries);
+    mkdirSync(t.out, { recursive: true });
     writeFileSync(buildStamp(t), `${new Date().toISOString()}\n`);
     log(`ebbgate build: ${t.name} → ${path.relative(root, t.out)} (${entries.length} files)`);
   }
