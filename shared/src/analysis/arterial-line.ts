@@ -10,7 +10,7 @@ import type { ArterialLineReport, BeatSeries, DampingEstimate, FlushTestResult, 
  * one, over- and under-damping are estimated from the beat shape (no dicrotic notch and a slow
  * upstroke; oscillation riding on the systolic peak).
  */
-export function checkArterialLine(ch: ConditionedChannel, series: BeatSeries): ArterialLineReport {
+export function checkArterialLine(ch: ConditionedChannel, series: BeatSeries, noiseSd: number | null = null): ArterialLineReport {
   const y = ch.smooth;
   const fs = ch.fs;
   const beats = series.beats;
@@ -28,7 +28,7 @@ export function checkArterialLine(ch: ConditionedChannel, series: BeatSeries): A
     rises.push((b.peakSample - b.footSample) / fs);
     if (b.pp !== null && b.pp > 0) {
       ringExamined++;
-      if (ringsAfterPeak(ch.filled, b.footSample, b.peakSample, next, fs, b.pp)) ringing++;
+      if (ringsAfterPeak(ch.filled, b.peakSample, next, fs, b.pp, noiseSd ?? 0)) ringing++;
     }
     const end = next - Math.round(0.15 * (next - b.footSample));
     if (end - b.peakSample < 6) continue;
@@ -76,33 +76,23 @@ export function checkArterialLine(ch: ConditionedChannel, series: BeatSeries): A
 }
 
 /**
- * Oscillation riding on the systolic peak: at least three alternating extrema, each swing above
- * 6 % of the pulse pressure, between the peak and 0.2 s after it (before the dicrotic notch).
+ * Ringing on the systolic peak: within 0.12 s after the peak (before a dicrotic notch even at fast
+ * rates) the pressure falls by at least 10 % of the pulse pressure and rises again by at least
+ * 2.5 % (and by four noise standard deviations). Read on the unfiltered trace: the 16 Hz low-pass
+ * would flatten the ringing it is looking for.
  */
-function ringsAfterPeak(x: Float64Array, foot: number, peak: number, next: number, fs: number, pp: number): boolean {
-  const from = Math.max(foot + 1, peak - Math.round(0.03 * fs));
-  const to = Math.min(next, peak + Math.round(0.2 * fs), x.length);
-  const h = 0.06 * pp;
-  let count = 0;
-  let dir = 0;
-  let ext = x[from];
-  for (let i = from + 1; i < to; i++) {
+function ringsAfterPeak(x: Float64Array, peak: number, next: number, fs: number, pp: number, noiseSd: number): boolean {
+  const to = Math.min(next, peak + Math.round(0.12 * fs), x.length);
+  const top = x[peak];
+  let low = top;
+  let fell = false;
+  for (let i = peak + 1; i < to; i++) {
     const v = x[i];
-    if (dir >= 0) {
-      if (v > ext) ext = v;
-      else if (ext - v > h) {
-        if (dir > 0) count++;
-        dir = -1;
-        ext = v;
-      }
-    } else if (v < ext) ext = v;
-    else if (v - ext > h) {
-      count++;
-      dir = 1;
-      ext = v;
-    }
+    if (v < low) low = v;
+    if (top - low >= 0.1 * pp) fell = true;
+    if (fell && v - low >= Math.max(0.025 * pp, 4 * noiseSd)) return true;
   }
-  return count >= 3;
+  return false;
 }
 
 /** Damping coefficient from the amplitude ratio of successive flush oscillations (Gardner 1981): ζ = −ln AR / √(π² + ln² AR). */
@@ -168,21 +158,25 @@ export function findFlushTests(x: Float64Array, fs: number): FlushTestResult[] {
   return out;
 }
 
-function measureRinging(x: Float64Array, fs: number, release: number, plateau: number): FlushTestResult | null {
-  const end = Math.min(x.length, release + Math.round(1.0 * fs));
-  if (end - release < Math.round(0.2 * fs)) return null;
+function measureRinging(x: Float64Array, fs: number, lastHigh: number, plateau: number): FlushTestResult | null {
+  const end = Math.min(x.length, lastHigh + Math.round(1.0 * fs));
+  if (end - lastHigh < Math.round(0.2 * fs)) return null;
   // Resting level after the ringing: median of 0.6–1.0 s after release.
-  const restFrom = Math.min(end - 1, release + Math.round(0.6 * fs));
+  const restFrom = Math.min(end - 1, lastHigh + Math.round(0.6 * fs));
   const rest = median(Array.from(x.subarray(restFrom, end)));
   const step = plateau - rest;
   if (!(step > 20)) return null;
-  const h = Math.max(1, 0.01 * step);
+  // Release: the last sample still within 1 % of the step of the plateau. A second-order response
+  // leaves a step with zero slope, reaching 1 % after ωn·t ≈ 0.141; corrected below once ωn is known.
+  let r = lastHigh;
+  while (r > 0 && x[r] < plateau - 0.01 * step) r--;
+  const h = Math.max(0.5, 0.003 * step);
   // Zig-zag extrema after release, starting downwards.
   const ext: { i: number; v: number }[] = [];
   let dir = -1;
-  let ei = release;
-  let ev = x[release];
-  for (let i = release + 1; i < end && ext.length < 7; i++) {
+  let ei = r;
+  let ev = x[r];
+  for (let i = r + 1; i < end && ext.length < 7; i++) {
     const v = x[i];
     if (dir < 0) {
       if (v < ev) {
@@ -204,45 +198,54 @@ function measureRinging(x: Float64Array, fs: number, release: number, plateau: n
       ei = i;
     }
   }
-  const releaseTime = release / fs;
-  // The first extremum is the undershoot; it must lie below the resting level to be ringing.
-  const refined = ext.map((e) => ({ t: refineTime(x, e.i) / fs, v: e.v }));
-  if (refined.length === 0 || refined[0].v > rest - h) {
+  const pts = ext.map((e) => refine(x, e.i, fs));
+  const noRinging = (): FlushTestResult => {
     const region = gardnerRegion(null, null);
-    return { releaseTime, naturalFrequencyHz: null, dampingRatio: null, amplitudeRatio: null, oscillations: 0, region, regionText: gardnerRegionText(region) };
+    return { releaseTime: r / fs, naturalFrequencyHz: null, dampingRatio: null, amplitudeRatio: null, oscillations: 0, region, regionText: gardnerRegionText(region) };
+  };
+  // The first extremum is the undershoot; it must lie below the resting level to be ringing.
+  if (pts.length === 0 || pts[0].v > rest - h) return noRinging();
+  // Extrema of a step response fall at multiples of Td/2 after release.
+  const q0 = (rest - pts[0].v) / step;
+  let zeta = q0 > 0 && q0 < 1 ? dampingCoefficient(q0) : null;
+  let td = 2 * (pts[0].t - r / fs);
+  for (let it = 0; it < 2 && zeta !== null; it++) {
+    const wn = (2 * Math.PI) / (td * Math.sqrt(1 - zeta * zeta));
+    td = 2 * (pts[0].t - (r / fs + 0.141 / wn));
   }
-  let ar: number | null = null;
-  if (refined.length >= 3) {
-    const d1 = refined[1].v - refined[0].v;
-    const d2 = refined[1].v - refined[2].v;
-    if (d1 > 0 && d2 > 0 && d2 < d1) ar = d2 / d1;
+  let ar: number | null = zeta !== null ? q0 : null;
+  let n = 1;
+  // Later extrema at the expected spacing (±30 %) give the amplitude ratio of successive swings
+  // (Gardner's measurement) and the period between two minima; otherwise the undershoot alone.
+  const spaced = (k: number): boolean => k < pts.length && Math.abs(pts[k].t - pts[k - 1].t - td / 2) <= 0.3 * (td / 2);
+  if (spaced(1) && spaced(2)) {
+    const d1 = pts[1].v - pts[0].v;
+    const d2 = pts[1].v - pts[2].v;
+    if (d1 > 0 && d2 > 0 && d2 < d1) {
+      ar = d2 / d1;
+      zeta = dampingCoefficient(ar);
+      td = pts[2].t - pts[0].t;
+      n = 3;
+      while (spaced(n)) n++;
+    }
   }
-  if (ar === null) {
-    // Only the undershoot: its depth below the resting level against the step (same relation).
-    const q = (rest - refined[0].v) / step;
-    if (q > 0 && q < 1) ar = q;
-  }
-  const zeta = ar !== null ? dampingCoefficient(ar) : null;
-  let fn: number | null = null;
-  if (zeta !== null && refined.length >= 3) {
-    const td = refined.length >= 3 ? refined[2].t - refined[0].t : NaN;
-    if (td > 0) fn = 1 / (td * Math.sqrt(Math.max(1e-6, 1 - zeta * zeta)));
-  } else if (zeta !== null && refined.length >= 2) {
-    const td = 2 * (refined[1].t - refined[0].t);
-    if (td > 0) fn = 1 / (td * Math.sqrt(Math.max(1e-6, 1 - zeta * zeta)));
-  }
+  if (zeta === null || ar === null) return noRinging();
+  const fn = td > 0 ? 1 / (td * Math.sqrt(Math.max(1e-6, 1 - zeta * zeta))) : null;
+  // A "ringing" slower than 3 Hz is the pulse itself returning, not the line: no ringing.
+  if (fn === null || fn < 3) return noRinging();
   const region = gardnerRegion(fn, zeta);
-  return { releaseTime, naturalFrequencyHz: fn, dampingRatio: zeta, amplitudeRatio: ar, oscillations: refined.length, region, regionText: gardnerRegionText(region) };
+  return { releaseTime: r / fs, naturalFrequencyHz: fn, dampingRatio: zeta, amplitudeRatio: ar, oscillations: n, region, regionText: gardnerRegionText(region) };
 }
 
-/** Sub-sample time of an extremum by a parabola through its neighbours. */
-function refineTime(x: Float64Array, i: number): number {
-  if (i <= 0 || i + 1 >= x.length) return i;
+/** Sub-sample time (s) and value of an extremum by a parabola through its neighbours. */
+function refine(x: Float64Array, i: number, fs: number): { t: number; v: number } {
+  if (i <= 0 || i + 1 >= x.length) return { t: i / fs, v: x[i] };
   const a = x[i - 1];
   const b = x[i];
   const c = x[i + 1];
   const den = a - 2 * b + c;
-  if (den === 0) return i;
+  if (den === 0) return { t: i / fs, v: b };
   const off = (0.5 * (a - c)) / den;
-  return off > -1 && off < 1 ? i + off : i;
+  if (!(off > -1 && off < 1)) return { t: i / fs, v: b };
+  return { t: (i + off) / fs, v: b - 0.25 * (a - c) * off };
 }

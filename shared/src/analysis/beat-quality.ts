@@ -1,8 +1,8 @@
 import type { BeatLandmarks } from './beats-abp';
-import type { ConditionedChannel } from './conditioning';
+import { FLUSH_LEVEL_MMHG, type ConditionedChannel } from './conditioning';
 import { SIGNAL_LOSS_PULSE_MMHG } from './signal-loss';
 import { finiteOrNull, median, overlapsAny } from './signal-utils';
-import type { AnalysisSettings, Beat, BeatRejectReason, BeatSeries, BeatSource } from './types';
+import type { AnalysisSettings, Beat, BeatRejectReason, BeatSeries, BeatSource, SampleSpan } from './types';
 
 /** Beat series plus window-level rhythm facts the verdict needs. */
 export interface QualifiedBeats {
@@ -65,9 +65,11 @@ function measure(ch: ConditionedChannel, lm: BeatLandmarks, source: BeatSource, 
     let negSum = 0;
     let negCount = 0;
     const raw = ch.filled;
+    // A flush's square wave is not noise: beats reaching the flush level stay out of the estimate.
+    const inFlush = source === 'abp' && (y[p] > FLUSH_LEVEL_MMHG || ch.highRuns.some((r) => f >= r.startSample - 0.3 * fs && f <= r.endSample + 1.5 * fs));
     for (let i = f; i < end; i++) {
       s += y[i];
-      const r = raw[i] - y[i];
+      const r = inFlush ? 0 : raw[i] - y[i];
       noise.sum2 += r * r;
       if (i > f) {
         const d = raw[i] - raw[i - 1];
@@ -78,7 +80,7 @@ function measure(ch: ConditionedChannel, lm: BeatLandmarks, source: BeatSource, 
       }
     }
     negativeSlope.push(negCount > 0 ? negSum / negCount : 0);
-    noise.count += end - f;
+    if (!inFlush) noise.count += end - f;
     const avg = end > f ? s / (end - f) : y[f];
     const beat: Beat = {
       n: k,
@@ -129,7 +131,11 @@ export function pulsePressureFloor(medianPp: number): number {
 function sunRules(beats: Beat[], ch: ConditionedChannel, lm: BeatLandmarks, negativeSlope: number[]): void {
   const fs = ch.fs;
   const slopeScale = fs / 125; // the rule's −3 is per 8 ms sample at 125 Hz
-  const ppFloor = pulsePressureFloor(median(beats.filter((b) => !hasArtefact(b)).map((b) => b.pp as number)));
+  const medianPp = median(beats.filter((b) => !hasArtefact(b)).map((b) => b.pp as number));
+  const ppFloor = pulsePressureFloor(medianPp);
+  // Sun's 20 mmHg beat-to-beat jump is also a respiratory swing in a wide pulse with a large PPV
+  // (PP 70 mmHg at PPV 30 % moves SBP by ~20 mmHg per beat at HR/RR 4): the limit grows with PP.
+  const jump = Math.max(20, 0.5 * (medianPp === medianPp ? medianPp : 0));
   for (let k = 0; k < beats.length; k++) {
     const b = beats[k];
     const sbp = b.sbp as number;
@@ -143,7 +149,7 @@ function sunRules(beats: Beat[], ch: ConditionedChannel, lm: BeatLandmarks, nega
     if (pp < ppFloor) add(b, 'pp-low');
     if (k > 0) {
       const prev = beats[k - 1];
-      if (Math.abs(sbp - (prev.sbp as number)) > 20) add(b, 'sbp-jump');
+      if (Math.abs(sbp - (prev.sbp as number)) > jump) add(b, 'sbp-jump');
       if (Math.abs(dbp - (prev.dbp as number)) > 20) add(b, 'dbp-jump');
       if (b.ibi !== null && prev.ibi !== null && Math.abs(b.ibi - prev.ibi) > 0.5) add(b, 'period-jump');
       if (Math.abs(ch.smooth[lm.onset[k]] - ch.smooth[lm.onset[k - 1]]) > 20) add(b, 'onset-jump');
@@ -233,6 +239,12 @@ function noiseEstimate(ch: ConditionedChannel, r: { sum2: number; count: number 
   return Math.sqrt(r.sum2 / r.count) * Math.sqrt(nyquist / above);
 }
 
+/** Whether a beat lies in a flush or within 1.5 s after its release (the ringing). */
+function nearFlush(runs: SampleSpan[], b: Beat): boolean {
+  for (const r of runs) if (b.footTime >= r.startTime - 0.3 && b.footTime <= r.endTime + 1.5) return true;
+  return false;
+}
+
 /** Beat quality stage: values, rule-based rejection with reason codes, and rhythm summary. */
 export function qualifyBeats(ch: ConditionedChannel, lm: BeatLandmarks, source: BeatSource, settings: AnalysisSettings): QualifiedBeats {
   const negativeSlope: number[] = [];
@@ -270,7 +282,8 @@ export function qualifyBeats(ch: ConditionedChannel, lm: BeatLandmarks, source: 
   for (const b of beats) {
     b.accepted = b.rejectReasons.length === 0;
     if (b.accepted) accepted++;
-    if (b.rejectReasons.includes('noisy-slope') || b.rejectReasons.includes('template-mismatch')) noisy++;
+    // A flush (and the second after it) is flagged as such, not as noise.
+    if ((b.rejectReasons.includes('noisy-slope') || b.rejectReasons.includes('template-mismatch')) && !nearFlush(ch.highRuns, b)) noisy++;
     if (b.rejectReasons.includes('clipped')) clipped++;
   }
   return {

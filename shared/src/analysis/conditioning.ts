@@ -47,6 +47,8 @@ export interface ConditionedChannel {
   hasSignal: boolean;
   /** Longest run of samples above FLUSH_LEVEL_MMHG (arterial only; 0 otherwise). */
   longestHighRun: number;
+  /** Runs above FLUSH_LEVEL_MMHG of at least 0.15 s (flush or zeroing), arterial only. */
+  highRuns: SampleSpan[];
 }
 
 /** Arterial pressure above this is a flush or zeroing plateau, not a pulse (Gardner 1981; common practice). */
@@ -70,6 +72,7 @@ interface ScanResult {
   flatLines: SampleSpan[];
   clipping: SampleSpan[];
   longestHighRun: number;
+  highRuns: SampleSpan[];
 }
 
 /**
@@ -94,6 +97,8 @@ function scan(src: ArrayLike<number>, scale: number, fs: number, o: ScanOptions,
   let eVal = Number.NaN;
   let high = 0;
   let longestHigh = 0;
+  const highRuns: SampleSpan[] = [];
+  const minHigh = Math.round(0.15 * fs);
   for (let i = 0; i < n; i++) {
     const v = src[i] * scale;
     if (v - v === 0) {
@@ -133,13 +138,17 @@ function scan(src: ArrayLike<number>, scale: number, fs: number, o: ScanOptions,
         if (v > o.highLevel) {
           high++;
           if (high > longestHigh) longestHigh = high;
-        } else high = 0;
+        } else {
+          if (high >= minHigh) highRuns.push(spanOf(i - high, i, fs));
+          high = 0;
+        }
       }
     } else {
       if (fLo === fLo && i - fStart >= o.minFlat) flatLines.push(spanOf(fStart, i, fs));
       fLo = Number.NaN;
       if (eVal === eVal && i - eStart >= o.minClip) equalRuns.push({ a: eStart, b: i, v: eVal });
       eVal = Number.NaN;
+      if (high >= minHigh) highRuns.push(spanOf(i - high, i, fs));
       high = 0;
     }
   }
@@ -156,7 +165,8 @@ function scan(src: ArrayLike<number>, scale: number, fs: number, o: ScanOptions,
     return runs.length >= 3 ? runs.map((r) => spanOf(r.a, r.b, fs)) : [];
   };
   const clipping = max > min ? [...pinned(max), ...pinned(min)].sort((x, y) => x.startSample - y.startSample) : [];
-  return { gaps, flatLines, clipping, longestHighRun: longestHigh };
+  if (high >= minHigh) highRuns.push(spanOf(n - high, n, fs));
+  return { gaps, flatLines, clipping, longestHighRun: longestHigh, highRuns };
 }
 
 /** Conditioning stage: unit conversion, gaps, flat lines, clipping, zero-phase Butterworth filtering. */
@@ -206,5 +216,5 @@ export function conditionChannel(ch: AnalysisChannel, settings: AnalysisSettings
     resampledTo: null,
     declaredFiltering,
   };
-  return { role: ch.role, fs, filled, smooth, report, hasSignal, longestHighRun: found.longestHighRun };
+  return { role: ch.role, fs, filled, smooth, report, hasSignal, longestHighRun: found.longestHighRun, highRuns: found.highRuns };
 }

@@ -84,7 +84,7 @@ export function analyseWindow(input: AnalysisInput, partialSettings?: Partial<An
   const conditioned = [...byRole.values()];
   const abpQ = beatsFor(byRole.get('abp'), settings);
   const plethQ = beatsFor(byRole.get('pleth'), settings);
-  const arterialLine = abpQ ? checkArterialLine(byRole.get('abp') as ConditionedChannel, abpQ.series) : null;
+  const arterialLine = abpQ ? checkArterialLine(byRole.get('abp') as ConditionedChannel, abpQ.series, abpQ.noiseSd) : null;
 
   const bounds = findBreaths(byRole, abpQ ?? plethQ, context);
   const gaps: SampleSpan[] = conditioned.flatMap((c) => c.report.gaps);

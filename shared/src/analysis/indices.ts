@@ -1,4 +1,4 @@
-import { hasHardArtefact } from './beat-quality';
+import { hasArtefact, hasHardArtefact } from './beat-quality';
 import type { BreathBoundaries } from './cycles';
 import { finiteOrNull, mean, median, percentVariation } from './signal-utils';
 import type { AnalysisContext, AnalysisSettings, Beat, BeatSeries, CycleRejectReason, IndexValue, Indices, RespiratoryCycle, SampleSpan, SelectionReport } from './types';
@@ -77,7 +77,7 @@ export function buildCycles(
     const spv = abp && check.ok && sbp.length >= 2 ? Math.max(...sbp) - Math.min(...sbp) : null; // Perel 1987
     const deltaPop = plethOk ? percentVariation(pop) : null; // Cannesson 2005
     const primaryValue = abp ? ppv : deltaPop;
-    const measurable = primary ? primaryIdx.filter((k) => !hasHardArtefact(primary.beats[k])) : [];
+    const measurable = primary ? primaryIdx.filter((k) => !hasArtefact(primary.beats[k])) : [];
     const variationAllBeats = primary && measurable.length >= minBeats ? percentVariation(measurable.map((k) => (abp ? abp.beats[k].pp : primary.beats[k].amplitude) as number)) : null;
     if (primaryValue !== null && (primaryValue < 0 || primaryValue > settings.plausibleMaxPercent)) reasons.push('value-implausible');
     cycles.push({

@@ -159,7 +159,7 @@ export type BeatRejectReason =
   | 'map-out-of-range' // Sun 2006: MAP < 30 or > 200 mmHg
   | 'hr-out-of-range' // Sun 2006: HR < 20 or > 200 /min
   | 'pp-low' // PP below max(Sun 2006's 20 mmHg × fraction, 40 % of the window's median PP): see beat-quality.ts
-  | 'sbp-jump' // Sun 2006: beat-to-beat SBP change > 20 mmHg
+  | 'sbp-jump' // Sun 2006: beat-to-beat SBP change > 20 mmHg (here max(20, half the median PP))
   | 'dbp-jump' // Sun 2006: beat-to-beat DBP change > 20 mmHg
   | 'period-jump' // Sun 2006: beat period change > 0.5 s
   | 'onset-jump' // Sun 2006: onset pressure change > 20 mmHg
@@ -247,8 +247,8 @@ export interface RespiratoryCycle {
   /** Whether this cycle is among those averaged into the window value. */
   usedInWindow: boolean;
   /**
-   * Variation of the primary pulse over every beat in the cycle that is free of hard artefact
-   * (edge, gap, flat line, signal loss, clipping), usable or not: compares kept with dropped cycles.
+   * Variation of the primary pulse over every beat in the cycle that is free of artefact (edge, gap,
+   * flat line, signal loss, clipping, noise, shape), usable or not: compares kept with dropped cycles.
    */
   variationAllBeats: number | null;
 }
