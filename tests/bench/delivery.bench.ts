@@ -12,19 +12,19 @@ import pino from 'pino';
 import type { DataSource } from 'typeorm';
 import { startTestMariaDb } from '../../scripts/lib/test-mariadb';
 import { createTestDatabase } from '../../scripts/lib/test-database';
-import type { Config } from '../../gateway/src/config/schema';
-import { loadConfig, repoRoot } from '../../gateway/src/config/load';
-import { createDataSource, migrate } from '../../gateway/src/db/data-source';
-import { defaultCodeMap } from '../../gateway/src/delivery/code-map';
-import { DeliveryWorker } from '../../gateway/src/delivery/delivery-worker';
-import { DeliveryRow } from '../../gateway/src/delivery/delivery.entities';
-import { FHIR_DESTINATION_ID } from '../../gateway/src/delivery/delivery.module';
-import { DeviceSync } from '../../gateway/src/delivery/device-sync';
-import { EhrClient } from '../../gateway/src/delivery/ehr-client';
-import { FhirDestination } from '../../gateway/src/delivery/fhir-destination';
-import { enqueueAssessment, syncDestinations } from '../../gateway/src/delivery/outbox';
-import { PatientContextResolver } from '../../gateway/src/delivery/patient-context';
-import { insertBedAndMonitor, storeAssessment } from '../../gateway/test/delivery/support';
+import type { Config } from '@ebbgate/gateway/config/schema';
+import { loadConfig, repoRoot } from '@ebbgate/gateway/config/load';
+import { createDataSource, migrate } from '@ebbgate/gateway/db/data-source';
+import { defaultCodeMap } from '@ebbgate/gateway/delivery/code-map';
+import { DeliveryWorker } from '@ebbgate/gateway/delivery/delivery-worker';
+import { DeliveryRow } from '@ebbgate/gateway/delivery/delivery.entities';
+import { FHIR_DESTINATION_ID } from '@ebbgate/gateway/delivery/delivery.module';
+import { DeviceSync } from '@ebbgate/gateway/delivery/device-sync';
+import { EhrClient } from '@ebbgate/gateway/delivery/ehr-client';
+import { FhirDestination } from '@ebbgate/gateway/delivery/fhir-destination';
+import { enqueueAssessment, syncDestinations } from '@ebbgate/gateway/delivery/outbox';
+import { PatientContextResolver } from '@ebbgate/gateway/delivery/patient-context';
+import { insertBedAndMonitor, storeAssessment } from '@ebbgate/gateway/test/delivery/support';
 
 const ASSESSMENTS = Number(process.env.BENCH_ASSESSMENTS ?? 300); // × 4 indices = Observations per run
 

@@ -19,11 +19,11 @@ import { encodeSamplesFloat32 } from '@ebbgate/shared';
 import { generateWindow } from '@ebbgate/shared/synthetic';
 import { startTestMariaDb } from '../../scripts/lib/test-mariadb';
 import { createTestDatabase } from '../../scripts/lib/test-database';
-import { repoRoot } from '../../gateway/src/config/load';
+import { repoRoot } from '@ebbgate/gateway/config/load';
 import { buildAll, buildIsStale } from '../../scripts/build';
 import { NODE_RUNTIME_FLAGS } from '../../scripts/lib/supervisor';
-import { corvaneProfile } from '../../gateway/test/devices/fixtures';
-import { buildPcd01 } from '../../gateway/test/ingest/pcd01-fixture';
+import { corvaneProfile } from '@ebbgate/gateway/test/devices/fixtures';
+import { buildPcd01 } from '@ebbgate/gateway/test/ingest/pcd01-fixture';
 import { freePort, signIn, DEMO_INTEGRATOR } from '../src/ingest/gateway-process';
 
 const SECONDS = Number(process.env.BENCH_SECONDS ?? 10);

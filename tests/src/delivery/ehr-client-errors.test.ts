@@ -5,8 +5,8 @@
  */
 import nock from 'nock';
 import { afterAll, afterEach, beforeAll, describe, expect, it } from 'vitest';
-import { EhrClient } from '../../../gateway/src/delivery/ehr-client';
-import type { Observation } from '../../../gateway/src/delivery/fhir-types';
+import { EhrClient } from '@ebbgate/gateway/delivery/ehr-client';
+import type { Observation } from '@ebbgate/gateway/delivery/fhir-types';
 
 const BASE = 'http://ehr.test:8080';
 const settings = { fhirBaseUrl: `${BASE}/fhir`, tokenUrl: `${BASE}/oauth/token`, clientId: 'ebbgate-gateway', clientSecret: 's3cret', requestTimeoutMs: 300 };

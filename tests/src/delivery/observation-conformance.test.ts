@@ -1,9 +1,9 @@
 import { describe, expect, it } from 'vitest';
-import { DELIVERED_INDICES, defaultCodeMap } from '../../../gateway/src/delivery/code-map';
-import { buildObservation, enteredInErrorAmendment, type ObservationInput } from '../../../gateway/src/delivery/observation-builder';
-import type { Observation } from '../../../gateway/src/delivery/fhir-types';
-import { deviceResource } from '../../../gateway/src/delivery/device-sync';
-import { transactionBundle } from '../../../gateway/src/delivery/fhir-destination';
+import { DELIVERED_INDICES, defaultCodeMap } from '@ebbgate/gateway/delivery/code-map';
+import { buildObservation, enteredInErrorAmendment, type ObservationInput } from '@ebbgate/gateway/delivery/observation-builder';
+import type { Observation } from '@ebbgate/gateway/delivery/fhir-types';
+import { deviceResource } from '@ebbgate/gateway/delivery/device-sync';
+import { transactionBundle } from '@ebbgate/gateway/delivery/fhir-destination';
 import { scenarios } from './engine-results';
 import { failedInvariants, quantities, r4SchemaErrors, ucumStatus } from './fhir-conformance';
 

@@ -5,10 +5,10 @@
  */
 import { Message } from 'node-hl7-client';
 import { describe, expect, it } from 'vitest';
-import { defaultCodeMap } from '../../../gateway/src/delivery/code-map';
-import { buildObservation, enteredInErrorAmendment } from '../../../gateway/src/delivery/observation-builder';
-import type { Observation } from '../../../gateway/src/delivery/fhir-types';
-import { buildOru } from '../../../gateway/src/delivery/oru-message';
+import { defaultCodeMap } from '@ebbgate/gateway/delivery/code-map';
+import { buildObservation, enteredInErrorAmendment } from '@ebbgate/gateway/delivery/observation-builder';
+import type { Observation } from '@ebbgate/gateway/delivery/fhir-types';
+import { buildOru } from '@ebbgate/gateway/delivery/oru-message';
 import { scenarios } from './engine-results';
 import { ucumStatus } from './fhir-conformance';
 

@@ -5,7 +5,7 @@
 import { spawn, type ChildProcess } from 'node:child_process';
 import net from 'node:net';
 import path from 'node:path';
-import { repoRoot } from '../../../gateway/src/config/load';
+import { repoRoot } from '@ebbgate/gateway/config/load';
 
 export async function freePort(): Promise<number> {
   return new Promise((resolve, reject) => {

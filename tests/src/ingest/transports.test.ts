@@ -4,9 +4,9 @@ import Client, { Message } from 'node-hl7-client';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { generateWindow, toIngestBatch } from '@ebbgate/shared/synthetic';
 import { createTestDatabase, type TestDatabase } from '../../../scripts/lib/test-database';
-import { corvaneProfile } from '../../../gateway/test/devices/fixtures';
-import { RawMllpPeer, readAck } from '../../../gateway/test/ingest/mllp-client';
-import { buildPcd01 } from '../../../gateway/test/ingest/pcd01-fixture';
+import { corvaneProfile } from '@ebbgate/gateway/test/devices/fixtures';
+import { RawMllpPeer, readAck } from '@ebbgate/gateway/test/ingest/mllp-client';
+import { buildPcd01 } from '@ebbgate/gateway/test/ingest/pcd01-fixture';
 import { DEMO_INTEGRATOR, signIn, spawnGateway, type GatewayProcess } from './gateway-process';
 
 let db: TestDatabase;

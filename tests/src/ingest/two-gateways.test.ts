@@ -3,7 +3,7 @@ import * as mariadb from 'mariadb';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { generateWindow, toIngestBatch } from '@ebbgate/shared/synthetic';
 import { createTestDatabase, type TestDatabase } from '../../../scripts/lib/test-database';
-import { corvaneProfile } from '../../../gateway/test/devices/fixtures';
+import { corvaneProfile } from '@ebbgate/gateway/test/devices/fixtures';
 import { DEMO_INTEGRATOR, signIn, spawnGateway, type GatewayProcess } from './gateway-process';
 
 let db: TestDatabase;

@@ -9,8 +9,8 @@ import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createIngestClient, DEMO_MONITORS, MonitorFeed, BedStream, SCENARIOS, provisionDemoMonitors, provisionMonitors, loadMonitorId, demoIntegrator } from '@ebbgate/simulator';
-import { repoRoot } from '../../../gateway/src/config/load';
-import { startTestGateway, type TestGateway } from '../../../gateway/test/support/harness';
+import { repoRoot } from '@ebbgate/gateway/config/load';
+import { startTestGateway, type TestGateway } from '@ebbgate/gateway/test/support/harness';
 import { freePort } from './gateway-client';
 
 let gw: TestGateway;

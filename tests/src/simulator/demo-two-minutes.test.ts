@@ -12,7 +12,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DEMO_MONITORS, demoIntegrator, provisionDemoMonitors, runDemoScenario, signIn, type RunningDemo } from '@ebbgate/simulator';
-import { repoRoot } from '../../../gateway/src/config/load';
+import { repoRoot } from '@ebbgate/gateway/config/load';
 import { startStack, type E2eStack } from '../support/stack';
 import { assessmentsOf, waitFor } from './gateway-client';
 

@@ -1,7 +1,7 @@
 import net from 'node:net';
 import type { AnalysisResult } from '@ebbgate/shared/analysis';
 import { DEMO_MONITOR_PROFILE } from '@ebbgate/simulator/scenarios';
-import type { SignedInClient, TestGateway } from '../../../gateway/test/support/harness';
+import type { SignedInClient, TestGateway } from '@ebbgate/gateway/test/support/harness';
 
 /** A free TCP port on 127.0.0.1 (for the gateway's MLLP listener). */
 export async function freePort(): Promise<number> {

@@ -13,7 +13,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { IngestBatch } from '@ebbgate/shared';
 import { BatchSender, httpTransport, mllpTransport, type SenderEvent } from '@ebbgate/simulator/adapter';
 import { BedStream, MonitorFeed, checkWindow, SCENARIOS, SCENARIO_IDS, type ScenarioId } from '@ebbgate/simulator';
-import { startTestGateway, type SignedInClient, type TestGateway } from '../../../gateway/test/support/harness';
+import { startTestGateway, type SignedInClient, type TestGateway } from '@ebbgate/gateway/test/support/harness';
 import { assessmentsOf, freePort, registerMonitors, waitFor } from './gateway-client';
 
 const SECONDS = 70; // 14 batches of 5 s: windows of 30 s every 10 s → starts at 0, 10, 20, 30, 40 s

@@ -3,7 +3,7 @@ import { mkdirSync, mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { chromium, type BrowserContext, type Page } from 'playwright-core';
-import { repoRoot } from '../../../gateway/src/config/load';
+import { repoRoot } from '@ebbgate/gateway/config/load';
 
 export const SCREENSHOT_DIR = path.join(repoRoot, 'artefacts/screenshots');
 
