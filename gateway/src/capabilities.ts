@@ -25,7 +25,7 @@ export interface Capabilities {
 }
 
 export function buildCapabilities(ctx: AppContext, _metrics: Metrics): Capabilities {
-  const ingest = buildIngest(ctx);
+  const ingest = buildIngest(ctx, _metrics);
   const analysis = buildAnalysis(ctx);
   const delivery = buildDelivery(ctx, _metrics);
   return {

@@ -58,7 +58,35 @@ export const configSchema = z.object({
       forgetMinutes: z.number().int().min(1).max(7 * 24 * 60),
     }),
   }),
-  mllp: z.object({ enabled: z.boolean(), host: z.string(), port: z.number().int().min(0).max(65535) }),
+  mllp: z.object({
+    enabled: z.boolean(),
+    host: z.string(),
+    port: z.number().int().min(0).max(65535),
+    /** Largest HL7 message a plain-MLLP connection may send (bytes between the MLLP blocks). */
+    maxFrameBytes: z.number().int().min(1024).max(64 * 1024 * 1024),
+    /** A connection with no traffic for this long is closed. */
+    idleTimeoutSeconds: z.number().min(0.1).max(3600),
+    /** A frame must be complete this long after its start block (slow-drip senders are closed). */
+    frameTimeoutSeconds: z.number().min(0.1).max(3600),
+    /** Open MLLP connections, all listeners together, and per source address. */
+    maxConnections: z.number().int().min(1),
+    maxConnectionsPerSource: z.number().int().min(1),
+    /** Frames waiting for their ACK on one connection before reading from it pauses. */
+    maxPendingFrames: z.number().int().min(1).max(1000),
+    /** Plain MLLP only from these addresses/CIDRs and those registered on monitors or profiles. */
+    allowedSources: z.array(z.string()),
+    /** MLLP over TLS (1.2+) with client certificates, beside the plain listener. */
+    tls: z.object({
+      enabled: z.boolean(),
+      host: z.string(),
+      port: z.number().int().min(0).max(65535),
+      maxFrameBytes: z.number().int().min(1024).max(64 * 1024 * 1024),
+      certFile: z.string(),
+      keyFile: z.string(),
+      /** CA bundle client certificates must chain to. */
+      caFile: z.string(),
+    }),
+  }),
   ehr: z.object({
     fhirBaseUrl: z.url(),
     tokenUrl: z.url(),
@@ -78,6 +106,17 @@ export const configSchema = z.object({
     purgeIntervalMinutes: z.number().min(0.01).max(24 * 60),
     /** A jump forward bigger than this between batches restarts window planning at the new batch. */
     gapResetSeconds: z.number().positive().max(3600),
+    /** Analysis windows waiting for one monitor beyond this make that monitor's batches wait (429/AR). */
+    monitorBacklogLimit: z.number().int().min(1),
+    /** Rejected and quarantined messages are purged after these (quarantine: unless handled sooner). */
+    rejectedRetentionDays: z.number().min(0.0001).max(3650),
+    quarantineRetentionDays: z.number().min(0.0001).max(3650),
+    /** Input from unauthenticated or unknown senders: what is kept, how often, how long. */
+    strangers: z.object({
+      keepBytes: z.number().int().min(0).max(1024 * 1024),
+      perSourcePerMinute: z.number().int().min(1),
+      retentionDays: z.number().min(0.0001).max(3650),
+    }),
   }),
   analysis: z.object({
     /** Analysis window length, s (sliding). */

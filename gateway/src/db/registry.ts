@@ -9,6 +9,8 @@ import { SiteSettingRow } from '../settings/site-setting.entity';
 import { UserRow, UserSessionRow } from '../users/user.entity';
 import { AnalysisWindowRow } from '../analysis/analysis-window.entity';
 import { InboundMessageRow, WaveformSegmentRow } from '../ingest/ingest.entities';
+import { EdgeCredentialRow } from '../ingest/edge-credential.entity';
+import { EdgeSecurity1765200000000 } from './migrations/1765200000000-edge-security';
 import { Ingest1764700000001 } from './migrations/1764700000001-ingest';
 import { Foundation1764600000000 } from './migrations/1764600000000-foundation';
 import { Assessments1764650000000 } from './migrations/1764650000000-assessments';
@@ -19,6 +21,6 @@ import { AlertIncidentRow, AlertMailRow, DeliveryAttemptRow, DeliveryRow, Destin
 import { Delivery1764800000001 } from './migrations/1764800000001-delivery';
 import { DeliveryReliability1765400000000 } from './migrations/1765400000000-delivery-reliability';
 
-export const ENTITIES = [UserRow, UserSessionRow, AuditEntryRow, MonitorProfileRow, BedRow, MonitorRow, DeviceKeyRow, AssessmentRow, InboundMessageRow, WaveformSegmentRow, AnalysisWindowRow, DestinationRow, DeliveryRow, DeliveryAttemptRow, AlertIncidentRow, AlertMailRow, SiteSettingRow];
+export const ENTITIES = [UserRow, UserSessionRow, AuditEntryRow, MonitorProfileRow, BedRow, MonitorRow, DeviceKeyRow, AssessmentRow, InboundMessageRow, WaveformSegmentRow, AnalysisWindowRow, DestinationRow, DeliveryRow, DeliveryAttemptRow, AlertIncidentRow, AlertMailRow, SiteSettingRow, EdgeCredentialRow];
 
-export const MIGRATIONS = [Foundation1764600000000, Assessments1764650000000, Ingest1764700000001, Delivery1764800000001, SiteSettings1764900000000, SignInThrottle1765300000000, DeliveryReliability1765400000000];
+export const MIGRATIONS = [Foundation1764600000000, Assessments1764650000000, Ingest1764700000001, Delivery1764800000001, SiteSettings1764900000000, EdgeSecurity1765200000000, SignInThrottle1765300000000, DeliveryReliability1765400000000];

@@ -4,6 +4,7 @@
  * rejected with the ACK kept; no ACK or no connection retried like an HTTP 503.
  */
 import net from 'node:net';
+import { frameMllp, MllpReader } from '@ebbgate/shared/hl7';
 import type { DataSource } from 'typeorm';
 import { In } from 'typeorm';
 import type { AnalysisResult } from '@ebbgate/shared/analysis';
@@ -22,7 +23,7 @@ import type { PatientContextResolver } from './patient-context';
 export function sendMllp(host: string, port: number, message: string, timeoutMs: number): Promise<string> {
   return new Promise((resolve, reject) => {
     const socket = net.connect({ host, port });
-    let buf = Buffer.alloc(0);
+    const reader = new MllpReader({ maxFrameBytes: 1_048_576, headBytes: 4096 });
     const done = (err?: Error, ack?: string) => {
       socket.destroy();
       if (err) reject(err);
@@ -30,11 +31,9 @@ export function sendMllp(host: string, port: number, message: string, timeoutMs:
     };
     socket.setTimeout(timeoutMs, () => done(new Error('no ACK before the timeout')));
     socket.on('error', (err) => done(err));
-    socket.on('connect', () => socket.write(Buffer.concat([Buffer.from([0x0b]), Buffer.from(message, 'utf8'), Buffer.from([0x1c, 0x0d])])));
+    socket.on('connect', () => socket.write(frameMllp(message)));
     socket.on('data', (chunk) => {
-      buf = Buffer.concat([buf, chunk]);
-      const end = buf.indexOf(0x1c);
-      if (end >= 0) done(undefined, buf.subarray(buf[0] === 0x0b ? 1 : 0, end).toString('utf8'));
+      for (const e of reader.push(chunk)) if (e.kind === 'frame') return done(undefined, e.message.toString('utf8'));
     });
   });
 }

@@ -2,6 +2,7 @@
  * HL7 v2.6 ORU^R01 in the IHE PCD-01 style (IHE PCD TF-2; standards.md), built from the same
  * Observation the FHIR destination sends, so both carry one meaning. Pure: no clock, no I/O.
  */
+import { escapeHl7, formatHl7Time } from '@ebbgate/shared/hl7';
 import type { CodeMap } from './code-map';
 import type { Coding, Observation } from './fhir-types';
 
@@ -17,15 +18,9 @@ export interface OruInput {
   at: Date;
 }
 
-/** HL7 escape sequences for the delimiters (HL7 v2 ch. 2.7). */
-function esc(s: string): string {
-  return s.replace(/\\/g, '\\E\\').replace(/\|/g, '\\F\\').replace(/\^/g, '\\S\\').replace(/&/g, '\\T\\').replace(/~/g, '\\R\\').replace(/[\r\n]+/g, ' ');
-}
-
-function ts(iso: string | Date): string {
-  const d = typeof iso === 'string' ? new Date(iso) : iso;
-  return d.toISOString().replace(/[-:T]/g, '').replace(/\.(\d{3})Z$/, '.$1+0000');
-}
+/** Escaping (HL7 v2 ch. 2.7) and DTM timestamps from the shared HL7 kit. */
+const esc = (s: string): string => escapeHl7(s);
+const ts = (at: string | Date): string => formatHl7Time(at);
 
 /** OBX-3 CWE: MDC when there is one (code^REFID^MDC), else our local code under a 99-prefixed local system. */
 function obx3(codes: CodeMap, coding: Coding[]): string {

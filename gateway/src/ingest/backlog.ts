@@ -29,3 +29,26 @@ export class BacklogGauge {
     return this.pending;
   }
 }
+
+/**
+ * Analysis windows waiting per monitor (read at most once per second per monitor), so one sender
+ * flooding its monitor meets its own quota instead of pushing every monitor into 429.
+ */
+export class MonitorBacklog {
+  private readonly cache = new Map<string, { value: number; readAt: number }>();
+
+  constructor(
+    private readonly ds: DataSource,
+    private readonly maxAgeMs = 1_000,
+  ) {}
+
+  async current(monitorId: string): Promise<number> {
+    const hit = this.cache.get(monitorId);
+    if (hit && Date.now() - hit.readAt < this.maxAgeMs) return hit.value;
+    const rows = (await this.ds.query("SELECT COUNT(*) AS n FROM analysis_window WHERE monitor_id = ? AND status = 'due'", [monitorId])) as { n: string | number }[];
+    const value = Number(rows[0]?.n ?? 0);
+    if (this.cache.size > 50_000) this.cache.clear();
+    this.cache.set(monitorId, { value, readAt: Date.now() });
+    return value;
+  }
+}

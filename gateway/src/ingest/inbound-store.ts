@@ -33,14 +33,21 @@ export interface InboundRecord {
   monitorId?: string | null;
   monitorIdentifier?: string | null;
   batchId?: string | null;
+  /** The authenticated sender (senderLabel), the peer address, and whether it was a stranger. */
+  sender?: string | null;
+  sourceAddress?: string | null;
+  stranger?: boolean;
 }
 
 /** Keeps a message that was not stored as data (quarantined, rejected, duplicate), raw, with its reason. */
 export async function recordInbound(ds: DataSource | QueryRunner, r: InboundRecord): Promise<string> {
   const res = (await ds.query(
-    `INSERT INTO inbound_message (received_at, transport, outcome, reason, monitor_id, monitor_identifier, batch_id, size_bytes, raw)
-     VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)`,
-    [r.receivedAt, r.transport, r.outcome, r.reason?.slice(0, 60_000) ?? null, r.monitorId ?? null, r.monitorIdentifier?.slice(0, 64) ?? null, r.batchId?.slice(0, 128) ?? null, r.sizeBytes ?? r.raw.length, r.raw],
+    `INSERT INTO inbound_message (received_at, transport, outcome, reason, monitor_id, monitor_identifier, batch_id, size_bytes, raw, sender, source_address, stranger)
+     VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+    [
+      r.receivedAt, r.transport, r.outcome, r.reason?.slice(0, 60_000) ?? null, r.monitorId ?? null, r.monitorIdentifier?.slice(0, 64) ?? null, r.batchId?.slice(0, 128) ?? null, r.sizeBytes ?? r.raw.length, r.raw,
+      r.sender?.slice(0, 255) ?? null, r.sourceAddress?.slice(0, 64) ?? null, r.stranger ? 1 : 0,
+    ],
   )) as { insertId: number | string };
   return String(res.insertId);
 }
@@ -79,6 +86,9 @@ export interface StoreRequest {
   /** When reprocessing: the quarantined message whose row becomes the stored one. */
   reprocessOf?: string;
   handledBy?: string | null;
+  /** Who sent it (senderLabel) and from where; a reprocessed message keeps its original sender. */
+  sender?: string | null;
+  sourceAddress?: string | null;
 }
 
 /**
@@ -100,6 +110,7 @@ export async function storeBatch(ds: DataSource, req: StoreRequest, settings: St
       return out;
     } catch (err) {
       await qr.rollbackTransaction();
+      if (err instanceof ConflictingStream) return await keepConflicting(qr, req, err);
       if (!isDuplicateKey(err)) throw err;
     }
     return await settleRepeat(qr, req, hash, batchKey);
@@ -120,6 +131,7 @@ async function storeInTransaction(qr: QueryRunner, req: StoreRequest, hash: stri
   // Within one and a half sample periods of the slowest channel counts as contiguous.
   const toleranceMs = Math.max(...channels.map((c) => 1500 / c.sampleRate));
   const { continuity, continuityMs } = continuityOf(prevEnd, startMs, toleranceMs);
+  if (continuity === 'overlap') await refuseSecondStream(qr, req, continuityMs ?? 0);
 
   const windowMs = settings.windowSeconds * 1000;
   const stepMs = settings.stepSeconds * 1000;
@@ -147,9 +159,9 @@ async function storeInTransaction(qr: QueryRunner, req: StoreRequest, hash: stri
     messageId = req.reprocessOf;
   } else {
     const res = (await exec(qr,
-      `INSERT INTO inbound_message (received_at, transport, outcome, monitor_id, monitor_identifier, batch_id, batch_key, content_hash, size_bytes, raw, batch_start, context, continuity, continuity_ms)
-       VALUES (?, ?, 'accepted', ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
-      [req.receivedAt, req.transport, monitor.id, monitor.identifier, batch.batchId, batchKey, hash, req.raw.length, req.raw, batch.startTime, contextJson, continuity, continuityMs],
+      `INSERT INTO inbound_message (received_at, transport, outcome, monitor_id, monitor_identifier, batch_id, batch_key, content_hash, size_bytes, raw, batch_start, context, continuity, continuity_ms, sender, source_address)
+       VALUES (?, ?, 'accepted', ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+      [req.receivedAt, req.transport, monitor.id, monitor.identifier, batch.batchId, batchKey, hash, req.raw.length, req.raw, batch.startTime, contextJson, continuity, continuityMs, req.sender ?? null, req.sourceAddress ?? null],
     )) as { insertId: number | string };
     messageId = String(res.insertId);
   }
@@ -184,6 +196,43 @@ async function storeInTransaction(qr: QueryRunner, req: StoreRequest, hash: stri
   return { outcome: 'accepted', inboundMessageId: messageId, continuity, continuityMs, windowsPlanned: starts.length };
 }
 
+/** Data overlapping what another sender already stored for this monitor (see refuseSecondStream). */
+class ConflictingStream extends Error {
+  constructor(
+    readonly reason: string,
+    readonly otherMessageId: string,
+  ) {
+    super(reason);
+  }
+}
+
+/**
+ * An overlap from the sender that sent the data before it is the same stream (a resend with a
+ * new id, clock jitter) and is stored as an overlap. An overlap from a different sender is a
+ * second stream claiming the same monitor: it is refused and kept as `conflicting`, never merged.
+ */
+async function refuseSecondStream(qr: QueryRunner, req: StoreRequest, overlapMs: number): Promise<void> {
+  const [last] = (await exec(qr,
+    "SELECT id, sender FROM inbound_message WHERE monitor_identifier = ? AND outcome IN ('accepted', 'reprocessed') AND batch_start IS NOT NULL ORDER BY received_at DESC, id DESC LIMIT 1",
+    [req.monitor.identifier],
+  )) as { id: string; sender: string | null }[];
+  // Data stored before senders were recorded (null) cannot be told apart: treated as the same stream.
+  if (!last || last.sender === null || last.sender === (req.sender ?? null)) return;
+  throw new ConflictingStream(
+    `A second stream for monitor ${req.monitor.identifier}: this batch overlaps by ${Math.round(-overlapMs)} ms data stored from another sender (inbound message ${last.id}, ${last.sender ?? 'unknown sender'}); not merged.`,
+    String(last.id),
+  );
+}
+
+async function keepConflicting(qr: QueryRunner, req: StoreRequest, err: ConflictingStream): Promise<never> {
+  if (req.reprocessOf) {
+    await qr.query("UPDATE inbound_message SET outcome = 'conflicting', reason = ?, handled_at = ?, handled_by = ? WHERE id = ?", [err.reason, new Date(), req.handledBy ?? null, req.reprocessOf]);
+  } else {
+    await recordInbound(qr, { transport: req.transport, receivedAt: req.receivedAt, outcome: 'conflicting', reason: err.reason, raw: req.raw, monitorId: req.monitor.id, monitorIdentifier: req.monitor.identifier, batchId: req.batch.batchId, sender: req.sender, sourceAddress: req.sourceAddress });
+  }
+  throw new IngestRefusal('conflicting', err.reason, [{ path: 'startTime', message: `overlaps data from another sender (inbound message ${err.otherMessageId})` }]);
+}
+
 /** A message with numerics only (no waveform rows): kept and made idempotent, nothing to analyse. */
 async function storeWithoutWaveforms(qr: QueryRunner, req: StoreRequest, hash: string, batchKey: string): Promise<StoredBatch> {
   const reason = 'No waveform rows; the numerics are kept in the raw message.';
@@ -194,9 +243,9 @@ async function storeWithoutWaveforms(qr: QueryRunner, req: StoreRequest, hash: s
     return { outcome: 'accepted', inboundMessageId: req.reprocessOf, continuity: null, continuityMs: null, windowsPlanned: 0 };
   }
   const res = (await qr.query(
-    `INSERT INTO inbound_message (received_at, transport, outcome, reason, monitor_id, monitor_identifier, batch_id, batch_key, content_hash, size_bytes, raw)
-     VALUES (?, ?, 'accepted', ?, ?, ?, ?, ?, ?, ?, ?)`,
-    [req.receivedAt, req.transport, reason, req.monitor.id, req.monitor.identifier, req.batch.batchId, batchKey, hash, req.raw.length, req.raw],
+    `INSERT INTO inbound_message (received_at, transport, outcome, reason, monitor_id, monitor_identifier, batch_id, batch_key, content_hash, size_bytes, raw, sender, source_address)
+     VALUES (?, ?, 'accepted', ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+    [req.receivedAt, req.transport, reason, req.monitor.id, req.monitor.identifier, req.batch.batchId, batchKey, hash, req.raw.length, req.raw, req.sender ?? null, req.sourceAddress ?? null],
   )) as { insertId: number | string };
   await qr.query('UPDATE monitor SET last_seen_at = ? WHERE id = ?', [req.receivedAt, req.monitor.id]);
   return { outcome: 'accepted', inboundMessageId: String(res.insertId), continuity: null, continuityMs: null, windowsPlanned: 0 };
@@ -219,7 +268,7 @@ async function settleRepeat(qr: QueryRunner, req: StoreRequest, hash: string, ba
   if (req.reprocessOf) {
     await qr.query('UPDATE inbound_message SET outcome = ?, reason = ?, handled_at = ?, handled_by = ? WHERE id = ?', [outcome, reason, new Date(), req.handledBy ?? null, req.reprocessOf]);
   } else {
-    await recordInbound(qr, { transport: req.transport, receivedAt: req.receivedAt, outcome, reason, raw: req.raw, monitorId: req.monitor.id, monitorIdentifier: req.monitor.identifier, batchId: req.batch.batchId });
+    await recordInbound(qr, { transport: req.transport, receivedAt: req.receivedAt, outcome, reason, raw: req.raw, monitorId: req.monitor.id, monitorIdentifier: req.monitor.identifier, batchId: req.batch.batchId, sender: req.sender, sourceAddress: req.sourceAddress });
   }
   if (!same) throw new IngestRefusal('conflict', reason, [{ path: 'batchId', message: 'already used for other content' }]);
   return { outcome: 'duplicate', inboundMessageId: String(orig.id), continuity: orig.continuity, continuityMs: orig.continuity_ms, windowsPlanned: 0 };

@@ -7,7 +7,7 @@ import { discardInbound, getInbound, listInbound, reprocessInbound } from './inb
 import type { IngestService } from './ingest.service';
 
 /** The inbound log and its quarantine (outcome = quarantined). */
-export function inboundRouter(ctx: AppContext, service: IngestService, decoders: Record<Transport, (raw: Buffer) => ReceivedBatch>): Router {
+export function inboundRouter(ctx: AppContext, service: IngestService, decoders: Record<Transport, (raw: Buffer) => ReceivedBatch | Promise<ReceivedBatch>>): Router {
   const router = Router();
   const tag = 'ingest';
   defineRoute(router, {

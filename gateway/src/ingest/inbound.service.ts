@@ -22,6 +22,9 @@ export function toInboundMessage(r: InboundMessageRow): InboundMessage {
     sizeBytes: r.sizeBytes,
     continuity: r.continuity,
     continuityMs: r.continuityMs,
+    sender: r.sender ?? null,
+    sourceAddress: r.sourceAddress ?? null,
+    stranger: Boolean(r.stranger),
   };
 }
 
@@ -33,7 +36,7 @@ export async function listInbound(ds: DataSource, q: InboundQuery): Promise<Page
   const qb = ds
     .getRepository(InboundMessageRow)
     .createQueryBuilder('m')
-    .select(['m.id', 'm.receivedAt', 'm.transport', 'm.outcome', 'm.reason', 'm.monitorIdentifier', 'm.batchId', 'm.sizeBytes', 'm.continuity', 'm.continuityMs']);
+    .select(['m.id', 'm.receivedAt', 'm.transport', 'm.outcome', 'm.reason', 'm.monitorIdentifier', 'm.batchId', 'm.sizeBytes', 'm.continuity', 'm.continuityMs', 'm.sender', 'm.sourceAddress', 'm.stranger']);
   if (q.transport) qb.andWhere('m.transport = :transport', { transport: q.transport });
   if (q.outcome) qb.andWhere('m.outcome = :outcome', { outcome: q.outcome });
   if (q.monitor) qb.andWhere('(m.monitor_identifier = :monitor OR m.monitor_id = :monitor)', { monitor: q.monitor });
@@ -68,23 +71,23 @@ const who = (p: Principal | undefined) => (p?.kind === 'user' ? p.username : (p?
 export async function reprocessInbound(
   ds: DataSource,
   service: IngestService,
-  decoders: Record<Transport, (raw: Buffer) => ReceivedBatch>,
+  decoders: Record<Transport, (raw: Buffer) => ReceivedBatch | Promise<ReceivedBatch>>,
   id: string,
   by: ChangeBy,
 ) {
   const row = await ds.getRepository(InboundMessageRow).findOneBy({ id });
   if (!row) throw notFound(`Inbound message ${id}`);
   if (row.outcome !== 'quarantined') throw conflict(`Inbound message ${id} is ${row.outcome}; only quarantined messages can be reprocessed.`);
-  let result: 'reprocessed' | 'duplicate' | 'quarantined';
+  let result: 'reprocessed' | 'duplicate' | 'quarantined' | 'conflicting';
   let reason: string | null = null;
   try {
-    const out = await service.reprocess(id, row.transport, row.raw, decoders[row.transport], who(by.principal));
+    const out = await service.reprocess(id, row.transport, row.raw, decoders[row.transport], who(by.principal), { sender: row.sender, sourceAddress: row.sourceAddress, monitorId: row.monitorId });
     result = out.stored!.outcome === 'accepted' ? 'reprocessed' : 'duplicate';
   } catch (err) {
     if (!(err instanceof IngestRefusal)) throw err;
-    result = err.kind === 'conflict' ? 'duplicate' : 'quarantined';
+    result = err.kind === 'conflict' ? 'duplicate' : err.kind === 'conflicting' ? 'conflicting' : 'quarantined';
     reason = err.describe();
-    if (err.kind !== 'conflict') await ds.query('UPDATE inbound_message SET reason = ? WHERE id = ?', [reason.slice(0, 60_000), id]);
+    if (err.kind !== 'conflict' && err.kind !== 'conflicting') await ds.query('UPDATE inbound_message SET reason = ? WHERE id = ?', [reason.slice(0, 60_000), id]);
   }
   const after = (await ds.getRepository(InboundMessageRow).findOneByOrFail({ id })) as InboundMessageRow;
   await ds.transaction((m) =>

@@ -23,6 +23,11 @@ export class InboundMessageRow {
   @Column({ name: 'continuity_ms', type: 'double', nullable: true }) continuityMs!: number | null;
   @Column({ name: 'handled_at', type: 'datetime', precision: 3, nullable: true }) handledAt!: Date | null;
   @Column({ name: 'handled_by', type: 'varchar', length: 64, nullable: true }) handledBy!: string | null;
+  /** Who the edge authenticated (see ingest/sender.ts), null for a stranger; kept through reprocessing. */
+  @Column({ type: 'varchar', length: 255, nullable: true }) sender!: string | null;
+  @Column({ name: 'source_address', type: 'varchar', length: 64, nullable: true }) sourceAddress!: string | null;
+  /** From an unauthenticated or unknown sender: only a prefix kept, own retention. */
+  @Column({ type: 'boolean', default: false }) stranger!: boolean;
 }
 
 /** One channel of one batch: physical-unit float32 little-endian samples; sample i at start_time + i / sample_rate. */

@@ -4,8 +4,12 @@ import type { FieldError } from '../http/problem';
  * Why an inbound message was not stored as waveform data, independent of the transport:
  * HTTP turns it into problem details, MLLP into an AE/AR (CE/CR) acknowledgement with ERR.
  * `invalid` and `unmapped` messages are quarantined (they can be reprocessed); the rest rejected.
+ * `backlog` and `unavailable` are the gateway's own passing trouble, not a fault of the message:
+ * the sender keeps the message and sends it again (HTTP 429/503 with Retry-After, MLLP AR/CR
+ * with ERR-3 207). `unauthorized`: the sender's credential does not speak for that monitor.
+ * `conflicting`: a second stream for a monitor overlapping data already stored from another sender.
  */
-export type RefusalKind = 'invalid' | 'unmapped' | 'conflict' | 'too-large' | 'backlog';
+export type RefusalKind = 'invalid' | 'unmapped' | 'conflict' | 'too-large' | 'backlog' | 'unavailable' | 'unauthorized' | 'conflicting';
 
 export class IngestRefusal extends Error {
   override name = 'IngestRefusal';
@@ -17,6 +21,11 @@ export class IngestRefusal extends Error {
     readonly hl7Code?: number,
   ) {
     super(reason);
+  }
+
+  /** Passing trouble on the gateway's side: the sender should keep the message and resend. */
+  get transient(): boolean {
+    return this.kind === 'backlog' || this.kind === 'unavailable';
   }
 
   get quarantines(): boolean {

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { buildAck } from '../../src/ingest/hl7/ack';
-import { parseHl7, parseHl7Time, unescape } from '../../src/ingest/hl7/message';
+import { parseHl7, parseHl7Time, unescapeHl7 as unescape } from '@ebbgate/shared/hl7';
 import { decodePcd01 } from '../../src/ingest/hl7/pcd01';
 import { IngestRefusal } from '../../src/ingest/refusal';
 import { buildPcd01 } from './pcd01-fixture';

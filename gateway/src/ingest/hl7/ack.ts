@@ -1,19 +1,21 @@
 import { randomBytes } from 'node:crypto';
 import type { FieldError } from '../../http/problem';
 import type { IngestRefusal } from '../refusal';
-import { escape, formatHl7Time, parseHl7, type Delimiters } from './message';
+import { DEFAULT_DELIMITERS, escapeHl7, formatHl7Time, parseHl7 } from '@ebbgate/shared/hl7';
 import { readHeader, type Hl7Header } from './pcd01';
 
-const D: Delimiters = { field: '|', component: '^', repetition: '~', escape: '\\', subcomponent: '&' };
 
 export type AckCode = 'AA' | 'AE' | 'AR' | 'CA' | 'CE' | 'CR';
 
 /** Best-effort header of a message we could not fully read, so the ACK can still echo MSH-10. */
 export function headerOf(raw: Buffer): Hl7Header | null {
   try {
-    const text = raw.toString('utf8');
-    const firstSegmentEnd = text.search(/\r|\n/);
-    return readHeader(parseHl7(firstSegmentEnd < 0 ? text : text.slice(0, firstSegmentEnd)));
+    // Only the first segment is decoded, however large the message.
+    let start = 0;
+    while (start < raw.length && (raw[start] === 0x0b || raw[start] === 0x20 || raw[start] === 0x0a || raw[start] === 0x0d || raw[start] === 0x09)) start++;
+    let end = start;
+    while (end < raw.length && end - start < 65_536 && raw[end] !== 0x0d && raw[end] !== 0x0a) end++;
+    return readHeader(parseHl7(raw.subarray(start, end).toString('utf8')));
   } catch {
     return null;
   }
@@ -27,10 +29,15 @@ function errorLocation(path: string): string {
   return [m[1], m[2] ?? '', fieldNo].join('^');
 }
 
-/** Acknowledgement code for a refusal: reject for unreadable or oversize input, error otherwise. */
+/**
+ * Acknowledgement code for a refusal (HL7 v2.6 ch. 2.9): reject (AR/CR) for unreadable,
+ * oversize or unauthorised input and for the gateway's own passing trouble (database down,
+ * backlog full: ERR-3 207, so a conforming sender sends the message again), error (AE/CE) for
+ * content the gateway read but cannot use.
+ */
 export function ackCodeFor(refusal: IngestRefusal | undefined, enhanced: boolean): AckCode {
   if (!refusal) return enhanced ? 'CA' : 'AA';
-  const reject = refusal.kind === 'invalid' || refusal.kind === 'too-large';
+  const reject = refusal.kind === 'invalid' || refusal.kind === 'too-large' || refusal.kind === 'unauthorized' || refusal.transient;
   return enhanced ? (reject ? 'CR' : 'CE') : reject ? 'AR' : 'AE';
 }
 
@@ -43,9 +50,14 @@ export function hl7ErrorCode(refusal: IngestRefusal, e: FieldError | undefined):
     case 'unmapped':
       return e?.path === 'monitorId' ? 204 : 103; // unknown key identifier / table value not found
     case 'conflict':
+    case 'conflicting':
       return 205; // duplicate key identifier
+    case 'unauthorized':
+      return 204; // unknown key identifier (the credential does not cover this monitor)
+    case 'too-large':
+      return 102; // data type error (a length or count over its cap); never 207, which asks for a resend
     default:
-      return 207; // application internal error (size limit, backlog)
+      return 207; // application internal error (backlog, database unavailable): send again later
   }
 }
 
@@ -72,7 +84,7 @@ export function buildAck(header: Hl7Header | null, code: AckCode, refusal?: Inge
   counter = (counter + 1) % 1_000_000_000;
   const now = formatHl7Time(new Date());
   const version = header?.version || '2.6';
-  const e = (s: string) => escape(s, D);
+  const e = (s: string) => escapeHl7(s, DEFAULT_DELIMITERS);
   const segs = [
     ['MSH', '^~\\&', 'EBBGATE', 'EBBGATE', header?.sendingApplication ?? '', header?.sendingFacility ?? '', now, '', 'ACK^R01^ACK', `EBG${processTag}${counter}`, 'P', version].join('|'),
     ['MSA', code, e(header?.controlId ?? ''), e((refusal ? refusal.reason : (note ?? '')).slice(0, 80))].join('|'),

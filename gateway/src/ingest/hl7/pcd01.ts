@@ -7,7 +7,7 @@
 import type { AnalysisContext } from '@ebbgate/shared';
 import type { ReceivedBatch, ReceivedChannel } from '../decoded-batch';
 import { IngestRefusal } from '../refusal';
-import { component, field, Hl7ParseError, parseHl7, parseHl7Time, type Hl7Message, type Segment } from './message';
+import { component, field, Hl7ParseError, parseHl7Time, SegmentCursor, timeSlicer, type Hl7Limits, type Hl7Message, type Segment } from '@ebbgate/shared/hl7';
 
 export interface Hl7Header {
   controlId: string;
@@ -77,12 +77,59 @@ function ancestors(subId: string): string[] {
 
 const fail = (reason: string, path: string, message: string, hl7Code: number) => new IngestRefusal('invalid', reason, [{ path, message }], hl7Code);
 
+/**
+ * Caps on one message (each refusal names the cap): segments and fields (the reader), the depth
+ * of an OBX-4 sub-ID and the samples of all waveforms together. A real PCD-01 waveform message
+ * carries tens of rows and a few thousand samples per channel; these leave ample room.
+ */
+export interface Pcd01Limits extends Hl7Limits {
+  maxSubIdDepth: number;
+  maxSamples: number;
+}
+
+export const PCD01_LIMITS: Pcd01Limits = { maxSegments: 20_000, maxFieldsPerSegment: 64, maxSubIdDepth: 8, maxSamples: 2_000_000 };
+
+const overCap = (reason: string, path: string, limit: string) => new IngestRefusal('too-large', `${reason} (limit ${limit}).`, [{ path, message: `over the limit ${limit}` }], 102);
+
 /** Decodes an ORU^R01 message; throws IngestRefusal('invalid') naming the segment and field. */
-export function decodePcd01(raw: Buffer): Pcd01Decoded {
+export function decodePcd01(raw: Buffer, limits: Pcd01Limits = PCD01_LIMITS): Pcd01Decoded {
+  const steps = decodeSteps(raw, limits);
+  for (let r = steps.next(); ; r = steps.next()) if (r.done) return r.value;
+}
+
+/**
+ * The same decoder, giving the event loop a turn every few milliseconds of work: a message near
+ * the size cap must not hold up `/healthz`, HTTP ingest or other MLLP connections.
+ */
+export async function decodePcd01Async(raw: Buffer, limits: Pcd01Limits = PCD01_LIMITS, budgetMs = 4): Promise<Pcd01Decoded> {
+  const slice = timeSlicer(budgetMs);
+  const steps = decodeSteps(raw, limits);
+  for (let r = steps.next(); ; r = steps.next()) {
+    if (r.done) return r.value;
+    await slice();
+  }
+}
+
+/** Strict prefixes of a dotted sub-ID, longest first: 1.2.3.4 → 1.2.3, 1.2, 1. */
+function prefixes(subId: string): string[] {
+  const out: string[] = [];
+  for (let at = subId.lastIndexOf('.'); at > 0; at = subId.lastIndexOf('.', at - 1)) out.push(subId.slice(0, at));
+  return out;
+}
+
+/** The decoder as steps: it yields between units of work (a segment, a row) and returns the result. */
+function* decodeSteps(raw: Buffer, limits: Pcd01Limits): Generator<void, Pcd01Decoded> {
   let msg: Hl7Message;
   try {
-    msg = parseHl7(raw.toString('utf8'));
+    const cursor = new SegmentCursor(raw.toString('utf8'), limits);
+    const segments: Segment[] = [];
+    for (let seg = cursor.next(); seg; seg = cursor.next()) {
+      segments.push(seg);
+      if ((segments.length & 127) === 0) yield;
+    }
+    msg = { delimiters: cursor.delimiters, segments };
   } catch (err) {
+    if (err instanceof Hl7ParseError && err.limit) throw overCap(err.message.replace(/\.$/, ''), err.location ?? 'MSH', err.limit);
     if (err instanceof Hl7ParseError) throw fail('The message is not readable HL7 v2.', err.location ?? 'MSH', err.message, err.code);
     throw err;
   }
@@ -115,13 +162,40 @@ export function decodePcd01(raw: Buffer): Pcd01Decoded {
       }
       const eq = component(seg, 18, 1, d);
       if (eq) equipmentBySubId.set(subId, eq);
+      if (subId.split('.', limits.maxSubIdDepth + 1).length > limits.maxSubIdDepth) {
+        throw overCap(`OBX-4 sub-ID ${subId.slice(0, 40)} is nested too deep`, `OBX[${seg.index}]-4`, `maxSubIdDepth=${limits.maxSubIdDepth}`);
+      }
       rows.push({ seg, subId });
     }
+    if ((seg.index & 127) === 0) yield;
   }
+  // Indexes instead of scans over all rows (a scan per row made large messages quadratic):
+  // the first sample-rate facet under each sub-ID, and the sub-IDs that are waveforms.
+  const rateRowUnder = new Map<string, Segment>();
+  const waveformSubIds = new Set<string>();
+  for (const r of rows) {
+    if (field(r.seg, 2, d) === 'NA') waveformSubIds.add(r.subId);
+    if (/SAMP_RATE/i.test(`${component(r.seg, 3, 1, d)} ${component(r.seg, 3, 2, d)}`)) {
+      for (const p of prefixes(r.subId)) if (!rateRowUnder.has(p)) rateRowUnder.set(p, r.seg);
+    }
+  }
+  yield;
   if (!rows.length) throw fail('The message has no OBX segments.', 'OBX', 'at least one OBX is required', 100);
-  const inherit = <T>(map: Map<string, T>, subId: string): T | undefined => map.get(subId) ?? ancestors(subId).map((a) => map.get(a)).find((v) => v !== undefined);
+  const inherit = <T>(map: Map<string, T>, subId: string): T | undefined => {
+    const own = map.get(subId);
+    if (own !== undefined) return own;
+    for (const a of ancestors(subId)) {
+      const v = map.get(a);
+      if (v !== undefined) return v;
+    }
+    return undefined;
+  };
 
-  const equipment = new Set(rows.map((r) => inherit(equipmentBySubId, r.subId)).filter((v): v is string => Boolean(v)));
+  const equipment = new Set<string>();
+  for (const r of rows) {
+    const eq = inherit(equipmentBySubId, r.subId);
+    if (eq) equipment.add(eq);
+  }
   if (equipment.size === 0) throw fail('No OBX-18 equipment identifier names the monitor.', 'OBX-18', 'required at the MDS level (EUI-64)', 101);
   if (equipment.size > 1) throw fail('The message names several monitors in OBX-18.', 'OBX-18', [...equipment].join(', '), 102);
   const monitorIdentifier = [...equipment][0] as string;
@@ -131,13 +205,16 @@ export function decodePcd01(raw: Buffer): Pcd01Decoded {
   const context: AnalysisContext = patientSex ? { patientSex } : {};
   const warnings: string[] = [];
   let startTime: Date | null = null;
+  let samplesSoFar = 0;
   for (const { seg, subId } of rows) {
+    yield;
     const valueType = field(seg, 2, d);
     const code = component(seg, 3, 1, d);
     const refId = component(seg, 3, 2, d);
     const where = `OBX[${seg.index}]`;
     if (valueType === 'NA') {
-      const rateRow = rows.find((r) => r.subId.startsWith(`${subId}.`) && /SAMP_RATE/i.test(`${component(r.seg, 3, 1, d)} ${component(r.seg, 3, 2, d)}`));
+      const rateSeg = rateRowUnder.get(subId);
+      const rateRow = rateSeg ? { seg: rateSeg } : undefined;
       if (!rateRow) throw fail(`Waveform ${refId || code} has no sample-rate facet row under sub-ID ${subId}.`, `${where}-4`, `expected an OBX with MDC_ATTR_SAMP_RATE at ${subId}.1`, 101);
       const rate = Number(component(rateRow.seg, 5, 1, d));
       const rateUnit = (component(rateRow.seg, 6, 2, d) || component(rateRow.seg, 6, 1, d)).toUpperCase();
@@ -149,7 +226,9 @@ export function decodePcd01(raw: Buffer): Pcd01Decoded {
       if (!t) throw fail(`Waveform ${refId || code} has no time (OBX-14, an ancestor's OBX-14, or OBR-7).`, `${where}-14`, 'required', 101);
       if (startTime && t.getTime() !== startTime.getTime()) throw fail('Waveforms in one message must start at the same time.', `${where}-14`, `${t.toISOString()} vs ${startTime.toISOString()}`, 102);
       startTime = t;
-      const parts = (seg.fields[5] ?? '').split(d.component);
+      const parts = (seg.fields[5] ?? '').split(d.component, limits.maxSamples - samplesSoFar + 1);
+      samplesSoFar += parts.length;
+      if (samplesSoFar > limits.maxSamples) throw overCap('The message carries too many waveform samples', `${where}-5`, `maxSamples=${limits.maxSamples}`);
       const values = new Array<number | null>(parts.length);
       for (let i = 0; i < parts.length; i++) {
         const p = parts[i] as string;
@@ -163,7 +242,7 @@ export function decodePcd01(raw: Buffer): Pcd01Decoded {
       if (!values.length || (values.length === 1 && values[0] === null)) throw fail(`Waveform ${refId || code} carries no samples.`, `${where}-5`, 'empty', 101);
       channels.push({ code: code || refId, altCodes: refId && code ? [refId] : [], sampleRate: rate, unit: component(seg, 6, 1, d) || undefined, samples: { kind: 'array', values }, path: where });
     } else if (valueType === 'NM' || valueType === 'ST' || valueType === 'CWE' || valueType === 'CE') {
-      if (rows.some((r) => subId.startsWith(`${r.subId}.`) && field(r.seg, 2, d) === 'NA')) continue; // a facet of a waveform
+      if (prefixes(subId).some((p) => waveformSubIds.has(p))) continue; // a facet of a waveform
       const rawValue = component(seg, 5, 1, d);
       const value = valueType === 'NM' ? Number(rawValue) : rawValue;
       if (valueType === 'NM' && rawValue !== '' && !Number.isFinite(value)) throw fail(`OBX ${refId || code} is NM but not a number.`, `${where}-5`, `"${rawValue.slice(0, 20)}"`, 102);

@@ -1,3 +1,5 @@
+import { DEFAULT_DELIMITERS, unescapeHl7 } from '@ebbgate/shared/hl7';
+
 /** What an HL7 v2 ACK said (MSA and ERR segments). */
 export interface Hl7Ack {
   /** MSA-1: AA/AE/AR (original mode) or CA/CE/CR (enhanced mode). */
@@ -12,8 +14,6 @@ export interface Hl7Ack {
   raw: string;
 }
 
-const unescape = (s: string) =>
-  s.replace(/\\F\\/g, '|').replace(/\\S\\/g, '^').replace(/\\T\\/g, '&').replace(/\\R\\/g, '~').replace(/\\E\\/g, '\\');
 
 /** Parses an ACK; throws when there is no MSA segment (then it is not an acknowledgement). */
 export function parseAck(raw: string): Hl7Ack {
@@ -22,6 +22,8 @@ export function parseAck(raw: string): Hl7Ack {
   const fieldSep = msh?.[3] ?? '|';
   const compSep = msh?.[4] ?? '^';
   const fields = (s: string) => s.split(fieldSep);
+  const delimiters = { ...DEFAULT_DELIMITERS, field: fieldSep, component: compSep, repetition: msh?.[5] ?? '~', escape: msh?.[6] ?? '\\', subcomponent: msh?.[7] ?? '&' };
+  const unescape = (s: string) => unescapeHl7(s, delimiters);
   const msa = segments.find((s) => s.startsWith('MSA'));
   if (!msa) throw new Error('answer has no MSA segment');
   const f = fields(msa);

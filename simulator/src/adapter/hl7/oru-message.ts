@@ -1,3 +1,4 @@
+import { escapeHl7 as escapeKit, formatHl7Time } from '@ebbgate/shared/hl7';
 import { MDS_CODE, OBR_SERVICE, PCD01_PROFILE, SAMPLE_RATE_ATTR, UNIT_CODES, type CodedValue } from './codes';
 
 /**
@@ -58,16 +59,9 @@ export interface OruMessageInput {
 /** HL7 v2 field length limit of OBX-5 for NA values (standards notes). */
 export const OBX5_MAX_LENGTH = 65_536;
 
-/** HL7 v2 escape sequences (ch. 2.7) for text placed in a field or component. */
-export function escapeHl7(text: string): string {
-  return text.replace(/\\/g, '\\E\\').replace(/\|/g, '\\F\\').replace(/\^/g, '\\S\\').replace(/&/g, '\\T\\').replace(/~/g, '\\R\\');
-}
-
-/** HL7 DTM with milliseconds and a UTC offset: YYYYMMDDHHMMSS.SSS+0000. */
-export function hl7Time(d: Date): string {
-  const p = (n: number, w = 2) => String(n).padStart(w, '0');
-  return `${d.getUTCFullYear()}${p(d.getUTCMonth() + 1)}${p(d.getUTCDate())}${p(d.getUTCHours())}${p(d.getUTCMinutes())}${p(d.getUTCSeconds())}.${p(d.getUTCMilliseconds(), 3)}+0000`;
-}
+/** HL7 v2 escape sequences (ch. 2.7) and DTM timestamps come from the shared kit. */
+export const escapeHl7 = (text: string): string => escapeKit(text);
+export const hl7Time = (d: Date): string => formatHl7Time(d);
 
 const cwe = (c: CodedValue) => `${escapeHl7(c.code)}^${escapeHl7(c.text)}^${escapeHl7(c.system)}`;
 
