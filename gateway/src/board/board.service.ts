@@ -37,7 +37,7 @@ export function bedState(input: { hasMonitor: boolean; quarantined: number; last
   if (input.lastSeenAgeSeconds === null) return { state: 'stale', reason: 'The monitor has never sent data.' };
   if (input.lastSeenAgeSeconds > STALE_AFTER_SECONDS) return { state: 'stale', reason: `Nothing received for ${Math.round(input.lastSeenAgeSeconds)} s.` };
   if (input.waitingForPatient) return { state: 'no-patient', reason: 'The EHR names no patient in this bed; results wait for context.' };
-  return { state: 'sending', reason: 'Data arrives and results find their patient.' };
+  return { state: 'sending', reason: 'Data arrives from the monitor.' };
 }
 
 /**

@@ -102,7 +102,8 @@ export async function getBedTrend(ctx: AppContext, bedId: string, query: TrendQu
   events.sort((x, y) => x.t.localeCompare(y.t));
 
   const settings = await getSiteSettings(ctx);
-  const band = settings.analysis.bands.find((b) => b.index === 'ppv' && /grey/i.test(b.id + b.label));
+  const ppvBands = settings.analysis.bands.filter((b) => b.index === 'ppv');
+  const band = ppvBands.find((b) => /grey/i.test(b.id)) ?? ppvBands.find((b) => /^grey/i.test(b.label));
   return {
     bed: { id: String(bed.id), name: String(bed.name), unit: String(bed.unit) },
     from: from.toISOString(),

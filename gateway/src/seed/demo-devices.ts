@@ -23,9 +23,9 @@ const ch = (code: string, role: ChannelRole, label: string) => ({ code, label, r
  * impedance channel of its `unmapped-channel` scenario so that one lands in the quarantine.
  */
 export const LARKSPUR_PROFILE: MonitorProfileInput = {
-  name: 'Ebbgate demo: Larkspur BM-40 bedside monitor',
-  manufacturer: 'Ebbgate demo devices (invented)',
-  model: 'Larkspur BM-40',
+  name: 'Ebbgate demo: Larkspur Tidereader bedside monitor',
+  manufacturer: 'Larkspur Instruments (invented)',
+  model: 'Tidereader (invented)',
   transports: ['http', 'mllp'],
   channels: [
     ch('MDC_PRESS_BLD_ART_ABP', 'abp', 'abp (http)'),
@@ -45,9 +45,9 @@ export const LARKSPUR_PROFILE: MonitorProfileInput = {
 /** Two more invented models, for the integrator to look at and assign. */
 export const OTHER_DEMO_PROFILES: MonitorProfileInput[] = [
   {
-    name: 'Ebbgate demo: Corvane BX-7 transport monitor',
+    name: 'Ebbgate demo: Corvane Stretcherwatch transport monitor',
     manufacturer: 'Corvane Instruments (invented)',
-    model: 'BX-7',
+    model: 'Stretcherwatch (invented)',
     transports: ['http'],
     channels: [ch('MDC_PRESS_BLD_ART_ABP', 'abp', 'arterial pressure'), { ...ch('CVN-PLETH', 'pleth', 'pleth, display-normalised'), builtInFiltering: 'display smoothing, 0.5–5 Hz' }],
     defaultProbeSite: 'finger',
@@ -55,9 +55,9 @@ export const OTHER_DEMO_PROFILES: MonitorProfileInput[] = [
     notes: 'Pleth comes auto-scaled (no perfusion index); the adapter sends arterial pressure in mmHg.',
   },
   {
-    name: 'Ebbgate demo: Tessaly PM-3 anaesthesia monitor',
+    name: 'Ebbgate demo: Tessaly Quietdial anaesthesia monitor',
     manufacturer: 'Tessaly Medical (invented)',
-    model: 'PM-3',
+    model: 'Quietdial (invented)',
     transports: ['mllp'],
     channels: [ch('150036', 'abp', 'arterial pressure'), ch('150452', 'pleth', 'pleth'), { ...ch('TSL-PAW-COUNTS', 'paw', 'airway pressure in ADC counts'), gain: 0.02, offset: -10 }],
     defaultProbeSite: 'ear',
@@ -86,8 +86,8 @@ function demoBeds(): HospitalBed[] {
   return data.beds?.length ? data.beds : FALLBACK_BEDS;
 }
 
-/** EUI-64 of the n-th demo monitor (1-based), as the simulator's monitor list expects. */
-export const demoMonitorIdentifier = (n: number) => `00A0B1FFFE${n.toString(16).toUpperCase().padStart(6, '0')}`;
+/** EUI-64 of the n-th demo monitor (1-based), as the simulator's monitor list expects: first octet 02, the locally administered (U/L) bit set, so no registered organisation prefix is borrowed. */
+export const demoMonitorIdentifier = (n: number) => `02EB6AFFFE${n.toString(16).toUpperCase().padStart(6, '0')}`;
 
 export interface SeededMonitor {
   id: string;

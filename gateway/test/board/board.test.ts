@@ -103,7 +103,9 @@ describe('bed trend', () => {
     expect(res.body.points).toHaveLength(20);
     expect(res.body.points[3].verdict).toBe('not-valid');
     expect(res.body.events.filter((e: { kind: string }) => e.kind === 'bed-transfer')).toHaveLength(1);
-    expect(res.body.greyZone.source.length).toBeGreaterThan(3);
+    // The default PPV grey zone: 9–13 % (Cannesson et al., Anesthesiology 2011; figures from memory), with that source named.
+    expect(res.body.greyZone).toMatchObject({ lower: 9, upper: 13 });
+    expect(res.body.greyZone.source).toContain('Cannesson');
     await reviewer.get(`/api/v1/board/beds/${randomUUID()}/trend`).expect(404);
     await reviewer.get(`/api/v1/board/beds/${b}/trend?hours=49`).expect(400);
   });

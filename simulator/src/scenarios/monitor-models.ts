@@ -18,9 +18,9 @@ const units: Record<ChannelRole, string> = { abp: 'mmHg', pleth: '1', paw: 'cmH2
  * `unmapped-channel` scenario sends, so that monitor's batches land in the quarantine.
  */
 export const DEMO_MONITOR_PROFILE: MonitorProfileInput = {
-  name: 'Ebbgate demo: Larkspur BM-40 bedside monitor',
-  manufacturer: 'Ebbgate demo devices (invented)',
-  model: 'Larkspur BM-40',
+  name: 'Ebbgate demo: Larkspur Tidereader bedside monitor',
+  manufacturer: 'Larkspur Instruments (invented)',
+  model: 'Tidereader (invented)',
   transports: ['http', 'mllp'],
   channels: (['http', 'mllp'] as const).flatMap((t) =>
     roles.map((role) => ({ code: channelCodesFor(t)[role], label: `${role} (${t})`, role, unit: units[role], gain: 1, offset: 0, sampleRate: 125 })),
@@ -40,13 +40,13 @@ export interface DemoMonitor {
 
 /** Suggested demo monitors: one per bed of the demo hospital, plus one with a profile gap. */
 export const DEMO_MONITORS: DemoMonitor[] = [
-  { identifier: '00A0B1FFFE000001', bedId: 'icu-01', scenario: 'fluid-responsive' },
-  { identifier: '00A0B1FFFE000002', bedId: 'icu-02', scenario: 'not-responsive' },
-  { identifier: '00A0B1FFFE000003', bedId: 'icu-03', scenario: 'atrial-fibrillation' },
-  { identifier: '00A0B1FFFE000004', bedId: 'icu-04', scenario: 'spontaneous-breathing' },
-  { identifier: '00A0B1FFFE000005', bedId: 'icu-05', scenario: 'low-tidal-volume' },
-  { identifier: '00A0B1FFFE000006', bedId: 'or-01', scenario: 'motion-artefact' },
-  { identifier: '00A0B1FFFE000007', bedId: 'or-02', scenario: 'damped-arterial-line' },
-  { identifier: '00A0B1FFFE000008', bedId: 'or-03', scenario: 'vasopressor-finger-probe' },
-  { identifier: '00A0B1FFFE000009', bedId: null, scenario: 'unmapped-channel' },
+  { identifier: '02EB6AFFFE000001', bedId: 'icu-01', scenario: 'fluid-responsive' },
+  { identifier: '02EB6AFFFE000002', bedId: 'icu-02', scenario: 'not-responsive' },
+  { identifier: '02EB6AFFFE000003', bedId: 'icu-03', scenario: 'atrial-fibrillation' },
+  { identifier: '02EB6AFFFE000004', bedId: 'icu-04', scenario: 'spontaneous-breathing' },
+  { identifier: '02EB6AFFFE000005', bedId: 'icu-05', scenario: 'low-tidal-volume' },
+  { identifier: '02EB6AFFFE000006', bedId: 'or-01', scenario: 'motion-artefact' },
+  { identifier: '02EB6AFFFE000007', bedId: 'or-02', scenario: 'damped-arterial-line' },
+  { identifier: '02EB6AFFFE000008', bedId: 'or-03', scenario: 'vasopressor-finger-probe' },
+  { identifier: '02EB6AFFFE000009', bedId: null, scenario: 'unmapped-channel' },
 ];

@@ -18,8 +18,8 @@ import { assessmentsOf, freePort, registerMonitors, waitFor } from './gateway-cl
 
 const SECONDS = 70; // 14 batches of 5 s: windows of 30 s every 10 s → starts at 0, 10, 20, 30, 40 s
 const EXPECTED_WINDOWS = 5;
-const ids = new Map<ScenarioId, string>(SCENARIO_IDS.map((id, i) => [id, `00A0B1FFFE1000${String(i + 1).padStart(2, '0')}`]));
-const MLLP_ID = '00A0B1FFFE1000FF';
+const ids = new Map<ScenarioId, string>(SCENARIO_IDS.map((id, i) => [id, `02EB6AFFFE1000${String(i + 1).padStart(2, '0')}`]));
+const MLLP_ID = '02EB6AFFFE1000FF';
 
 let gw: TestGateway;
 let integrator: SignedInClient;

@@ -67,7 +67,7 @@ const ack = (code: string, id: string, err?: string) =>
   `MSH|^~\\&|EBBGATE||ADAPTER||20261201101500||ACK^R01^ACK|A${id}|P|2.6\rMSA|${code}|${id}\r` + (err ? `ERR|||${err}|E\r` : '');
 
 const batch = (k: number): IngestBatch => ({
-  monitorId: '00A0B1FFFE2C3D4E',
+  monitorId: '02EB6AFFFE2C3D4E',
   batchId: `b-${k}`,
   startTime: new Date(Date.UTC(2026, 11, 1, 10, 0, k * 5)).toISOString(),
   channels: [
@@ -96,7 +96,7 @@ describe('durable sender over MLLP', () => {
     const first = rx.received[0];
     expect(first.get('MSH.9.1').toString()).toBe('ORU');
     const obx = [...(first.get('OBX') as unknown as Iterable<{ get(p: string): { toString(): string } }>)];
-    expect(obx[0].get('OBX.18.1').toString()).toBe('00A0B1FFFE2C3D4E');
+    expect(obx[0].get('OBX.18.1').toString()).toBe('02EB6AFFFE2C3D4E');
     expect(obx[1].get('OBX.3.1').toString()).toBe('150036');
     expect(obx.map((r) => r.get('OBX.3.1').toString())).toContain('151868');
     expect(first.get('PID.8').toString()).toBe('M');
@@ -137,7 +137,7 @@ describe('durable sender over MLLP', () => {
     const spoolDir = await mkdtemp(path.join(os.tmpdir(), 'ebbgate-mllp-'));
     dirs.push(spoolDir);
     const sender = await BatchSender.open({ transport: mllpTransport({ host: '127.0.0.1', port: rx.port, connections: 4 }), spoolDir });
-    const monitorsIds = ['00A0B1FFFE000011', '00A0B1FFFE000012', '00A0B1FFFE000013', '00A0B1FFFE000014', '00A0B1FFFE000015', '00A0B1FFFE000016'];
+    const monitorsIds = ['02EB6AFFFE000011', '02EB6AFFFE000012', '02EB6AFFFE000013', '02EB6AFFFE000014', '02EB6AFFFE000015', '02EB6AFFFE000016'];
     for (let k = 0; k < 3; k++) for (const m of monitorsIds) await sender.send({ ...batch(k), monitorId: m, batchId: `${m}-${k}` });
     await sender.drain(5000);
     await sender.close();

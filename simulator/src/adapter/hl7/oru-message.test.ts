@@ -4,7 +4,7 @@ import { Message } from 'node-hl7-client';
 import { NUMERIC_CODES, UNIT_CODES, WAVEFORM_CODES } from './codes';
 import { buildOruR01, escapeHl7, hl7Time } from './oru-message';
 
-const EUI = '00A0B1FFFE2C3D4E';
+const EUI = '02EB6AFFFE2C3D4E';
 const start = new Date('2026-12-01T10:15:30.250Z');
 const abp = Array.from({ length: 250 }, (_, i) => 80 + 40 * Math.max(0, Math.sin((2 * Math.PI * i) / 94)));
 const paw = Array.from({ length: 250 }, (_, i) => 5 + (i % 50 < 15 ? 15 : 0));

@@ -15,7 +15,7 @@ export function formatAge(seconds: number): string {
 /** Patient as people know them: name and MRN when the EHR gave them, else the reference. */
 export function patientLabel(t: Pick<Tile, 'patientName' | 'patientMrn' | 'patientRef'>): string {
   if (t.patientName) return t.patientMrn ? `${t.patientName} · MRN ${t.patientMrn}` : t.patientName;
-  return t.patientRef ?? 'No patient named';
+  return t.patientRef ?? 'Patient not named yet';
 }
 
 /** One bed: who, which monitor, the latest values with their verdict, the main flag, the last hour. */
@@ -42,10 +42,10 @@ export function BedTile({ tile }: { tile: Tile }) {
             <span className="text-xs text-muted" title={formatDateTime(a.windowEnd)}>window {formatAge(a.ageSeconds)}</span>
           </div>
           <dl className="grid grid-cols-3 gap-1">
-            {([['PPV', a.ppv], ['SPV', a.spv], ['ΔPOP', a.deltaPop]] as const).map(([k, v]) => (
+            {([['PPV', a.ppv, '%'], ['SPV', a.spv, 'mmHg'], ['ΔPOP', a.deltaPop, '%']] as const).map(([k, v, unit]) => (
               <div key={k}>
                 <dt className="text-xs text-muted">{k}</dt>
-                <dd className="text-base font-semibold"><VerdictValue value={v} verdict={a.verdict} /></dd>
+                <dd className="text-base font-semibold"><VerdictValue value={v} verdict={a.verdict} unit={unit} /></dd>
               </div>
             ))}
           </dl>
