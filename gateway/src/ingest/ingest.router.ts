@@ -159,6 +159,11 @@ function keepRefusedCallers(ctx: AppContext, service: IngestService): RequestHan
 /** POST /ingest/batches: mounted before the JSON parser (see Capabilities.rawBodyRouters). */
 export function ingestRouter(ctx: AppContext, service: IngestService): Router {
   const router = Router();
+  // Authentication and the keeping of strangers' prefixes run ahead of the route (and of its
+  // permission check), so a refused caller's message is kept before the 401/403 goes out.
+  // Cookies are parsed so a signed-in person gets 403 (wrong role) rather than 401.
+  const identify = [cookieParser(), authenticateKeepingFailures(ctx), keepRefusedCallers(ctx, service)];
+  router.post('/ingest/batches', ...identify);
   defineRoute(router, {
     method: 'post',
     path: '/ingest/batches',
@@ -166,8 +171,7 @@ export function ingestRouter(ctx: AppContext, service: IngestService): Router {
     tag: 'ingest',
     summary:
       'Send one waveform batch (IngestBatch: monitorId, batchId, startTime, channels, context) with the monitor API key. 202 stored, 200 repeat of the same batch, 409 same batch id with other content or a second stream overlapping another sender, 400/422 kept in quarantine, 413 too large, 429 backlog full or the monitor over its quota, 503 storage unavailable (both with Retry-After: send again).',
-    // Cookies are parsed so a signed-in person gets 403 (wrong role) rather than 401.
-    before: [cookieParser(), authenticateKeepingFailures(ctx), keepRefusedCallers(ctx, service), rawBody(ctx, service)],
+    before: [rawBody(ctx, service)],
     bodyType: 'application/json',
     response: ingestReceiptSchema,
     handler: async ({ req, res, principal }) => {

@@ -2,8 +2,15 @@ import type { AppContext, BackgroundService } from '../app-context';
 
 export interface PurgeCounts {
   segments: number;
+  /** Stored data's messages (accepted, duplicate, reprocessed, discarded) past `retentionDays`. */
   inboundMessages: number;
   windows: number;
+  /** Rejected and conflicting messages past `rejectedRetentionDays`. */
+  rejected: number;
+  /** Quarantined messages nobody handled within `quarantineRetentionDays`. */
+  quarantined: number;
+  /** Strangers' prefixes past `strangers.retentionDays`. */
+  strangers: number;
 }
 
 const CHUNK = 5_000;
@@ -18,17 +25,25 @@ async function deleteInChunks(ctx: AppContext, sql: string, params: unknown[]): 
   return total;
 }
 
+const before = (now: Date, days: number) => new Date(now.getTime() - days * 86_400_000);
+
 /**
- * Deletes waveform segments, inbound messages and analysis windows older than the retention
- * period, in small chunks so ingest is not blocked. Quarantined messages stay until an
- * integrator reprocesses or discards them (nothing inbound is lost unseen); assessments stay.
+ * Deletes waveform segments, inbound messages and analysis windows older than their retention,
+ * in small chunks so ingest is not blocked. Each kind of inbound message has its own period:
+ * stored data's messages `retentionDays`, rejected and conflicting ones `rejectedRetentionDays`,
+ * quarantined ones (unless handled sooner) `quarantineRetentionDays`, strangers' prefixes
+ * `strangers.retentionDays`. Assessments stay.
  */
 export async function purgeExpired(ctx: AppContext, now = new Date()): Promise<PurgeCounts> {
-  const cutoff = new Date(now.getTime() - ctx.config.ingest.retentionDays * 86_400_000);
+  const { ingest } = ctx.config;
+  const cutoff = before(now, ingest.retentionDays);
   const segments = await deleteInChunks(ctx, 'DELETE FROM waveform_segment WHERE start_time < ?', [cutoff]);
-  const inboundMessages = await deleteInChunks(ctx, "DELETE FROM inbound_message WHERE received_at < ? AND outcome <> 'quarantined'", [cutoff]);
+  const inboundMessages = await deleteInChunks(ctx, "DELETE FROM inbound_message WHERE received_at < ? AND stranger = 0 AND outcome NOT IN ('quarantined', 'rejected', 'conflicting')", [cutoff]);
+  const rejected = await deleteInChunks(ctx, "DELETE FROM inbound_message WHERE received_at < ? AND stranger = 0 AND outcome IN ('rejected', 'conflicting')", [before(now, ingest.rejectedRetentionDays)]);
+  const quarantined = await deleteInChunks(ctx, "DELETE FROM inbound_message WHERE received_at < ? AND stranger = 0 AND outcome = 'quarantined'", [before(now, ingest.quarantineRetentionDays)]);
+  const strangers = await deleteInChunks(ctx, 'DELETE FROM inbound_message WHERE received_at < ? AND stranger = 1', [before(now, ingest.strangers.retentionDays)]);
   const windows = await deleteInChunks(ctx, "DELETE FROM analysis_window WHERE window_end < ? AND status <> 'due'", [cutoff]);
-  return { segments, inboundMessages, windows };
+  return { segments, inboundMessages, windows, rejected, quarantined, strangers };
 }
 
 export class RetentionPurge implements BackgroundService {
@@ -42,7 +57,7 @@ export class RetentionPurge implements BackgroundService {
     const every = this.ctx.config.ingest.purgeIntervalMinutes * 60_000;
     const tick = () => {
       this.running = purgeExpired(this.ctx)
-        .then((c) => (c.segments || c.inboundMessages || c.windows) && this.ctx.logger.info(c, 'retention purge'))
+        .then((c) => Object.values(c).some((n) => n > 0) && this.ctx.logger.info(c, 'retention purge'))
         .catch((err: unknown) => this.ctx.logger.error({ err }, 'retention purge failed'));
     };
     this.timer = setInterval(tick, every);

@@ -35,3 +35,35 @@ describe('retention purge', () => {
     expect(Number(segs[0].n)).toBe(1);
   });
 });
+
+describe('retention of refused input', () => {
+  let gw2: TestGateway;
+  beforeAll(async () => {
+    gw2 = await startTestGateway({ ingest: { retentionDays: 7, rejectedRetentionDays: 3, quarantineRetentionDays: 20, strangers: { keepBytes: 4096, perSourcePerMinute: 60, retentionDays: 1 } } });
+  });
+  afterAll(async () => gw2?.stop());
+
+  it('purges strangers, rejected and quarantined messages each after its own retention', async () => {
+    const now = new Date('2026-12-01T12:00:00.000Z');
+    const ago = (days: number) => new Date(now.getTime() - days * 86_400_000);
+    // [outcome, stranger, age in days, kept?] — each period from the settings above.
+    const rows: [string, number, number, boolean][] = [
+      ['rejected', 1, 0.5, true],
+      ['rejected', 1, 1.5, false],
+      ['rejected', 0, 2, true],
+      ['rejected', 0, 4, false],
+      ['conflicting', 0, 4, false],
+      ['quarantined', 0, 10, true],
+      ['quarantined', 0, 25, false],
+      ['duplicate', 0, 5, true],
+      ['duplicate', 0, 8, false],
+    ];
+    for (const [outcome, stranger, age] of rows) {
+      await gw2.ctx.ds.query("INSERT INTO inbound_message (received_at, transport, outcome, size_bytes, raw, stranger) VALUES (?, 'http', ?, 1, 'x', ?)", [ago(age), outcome, stranger]);
+    }
+    const counts = await purgeExpired(gw2.ctx, now);
+    expect(counts).toMatchObject({ strangers: 1, rejected: 2, quarantined: 1, inboundMessages: 1 });
+    const left = (await gw2.ctx.ds.query('SELECT outcome, stranger FROM inbound_message ORDER BY id')) as { outcome: string; stranger: number }[];
+    expect(left).toEqual(rows.filter((r) => r[3]).map(([outcome, stranger]) => ({ outcome, stranger })));
+  });
+});
