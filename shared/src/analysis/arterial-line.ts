@@ -62,7 +62,7 @@ export function checkArterialLine(ch: ConditionedChannel, series: BeatSeries, no
   // Beat shape (checked on a second-order catheter model over fn 5–25 Hz, ζ 0.05–1.6 in the tests):
   // over-damping removes the notch and stretches the upstroke; under-damping rings on the peak.
   const underByShape = ringExamined >= 5 && ringing / ringExamined >= 0.5;
-  const overByShape = !underByShape && notchFraction !== null && rise !== null && notchFraction < 0.3 && rise > 0.13;
+  const overByShape = !underByShape && notchFraction !== null && rise !== null && notchFraction < 0.3 && rise > 0.145;
   const dampingEstimate: DampingEstimate = notchFraction === null || rise === null ? 'unknown' : underByShape ? 'under-damped' : overByShape ? 'over-damped' : 'adequate';
   // Flush: a plateau above 250 mmHg lasting 0.3 s (runs measured during conditioning).
   const flushSuspected = ch.longestHighRun >= Math.round(0.3 * fs);
@@ -166,10 +166,13 @@ function measureRinging(x: Float64Array, fs: number, lastHigh: number, plateau: 
   const rest = median(Array.from(x.subarray(restFrom, end)));
   const step = plateau - rest;
   if (!(step > 20)) return null;
-  // Release: the last sample still within 1 % of the step of the plateau. A second-order response
-  // leaves a step with zero slope, reaching 1 % after ωn·t ≈ 0.141; corrected below once ωn is known.
-  let r = lastHigh;
-  while (r > 0 && x[r] < plateau - 0.01 * step) r--;
+  // Release: where the pressure has fallen by 20 % of the step (clear of any ringing left on the
+  // plateau), moved back by the time a second-order step response takes to fall that far.
+  const level = plateau - 0.2 * step;
+  let c = Math.max(1, lastHigh - Math.round(0.05 * fs));
+  while (c < end && x[c] >= level) c++;
+  const cross = (c - 1 + (x[c - 1] - level) / (x[c - 1] - x[c])) / fs;
+  const r = c;
   const h = Math.max(0.5, 0.003 * step);
   // Zig-zag extrema after release, starting downwards.
   const ext: { i: number; v: number }[] = [];
@@ -201,18 +204,20 @@ function measureRinging(x: Float64Array, fs: number, lastHigh: number, plateau: 
   const pts = ext.map((e) => refine(x, e.i, fs));
   const noRinging = (): FlushTestResult => {
     const region = gardnerRegion(null, null);
-    return { releaseTime: r / fs, naturalFrequencyHz: null, dampingRatio: null, amplitudeRatio: null, oscillations: 0, region, regionText: gardnerRegionText(region) };
+    return { releaseTime: cross, naturalFrequencyHz: null, dampingRatio: null, amplitudeRatio: null, oscillations: 0, region, regionText: gardnerRegionText(region) };
   };
   // The first extremum is the undershoot; it must lie below the resting level to be ringing.
   if (pts.length === 0 || pts[0].v > rest - h) return noRinging();
   // Extrema of a step response fall at multiples of Td/2 after release.
   const q0 = (rest - pts[0].v) / step;
   let zeta = q0 > 0 && q0 < 1 ? dampingCoefficient(q0) : null;
-  let td = 2 * (pts[0].t - r / fs);
-  for (let it = 0; it < 2 && zeta !== null; it++) {
-    const wn = (2 * Math.PI) / (td * Math.sqrt(1 - zeta * zeta));
-    td = 2 * (pts[0].t - (r / fs + 0.141 / wn));
+  const z0 = zeta ?? 0.3;
+  let td = 2 * (pts[0].t - cross);
+  for (let it = 0; it < 4; it++) {
+    const wn = (2 * Math.PI) / (td * Math.sqrt(1 - z0 * z0));
+    td = 2 * (pts[0].t - (cross - fallTime(z0, 0.2) / wn));
   }
+  const releaseTime = cross - fallTime(z0, 0.2) / ((2 * Math.PI) / (td * Math.sqrt(1 - z0 * z0)));
   let ar: number | null = zeta !== null ? q0 : null;
   let n = 1;
   // Later extrema at the expected spacing (±30 %) give the amplitude ratio of successive swings
@@ -234,7 +239,24 @@ function measureRinging(x: Float64Array, fs: number, lastHigh: number, plateau: 
   // A "ringing" slower than 3 Hz is the pulse itself returning, not the line: no ringing.
   if (fn === null || fn < 3) return noRinging();
   const region = gardnerRegion(fn, zeta);
-  return { releaseTime: r / fs, naturalFrequencyHz: fn, dampingRatio: zeta, amplitudeRatio: ar, oscillations: n, region, regionText: gardnerRegionText(region) };
+  return { releaseTime, naturalFrequencyHz: fn, dampingRatio: zeta, amplitudeRatio: ar, oscillations: n, region, regionText: gardnerRegionText(region) };
+}
+
+/**
+ * ωn·t at which an under-damped second-order step response has covered `fraction` of the step:
+ * 1 − e^(−ζτ)(cos(√(1−ζ²)τ) + ζ/√(1−ζ²)·sin(√(1−ζ²)τ)) = fraction, by bisection.
+ */
+function fallTime(zeta: number, fraction: number): number {
+  const wd = Math.sqrt(Math.max(1e-9, 1 - zeta * zeta));
+  const y = (t: number): number => 1 - Math.exp(-zeta * t) * (Math.cos(wd * t) + (zeta / wd) * Math.sin(wd * t));
+  let lo = 0;
+  let hi = Math.PI / wd;
+  for (let k = 0; k < 50; k++) {
+    const mid = (lo + hi) / 2;
+    if (y(mid) < fraction) lo = mid;
+    else hi = mid;
+  }
+  return (lo + hi) / 2;
 }
 
 /** Sub-sample time (s) and value of an extremum by a parabola through its neighbours. */

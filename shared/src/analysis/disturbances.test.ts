@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { generateWindow, type Disturbance } from '../synthetic/index';
-import { truthOverUsedCycles } from './grid-support';
+import { truthOverUsedCycles } from '../synthetic/test-support/grid-support';
 import { analyzeWindow } from './index';
 import type { AnalysisContext, FlagCode } from './types';
 

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { generateWindow } from '../synthetic/index';
-import { matchBeats, truthOverUsedCycles } from './grid-support';
+import { matchBeats, truthOverUsedCycles } from '../synthetic/test-support/grid-support';
 import { analyzeWindow } from './index';
 import type { AnalysisContext } from './types';
 

@@ -5,9 +5,9 @@ import type { AnalysisContext, RespiratoryMechanics } from './types';
 
 /**
  * Respiratory-system compliance and driving pressure (common practice): C = Vt / (Pplat − PEEP),
- * ΔP = Pplat − PEEP. Per breath on the airway pressure: PEEP is the level just before the
+ * ΔP = Pplat − PEEP. Per breath on the airway pressure: PEEP is the end-expiratory level before the
  * inspiration onset, the peak the maximum of the breath, the plateau the level of an
- * end-inspiratory pause (pressure within 0.5 cmH2O for at least 0.2 s after the peak, before the
+ * end-inspiratory pause (pressure within 0.5 cmH2O for at least 0.12 s after the peak, before the
  * expiratory fall) when there is one; otherwise the peak stands in and says so.
  */
 export function respiratoryMechanics(paw: ConditionedChannel | undefined, bounds: BreathBoundaries | null, context: AnalysisContext): RespiratoryMechanics | null {
@@ -29,18 +29,21 @@ export function respiratoryMechanics(paw: ConditionedChannel | undefined, bounds
   const peeps: number[] = [];
   const peaks: number[] = [];
   const plateaus: number[] = [];
-  const minPause = Math.round(0.2 * fs);
+  const minPause = Math.round(0.12 * fs);
   for (let j = 0; j + 1 < bounds.onsets.length; j++) {
     const a = bounds.onsets[j];
     const b = bounds.onsets[j + 1];
-    if (a < 2) continue;
-    const peep = p[Math.max(0, a - 2)];
+    // The onset sits where the pressure leaves the PEEP level (15 % of the swing above it): PEEP is
+    // the median of the 0.5 s of end-expiration before it.
+    const from = a - Math.round(0.6 * fs);
+    if (from < 0) continue;
+    const peep = median(Array.from(p.subarray(from, a - Math.round(0.1 * fs))));
     let pk = a;
     for (let i = a; i < b; i++) if (p[i] > p[pk]) pk = i;
     const peak = p[pk];
     peeps.push(peep);
     peaks.push(peak);
-    // End-inspiratory pause: after the peak, a run within 0.5 cmH2O above PEEP + 40 % of the swing.
+    // End-inspiratory pause: after the peak, a run within 0.5 cmH2O (0.12 s or more) above PEEP + 40 % of the swing.
     const floor = peep + 0.4 * (peak - peep);
     let runStart = -1;
     let lo = Infinity;

@@ -1,9 +1,9 @@
 /**
- * Test support: compares an engine result with the synthetic truth (beat matching, PPV over the
- * same cycles). Used by the grid and disturbance tests only.
+ * Test support (not part of the engine): compares an engine result with the synthetic truth (beat
+ * matching, PPV over the same cycles, truth over the last clean cycles). Used by the tests only.
  */
-import type { SyntheticTruth } from '../synthetic/types';
-import type { AnalysisResult } from './types';
+import type { AnalysisResult } from '../../analysis/types';
+import type { SyntheticTruth, TruthCycle } from '../types';
 
 export interface BeatMatch {
   truePositives: number;
@@ -45,4 +45,10 @@ export function truthOverUsedCycles(result: AnalysisResult, truth: SyntheticTrut
     values.push(v);
   }
   return values.reduce((a, b) => a + b, 0) / values.length;
+}
+
+/** Mean of a truth field over the last `count` clean cycles put in (no ectopic beat, no effort). */
+export function truthLastCleanCycles(truth: SyntheticTruth, key: 'ppv' | 'spv' | 'deltaPop', count = 3): number | null {
+  const clean = truth.cycles.filter((c: TruthCycle) => c[key] !== null && !c.containsEctopic && !c.containsSpontaneousEffort).slice(-count);
+  return clean.length ? clean.reduce((a, c) => a + (c[key] as number), 0) / clean.length : null;
 }
