@@ -1,6 +1,6 @@
 import type { IngestBatch } from '@ebbgate/shared';
 import { DEFAULT_RETRY_POLICY, nextDelay, type RetryPolicy } from './retry-policy';
-import { BatchSpool } from './spool';
+import { BatchSpool, DEFAULT_REJECTED_LIMITS, type RejectedLimits } from './spool';
 import type { BatchTransport, SendOutcome } from './transport';
 
 export type SenderEvent =
@@ -25,6 +25,8 @@ export interface BatchSenderOptions {
   onEvent?: (e: SenderEvent) => void;
   /** Source of jitter, for tests. */
   random?: () => number;
+  /** Cap and age limit of `rejected/` per monitor (default 1000 batches, 30 days). */
+  rejected?: Partial<RejectedLimits>;
 }
 
 interface Entry {
@@ -42,6 +44,8 @@ export interface SenderStats {
   repeats: number;
   retries: number;
   rejected: number;
+  /** Refused batches removed from `rejected/` by its cap or age limit. */
+  rejectedDropped: number;
 }
 
 /**
@@ -50,7 +54,7 @@ export interface SenderStats {
  * backed by a disk spool that is replayed on the next start.
  */
 export class BatchSender {
-  readonly stats: SenderStats = { accepted: 0, repeats: 0, retries: 0, rejected: 0 };
+  private readonly counts = { accepted: 0, repeats: 0, retries: 0, rejected: 0 };
   private readonly queues = new Map<string, Entry[]>();
   private readonly pumps = new Map<string, Promise<void>>();
   private readonly sleepers = new Set<() => void>();
@@ -58,6 +62,11 @@ export class BatchSender {
   private closed = false;
   private readonly policy: RetryPolicy;
   private readonly mode: 'always' | 'on-failure';
+
+  /** What happened so far (the spool's own count of refused batches it aged out or capped included). */
+  get stats(): SenderStats {
+    return { ...this.counts, rejectedDropped: this.spool.rejectedDropped };
+  }
 
   private constructor(
     private readonly opts: BatchSenderOptions,
@@ -69,7 +78,7 @@ export class BatchSender {
 
   /** Opens the spool and starts replaying whatever an earlier run left there, in order. */
   static async open(opts: BatchSenderOptions): Promise<BatchSender> {
-    const spool = new BatchSpool(opts.spoolDir, opts.fsync ?? true);
+    const spool = new BatchSpool(opts.spoolDir, opts.fsync ?? true, { ...DEFAULT_REJECTED_LIMITS, ...opts.rejected });
     const sender = new BatchSender(opts, spool);
     const { batches, unreadable } = await spool.load();
     for (const u of unreadable) opts.onEvent?.({ kind: 'unreadable', ...u });
@@ -156,18 +165,18 @@ export class BatchSender {
       if (outcome.kind === 'accepted') {
         q.shift();
         if (e.file) await this.spool.remove({ file: e.file });
-        this.stats.accepted++;
-        if (outcome.repeat) this.stats.repeats++;
+        this.counts.accepted++;
+        if (outcome.repeat) this.counts.repeats++;
         this.opts.onEvent?.({ kind: 'accepted', ...ids, status: outcome.status, repeat: outcome.repeat, attempts: e.attempts });
       } else if (outcome.kind === 'rejected') {
         q.shift();
         const spoolFile = await this.spool.reject({ monitorId, seq: e.seq, file: e.file ?? this.spool.fileFor(monitorId, e.seq), batch: e.batch }, outcome);
-        this.stats.rejected++;
+        this.counts.rejected++;
         this.opts.onEvent?.({ kind: 'rejected', ...ids, reason: outcome.reason, status: outcome.status, answer: outcome.answer, spoolFile });
       } else {
         // The gateway is away: everything behind this batch goes to disk too, in order.
         for (const x of q) await this.persist(x);
-        this.stats.retries++;
+        this.counts.retries++;
         const delayMs = nextDelay(this.policy, e.attempts, outcome.retryAfterMs, this.opts.random);
         this.opts.onEvent?.({ kind: 'retrying', ...ids, attempt: e.attempts, delayMs, reason: outcome.reason, status: outcome.status, retryAfterMs: outcome.retryAfterMs });
         await this.sleep(delayMs);

@@ -6,7 +6,7 @@ import { BatchSender, type BatchSenderOptions } from './batch-sender';
 import { httpTransport, type HttpTransportOptions } from './http-transport';
 
 export { BatchSender, type BatchSenderOptions, type SenderEvent, type SenderStats } from './batch-sender';
-export { BatchSpool, type SpooledBatch } from './spool';
+export { BatchSpool, DEFAULT_REJECTED_LIMITS, type RejectedLimits, type SpooledBatch } from './spool';
 export { httpTransport, INGEST_PATH, type HttpTransportOptions } from './http-transport';
 export { SampleBatcher, type BatcherChannel, type SampleBatcherOptions } from './sample-batcher';
 export { DEFAULT_RETRY_POLICY, backoffDelay, nextDelay, parseRetryAfter, type RetryPolicy } from './retry-policy';

@@ -1,5 +1,5 @@
 import { randomBytes } from 'node:crypto';
-import { mkdir, open, readdir, readFile, rename, rm } from 'node:fs/promises';
+import { mkdir, open, readdir, readFile, rename, rm, stat } from 'node:fs/promises';
 import path from 'node:path';
 import type { IngestBatch } from '@ebbgate/shared';
 
@@ -8,8 +8,19 @@ import type { IngestBatch } from '@ebbgate/shared';
  * zero-padded sequence number so a directory listing is the send order. A file is written to a
  * temporary name, flushed and renamed (rename is atomic on one file system), so a crash leaves
  * either the whole batch or nothing. Batches the gateway refused for good move to `rejected/`
- * with the answer beside them: nothing is ever deleted unless it was accepted.
+ * with the answer beside them. A batch waiting to be sent is never deleted unless it was accepted;
+ * refused ones (kept for inspection only) are capped per monitor and aged out, so a gateway that
+ * refuses everything cannot fill the adapter's disk.
  */
+export interface RejectedLimits {
+  /** Refused batches kept per monitor (oldest go first). */
+  maxPerMonitor: number;
+  /** Refused batches older than this are removed, ms. */
+  maxAgeMs: number;
+}
+
+export const DEFAULT_REJECTED_LIMITS: RejectedLimits = { maxPerMonitor: 1000, maxAgeMs: 30 * 86_400_000 };
+
 export interface SpooledBatch {
   monitorId: string;
   seq: number;
@@ -23,9 +34,13 @@ const REJECTED = 'rejected';
 export class BatchSpool {
   private readonly nextSeq = new Map<string, number>();
 
+  /** Refused batches removed by the cap or the age limit since this spool was opened. */
+  rejectedDropped = 0;
+
   constructor(
     readonly dir: string,
     private readonly durable = true,
+    private readonly rejectedLimits: RejectedLimits = DEFAULT_REJECTED_LIMITS,
   ) {}
 
   monitorDir(monitorId: string): string {
@@ -62,6 +77,7 @@ export class BatchSpool {
         }
       }
       this.nextSeq.set(monitorId, Math.max(this.nextSeq.get(monitorId) ?? 0, max + 1));
+      await this.pruneRejected(monitorId);
     }
     batches.sort((a, b) => (a.monitorId === b.monitorId ? a.seq - b.seq : a.monitorId < b.monitorId ? -1 : 1));
     return { batches, unreadable };
@@ -89,7 +105,38 @@ export class BatchSpool {
       await writeAtomic(target, JSON.stringify(item.batch), this.durable);
     });
     await writeAtomic(path.join(dir, `${base}.answer.json`), JSON.stringify(answer, null, 2), this.durable);
+    await this.pruneRejected(item.monitorId);
     return target;
+  }
+
+  /** Applies the cap and the age limit to one monitor's `rejected/`; returns how many batches went. */
+  async pruneRejected(monitorId: string, now = Date.now()): Promise<number> {
+    const dir = path.join(this.monitorDir(monitorId), REJECTED);
+    const names = (await readdir(dir).catch(() => [] as string[])).filter((n) => /^\d+\.json$/.test(n)).sort();
+    const drop = new Set(names.slice(0, Math.max(0, names.length - this.rejectedLimits.maxPerMonitor)));
+    for (const n of names) {
+      if (drop.has(n)) continue;
+      const st = await stat(path.join(dir, n)).catch(() => null);
+      if (st && now - st.mtimeMs > this.rejectedLimits.maxAgeMs) drop.add(n);
+      else break; // sequence order is age order: the rest are newer
+    }
+    for (const n of drop) {
+      await rm(path.join(dir, n), { force: true });
+      await rm(path.join(dir, n.replace(/\.json$/, '.answer.json')), { force: true });
+    }
+    this.rejectedDropped += drop.size;
+    return drop.size;
+  }
+
+  /** Refused batches kept now, over all monitors. */
+  async rejectedCount(): Promise<number> {
+    let n = 0;
+    for (const entry of await readdir(this.dir, { withFileTypes: true }).catch(() => [])) {
+      if (!entry.isDirectory()) continue;
+      const names = await readdir(path.join(this.dir, entry.name, REJECTED)).catch(() => [] as string[]);
+      n += names.filter((x) => /^\d+\.json$/.test(x)).length;
+    }
+    return n;
   }
 
   /** Sequence number the next batch of this monitor will get (for memory-first queues). */

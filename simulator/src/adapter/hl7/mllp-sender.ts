@@ -1,4 +1,5 @@
 import net from 'node:net';
+import tls from 'node:tls';
 import { parseAck, type Hl7Ack } from './ack';
 import { frameMllp, MllpDeframer } from './mllp-frame';
 
@@ -8,6 +9,11 @@ export interface MllpSenderOptions {
   /** Time to wait for the ACK, ms (default 10 s). */
   ackTimeoutMs?: number;
   connectTimeoutMs?: number;
+  /**
+   * MLLP over TLS (1.2+) with a client certificate: the CA the gateway's certificate must chain
+   * to, and this adapter's certificate and key (PEM). The gateway identifies the adapter by it.
+   */
+  tls?: { ca: string | Buffer; cert: string | Buffer; key: string | Buffer; servername?: string };
 }
 
 /** The connection failed or the ACK never came: worth another try later. */
@@ -67,10 +73,13 @@ export class MllpSender {
     if (this.socket && !this.socket.destroyed) return Promise.resolve(this.socket);
     if (this.connecting) return this.connecting;
     this.connecting = new Promise<net.Socket>((resolve, reject) => {
-      const s = net.connect({ host: this.opts.host, port: this.opts.port });
+      const t = this.opts.tls;
+      const s: net.Socket = t
+        ? tls.connect({ host: this.opts.host, port: this.opts.port, ca: t.ca, cert: t.cert, key: t.key, servername: t.servername, minVersion: 'TLSv1.2' })
+        : net.connect({ host: this.opts.host, port: this.opts.port });
       s.setNoDelay(true);
       const timer = setTimeout(() => s.destroy(new Error('connect timeout')), this.opts.connectTimeoutMs ?? 5_000);
-      s.once('connect', () => {
+      s.once(t ? 'secureConnect' : 'connect', () => {
         clearTimeout(timer);
         this.socket = s;
         this.deframer = new MllpDeframer();

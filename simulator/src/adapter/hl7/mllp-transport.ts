@@ -66,8 +66,10 @@ export function oruFromBatch(batch: IngestBatch, opts: Omit<MllpTransportOptions
 
 /**
  * The same durable sender over HL7 v2/MLLP: AA/CA = accepted; AE/CE (and AR/CR) = refused with
- * the ERR reason; AR/CR with ERR-3 207 (application internal error) and lost connections are
- * retried, since the receiver's own trouble passes.
+ * the ERR reason; AR/CR with ERR-3 207 (application internal error: the receiver's storage is
+ * away, its backlog full), a NAK with an empty MSA-2 and lost connections are retried, since the
+ * receiver's own trouble passes: such batches stay in the spool, only refusals of the content
+ * itself go to `rejected/`.
  */
 export function mllpTransport(opts: MllpTransportOptions): BatchTransport {
   const senders = Array.from({ length: Math.max(1, opts.connections ?? 1) }, () => new MllpSender(opts));
@@ -83,6 +85,8 @@ export function mllpTransport(opts: MllpTransportOptions): BatchTransport {
       try {
         const ack = await senders[pin(batch.monitorId, senders.length)].send(message, batch.batchId);
         if (ack.accepted) return { kind: 'accepted', status: 0, repeat: false, detail: ack.code };
+        // A negative answer that does not echo our control id (MSA-2) is no verdict on this message.
+        if (!ack.controlId) return { kind: 'retry', reason: `${ackReason(ack)} (MSA-2 empty: not an answer to ${batch.batchId})` };
         const internal = (ack.code === 'AR' || ack.code === 'CR') && ack.errors.some((e) => e.code === '207');
         if (internal) return { kind: 'retry', reason: ackReason(ack) };
         return { kind: 'rejected', reason: ackReason(ack), answer: ack.raw };
