@@ -1,29 +1,31 @@
-import type { Role } from '@ebbgate/shared';
+import { rolesWith, type Permission as GatewayPermission, type Role } from '@ebbgate/shared';
 
 /**
- * What each role may see and do in the console. The gateway enforces the same rules; this only
- * keeps the console from offering what would be refused (mirrors gateway/src/auth/permissions.ts;
- * devices are readable by all, but only shown to those who manage them).
+ * What each role may see and do in the console, derived from the one permission table the
+ * gateway enforces (@ebbgate/shared, permissions.ts), so the console never offers what would be
+ * refused. A view may be narrower than its gateway permission (devices are readable by all, but
+ * only shown to those who manage them), never wider.
  */
-const ALL: readonly Role[] = ['admin', 'integrator', 'reviewer', 'operator'];
+const narrowed = (permission: GatewayPermission, shownTo: readonly Role[]) => rolesWith(permission).filter((r) => shownTo.includes(r));
+
 export const ACCESS = {
-  overview: ALL,
-  board: ALL,
-  assessments: ALL,
-  markInError: ['reviewer'],
-  testBench: ['integrator'],
-  devices: ['integrator', 'admin'],
-  manageDevices: ['integrator'],
-  deliveries: ['operator', 'reviewer', 'admin'],
-  manageDeliveries: ['operator'],
-  manageDestinations: ['operator'],
-  inbound: ['integrator', 'operator'],
-  reprocessInbound: ['integrator'],
-  discardInbound: ['integrator', 'operator'],
-  users: ['admin'],
-  audit: ['admin'],
-  settings: ALL,
-  manageSettings: ['admin'],
+  overview: rolesWith('overview.read'),
+  board: rolesWith('assessments.read'),
+  assessments: rolesWith('assessments.read'),
+  markInError: rolesWith('assessments.mark-in-error'),
+  testBench: rolesWith('analysis.preview'),
+  devices: narrowed('monitors.read', ['integrator', 'admin']),
+  manageDevices: rolesWith('monitors.write'),
+  deliveries: rolesWith('deliveries.read'),
+  manageDeliveries: rolesWith('deliveries.write'),
+  manageDestinations: rolesWith('destinations.write'),
+  inbound: rolesWith('inbound.read'),
+  reprocessInbound: rolesWith('inbound.reprocess'),
+  discardInbound: rolesWith('inbound.discard'),
+  users: rolesWith('users.read'),
+  audit: rolesWith('audit.read'),
+  settings: rolesWith('settings.read'),
+  manageSettings: rolesWith('settings.write'),
 } as const satisfies Record<string, readonly Role[]>;
 
 export type Permission = keyof typeof ACCESS;

@@ -48,6 +48,7 @@ export function fixtureWindow(opts: { rejected?: Record<number, Beat['rejectReas
       usable: reasons.length === 0, rejectReasons: reasons,
       ppv: reasons.length ? null : 11.8, spv: reasons.length ? null : 8, deltaPop: null, ppMax: 48, ppMin: 42.6, sbpMax: 119, sbpMin: 111, popMax: null, popMin: null,
       usedInWindow: reasons.length === 0 && c >= 1 && c <= 3,
+      variationAllBeats: reasons.length ? null : 11.8,
     });
   }
   const iv = (value: number | null, unit: string, cyclesUsed = 3) => ({ value, unit, spread: value === null ? null : 1.2, cyclesUsed });
@@ -69,11 +70,13 @@ export function fixtureWindow(opts: { rejected?: Record<number, Beat['rejectReas
     verdict: 'questionable',
     indexVerdicts: {},
     flags: [{ code: 'tidal-volume-unknown', severity: 'warning', direction: 'false-low', reason: 'Tidal volume not given: cannot check the 8 mL/kg PBW condition.' }],
-    arterialLine: { notchFraction: 0.9, dampingSuspected: false, flushSuspected: false },
+    arterialLine: { notchFraction: 0.9, dampingSuspected: false, underDampingSuspected: false, flushSuspected: false, flushTests: [], dampingEstimate: 'adequate', upstrokeSeconds: 0.12 },
     cautions: ['Decision support for trained clinicians only: Ebbgate does not diagnose and does not order fluid.', 'Defer to local protocols.'],
     bands: [{ id: 'ppv-grey-zone', index: 'ppv', lower: 9, upper: 13, unit: '%', label: 'Grey zone: inconclusive', source: 'Cannesson et al., Anesthesiology 2011 (from memory)' }],
     predictedBodyWeightKg: null,
     tidalVolumeMlPerKg: null,
+    respiratoryMechanics: null,
+    selection: { cyclesTotal: cycles.length, cyclesDropped: cycles.filter((c) => !c.usable).length, droppedFraction: cycles.filter((c) => !c.usable).length / cycles.length, ppvAllCycles: 11.8, pulsePressureDifference: 0 },
   };
   return { waveform, analysis };
 }

@@ -52,7 +52,7 @@ export async function getBoard(ctx: AppContext, query: BoardQuery, now = new Dat
     q('SELECT id, name, unit FROM bed ORDER BY unit, name'),
     q('SELECT id, identifier, bed_id, last_seen_at FROM monitor WHERE bed_id IS NOT NULL AND enabled = 1 ORDER BY last_seen_at DESC'),
     // Latest window per bed through the (bed_id, window_start) index; entered-in-error results do not count.
-    q(`SELECT a.id, a.bed_id, a.window_end, a.verdict, a.ppv, a.spv, a.delta_pop, a.patient_ref, a.flags, a.created_at,
+    q(`SELECT a.id, a.bed_id, a.window_end, a.verdict, a.ppv, a.spv, a.delta_pop, a.patient_ref, a.patient_name, a.patient_mrn, a.flags, a.created_at,
               JSON_EXTRACT(a.result, '$.flags') AS flag_detail,
               (SELECT COUNT(*) FROM delivery d WHERE d.assessment_id = a.id AND d.status = 'waiting-context') AS waiting
        FROM assessment a
@@ -104,8 +104,8 @@ export async function getBoard(ctx: AppContext, query: BoardQuery, now = new Dat
       bedName: String(b.name),
       unit: String(b.unit),
       patientRef: a?.patient_ref ? String(a.patient_ref) : null,
-      patientName: null,
-      patientMrn: null,
+      patientName: a?.patient_name ? String(a.patient_name) : null,
+      patientMrn: a?.patient_mrn ? String(a.patient_mrn) : null,
       monitor: monitor ? { id: String(monitor.id), identifier: String(monitor.identifier), lastSeenAt: iso(monitor.last_seen_at) } : null,
       state,
       stateReason: reason,

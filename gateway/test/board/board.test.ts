@@ -23,14 +23,14 @@ async function monitor(bedId: string | null, lastSeenAgoMs: number | null) {
   ]);
   return { id, identifier };
 }
-interface Win { verdict?: string; ppv?: number | null; hr?: number; flags?: { code: string; severity: string; reason: string }[]; patient?: string | null; monitorId: string }
+interface Win { verdict?: string; ppv?: number | null; hr?: number; flags?: { code: string; severity: string; reason: string }[]; patient?: string | null; name?: string; mrn?: string; monitorId: string }
 async function assessment(bedId: string, end: Date, w: Win) {
   const id = randomUUID();
   const flags = w.flags ?? [];
   await q(
-    `INSERT INTO assessment (id, monitor_id, bed_id, patient_ref, window_start, window_end, engine_version, verdict, ppv, spv, delta_pop, heart_rate, respiratory_rate, flags, result, created_at)
-     VALUES (?, ?, ?, ?, ?, ?, 'test', ?, ?, ?, NULL, ?, 14, ?, ?, NOW(3))`,
-    [id, w.monitorId, bedId, w.patient ?? null, new Date(end.getTime() - 10_000), end, w.verdict ?? 'valid', w.ppv ?? null, w.ppv === null || w.ppv === undefined ? null : w.ppv / 2, w.hr ?? 80, JSON.stringify(flags.map((f) => f.code)), JSON.stringify({ flags })],
+    `INSERT INTO assessment (id, monitor_id, bed_id, patient_ref, patient_name, patient_mrn, window_start, window_end, engine_version, verdict, ppv, spv, delta_pop, heart_rate, respiratory_rate, flags, result, created_at)
+     VALUES (?, ?, ?, ?, ?, ?, ?, ?, 'test', ?, ?, ?, NULL, ?, 14, ?, ?, NOW(3))`,
+    [id, w.monitorId, bedId, w.patient ?? null, w.name ?? null, w.mrn ?? null, new Date(end.getTime() - 10_000), end, w.verdict ?? 'valid', w.ppv ?? null, w.ppv === null || w.ppv === undefined ? null : w.ppv / 2, w.hr ?? 80, JSON.stringify(flags.map((f) => f.code)), JSON.stringify({ flags })],
   );
   return id;
 }
@@ -42,7 +42,7 @@ describe('beds board', () => {
     const m1 = await monitor(sending, 5_000);
     await assessment(sending, new Date(now - 60_000), { monitorId: m1.id, ppv: 20, patient: 'Patient/p1' });
     const latestId = await assessment(sending, new Date(now - 10_000), {
-      monitorId: m1.id, ppv: 12.5, verdict: 'questionable', patient: 'Patient/p1',
+      monitorId: m1.id, ppv: 12.5, verdict: 'questionable', patient: 'Patient/p1', name: 'Maren Quillfeather', mrn: 'HGH-400117',
       flags: [{ code: 'gap', severity: 'info', reason: 'short gap' }, { code: 'irregular-rhythm', severity: 'critical', reason: 'Beat intervals vary too much' }, { code: 'noise-motion', severity: 'warning', reason: 'motion' }],
     });
     const stale = await bed('T-02', 'Test ICU');
@@ -69,7 +69,10 @@ describe('beds board', () => {
     // The latest window, and its most severe flag (critical over warning over info) in words.
     expect(byName['T-01'].latest).toMatchObject({ assessmentId: latestId, verdict: 'questionable', ppv: 12.5, flagCount: 3, mainFlag: { code: 'irregular-rhythm', reason: 'Beat intervals vary too much' } });
     expect(byName['T-01'].latest.ageSeconds).toBeGreaterThanOrEqual(9);
-    expect(byName['T-01'].patientRef).toBe('Patient/p1');
+    expect(byName['T-01']).toMatchObject({ patientRef: 'Patient/p1', patientName: 'Maren Quillfeather', patientMrn: 'HGH-400117' });
+    // Found by patient name too.
+    const found = await reviewer.get('/api/v1/board?q=quillfeather').expect(200);
+    expect(found.body.items.map((t: { bedName: string }) => t.bedName)).toEqual(['T-01']);
     expect(byName['T-01'].monitor.identifier).toBe(m1.identifier);
     // Last hour in 5-minute buckets: both windows fall in the newest bucket(s), not-valid excluded from the mean.
     const trendValues = byName['T-01'].trend.filter((p: { ppv: number | null }) => p.ppv !== null).map((p: { ppv: number }) => p.ppv);

@@ -1,3 +1,4 @@
+import { PatientLabel } from '@/components/ui/patient';
 import { useState } from 'react';
 import { Link, useParams } from 'react-router-dom';
 import { useAuth } from '@/lib/auth';
@@ -27,7 +28,8 @@ export function AssessmentDetailRoute() {
   if (detail.isPending) return <LoadingState label="Loading assessment…" />;
   if (detail.error) return <ErrorState error={detail.error} onRetry={() => detail.refetch()} />;
   const { assessment: a, waveform, observations } = detail.data;
-  const patient = a.patientRef ?? observations.flatMap((o) => o.deliveries ?? []).find((d) => d.patientRef)?.patientRef ?? null;
+  const named = observations.flatMap((o) => o.deliveries ?? []).find((d) => d.patientRef);
+  const patient = { patientRef: a.patientRef ?? named?.patientRef ?? null, name: a.patientName ?? named?.patientName ?? null, mrn: a.patientMrn ?? named?.patientMrn ?? null };
 
   return (
     <>
@@ -43,7 +45,7 @@ export function AssessmentDetailRoute() {
       <div className="flex flex-col gap-3">
         <Panel title="Window">
           <DefinitionList items={[
-            ['Monitor', <span key="m" className="font-mono text-xs">{monitor.data?.identifier ?? a.monitorId}</span>], ['Bed', a.bedId ? <BedName key="b" id={a.bedId} /> : 'unassigned'], ['Patient', patient ?? '—'],
+            ['Monitor', <span key="m" className="font-mono text-xs">{monitor.data?.identifier ?? a.monitorId}</span>], ['Bed', a.bedId ? <BedName key="b" id={a.bedId} /> : 'unassigned'], ['Patient', <PatientLabel key="p" name={patient.name} mrn={patient.mrn} patientRef={patient.patientRef} />],
             ['Engine', a.engineVersion], ['EHR delivery', a.deliveryStatus ? <StatusBadge status={a.deliveryStatus} /> : '—'], ['Stored', formatDateTime(a.createdAt)],
           ]} />
         </Panel>

@@ -11,7 +11,7 @@ import { AssessmentDetailRoute } from './assessment-detail';
 afterEach(() => vi.unstubAllGlobals());
 
 const summary = (i: number) => ({
-  id: `a${i}`, monitorId: 'm1', bedId: 'b1', patientRef: 'HGH-1001', windowStart: '2026-12-01T21:00:00Z', windowEnd: '2026-12-01T21:01:00Z',
+  id: `a${i}`, monitorId: 'm1', bedId: 'b1', patientRef: 'HGH-1001', patientName: i === 0 ? 'Maren Quillfeather' : null, patientMrn: i === 0 ? 'HGH-400117' : null, windowStart: '2026-12-01T21:00:00Z', windowEnd: '2026-12-01T21:01:00Z',
   verdict: i % 2 ? 'not-valid' : 'valid', ppv: 11.8, spv: 8, deltaPop: null, perfusionIndex: null, heartRate: 75, respiratoryRate: 15,
   flags: ['tidal-volume-unknown'], engineVersion: '1.0.0', deliveryStatus: 'delivered', enteredInError: false, createdAt: '2026-12-01T21:01:01Z',
 });
@@ -29,7 +29,9 @@ describe('assessments list', () => {
   it('sends the filters to the server and shows the cautions above the values', async () => {
     const gw = gateway(['reviewer']);
     renderApp(<AssessmentsRoute />);
-    expect(await screen.findAllByText('HGH-1001')).toHaveLength(2);
+    // Named by the EHR: name and MRN; not yet named: the reference.
+    expect((await screen.findByText('Maren Quillfeather')).closest('[data-testid="patient-label"]')!.textContent).toBe('Maren Quillfeather · MRN HGH-400117');
+    expect(screen.getAllByText('HGH-1001')).toHaveLength(1);
     expect(screen.getByTestId('cautions').textContent).toContain(CAUTIONS[1]);
     await userEvent.selectOptions(screen.getByLabelText('Verdict'), 'questionable');
     await userEvent.selectOptions(screen.getByLabelText('Flag'), 'irregular-rhythm');

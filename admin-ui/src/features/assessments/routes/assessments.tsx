@@ -1,3 +1,4 @@
+import { PatientLabel } from '@/components/ui/patient';
 import { useMemo, useState } from 'react';
 import { Link, useNavigate } from 'react-router-dom';
 import type { AssessmentSummary } from '@ebbgate/shared';
@@ -34,7 +35,7 @@ export function AssessmentsRoute() {
   const columns: Column<AssessmentSummary>[] = [
     { key: 'windowStart', header: 'Window', sortField: 'windowStart', render: (a) => <Link className="num whitespace-nowrap text-ink-700 underline-offset-2 hover:underline" to={`/assessments/${a.id}`}>{formatDateTime(a.windowStart)}</Link> },
     { key: 'bed', header: 'Bed', render: (a) => (a.bedId ? bedName.get(a.bedId) ?? a.bedId : <span className="text-muted">unassigned</span>) },
-    { key: 'patient', header: 'Patient', sortField: 'patientRef', render: (a) => a.patientRef ?? <span className="text-muted">—</span> },
+    { key: 'patient', header: 'Patient', sortField: 'patientRef', render: (a) => <PatientLabel name={a.patientName} mrn={a.patientMrn} patientRef={a.patientRef} /> },
     { key: 'verdict', header: 'Verdict', sortField: 'verdict', render: (a) => <VerdictBadge verdict={a.verdict} /> },
     { key: 'ppv', header: 'PPV', sortField: 'ppv', className: 'text-right', render: (a) => <Value v={a.ppv} unit="%" notValid={a.verdict === 'not-valid'} /> },
     { key: 'spv', header: 'SPV', sortField: 'spv', className: 'text-right', render: (a) => <Value v={a.spv} unit="mmHg" notValid={a.verdict === 'not-valid'} /> },

@@ -1,6 +1,7 @@
 import { Link } from 'react-router-dom';
 import type { BedTile as Tile } from '@ebbgate/shared';
 import { StatusBadge, VerdictBadge } from '@/components/ui/badge';
+import { PatientLabel } from '@/components/ui/patient';
 import { VerdictValue } from '@/components/analysis/verdict-mark';
 import { formatDateTime, humanize } from '@/lib/format';
 import { MiniTrend } from './mini-trend';
@@ -10,12 +11,6 @@ export function formatAge(seconds: number): string {
   if (seconds < 90 * 60) return `${Math.round(seconds / 60)} min ago`;
   if (seconds < 48 * 3600) return `${Math.round(seconds / 3600)} h ago`;
   return `${Math.round(seconds / 86400)} d ago`;
-}
-
-/** Patient as people know them: name and MRN when the EHR gave them, else the reference. */
-export function patientLabel(t: Pick<Tile, 'patientName' | 'patientMrn' | 'patientRef'>): string {
-  if (t.patientName) return t.patientMrn ? `${t.patientName} · MRN ${t.patientMrn}` : t.patientName;
-  return t.patientRef ?? 'Patient not named yet';
 }
 
 /** One bed: who, which monitor, the latest values with their verdict, the main flag, the last hour. */
@@ -30,7 +25,7 @@ export function BedTile({ tile }: { tile: Tile }) {
             <Link to={`/board/beds/${encodeURIComponent(tile.bedId)}`} className="underline-offset-2 hover:underline">{tile.bedName}</Link>
             <span className="ml-1 text-xs font-normal text-muted">{tile.unit}</span>
           </h2>
-          <p className="truncate text-xs text-ink-800" data-testid="patient">{patientLabel(tile)}</p>
+          <p className="truncate text-xs text-ink-800" data-testid="patient">{tile.patientRef || tile.patientName ? <PatientLabel name={tile.patientName} mrn={tile.patientMrn} patientRef={tile.patientRef} /> : 'Patient not named yet'}</p>
         </div>
         <span title={tile.stateReason}><StatusBadge status={tile.state} /></span>
       </header>

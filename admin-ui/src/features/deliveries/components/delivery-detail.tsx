@@ -1,3 +1,4 @@
+import { PatientLabel } from '@/components/ui/patient';
 import { useState } from 'react';
 import { useMutation } from '@tanstack/react-query';
 import { errorMessage } from '@/lib/api-client';
@@ -33,7 +34,7 @@ export function DeliveryDetailDialog({ id, onClose, canManage }: { id: string | 
           <div className="flex flex-col gap-3">
             <DefinitionList items={[
               ['Status', <StatusBadge key="s" status={d.status} />], ['Index', `${d.index} (${d.kind})`], ['Destination', d.destinationId],
-              ['Patient', d.patientRef ?? '—'], ['Queued', formatDateTime(d.createdAt)], ['Delivered', formatDateTime(d.deliveredAt)],
+              ['Patient', <PatientLabel key="p" name={d.patientName} mrn={d.patientMrn} patientRef={d.patientRef} />], ['Queued', formatDateTime(d.createdAt)], ['Delivered', formatDateTime(d.deliveredAt)],
               ['Next attempt', formatDateTime(d.nextAttemptAt)], ['Last error', d.lastError ?? '—'], ...(d.discardReason ? [['Discard reason', d.discardReason] as [string, string]] : []),
             ]} />
             <div>

@@ -1,3 +1,4 @@
+import { PatientLabel } from '@/components/ui/patient';
 import { useState, type ReactNode } from 'react';
 import { Link } from 'react-router-dom';
 import { useAuth } from '@/lib/auth';
@@ -53,7 +54,7 @@ export function DeliveriesRoute({ destinations: destinationsPanel }: { destinati
     { key: 'status', header: 'Status', sortField: 'status', render: (d) => <StatusBadge status={d.status} /> },
     { key: 'index', header: 'Index', render: (d) => <span>{d.index}{d.kind === 'amend' ? <span className="text-xs text-muted"> (amend)</span> : null}</span> },
     { key: 'destination', header: 'Destination', render: (d) => destName.get(d.destinationId) ?? d.destinationId },
-    { key: 'patient', header: 'Patient', render: (d) => d.patientRef ?? <span className="text-muted">—</span> },
+    { key: 'patient', header: 'Patient', render: (d) => <PatientLabel name={d.patientName} mrn={d.patientMrn} patientRef={d.patientRef} /> },
     { key: 'attempts', header: 'Attempts', sortField: 'attemptCount', className: 'text-right', render: (d) => <span className="num">{d.attemptCount}</span> },
     { key: 'last', header: 'Last answer', render: (d) => <span className="text-xs">{d.lastHttpStatus ? <span className="num mr-1 font-medium">{d.lastHttpStatus}</span> : null}<span className="text-muted">{d.lastError ?? ''}</span></span> },
     { key: 'assessment', header: 'Assessment', render: (d) => <Link className="text-xs text-ink-700 underline" to={`/assessments/${d.assessmentId}`}>open</Link> },
