@@ -1,7 +1,8 @@
-import type { Server } from 'node:http';
+import { createServer, type Server } from 'node:http';
 import type { Logger } from 'pino';
 import type { DataSource } from 'typeorm';
 import type { AppContext } from './app-context';
+import { authenticate } from './auth/auth.middleware';
 import { buildCapabilities } from './capabilities';
 import type { Config } from './config/schema';
 import { createDataSource, migrateWith } from './db/data-source';
@@ -52,11 +53,18 @@ export async function startGateway(opts: GatewayOptions): Promise<RunningGateway
   const ctx: AppContext = { config, ds, logger };
   const metrics = createMetrics();
   const caps = buildCapabilities(ctx, metrics);
-  const app = createApp(ctx, { routers: caps.routers, rawBodyRouters: caps.rawBodyRouters, readiness: caps.readiness, metrics });
-  const server = await new Promise<Server>((resolve, reject) => {
-    const s = app.listen(config.gateway.port, config.gateway.host, (err?: Error) => (err ? reject(err) : resolve(s)));
+  const app = createApp(ctx, { routers: caps.routers, rawBodyRouters: caps.rawBodyRouters, readiness: caps.readiness, metrics, authenticate: authenticate(ctx) });
+  // Slow senders: the headers must arrive within headersTimeout and the whole request within
+  // requestTimeout (else 408 and the socket closes); checked every second, not Node's default 30 s.
+  const { headersTimeoutMs, requestTimeoutMs } = config.gateway;
+  const server = createServer({ headersTimeout: Math.min(headersTimeoutMs, requestTimeoutMs), requestTimeout: requestTimeoutMs, connectionsCheckingInterval: 1_000, keepAliveTimeout: 5_000 }, app);
+  await new Promise<void>((resolve, reject) => {
+    server.once('error', reject);
+    server.listen(config.gateway.port, config.gateway.host, () => {
+      server.off('error', reject);
+      resolve();
+    });
   });
-  server.keepAliveTimeout = 5_000;
   const runServices = opts.services ?? config.workers.enabled;
   if (runServices) for (const s of caps.services) await s.start();
   const address = server.address();

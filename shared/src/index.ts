@@ -10,3 +10,4 @@ export * from './schemas/settings';
 export * from './schemas/overview';
 export * from './schemas/board';
 export * from './schemas/delivery';
+export * from './permissions';

@@ -1,14 +1,6 @@
-import type { Role } from '@ebbgate/shared';
+import type { Principal } from '../http/principal';
 
-export type Principal =
-  | { kind: 'user'; userId: string; username: string; displayName: string; roles: Role[]; sessionId: string }
-  | { kind: 'device'; keyId: string; monitorId: string; monitorIdentifier: string };
-
-declare module 'express-serve-static-core' {
-  interface Request {
-    principal?: Principal;
-  }
-}
+export type { Principal } from '../http/principal';
 
 /** Who did it, as the audit log records it. */
 export function actorOf(principal: Principal | undefined): { actorType: 'user' | 'device' | 'system'; actorId: string | null; actorName: string | null } {

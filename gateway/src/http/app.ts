@@ -4,11 +4,12 @@ import cookieParser from 'cookie-parser';
 import express, { type Express, type RequestHandler, type Router } from 'express';
 import helmet from 'helmet';
 import type { AppContext, ReadinessCheck } from '../app-context';
-import { authenticate } from '../auth/auth.middleware';
 import { API_PAGE_CSS, buildOpenApi, renderApiPage } from './openapi';
 import { createMetrics, type Metrics } from './metrics';
 import { HttpProblem, notFoundHandler, problemHandler } from './problem';
 import { httpLogger } from './logger';
+import { metricsGuard, readinessHandler } from './ops';
+import { requestRateLimits } from './rate-limit';
 
 export const GATEWAY_VERSION = '0.1.0';
 
@@ -19,6 +20,11 @@ export interface AppParts {
   rawBodyRouters?: Router[];
   readiness?: ReadinessCheck[];
   metrics?: Metrics;
+  /**
+   * Finds who is calling and sets `req.principal` (auth's middleware, handed in so http does not
+   * import auth). Runs before any route, so authorisation happens before a body is read.
+   */
+  authenticate?: RequestHandler;
 }
 
 /** Strict CSP the console lives with: everything from our own origin, nothing inline. */
@@ -56,34 +62,20 @@ export function createApp(ctx: AppContext, parts: AppParts): Express {
   app.use(metrics.middleware);
 
   app.get('/healthz', (_req, res) => res.json({ status: 'alive', version: GATEWAY_VERSION }));
-  app.get('/readyz', async (_req, res) => {
-    const checks: ReadinessCheck[] = [
-      { name: 'database', critical: true, check: async () => void (await ctx.ds.query('SELECT 1')) },
-      ...(parts.readiness ?? []),
-    ];
-    const results = await Promise.all(
-      checks.map(async (c) => {
-        try {
-          await c.check();
-          return { name: c.name, critical: c.critical, ok: true };
-        } catch (err) {
-          return { name: c.name, critical: c.critical, ok: false, error: (err as Error).message };
-        }
-      }),
-    );
-    const ready = results.every((r) => r.ok || !r.critical);
-    res.status(ready ? 200 : 503).json({ status: ready ? 'ready' : 'not-ready', checks: results });
-  });
-  app.get('/metrics', async (_req, res) => {
+  const identify = parts.authenticate ?? ((_req, _res, next) => next());
+  app.get('/readyz', cookieParser(), readinessHandler(ctx, parts.readiness ?? [], identify));
+  app.get('/metrics', metricsGuard(ctx.config.gateway.metricsToken), async (_req, res) => {
     res.type(metrics.registry.contentType).send(await metrics.registry.metrics());
   });
 
+  // JSON is parsed by each route after its permission check (route.ts), never before.
+  app.locals.jsonParser = express.json({ limit: ctx.config.gateway.jsonBodyLimit });
   const api = express.Router();
+  api.use(...requestRateLimits(ctx.config.gateway.rateLimit));
   for (const r of parts.rawBodyRouters ?? []) api.use(r);
-  api.use(requireJsonBody);
-  api.use(express.json({ limit: ctx.config.gateway.jsonBodyLimit }));
   api.use(cookieParser());
-  api.use(authenticate(ctx));
+  api.use(identify);
+  api.use(requireJsonBody);
   for (const r of parts.routers) api.use(r);
   api.get('/openapi.json', (_req, res) => res.json(buildOpenApi(GATEWAY_VERSION)));
   api.use(notFoundHandler);

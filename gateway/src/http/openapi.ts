@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { PERMISSIONS, PUBLIC } from '../auth/permissions';
+import { PERMISSIONS, PUBLIC } from '@ebbgate/shared';
 import { problemSchema } from '@ebbgate/shared';
 import { ROUTES, type RouteSpec } from './route';
 

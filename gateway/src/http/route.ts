@@ -1,7 +1,7 @@
 import type { NextFunction, Request, Response, Router } from 'express';
 import type { z } from 'zod';
-import { PERMISSIONS, PUBLIC, allows, type Permission } from '../auth/permissions';
-import type { Principal } from '../auth/principal';
+import { PERMISSIONS, PUBLIC, allows, type Permission } from '@ebbgate/shared';
+import type { Principal } from './principal';
 import { HttpProblem, forbidden, unauthorized, zodFieldErrors } from './problem';
 
 type Method = 'get' | 'post' | 'put' | 'patch' | 'delete';
@@ -60,14 +60,32 @@ export function authorize(permission: Permission | typeof PUBLIC, principal: Pri
   }
 }
 
+/** The app's JSON body parser (set by createApp on `app.locals`), run only after the permission check. */
+const readJsonBody = (req: Request, res: Response, next: NextFunction) => {
+  const parse = req.app?.locals.jsonParser as ((req: Request, res: Response, next: NextFunction) => void) | undefined;
+  return parse ? parse(req, res, next) : next();
+};
+
 /**
  * Declares a route: permission, validation and documentation in one place. The handler gets
  * parsed input and returns the answer body; routes stay thin and call one service function.
+ * Order: permission check, then the route's own middleware (uploads), then the JSON body, then
+ * validation, so a caller without the permission is answered before a byte of its body is read
+ * (and the connection closed, so its body is not drained either).
  */
 export function defineRoute<B, Q, P>(router: Router, spec: RouteSpec<B, Q, P>): void {
   if (!ROUTES.some((r) => r.method === spec.method && r.path === spec.path)) ROUTES.push(spec);
+  const permit = (req: Request, res: Response, next: NextFunction) => {
+    try {
+      authorize(spec.permission, req.principal);
+      next();
+    } catch (err) {
+      const hasBody = Number(req.headers['content-length'] ?? 0) > 0 || req.headers['transfer-encoding'] !== undefined;
+      if (hasBody) res.setHeader('Connection', 'close');
+      next(err);
+    }
+  };
   const run = async (req: Request, res: Response) => {
-    authorize(spec.permission, req.principal);
     const ctx: RouteContext<B, Q, P> = {
       req,
       res,
@@ -81,5 +99,5 @@ export function defineRoute<B, Q, P>(router: Router, spec: RouteSpec<B, Q, P>): 
     if (result === undefined) res.status(spec.status ?? 204).end();
     else res.status(spec.status ?? 200).json(result);
   };
-  router[spec.method](spec.path, ...(spec.before ?? []), run);
+  router[spec.method](spec.path, permit, ...(spec.before ?? []), readJsonBody, run);
 }

@@ -38,7 +38,8 @@ export async function startTestGateway(overrides: Record<string, unknown> = {}, 
       {
         // The gateway runs as the data-only user; migrations run as the migration user.
         database: { url: db.runtimeUrl, migrationUrl: db.url, poolSize: 5 },
-        gateway: { port: 0, consoleDir: '/nonexistent' },
+        // Request rate limits high: suites fire many requests from one address (their own tests lower them).
+        gateway: { port: 0, consoleDir: '/nonexistent', rateLimit: { perSourcePerMinute: 1_000_000, perKeyPerMinute: 1_000_000 } },
         auth: { jwtSecret: randomBytes(32).toString('hex'), signInAttemptsPerMinute: 1000 },
         log: { level: 'silent' },
         mllp: { enabled: false, port: 0 },

@@ -28,7 +28,7 @@ export async function startStack(overrides: Record<string, unknown> = {}): Promi
     hl7ReceiverPort: 0,
     nodeEnv: 'test',
     logLevel: 'silent',
-    overrides: { auth: { signInAttemptsPerMinute: 1000 }, ...overrides },
+    overrides: { auth: { signInAttemptsPerMinute: 1000 }, gateway: { rateLimit: { perSourcePerMinute: 1_000_000, perKeyPerMinute: 1_000_000 } }, ...overrides },
   });
   return {
     gatewayUrl: stack.gatewayUrl,
