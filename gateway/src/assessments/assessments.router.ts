@@ -25,7 +25,7 @@ export function assessmentsRouter(ctx: AppContext): Router {
     summary: 'One assessment: full engine result, the waveform excerpt (same time base as beats and cycles), observations',
     params: idParam,
     response: assessmentDetailSchema,
-    handler: ({ params }) => getAssessment(ctx.ds, params.id),
+    handler: ({ params, principal, req }) => getAssessment(ctx.ds, params.id, { principal, requestId: String(req.id) }),
   });
   defineRoute(router, {
     method: 'post',

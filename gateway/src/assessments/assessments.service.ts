@@ -121,7 +121,7 @@ export async function listAssessments(ds: DataSource, q: AssessmentQuery): Promi
 }
 
 /** One assessment with what a reviewer plots: the window's samples on the result's time base. */
-export async function getAssessment(ds: DataSource, id: string) {
+export async function getAssessment(ds: DataSource, id: string, readBy: ChangeBy) {
   const raw = (await summaryQuery(ds)
     .addSelect('a.result', 'result')
     .addSelect('a.entered_in_error_by', 'enteredInErrorBy')
@@ -129,6 +129,8 @@ export async function getAssessment(ds: DataSource, id: string) {
     .where('a.id = :id', { id })
     .getRawOne()) as (SummaryRaw & { result: string; enteredInErrorBy: string | null; enteredInErrorReason: string | null }) | undefined;
   if (!raw) throw notFound(`Assessment ${id}`);
+  // Patient data: every read of an assessment's detail (waveform, result) is audited.
+  await recordAudit(ds.manager, { principal: readBy.principal, action: 'assessment.read', entityType: 'assessment', entityId: id, requestId: readBy.requestId });
   const statuses = await deliveryStatuses(ds, [id]);
   const { input } = await assembleWindow(ds, raw.monitorId, new Date(raw.windowStart), new Date(raw.windowEnd));
   const waveform: Waveform = {

@@ -28,7 +28,7 @@ export function inboundRouter(ctx: AppContext, service: IngestService, decoders:
     summary: 'One inbound message with its raw body',
     params: idParam,
     response: inboundMessageDetailSchema,
-    handler: ({ params }) => getInbound(ctx.ds, params.id),
+    handler: ({ params, principal, req }) => getInbound(ctx.ds, params.id, { principal, requestId: String(req.id) }),
   });
   defineRoute(router, {
     method: 'post',

@@ -49,9 +49,11 @@ export async function listInbound(ds: DataSource, q: InboundQuery): Promise<Page
   return { items: rows.map(toInboundMessage), page: q.page, pageSize: q.pageSize, total };
 }
 
-export async function getInbound(ds: DataSource, id: string): Promise<InboundMessageDetail> {
+export async function getInbound(ds: DataSource, id: string, readBy: ChangeBy): Promise<InboundMessageDetail> {
   const r = await ds.getRepository(InboundMessageRow).findOneBy({ id });
   if (!r) throw notFound(`Inbound message ${id}`);
+  // Patient data: every read of a raw inbound message is audited.
+  await recordAudit(ds.manager, { principal: readBy.principal, action: 'inbound.read-raw', entityType: 'inbound-message', entityId: id, requestId: readBy.requestId });
   return {
     ...toInboundMessage(r),
     raw: r.raw.subarray(0, RAW_SHOWN).toString('utf8'),
