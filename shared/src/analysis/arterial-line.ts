@@ -62,7 +62,11 @@ export function checkArterialLine(ch: ConditionedChannel, series: BeatSeries, no
   // Beat shape (checked on a second-order catheter model over fn 5–25 Hz, ζ 0.05–1.6 in the tests):
   // over-damping removes the notch and stretches the upstroke; under-damping rings on the peak.
   const underByShape = ringExamined >= 5 && ringing / ringExamined >= 0.5;
-  const overByShape = !underByShape && notchFraction !== null && rise !== null && notchFraction < 0.3 && rise > 0.145;
+  const ibis = beats.filter((b) => b.accepted && b.ibi !== null).map((b) => b.ibi as number);
+  const interval = ibis.length ? median(ibis) : null;
+  // A slow upstroke: over 0.145 s, or over 0.12 s and a quarter of the beat interval at fast rates.
+  const slow = rise !== null && (rise > 0.145 || (rise > 0.12 && interval !== null && rise > 0.25 * interval));
+  const overByShape = !underByShape && notchFraction !== null && notchFraction < 0.3 && slow;
   const dampingEstimate: DampingEstimate = notchFraction === null || rise === null ? 'unknown' : underByShape ? 'under-damped' : overByShape ? 'over-damped' : 'adequate';
   // Flush: a plateau above 250 mmHg lasting 0.3 s (runs measured during conditioning).
   const flushSuspected = ch.longestHighRun >= Math.round(0.3 * fs);
