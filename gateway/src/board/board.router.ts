@@ -1,10 +1,10 @@
 import { Router } from 'express';
 import { z } from 'zod';
-import { bedTrendSchema, boardQuerySchema, boardSchema, trendQuerySchema } from '@ebbgate/shared';
+import { bedTrendSchema, boardQuerySchema, boardSchema, latestFlushTestSchema, trendQuerySchema } from '@ebbgate/shared';
 import type { AppContext } from '../app-context';
 import { defineRoute } from '../http/route';
 import { getBoard } from './board.service';
-import { getBedTrend, trendCsv } from './trend.service';
+import { getBedTrend, latestFlushTest, trendCsv } from './trend.service';
 
 const bedParams = z.object({ bedId: z.string().min(1).max(64) });
 
@@ -44,6 +44,16 @@ export function boardRouter(ctx: AppContext): Router {
       const trend = await getBedTrend(ctx, params.bedId, query);
       res.type('text/csv').attachment(`trend-${trend.bed.name}-${trend.to.slice(0, 16).replace(/:/g, '')}.csv`).send(trendCsv(trend));
     },
+  });
+  defineRoute(router, {
+    method: 'get',
+    path: '/board/monitors/:monitorId/flush-test',
+    permission: 'assessments.read',
+    tag: 'board',
+    summary: "The latest flush test measured on a monitor's arterial line in the last day (natural frequency, damping ratio, Gardner chart region)",
+    params: z.object({ monitorId: z.string().min(1).max(64) }),
+    response: latestFlushTestSchema,
+    handler: async ({ params }) => ({ latest: await latestFlushTest(ctx, params.monitorId) }),
   });
   return router;
 }

@@ -85,11 +85,6 @@ export async function getBedTrend(ctx: AppContext, bedId: string, query: TrendQu
     if (a.monitor_id !== b.monitor_id) events.push({ t: raw[i]!.t, kind: 'bed-transfer', label: 'Another monitor in this bed', assessmentId: String(b.id) });
     else if (a.patient_ref && b.patient_ref && a.patient_ref !== b.patient_ref) events.push({ t: raw[i]!.t, kind: 'bed-transfer', label: 'Another patient in this bed', assessmentId: String(b.id) });
   }
-  for (const [i, r] of rows.entries()) {
-    const flags = parseJson<string[]>(r.flags, []);
-    const prevFlags = i > 0 ? parseJson<string[]>(rows[i - 1]!.flags, []) : [];
-    if (flags.includes('arterial-flush') && !prevFlags.includes('arterial-flush')) events.push({ t: raw[i]!.t, kind: 'flush-test', label: 'Flush seen on the arterial line', assessmentId: String(r.id) });
-  }
   const monitorIds = [...new Set(rows.map((r) => String(r.monitor_id)))];
   if (monitorIds.length) {
     const ctxRows = (await ctx.ds.query(
@@ -98,7 +93,7 @@ export async function getBedTrend(ctx: AppContext, bedId: string, query: TrendQu
     )) as Row[];
     events.push(...contextEvents(ctxRows.map((r) => ({ t: new Date(r.batch_start as Date), context: parseJson<Ctx>(r.context, {}) }))));
   }
-  events.push(...(await challengeEvents(ctx, String(bed.id), from, to)));
+  events.push(...challengeSteps(events), ...(await challengeEvents(ctx, String(bed.id), from, to)));
   events.sort((x, y) => x.t.localeCompare(y.t));
 
   const settings = await getSiteSettings(ctx);
@@ -117,23 +112,69 @@ export async function getBedTrend(ctx: AppContext, bedId: string, query: TrendQu
   };
 }
 
-/** Windows where the engine judged a tidal volume challenge or a flush test (when its result carries them). */
+/**
+ * Flush tests the engine measured (windows flagged with a flush, then their flushTests) and the
+ * tidal volume challenges the engine judged where a result carries one. Only flagged windows are
+ * opened, so a 48-h span does not parse every stored result.
+ */
 async function challengeEvents(ctx: AppContext, bedId: string, from: Date, to: Date): Promise<TrendEvent[]> {
   const rows = (await ctx.ds.query(
-    `SELECT id, window_end, JSON_EXTRACT(result, '$.tidalVolumeChallenge') AS ch, JSON_EXTRACT(result, '$.flushTest') AS ft
+    `SELECT id, window_end, flags, JSON_EXTRACT(result, '$.arterialLine.flushTests') AS ft, JSON_EXTRACT(result, '$.tidalVolumeChallenge') AS ch
      FROM assessment WHERE bed_id = ? AND window_start >= ? AND window_start < ? AND entered_in_error_at IS NULL
-       AND (JSON_EXTRACT(result, '$.tidalVolumeChallenge') IS NOT NULL OR JSON_EXTRACT(result, '$.flushTest') IS NOT NULL)`,
+       AND (flags LIKE '%"arterial-flush"%' OR flags LIKE '%"arterial-underdamped"%' OR flags LIKE '%"arterial-damped"%')`,
     [bedId, from, to],
   )) as Row[];
   const out: TrendEvent[] = [];
   for (const r of rows) {
     const t = new Date(r.window_end as Date).toISOString();
-    const ch = parseJson<Record<string, unknown> | null>(r.ch, null);
-    if (ch && typeof ch === 'object') out.push({ t, kind: 'tidal-volume-challenge', label: `Tidal volume challenge${typeof ch.verdict === 'string' ? `: ${ch.verdict}` : ''}`, assessmentId: String(r.id) });
-    const ft = parseJson<Record<string, unknown> | null>(r.ft, null);
-    if (ft && typeof ft === 'object') out.push({ t, kind: 'flush-test', label: 'Flush test', assessmentId: String(r.id) });
+    const tests = parseJson<{ naturalFrequencyHz: number | null; dampingRatio: number | null; regionText?: string }[] | null>(r.ft, null);
+    if ((!Array.isArray(tests) || tests.length === 0) && parseJson<string[]>(r.flags, []).includes('arterial-flush'))
+      out.push({ t, kind: 'flush-test', label: 'Flush seen on the arterial line (not measured)', assessmentId: String(r.id) });
+    for (const f of Array.isArray(tests) ? tests : []) {
+      const fn = f.naturalFrequencyHz === null ? 'fn —' : `fn ${f.naturalFrequencyHz.toFixed(1)} Hz`;
+      const z = f.dampingRatio === null ? 'ζ —' : `ζ ${f.dampingRatio.toFixed(2)}`;
+      out.push({ t, kind: 'flush-test', label: `Flush test: ${fn}, ${z}${f.regionText ? ` — ${f.regionText}` : ''}`, assessmentId: String(r.id) });
+    }
+    const ch = parseJson<{ verdict?: string } | null>(r.ch, null);
+    if (ch && typeof ch === 'object') out.push({ t, kind: 'tidal-volume-challenge', label: `Tidal volume challenge${ch.verdict ? `: ${ch.verdict}` : ''}`, assessmentId: String(r.id) });
   }
   return out;
+}
+
+/** A raise of tidal volume undone within minutes reads as a tidal volume challenge (its judgement is the engine's). */
+export function challengeSteps(events: TrendEvent[], maxHoldMs = 5 * 60_000): TrendEvent[] {
+  const tv = events.filter((e) => e.kind === 'tidal-volume');
+  const out: TrendEvent[] = [];
+  const vol = (label: string) => label.match(/(\d+(?:\.\d+)?) → (\d+(?:\.\d+)?)/);
+  for (let i = 0; i + 1 < tv.length; i++) {
+    const up = vol(tv[i]!.label);
+    const down = vol(tv[i + 1]!.label);
+    if (!up || !down) continue;
+    const [a, b] = [Number(up[1]), Number(up[2])];
+    const [c, d] = [Number(down[1]), Number(down[2])];
+    const held = Date.parse(tv[i + 1]!.t) - Date.parse(tv[i]!.t);
+    if (b > a && c === b && d < c && held <= maxHoldMs) out.push({ t: tv[i]!.t, kind: 'tidal-volume-challenge', label: `Tidal volume raised ${a} → ${b} mL for ${Math.round(held / 1000)} s`, assessmentId: null });
+  }
+  return out;
+}
+
+/** The latest flush test the engine measured on a monitor's arterial line, within the last day. */
+export async function latestFlushTest(ctx: AppContext, monitorId: string) {
+  const since = new Date(Date.now() - 24 * 3_600_000);
+  const rows = (await ctx.ds.query(
+    `SELECT a.id, a.window_end, JSON_EXTRACT(a.result, '$.arterialLine.flushTests') AS ft, JSON_EXTRACT(a.result, '$.arterialLine.dampingEstimate') AS de
+     FROM assessment a JOIN monitor m ON m.id = a.monitor_id
+     WHERE (m.id = ? OR m.identifier = ?) AND a.window_start >= ? AND a.entered_in_error_at IS NULL AND a.flags LIKE '%"arterial-%'
+     ORDER BY a.window_start DESC LIMIT 200`,
+    [monitorId, monitorId, since],
+  )) as Row[];
+  for (const r of rows) {
+    const tests = parseJson<unknown[] | null>(r.ft, null);
+    if (Array.isArray(tests) && tests.length > 0) {
+      return { assessmentId: String(r.id), windowEnd: new Date(r.window_end as Date).toISOString(), flushTest: tests[tests.length - 1] as Record<string, unknown>, dampingEstimate: parseJson<string | null>(r.de, null) };
+    }
+  }
+  return null;
 }
 
 const CSV_COLUMNS = ['t', 'assessmentId', 'verdict', 'ppv', 'spv', 'deltaPop', 'heartRate', 'respiratoryRate', 'windows'] as const;

@@ -152,3 +152,40 @@ describe('bed trend', () => {
     expect(lines[1]!.split(',')[3]).toBe(String(res.body.points[0].ppv));
   }, 60_000);
 });
+
+describe('line checks and context on the trend', () => {
+  it('gives the latest flush test of a monitor with its Gardner region in words, and marks it and context changes on the trend', async () => {
+    const b = await bed('LC-01', 'Line unit');
+    const m = await monitor(b, 1000);
+    const t0 = Date.now() - 20 * 60_000;
+    const flush = { releaseTime: 4.2, naturalFrequencyHz: 18.5, dampingRatio: 0.42, amplitudeRatio: 0.23, oscillations: 3, region: 'optimal', regionText: 'optimal: natural frequency and damping ratio in the optimal region of the Gardner chart' };
+    const older = { ...flush, naturalFrequencyHz: 9.1, dampingRatio: 0.2, region: 'under-damped', regionText: 'under-damped' };
+    for (const [i, f] of [older, flush].entries()) {
+      await q(
+        `INSERT INTO assessment (id, monitor_id, bed_id, window_start, window_end, engine_version, verdict, flags, result, created_at) VALUES (?, ?, ?, ?, ?, 'test', 'questionable', '["arterial-flush"]', ?, NOW(3))`,
+        [randomUUID(), m.id, b, new Date(t0 + i * 60_000), new Date(t0 + i * 60_000 + 10_000), JSON.stringify({ flags: [], arterialLine: { flushTests: [f], dampingEstimate: 'adequate' } })],
+      );
+    }
+    // Context as the monitor sent it: tidal volume 6 → 8 mL/kg for a minute and back (a challenge), then a vasopressor.
+    const ctxAt = [[0, { tidalVolumeMl: 420 }], [60, { tidalVolumeMl: 560 }], [120, { tidalVolumeMl: 420 }], [180, { tidalVolumeMl: 420, vasopressorRunning: false }], [240, { tidalVolumeMl: 420, vasopressorRunning: true }]] as const;
+    for (const [s, c] of ctxAt) {
+      await q(`INSERT INTO inbound_message (received_at, transport, outcome, monitor_id, size_bytes, raw, batch_start, context) VALUES (NOW(3), 'http', 'accepted', ?, 2, 'x', ?, ?)`, [m.id, new Date(t0 + s * 1000), JSON.stringify(c)]);
+    }
+    const reviewer = await gw.signIn('reviewer');
+    const res = await reviewer.get(`/api/v1/board/monitors/${m.identifier}/flush-test`).expect(200);
+    expect(res.body.latest.flushTest).toMatchObject({ naturalFrequencyHz: 18.5, dampingRatio: 0.42, region: 'optimal' });
+    const none = await reviewer.get(`/api/v1/board/monitors/${randomUUID()}/flush-test`).expect(200);
+    expect(none.body.latest).toBeNull();
+
+    const trend = await reviewer.get(`/api/v1/board/beds/${b}/trend?hours=1`).expect(200);
+    const kinds = trend.body.events.map((e: { kind: string; label: string }) => `${e.kind}: ${e.label}`);
+    expect(kinds).toEqual(expect.arrayContaining([
+      'tidal-volume: Tidal volume 420 → 560 mL',
+      'tidal-volume: Tidal volume 560 → 420 mL',
+      'tidal-volume-challenge: Tidal volume raised 420 → 560 mL for 60 s',
+      'vasopressor: Vasopressor started',
+    ]));
+    expect(kinds.filter((k: string) => k.startsWith('flush-test'))).toHaveLength(2);
+    expect(kinds.some((k: string) => k.includes('fn 18.5 Hz, ζ 0.42'))).toBe(true);
+  });
+});

@@ -119,3 +119,24 @@ export const bedTrendSchema = z.object({
   greyZone: z.object({ lower: z.number().nullable(), upper: z.number().nullable(), label: z.string(), source: z.string() }).nullable(),
 });
 export type BedTrend = z.infer<typeof bedTrendSchema>;
+
+/** The latest flush test of a monitor's arterial line (engine's FlushTestResult), or null. */
+export const latestFlushTestSchema = z.object({
+  latest: z
+    .object({
+      assessmentId: z.string(),
+      windowEnd: z.string(),
+      flushTest: z.object({
+        releaseTime: z.number(),
+        naturalFrequencyHz: z.number().nullable(),
+        dampingRatio: z.number().nullable(),
+        amplitudeRatio: z.number().nullable(),
+        oscillations: z.number(),
+        region: z.string(),
+        regionText: z.string(),
+      }),
+      dampingEstimate: z.string().nullable(),
+    })
+    .nullable(),
+});
+export type LatestFlushTest = z.infer<typeof latestFlushTestSchema>;
