@@ -13,8 +13,10 @@ export const NODE_RUNTIME_FLAGS = ['--enable-source-maps', '--conditions=ebbgate
 
 export interface ChildSpec {
   name: string;
-  /** Compiled entry file (absolute). */
-  script: string;
+  /** Compiled entry file (absolute), run with `node NODE_RUNTIME_FLAGS`. */
+  script?: string;
+  /** Or a command line (from a systemd unit, or HAProxy); Node gets the IPC channel all the same. */
+  command?: { file: string; args: string[] };
   env: Record<string, string>;
   /** Where stdout/stderr go: a log file (appended), or the launcher's console with a name prefix. */
   logFile?: string;
@@ -47,9 +49,10 @@ export function supervise(spec: ChildSpec, log: (m: string) => void): Supervised
   };
 
   const launch = async (): Promise<void> => {
-    const c = spawn(process.execPath, [...NODE_RUNTIME_FLAGS, spec.script], {
+    const [file, args] = spec.command ? [spec.command.file, spec.command.args] : [process.execPath, [...NODE_RUNTIME_FLAGS, spec.script!]];
+    const c = spawn(file, args, {
       env: { ...process.env, ...spec.env },
-      stdio: ['ignore', 'pipe', 'pipe', 'ipc'],
+      stdio: file === process.execPath ? ['ignore', 'pipe', 'pipe', 'ipc'] : ['ignore', 'pipe', 'pipe'],
       // Own process group: a terminal Ctrl-C reaches only the launcher, which stops the parts in order.
       detached: true,
     });
