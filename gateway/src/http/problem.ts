@@ -59,7 +59,8 @@ export function problemHandler(logger: Logger): ErrorRequestHandler {
       req.socket.destroy();
       return;
     }
-    const instance = req.originalUrl;
+    // Without the query string: it can carry search terms such as a patient's name.
+    const instance = req.originalUrl.split('?')[0];
     if (err instanceof HttpProblem) {
       if (err.status >= 500) logger.error({ err, reqId: req.id }, err.message);
       else logger.debug({ status: err.status, reqId: req.id, detail: err.detail }, err.title);
