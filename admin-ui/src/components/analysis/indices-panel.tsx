@@ -19,7 +19,7 @@ function IndexRow({ name, value, verdict, band }: { name: IndexName; value: Inde
   return (
     <tr className="border-t border-line/70" data-index={name}>
       <th scope="row" className="py-1 pr-3 text-left font-medium">{INDEX_LABELS[name]}</th>
-      <td className={`num py-1 pr-3 text-right text-base font-semibold ${notValid ? 'text-muted line-through decoration-error/60' : ''}`}>
+      <td className={`num py-1 pr-3 text-right text-base font-semibold ${notValid ? 'text-notvalid line-through decoration-notvalid/70' : ''}`}>
         {value.value === null ? '—' : `${formatNumber(value.value, name === 'hrRrRatio' ? 2 : 1)}`}
         <span className="ml-1 text-xs font-normal text-muted no-underline">{value.value === null ? '' : displayUnit(value.unit)}</span>
       </td>

@@ -1,4 +1,6 @@
 import { PatientLabel } from '@/components/ui/patient';
+import { ChallengePanel, LineChecks, MechanicsPanel } from '@/components/analysis/line-checks';
+import type { TidalVolumeChallengeResult } from '@/lib/analysis';
 import { useState } from 'react';
 import { Link, useParams } from 'react-router-dom';
 import { useAuth } from '@/lib/auth';
@@ -28,6 +30,8 @@ export function AssessmentDetailRoute() {
   if (detail.isPending) return <LoadingState label="Loading assessment…" />;
   if (detail.error) return <ErrorState error={detail.error} onRetry={() => detail.refetch()} />;
   const { assessment: a, waveform, observations } = detail.data;
+  // The engine's challenge result, where the gateway attaches one to the window (or keeps it in the result).
+  const challenge = ((a as { tidalVolumeChallenge?: TidalVolumeChallengeResult | null }).tidalVolumeChallenge ?? (a.result as { tidalVolumeChallenge?: TidalVolumeChallengeResult | null }).tidalVolumeChallenge) ?? null;
   const named = observations.flatMap((o) => o.deliveries ?? []).find((d) => d.patientRef);
   const patient = { patientRef: a.patientRef ?? named?.patientRef ?? null, name: a.patientName ?? named?.patientName ?? null, mrn: a.patientMrn ?? named?.patientMrn ?? null };
 
@@ -51,6 +55,11 @@ export function AssessmentDetailRoute() {
         </Panel>
         <Panel title="Waveform of the stored window"><WaveformPlot waveform={waveform} analysis={a.result} /></Panel>
         <Panel title="Indices"><IndicesPanel analysis={a.result} /></Panel>
+        {challenge && <Panel title="Tidal volume challenge"><ChallengePanel challenge={challenge} /></Panel>}
+        <div className="grid gap-3 lg:grid-cols-2">
+          <Panel title="Respiratory mechanics"><MechanicsPanel mechanics={a.result.respiratoryMechanics ?? null} /></Panel>
+          <Panel title="Arterial line checks"><LineChecks flushTests={a.result.arterialLine?.flushTests ?? []} dampingEstimate={a.result.arterialLine?.dampingEstimate ?? null} /></Panel>
+        </div>
         <Panel title="Respiratory cycles"><CyclesTable analysis={a.result} /></Panel>
         <Panel title="Sent to the EHR"><ObservationsSent observations={observations} attemptsLink={can('deliveries') ? `/deliveries?assessment=${encodeURIComponent(a.id)}` : undefined} /></Panel>
       </div>

@@ -20,7 +20,7 @@ const VERDICT_OPTIONS = [{ value: 'valid', label: 'Valid' }, { value: 'questiona
 
 function Value({ v, unit, notValid }: { v: number | null; unit: string; notValid: boolean }) {
   if (v === null) return <span className="text-muted">—</span>;
-  return <span className={`num ${notValid ? 'text-muted line-through decoration-error/60' : ''}`} title={notValid ? 'Not valid: see the flags' : undefined}>{formatNumber(v)}<span className="ml-0.5 text-xs text-muted">{unit}</span></span>;
+  return <span className={`num ${notValid ? 'text-notvalid line-through decoration-notvalid/70' : ''}`} title={notValid ? 'Not valid: see the flags' : undefined}>{formatNumber(v)}<span className="ml-0.5 text-xs text-muted">{unit}</span></span>;
 }
 
 export function AssessmentsRoute() {

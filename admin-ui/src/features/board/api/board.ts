@@ -1,6 +1,7 @@
 import { keepPreviousData, useQuery } from '@tanstack/react-query';
 import type { BedDataState, BedTrend, Board } from '@ebbgate/shared';
 import { api, buildUrl } from '@/lib/api-client';
+import type { TidalVolumeChallengeResult } from '@/lib/analysis';
 
 export interface BoardFilters { unit?: string; state?: BedDataState; q?: string; page: number; pageSize: number }
 
@@ -33,4 +34,16 @@ export function useBedTrend(bedId: string, hours: number) {
 
 export function trendCsvUrl(bedId: string, hours: number): string {
   return buildUrl(`/board/beds/${encodeURIComponent(bedId)}/trend.csv`, { hours });
+}
+
+/** The engine's challenge result of one assessment (for the challenge panel on the trend). */
+export function useChallengeOf(assessmentId: string | null) {
+  return useQuery({
+    queryKey: ['assessments', assessmentId, 'challenge'],
+    enabled: Boolean(assessmentId),
+    queryFn: async ({ signal }) => {
+      const d = await api.get<{ assessment: { tidalVolumeChallenge?: TidalVolumeChallengeResult | null; result: { tidalVolumeChallenge?: TidalVolumeChallengeResult | null } } }>(`/assessments/${encodeURIComponent(assessmentId!)}`, undefined, signal);
+      return d.assessment.tidalVolumeChallenge ?? d.assessment.result.tidalVolumeChallenge ?? null;
+    },
+  });
 }

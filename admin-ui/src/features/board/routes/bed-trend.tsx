@@ -5,11 +5,32 @@ import { PageHeader, Panel } from '@/components/ui/page';
 import { ErrorState, LoadingState } from '@/components/ui/states';
 import { Cautions } from '@/components/analysis/cautions';
 import { VerdictLegend } from '@/components/analysis/verdict-mark';
-import { trendCsvUrl, useBedTrend } from '../api/board';
+import type { BedTrend } from '@ebbgate/shared';
+import { ChallengePanel } from '@/components/analysis/line-checks';
+import { trendCsvUrl, useBedTrend, useChallengeOf } from '../api/board';
 import { TREND_SERIES, TrendChart, type SeriesKey } from '../components/trend-chart';
 import { TrendTable } from '../components/trend-table';
 
 export const SPANS = [1, 3, 6, 12, 24, 48] as const;
+
+/** The latest judged challenge in the span, as its assessment carries it; raises without a judgement are listed. */
+function ChallengesOnTrend({ events }: { events: BedTrend['events'] }) {
+  const challenges = events.filter((e) => e.kind === 'tidal-volume-challenge');
+  const judged = [...challenges].reverse().find((e) => e.assessmentId);
+  const result = useChallengeOf(judged?.assessmentId ?? null);
+  if (challenges.length === 0) return null;
+  return (
+    <div className="mt-3">
+      <Panel title="Tidal volume challenges">
+        <ul className="mb-2 text-sm" aria-label="Tidal volume challenges in the span">
+          {challenges.map((e, i) => <li key={i}><span className="text-xs text-muted">{formatDateTime(e.t)}</span> {e.label}</li>)}
+        </ul>
+        {judged && result.data && <ChallengePanel challenge={result.data} />}
+        {!judged && <p className="text-xs text-muted">The engine has not judged these raises; open the windows after each to read PPV.</p>}
+      </Panel>
+    </div>
+  );
+}
 
 /** One bed over hours: the indices with their verdicts, the grey zone, what changed and when. */
 export function BedTrendRoute() {
@@ -81,6 +102,7 @@ export function BedTrendRoute() {
           )}
         </Panel>
       </div>
+      <ChallengesOnTrend events={t.events} />
       <div className="mt-3"><Cautions compact /></div>
     </>
   );

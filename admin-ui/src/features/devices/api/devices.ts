@@ -1,5 +1,5 @@
 import { keepPreviousData, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
-import type { ApiKeyIssued, Bed, BedInput, CreateMonitor, Monitor, MonitorProfile, MonitorProfileInput, Page, UpdateMonitor } from '@ebbgate/shared';
+import type { ApiKeyIssued, Bed, BedInput, CreateMonitor, Monitor, MonitorProfile, MonitorProfileInput, Page, UpdateMonitor, LatestFlushTest } from '@ebbgate/shared';
 import { api, type Query } from '@/lib/api-client';
 
 export const profileKeys = {
@@ -81,4 +81,9 @@ export function useSaveBed() {
 export function useDeleteBed() {
   const qc = useQueryClient();
   return useMutation({ mutationFn: (id: string) => api.delete<void>(`/beds/${enc(id)}`), onSuccess: () => qc.invalidateQueries({ queryKey: bedKeys.all }) });
+}
+
+/** The latest flush test measured on a monitor's arterial line (GET /board/monitors/:id/flush-test). */
+export function useLatestFlushTest(monitorId: string) {
+  return useQuery({ queryKey: ['monitors', monitorId, 'flush-test'], queryFn: ({ signal }) => api.get<LatestFlushTest>(`/board/monitors/${encodeURIComponent(monitorId)}/flush-test`, undefined, signal) });
 }

@@ -18,6 +18,7 @@ function gateway() {
     if (c.url.pathname === '/api/v1/auth/session') return { body: SESSION(['integrator']) };
     if (c.url.pathname === '/api/v1/profiles') return { body: { items: [{ id: 'p1', name: 'Bay monitor' }], page: 1, pageSize: 500, total: 1 } };
     if (c.url.pathname === '/api/v1/beds') return { body: { items: [], page: 1, pageSize: 500, total: 0 } };
+    if (c.url.pathname === '/api/v1/board/monitors/m3/flush-test') return { body: { latest: { assessmentId: 'a9', windowEnd: '2026-12-01T21:00:00Z', dampingEstimate: 'adequate', flushTest: { releaseTime: 3, naturalFrequencyHz: 21.4, dampingRatio: 0.31, amplitudeRatio: 0.36, oscillations: 3, region: 'adequate', regionText: 'adequate region of the Gardner chart' } } } };
     if (c.url.pathname === '/api/v1/monitors') {
       const page = Number(c.url.searchParams.get('page'));
       return { body: { items: Array.from({ length: 25 }, (_, i) => monitor((page - 1) * 25 + i)), page, pageSize: 25, total: 60 } };
@@ -47,5 +48,18 @@ describe('monitors table', () => {
 
     await userEvent.click(screen.getByRole('button', { name: /Samples\/s/ }));
     await waitFor(() => expect(lastMonitorQuery(gw)).toMatchObject({ sort: 'dataRate' }));
+  });
+});
+
+describe('monitor line check', () => {
+  it('shows the latest flush test of a monitor: fn, ζ and the Gardner region in words', async () => {
+    gateway();
+    renderApp(<MonitorsRoute />);
+    await userEvent.click(await screen.findByRole('button', { name: 'Latest flush test of 0EBB000000000003' }));
+    const body = await screen.findByTestId('latest-flush-test');
+    expect(body.textContent).toContain('21.4 Hz');
+    expect(body.textContent).toContain('0.31');
+    expect(body.textContent).toContain('Adequate — adequate region of the Gardner chart');
+    expect(screen.getByRole('link', { name: 'open the assessment' }).getAttribute('href')).toBe('/assessments/a9');
   });
 });

@@ -11,11 +11,29 @@ import { ConfirmDialog, Dialog } from '@/components/ui/dialog';
 import { SelectField, TextField } from '@/components/ui/field';
 import { FilterBar, PageHeader } from '@/components/ui/page';
 import { useToast } from '@/components/ui/toast';
-import { useBedOptions, useCreateMonitor, useDeleteMonitor, useIssueApiKey, useMonitors, useProfileOptions, useRevokeApiKey, useUpdateMonitor } from '../api/devices';
+import { useBedOptions, useCreateMonitor, useDeleteMonitor, useIssueApiKey, useLatestFlushTest, useMonitors, useProfileOptions, useRevokeApiKey, useUpdateMonitor } from '../api/devices';
+import { Link } from 'react-router-dom';
+import { ErrorState, LoadingState } from '@/components/ui/states';
 import { MonitorForm } from '../components/monitor-form';
 import { ApiKeyDialog } from '../components/api-key-dialog';
+import { FlushTestSummary } from '@/components/analysis/line-checks';
 
 type Pending = { kind: 'create' } | { kind: 'edit' | 'issue' | 'revoke' | 'delete'; monitor: Monitor } | null;
+
+/** The latest flush test the engine measured on this monitor's arterial line (last 24 h). */
+function FlushTestDialogBody({ monitorId }: { monitorId: string }) {
+  const q = useLatestFlushTest(monitorId);
+  if (q.isPending) return <LoadingState label="Looking for the latest flush test…" />;
+  if (q.error) return <ErrorState error={q.error} onRetry={() => q.refetch()} />;
+  const latest = q.data.latest;
+  if (!latest) return <p className="text-sm text-muted">No flush test measured on this monitor in the last 24 hours.</p>;
+  return (
+    <div className="flex flex-col gap-2 text-sm" data-testid="latest-flush-test">
+      <p>Window ending {formatDateTime(latest.windowEnd)} · <Link className="text-ink-700 underline" to={`/assessments/${encodeURIComponent(latest.assessmentId)}`}>open the assessment</Link></p>
+      <FlushTestSummary test={latest.flushTest as Parameters<typeof FlushTestSummary>[0]['test']} />
+    </div>
+  );
+}
 
 export function MonitorsRoute() {
   const list = useListState({ sort: 'identifier', order: 'asc' });
@@ -31,6 +49,7 @@ export function MonitorsRoute() {
   const { can } = useAuth();
   const manage = can('manageDevices');
   const [pending, setPending] = useState<Pending>(null);
+  const [lineCheck, setLineCheck] = useState<Monitor | null>(null);
   const [issued, setIssued] = useState<{ key: ApiKeyIssued; monitor: string } | null>(null);
   const profileName = useMemo(() => new Map((profiles.data?.items ?? []).map((p) => [p.id, p.name])), [profiles.data]);
   const bedName = useMemo(() => new Map((beds.data?.items ?? []).map((b) => [b.id, `${b.name} · ${b.unit}`])), [beds.data]);
@@ -44,6 +63,7 @@ export function MonitorsRoute() {
     { key: 'lastSeenAt', header: 'Last data', sortField: 'lastSeenAt', render: (m) => <span className="num">{formatDateTime(m.lastSeenAt)}</span> },
     { key: 'dataRate', header: 'Samples/s', className: 'text-right', sortField: 'dataRate', render: (m) => <span className="num">{formatNumber(m.dataRate, 0)}</span> },
     { key: 'key', header: 'API key', render: (m) => (m.hasApiKey ? <Badge tone="good">issued</Badge> : <Badge>none</Badge>) },
+    { key: 'line', header: 'Arterial line', render: (m) => <Button size="sm" variant="ghost" onClick={() => setLineCheck(m)} aria-label={`Latest flush test of ${m.identifier}`}>Latest flush test</Button> },
     ...(manage ? [{ key: 'actions', header: 'Actions', render: (m: Monitor) => (
       <span className="flex flex-wrap gap-1">
         <Button size="sm" onClick={() => setPending({ kind: 'edit', monitor: m })}>Edit</Button>
@@ -100,6 +120,11 @@ export function MonitorsRoute() {
         message={<>Remove <strong>{pending && 'monitor' in pending ? pending.monitor.identifier : ''}</strong>? Its stored assessments stay.</>}
         busy={remove.isPending} error={remove.error ? errorMessage(remove.error) : null} onClose={close}
         onConfirm={() => pending && 'monitor' in pending && remove.mutate(pending.monitor.id, { onSuccess: () => { toast.success('Monitor removed'); close(); } })} />
+      {lineCheck && (
+        <Dialog open title={`Arterial line of ${lineCheck.identifier}`} onClose={() => setLineCheck(null)}>
+          <FlushTestDialogBody monitorId={lineCheck.id} />
+        </Dialog>
+      )}
       <ApiKeyDialog issued={issued?.key ?? null} monitor={issued?.monitor ?? ''} onClose={() => setIssued(null)} />
     </>
   );
