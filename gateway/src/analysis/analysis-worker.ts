@@ -2,21 +2,38 @@ import { hostname } from 'node:os';
 import { randomBytes } from 'node:crypto';
 import type { EntityManager } from 'typeorm';
 import type { AnalysisContext } from '@ebbgate/shared';
-import { analyzeWindow, ENGINE_VERSION, type AnalysisInput, type AnalysisResult, type AnalysisSettings } from '@ebbgate/shared/analysis';
+import {
+  analyseTidalVolumeChallenge,
+  analyseWindow,
+  DEFAULT_SETTINGS,
+  ENGINE_VERSION,
+  type AnalysisInput,
+  type AnalysisResult,
+  type AnalysisSettings,
+  type ChallengeInput,
+  type TidalVolumeChallengeResult,
+} from '@ebbgate/shared/analysis';
 import type { AppContext, BackgroundService } from '../app-context';
 import { PollLoop } from '../lib/poll-loop';
-import { MonitorProfileRow, MonitorRow } from '../devices/device.entities';
+import { BedRow, MonitorProfileRow, MonitorRow } from '../devices/device.entities';
 import { getSiteSettings } from '../settings/settings.service';
 import { AnalysisWindowRow } from './analysis-window.entity';
 import { storeAssessment } from './assessment-store';
+import { challengeColumns, findChallenge } from './challenge-window';
 import { assembleWindow, contextOfMessage } from './window-assembly';
 
 export interface Engine {
   version: string;
   analyze(input: AnalysisInput, settings?: Partial<AnalysisSettings>): AnalysisResult;
+  /** Judges a whole tidal volume challenge; engines without it skip challenges. */
+  analyseChallenge?(input: ChallengeInput, settings?: Partial<AnalysisSettings>): TidalVolumeChallengeResult;
 }
 
-export const DEFAULT_ENGINE: Engine = { version: ENGINE_VERSION, analyze: analyzeWindow };
+export const DEFAULT_ENGINE: Engine = {
+  version: ENGINE_VERSION,
+  analyze: analyseWindow,
+  analyseChallenge: (input, settings) => analyseTidalVolumeChallenge(input, settings).tidalVolumeChallenge,
+};
 
 /** Device facts from the profile that the engine needs as context; the batch's own context wins. */
 function profileContext(profile: MonitorProfileRow | null): AnalysisContext {
@@ -55,16 +72,30 @@ export async function analyseNextWindow(ctx: AppContext, engine: Engine, workerI
     const profile = monitor?.profileId ? await m.findOneBy(MonitorProfileRow, { id: monitor.profileId }) : null;
     const { input, latestMessageId } = await assembleWindow(m, w.monitorId, w.windowStart, w.windowEnd);
     input.context = { ...profileContext(profile), ...((await contextOfMessage(m, latestMessageId)) ?? {}) };
+    // Checklist items a person set on the bed (audited) travel as their own context source.
+    const bed = monitor?.bedId ? await m.findOneBy(BedRow, { id: monitor.bedId }) : null;
+    if (bed?.checklist) input.bedContext = bed.checklist;
+    const settings = { cyclesToAverage: site.cyclesToAverage, bands: site.bands };
     let result: AnalysisResult;
     try {
-      result = engine.analyze(input, { cyclesToAverage: site.cyclesToAverage, bands: site.bands });
+      result = engine.analyze(input, settings);
     } catch (err) {
       // Unreadable input (no data, unknown unit): the window is closed as failed with the reason.
       await m.update(AnalysisWindowRow, { id: w.id }, { status: 'failed', attempts: w.attempts + 1, claimedBy: workerId, lastError: String((err as Error).message).slice(0, 2000), doneAt: new Date() });
       ctx.logger.warn({ windowId: w.id, monitorId: w.monitorId, err: (err as Error).message }, 'analysis window failed');
       return { windowId: w.id, status: 'failed' as const, assessmentId: null };
     }
-    const row = await storeAssessment(m, { monitorId: w.monitorId, bedId: monitor?.bedId ?? null, windowStart: w.windowStart, windowEnd: w.windowEnd }, result);
+    // A tidal volume challenge this window completes is judged here and stored on its assessment.
+    const found = engine.analyseChallenge ? await findChallenge(m, w.monitorId, w.windowEnd, DEFAULT_SETTINGS, { profile: profileContext(profile), bed: input.bedContext }) : null;
+    let challenge = challengeColumns(null, null);
+    if (found && engine.analyseChallenge) {
+      try {
+        challenge = challengeColumns(found, engine.analyseChallenge(found.input, settings));
+      } catch (err) {
+        ctx.logger.warn({ windowId: w.id, monitorId: w.monitorId, err: (err as Error).message }, 'tidal volume challenge could not be read');
+      }
+    }
+    const row = await storeAssessment(m, { monitorId: w.monitorId, bedId: monitor?.bedId ?? null, windowStart: w.windowStart, windowEnd: w.windowEnd }, result, challenge);
     await m.update(AnalysisWindowRow, { id: w.id }, { status: 'done', attempts: w.attempts + 1, claimedBy: workerId, assessmentId: row.id, doneAt: new Date() });
     return { windowId: w.id, status: 'done' as const, assessmentId: row.id };
   });

@@ -9,6 +9,7 @@ export async function storeAssessment(
   m: EntityManager,
   w: { monitorId: string; bedId: string | null; windowStart: Date; windowEnd: Date },
   result: AnalysisResult,
+  challenge: Pick<AssessmentRow, 'tidalVolumeChallenge' | 'challengeDeltaPpv' | 'challengeVerdict' | 'challengeStepAt'> = { tidalVolumeChallenge: null, challengeDeltaPpv: null, challengeVerdict: null, challengeStepAt: null },
 ): Promise<AssessmentRow> {
   const v = (k: keyof AnalysisResult['indices']) => result.indices[k]?.value ?? null;
   const row = m.create(AssessmentRow, {
@@ -30,6 +31,7 @@ export async function storeAssessment(
     enteredInErrorAt: null,
     enteredInErrorBy: null,
     enteredInErrorReason: null,
+    ...challenge,
     createdAt: new Date(),
   });
   await m.insert(AssessmentRow, row);

@@ -27,5 +27,11 @@ export class AssessmentRow {
   @Column({ name: 'entered_in_error_at', type: 'datetime', precision: 3, nullable: true }) enteredInErrorAt!: Date | null;
   @Column({ name: 'entered_in_error_by', type: 'varchar', length: 64, nullable: true }) enteredInErrorBy!: string | null;
   @Column({ name: 'entered_in_error_reason', type: 'text', nullable: true }) enteredInErrorReason!: string | null;
+  /** Tidal volume challenge completed by this window (TidalVolumeChallengeResult as JSON), or null. */
+  @Column({ name: 'tidal_volume_challenge', type: 'simple-json', nullable: true }) tidalVolumeChallenge!: object | null;
+  @Column({ name: 'challenge_delta_ppv', type: 'double', nullable: true }) challengeDeltaPpv!: number | null;
+  @Column({ name: 'challenge_verdict', type: 'varchar', length: 20, nullable: true }) challengeVerdict!: 'positive' | 'negative' | 'cannot-be-judged' | null;
+  /** When the tidal volume was raised (so each challenge is judged once). */
+  @Column({ name: 'challenge_step_at', type: 'datetime', precision: 3, nullable: true }) challengeStepAt!: Date | null;
   @Column({ name: 'created_at', type: 'datetime', precision: 3 }) createdAt!: Date;
 }

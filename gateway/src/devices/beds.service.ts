@@ -40,7 +40,7 @@ export async function createBed(ds: DataSource, input: BedInput & { id?: string 
   try {
     return await ds.transaction(async (m) => {
       const now = new Date();
-      const row = m.create(BedRow, { id: input.id ?? randomUUID(), name: input.name, unit: input.unit, locationIdentifier: input.locationIdentifier, createdAt: now, updatedAt: now });
+      const row = m.create(BedRow, { id: input.id ?? randomUUID(), name: input.name, unit: input.unit, locationIdentifier: input.locationIdentifier, checklist: input.checklist ?? null, createdAt: now, updatedAt: now });
       await m.insert(BedRow, row);
       const out = toBed(row, null);
       await recordAudit(m, { principal: by.principal, action: 'bed.create', entityType: 'bed', entityId: row.id, after: out, requestId: by.requestId });

@@ -38,6 +38,7 @@ export function toBed(row: BedRow, monitorId: string | null): Bed {
     name: row.name,
     unit: row.unit,
     locationIdentifier: row.locationIdentifier,
+    checklist: row.checklist ?? null,
     monitorId,
     createdAt: row.createdAt.toISOString(),
     updatedAt: row.updatedAt.toISOString(),

@@ -1,4 +1,5 @@
 import { Column, Entity, PrimaryColumn } from 'typeorm';
+import type { ChecklistContext } from '@ebbgate/shared';
 
 /** One channel of a monitor model: inbound code → role, unit, scaling, rate, filtering. */
 export interface ProfileChannel {
@@ -34,6 +35,8 @@ export class BedRow {
   @Column({ type: 'varchar', length: 64 }) unit!: string;
   /** The EHR Location identifier (system|value as the EHR knows it). */
   @Column({ name: 'location_identifier', type: 'varchar', length: 128 }) locationIdentifier!: string;
+  /** Checklist context set on the bed by a person (audited), or null. */
+  @Column({ type: 'simple-json', nullable: true }) checklist?: ChecklistContext | null;
   @Column({ name: 'created_at', type: 'datetime', precision: 3 }) createdAt!: Date;
   @Column({ name: 'updated_at', type: 'datetime', precision: 3 }) updatedAt!: Date;
 }

@@ -44,7 +44,8 @@ describe('POST /analysis/preview (test bench)', () => {
     expect(res.body.analysis.beats.abp.beats.length).toBeGreaterThan(30);
     // PPV is 15 % by construction of the synthetic signal (the engine's accuracy is tested in shared).
     const ppv = res.body.analysis.indices.ppv.value;
-    if (ppv !== null) expect(Math.abs(ppv - 15)).toBeLessThan(3);
+    expect(ppv).not.toBeNull();
+    expect(Math.abs(ppv - 15)).toBeLessThan(3);
     expect(await counts()).toEqual(before);
   });
 

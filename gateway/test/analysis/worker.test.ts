@@ -62,7 +62,8 @@ describe('analysis scheduling', () => {
     // PPV 14 % by construction of the synthetic signal; the engine's accuracy is tested in
     // shared/analysis, here we check the stored column is the engine's own window value.
     expect(mine[0]!.ppv).toBe(result.indices.ppv.value);
-    if (mine[0]!.ppv !== null) expect(Math.abs((mine[0]!.ppv as number) - 14)).toBeLessThan(3);
+    expect(mine[0]!.ppv).not.toBeNull();
+    expect(Math.abs((mine[0]!.ppv as number) - 14)).toBeLessThan(3);
     // The same window analysed directly gives the same result: storage changed nothing.
     const { input } = await assembleWindow(gw.ctx.ds, m.monitorId, new Date(T0), new Date(T0 + 30_000));
     input.context = { probeSite: 'finger', plethScaling: 'raw', ventilationMode: 'controlled', tidalVolumeMl: 500, patientHeightCm: 175, patientSex: 'male' };

@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import { pageQuerySchema } from './common';
-import { channelRoleSchema, plethScalingSchema, probeSiteSchema } from './ingest';
+import { channelRoleSchema, checklistContextSchema, plethScalingSchema, probeSiteSchema } from './ingest';
 
 export const transportSchema = z.enum(['http', 'mllp']);
 export type Transport = z.infer<typeof transportSchema>;
@@ -124,6 +124,11 @@ export const bedInputSchema = z.object({
   unit: z.string().trim().min(1).max(64),
   /** The EHR Location identifier. */
   locationIdentifier: z.string().trim().min(1).max(128),
+  /**
+   * Checklist items for the patient in this bed (open chest, raised intra-abdominal pressure, …),
+   * set by a person and audited; every analysis of the bed's monitor takes them as context.
+   */
+  checklist: checklistContextSchema.strict().nullable().optional(),
 });
 export type BedInput = z.infer<typeof bedInputSchema>;
 export const updateBedSchema = bedInputSchema.partial().refine((v) => Object.keys(v).length > 0, 'change at least one field');
