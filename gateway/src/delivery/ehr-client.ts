@@ -50,9 +50,14 @@ export class TokenProvider {
         headers: { 'content-type': 'application/x-www-form-urlencoded', accept: 'application/json' },
         body: new URLSearchParams({ grant_type: 'client_credentials', client_id: this.s.clientId, client_secret: this.s.clientSecret }),
         signal: AbortSignal.timeout(this.s.requestTimeoutMs),
+        // The client secret goes to the configured token URL only: a redirect is never followed.
+        redirect: 'manual',
       });
     } catch (err) {
       throw new TokenError({ kind: 'retryable', httpStatus: null, response: null, detail: `token endpoint unreachable: ${errorText(err)}` });
+    }
+    if (res.status >= 300 && res.status < 400) {
+      throw new TokenError({ kind: 'auth', httpStatus: res.status, response: null, detail: `token endpoint answered ${res.status} (a redirect, not followed: fix the token URL)` });
     }
     const text = await res.text();
     const body = safeJson(text);
