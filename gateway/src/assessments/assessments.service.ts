@@ -126,8 +126,9 @@ export async function getAssessment(ds: DataSource, id: string, readBy: ChangeBy
     .addSelect('a.result', 'result')
     .addSelect('a.entered_in_error_by', 'enteredInErrorBy')
     .addSelect('a.entered_in_error_reason', 'enteredInErrorReason')
+    .addSelect('a.tidal_volume_challenge', 'tidalVolumeChallenge')
     .where('a.id = :id', { id })
-    .getRawOne()) as (SummaryRaw & { result: string; enteredInErrorBy: string | null; enteredInErrorReason: string | null }) | undefined;
+    .getRawOne()) as (SummaryRaw & { result: string; enteredInErrorBy: string | null; enteredInErrorReason: string | null; tidalVolumeChallenge: string | null }) | undefined;
   if (!raw) throw notFound(`Assessment ${id}`);
   // Patient data: every read of an assessment's detail (waveform, result) is audited.
   await recordAudit(ds.manager, { principal: readBy.principal, action: 'assessment.read', entityType: 'assessment', entityId: id, requestId: readBy.requestId });
@@ -146,6 +147,7 @@ export async function getAssessment(ds: DataSource, id: string, readBy: ChangeBy
       enteredInErrorBy: raw.enteredInErrorBy,
       enteredInErrorReason: raw.enteredInErrorReason,
       result: typeof raw.result === 'string' ? (JSON.parse(raw.result) as Record<string, unknown>) : raw.result,
+      tidalVolumeChallenge: raw.tidalVolumeChallenge ? (JSON.parse(raw.tidalVolumeChallenge) as Record<string, unknown>) : null,
     },
     waveform,
     observations,

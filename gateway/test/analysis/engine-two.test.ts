@@ -67,7 +67,7 @@ describe('engine 2.0 in the gateway', () => {
     await send(m.apiKey, 'A2B1C2D3E4F51002', { channels: low!.channels, truth: low!.truth }, T0, low!.context, 'tvc-low');
     await send(m.apiKey, 'A2B1C2D3E4F51002', { channels: high!.channels, truth: high!.truth }, T0 + 30_000, high!.context, 'tvc-high');
     await drain();
-    const rows = (await gw.ctx.ds.query('SELECT window_end, tidal_volume_challenge, challenge_delta_ppv, challenge_verdict, challenge_step_at FROM assessment WHERE monitor_id = ? AND tidal_volume_challenge IS NOT NULL', [m.monitorId])) as Record<string, unknown>[];
+    const rows = (await gw.ctx.ds.query('SELECT id, window_end, tidal_volume_challenge, challenge_delta_ppv, challenge_verdict, challenge_step_at FROM assessment WHERE monitor_id = ? AND tidal_volume_challenge IS NOT NULL', [m.monitorId])) as Record<string, unknown>[];
     expect(rows).toHaveLength(1);
     const r = rows[0]!;
     expect((r.challenge_step_at as Date).getTime()).toBe(T0 + 30_000);
@@ -79,5 +79,10 @@ describe('engine 2.0 in the gateway', () => {
     expect(Math.abs(tvc.challengePpv - (g.truth.challengePpv as number))).toBeLessThanOrEqual(1);
     expect(tvc.threshold).toBe(3.5);
     expect(tvc.thresholdSource).toMatch(/Myatra/);
+    // The console reads it with the assessment's detail.
+    const reviewer = await gw.signIn('reviewer');
+    const detail = await reviewer.get(`/api/v1/assessments/${r.id as string}`);
+    expect(detail.status).toBe(200);
+    expect(detail.body.assessment.tidalVolumeChallenge).toMatchObject({ verdict: 'positive', threshold: 3.5 });
   });
 });

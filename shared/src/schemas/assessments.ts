@@ -60,6 +60,8 @@ export const assessmentDetailSchema = z.object({
     enteredInErrorReason: z.string().nullable(),
     /** The engine's full AnalysisResult (beats, cycles, flags, cautions). */
     result: z.record(z.string(), z.unknown()),
+    /** The tidal volume challenge this window completed (TidalVolumeChallengeResult), or null. */
+    tidalVolumeChallenge: z.record(z.string(), z.unknown()).nullable().optional(),
   }),
   waveform: waveformSchema,
   observations: z.array(z.record(z.string(), z.unknown())),
