@@ -7,7 +7,7 @@ import { buildObservation, enteredInErrorAmendment, ifNoneExistQuery, type Obser
 import { classifyHttpStatus, parseRetryAfter } from '../../src/delivery/send-outcome';
 
 const codes = defaultCodeMap();
-const context = { controlledVentilation: true, tidalVolumeMl: 650, patientHeightCm: 175, patientSex: 'male' as const, plethScaling: 'raw' as const };
+const context = { ventilationMode: 'controlled' as const, tidalVolumeMl: 650, patientHeightCm: 175, patientSex: 'male' as const, plethScaling: 'raw' as const };
 const clean = analyzeWindow({ channels: generateWindow({ seed: 3, heartRate: 80, respiratoryRate: 15, ppv: 14, channels: ['abp', 'pleth', 'paw'], durationSeconds: 30 }).channels, context });
 const spontaneous = analyzeWindow({
   channels: generateWindow({ seed: 4, heartRate: 80, respiratoryRate: 15, ppv: 14, channels: ['abp', 'pleth', 'paw'], durationSeconds: 30, disturbances: [{ kind: 'spontaneous-breaths', count: 4 }] }).channels,
