@@ -15,6 +15,7 @@ export const NAV: NavGroup[] = [
     { to: '/profiles', label: 'Monitor profiles', permission: 'devices' },
     { to: '/beds', label: 'Beds', permission: 'devices' },
     { to: '/test-bench', label: 'Test bench', permission: 'testBench' },
+    { to: '/reanalyse', label: 'Reanalyse', permission: 'reanalyse' },
   ] },
   { label: 'Deliver', items: [
     { to: '/deliveries', label: 'Deliveries', permission: 'deliveries' },

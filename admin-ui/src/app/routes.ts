@@ -9,6 +9,7 @@ export const routes: AppRoute[] = [
   { path: '/board/beds/:bedId', permission: 'board', component: lazyNamed(() => import('@/features/board/routes/bed-trend'), 'BedTrendRoute') },
   { path: '/users', permission: 'users', component: lazyNamed(() => import('@/features/users/routes/users'), 'UsersRoute') },
   { path: '/audit', permission: 'audit', component: lazyNamed(() => import('@/features/audit/routes/audit'), 'AuditRoute') },
+  { path: '/reanalyse', permission: 'reanalyse', component: lazyNamed(() => import('@/features/reanalyse/routes/reanalyse'), 'ReanalyseRoute') },
   { path: '/test-bench', permission: 'testBench', component: lazyNamed(() => import('@/features/test-bench/routes/test-bench'), 'TestBenchRoute') },
   { path: '/assessments', permission: 'assessments', component: lazyNamed(() => import('@/features/assessments/routes/assessments'), 'AssessmentsRoute') },
   { path: '/assessments/:id', permission: 'assessments', component: lazyNamed(() => import('@/features/assessments/routes/assessment-detail'), 'AssessmentDetailRoute') },

@@ -14,6 +14,7 @@ export const ACCESS = {
   assessments: rolesWith('assessments.read'),
   markInError: rolesWith('assessments.mark-in-error'),
   testBench: rolesWith('analysis.preview'),
+  reanalyse: rolesWith('analysis.reanalyse'),
   devices: narrowed('monitors.read', ['integrator', 'admin']),
   manageDevices: rolesWith('monitors.write'),
   deliveries: rolesWith('deliveries.read'),

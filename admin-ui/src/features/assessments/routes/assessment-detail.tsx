@@ -40,7 +40,7 @@ export function AssessmentDetailRoute() {
       <p className="mb-1 text-xs"><Link to="/assessments" className="text-ink-700 underline">← Assessments</Link></p>
       <PageHeader title={`Assessment of ${formatDateTime(a.windowStart)}`}
         description={<span className="flex items-center gap-2"><VerdictBadge verdict={a.verdict} /> window {formatDateTime(a.windowStart)} – {formatDateTime(a.windowEnd)}</span>}
-        actions={can('markInError') && !a.enteredInError ? <Button variant="danger" onClick={() => setConfirming(true)}>Mark in error…</Button> : undefined} />
+        actions={<>{can('reanalyse') && <Link className="rounded border border-line bg-white px-2 py-1 text-sm text-ink-900 hover:bg-ink-50" to={`/reanalyse?assessment=${encodeURIComponent(a.id)}`}>Reanalyse this window…</Link>}{can('markInError') && !a.enteredInError && <Button variant="danger" onClick={() => setConfirming(true)}>Mark in error…</Button>}</>} />
       {a.enteredInError && (
         <div role="status" className="mb-3 rounded border border-error/40 bg-error-bg px-3 py-2 text-sm text-error">
           <strong>Entered in error</strong> by {a.enteredInErrorBy ?? 'unknown'} on {formatDateTime(a.enteredInErrorAt)}: {a.enteredInErrorReason}. The EHR copy was amended to status entered-in-error.
