@@ -200,13 +200,15 @@ export function buildFlags(v: VerdictInput): Flag[] {
   }
   const mech = v.mechanics;
   const c = mech?.complianceMlPerCmH2O ?? null;
-  if (c !== null && c <= s.lowComplianceMlPerCmH2O) {
-    const from = mech?.complianceSource === 'airway-pressure' ? `Vt / (${mech.plateauSource === 'end-inspiratory-pause' ? 'plateau' : 'peak'} − PEEP)` : 'as given';
+  // Vt / (peak − PEEP) is only a lower bound of the compliance (the peak holds the resistive
+  // pressure too): at or under the limit it says "possibly low" (info), never "low".
+  const fromPeak = mech?.complianceSource === 'airway-pressure' && mech.plateauSource === 'estimated-from-peak';
+  if (c !== null && c <= s.lowComplianceMlPerCmH2O && !fromPeak) {
+    const from = mech?.complianceSource === 'airway-pressure' ? 'Vt / (plateau − PEEP)' : 'as given';
     push({ code: 'compliance-low', severity: 'warning', direction: 'false-low', reference: 'Monnet et al., Crit Care Med 2012 (from memory)', reason: `respiratory-system compliance ${c.toFixed(1)} mL/cmH2O (${from}) ≤ ${s.lowComplianceMlPerCmH2O}: PPV less reliable, may read low` });
   }
-  // An estimate from the peak understates compliance: it only matters when it makes compliance "low".
-  if (c !== null && c <= s.lowComplianceMlPerCmH2O && mech?.complianceSource === 'airway-pressure' && mech.plateauSource === 'estimated-from-peak') {
-    push({ code: 'compliance-estimated', severity: 'info', direction: 'false-low', reference: 'common practice', reason: 'no end-inspiratory pause: compliance estimated with the peak pressure in place of the plateau (compliance understated, driving pressure overstated)' });
+  if (c !== null && c <= s.lowComplianceMlPerCmH2O && fromPeak) {
+    push({ code: 'compliance-estimated', severity: 'info', direction: 'false-low', reference: 'Monnet et al., Crit Care Med 2012 (from memory); common practice', reason: `no end-inspiratory pause: Vt / (peak − PEEP) = ${c.toFixed(1)} mL/cmH2O is a lower bound of the compliance; it may be low (≤ ${s.lowComplianceMlPerCmH2O}), an end-inspiratory pause would tell` });
   }
   for (const key of Object.keys(CHECKLIST) as (keyof ChecklistContext)[]) {
     const from = v.checklist[key];

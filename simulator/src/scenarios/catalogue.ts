@@ -73,7 +73,7 @@ export const SCENARIOS: Record<ScenarioId, Scenario> = {
     ventilator: controlled(14, 8),
     channels: [...standardChannels],
     disturbancesPerMinute: [{ kind: 'damping', cutoffHz: 3 }],
-    expect: { outcome: 'assessed', verdict: 'questionable', flags: ['arterial-damped'], flagDirections: { 'arterial-damped': 'false-low' }, absentFlags: ['irregular-rhythm', 'spontaneous-breathing'], ppvRecovered: false, reading: 'Damped line gives false-low variation: questionable.' },
+    expect: { outcome: 'assessed', verdict: 'questionable', flags: ['arterial-damped'], flagDirections: { 'arterial-damped': 'unknown' }, absentFlags: ['irregular-rhythm', 'spontaneous-breathing'], ppvRecovered: false, reading: 'Damped line understates systolic pressure and SPV; the direction of the PPV error is not known: questionable.' },
   },
   'vasopressor-finger-probe': {
     id: 'vasopressor-finger-probe',

@@ -1,5 +1,5 @@
 import type { ChannelRole, ProbeSite, VentilationMode } from '@ebbgate/shared';
-import type { FlagCode, Verdict } from '@ebbgate/shared/analysis';
+import type { ErrorDirection, FlagCode, Verdict } from '@ebbgate/shared/analysis';
 import type { Disturbance } from '@ebbgate/shared/synthetic';
 
 export type ScenarioId =
@@ -47,7 +47,7 @@ export interface ScenarioExpectation {
   /** Flags no window may carry (the scenario is clean in these respects). */
   absentFlags: FlagCode[];
   /** Likely direction of the error each expected flag must state (Ann Intensive Care 2016, doi 10.1186/s13613-016-0216-7). */
-  flagDirections?: Partial<Record<FlagCode, 'false-high' | 'false-low'>>;
+  flagDirections?: Partial<Record<FlagCode, ErrorDirection>>;
   /** Per-index verdicts that differ from the window verdict. */
   indexVerdicts?: Partial<Record<'ppv' | 'deltaPop', Verdict>>;
   /** Whether the window PPV must match the generator's truth within the engine tolerance (±1 point). */
