@@ -4,7 +4,8 @@ import cookieParser from 'cookie-parser';
 import express, { type Express, type RequestHandler, type Router } from 'express';
 import helmet from 'helmet';
 import type { AppContext, ReadinessCheck } from '../app-context';
-import { API_PAGE_CSS, buildOpenApi, renderApiPage } from './openapi';
+import { apiDocsRouter } from './api-docs';
+import { buildOpenApi } from './openapi';
 import { createMetrics, type Metrics } from './metrics';
 import { HttpProblem, notFoundHandler, problemHandler } from './problem';
 import { httpLogger } from './logger';
@@ -80,8 +81,7 @@ export function createApp(ctx: AppContext, parts: AppParts): Express {
   api.get('/openapi.json', (_req, res) => res.json(buildOpenApi(GATEWAY_VERSION)));
   api.use(notFoundHandler);
   app.use('/api/v1', api);
-  app.get('/api/docs', (_req, res) => res.type('html').send(renderApiPage(buildOpenApi(GATEWAY_VERSION))));
-  app.get('/api/docs.css', (_req, res) => res.type('css').send(API_PAGE_CSS));
+  app.use(apiDocsRouter());
 
   mountConsole(app, ctx.config.gateway.consoleDir);
   app.use(problemHandler(ctx.logger));

@@ -70,23 +70,3 @@ export function buildOpenApi(version: string) {
     paths,
   };
 }
-
-const esc = (s: string) => s.replace(/[&<>"']/g, (c) => `&#${c.charCodeAt(0)};`);
-
-/** A plain, readable page of the API (no scripts, so it lives with the strict CSP). */
-export function renderApiPage(doc: ReturnType<typeof buildOpenApi>): string {
-  const rows = Object.entries(doc.paths)
-    .flatMap(([p, ops]) => Object.entries(ops).map(([m, op]) => ({ p, m, op: op as { summary: string; description: string; tags: string[]; requestBody?: unknown } })))
-    .sort((a, b) => a.op.tags[0]!.localeCompare(b.op.tags[0]!) || a.p.localeCompare(b.p));
-  let tag = '';
-  const body = rows
-    .map(({ p, m, op }) => {
-      const head = op.tags[0] !== tag ? `<h2>${esc((tag = op.tags[0]!))}</h2>` : '';
-      const req = op.requestBody ? `<details><summary>request body</summary><pre>${esc(JSON.stringify(op.requestBody, null, 2))}</pre></details>` : '';
-      return `${head}<section><h3><code class="m">${m.toUpperCase()}</code> <code>${esc(p)}</code></h3><p>${esc(op.summary)}</p><p class="who">${esc(op.description)}</p>${req}</section>`;
-    })
-    .join('\n');
-  return `<!doctype html><html lang="en"><head><meta charset="utf-8"><title>${esc(doc.info.title)}</title><link rel="stylesheet" href="/api/docs.css"></head><body><main><h1>${esc(doc.info.title)} <small>${esc(doc.info.version)}</small></h1><p>${esc(doc.info.description)}</p><p>Machine-readable: <a href="/api/v1/openapi.json">/api/v1/openapi.json</a> (OpenAPI 3.1). Errors are RFC 9457 problem details.</p>${body}</main></body></html>`;
-}
-
-export const API_PAGE_CSS = `body{font:14px/1.5 system-ui,sans-serif;margin:0;background:#f6f7f5;color:#1d2621}main{max-width:980px;margin:0 auto;padding:24px}h2{margin-top:32px;border-bottom:1px solid #c9d2cc;text-transform:capitalize}section{background:#fff;border:1px solid #dde3df;border-radius:6px;padding:8px 14px;margin:8px 0}h3{font-size:14px;margin:4px 0}.m{display:inline-block;min-width:56px;color:#0f5b4e}.who{color:#56625b;font-size:13px}pre{background:#f1f3f2;padding:8px;overflow:auto;font-size:12px}`;

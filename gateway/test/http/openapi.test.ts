@@ -28,9 +28,24 @@ describe('OpenAPI document', () => {
     expect((await validate(broken)).valid).toBe(false);
   });
 
-  it('serves a readable API page without scripts', async () => {
+  it('serves the API reference (Swagger UI from swagger-ui-dist) from our own origin, nothing inline', async () => {
     const res = await request(gw.server).get('/api/docs').expect(200);
-    expect(res.text).toContain('/api/v1/ingest/batches');
-    expect(res.text).not.toMatch(/<script/i);
+    expect(res.headers['content-security-policy']).toMatch(/script-src 'self'(;|$)/);
+    const scripts = [...res.text.matchAll(/<script([^>]*)>([\s\S]*?)<\/script>/gi)];
+    expect(scripts.length).toBeGreaterThanOrEqual(2);
+    for (const [, attrs, body] of scripts) {
+      expect(attrs).toMatch(/src="\/api\/docs\/[^"]+"/); // same origin, a file
+      expect(body!.trim()).toBe(''); // no inline code (the CSP would refuse it)
+    }
+    expect(res.text).not.toMatch(/style="/);
+    for (const src of [...res.text.matchAll(/(?:src|href)="(\/api\/docs\/[^"]+)"/g)].map((m) => m[1]!)) {
+      const asset = await request(gw.server).get(src);
+      expect(asset.status, src).toBe(200);
+    }
+    const start = await request(gw.server).get('/api/docs/start.js').expect(200);
+    expect(start.text).toContain("url: '/api/v1/openapi.json'");
+    // Only the listed files of the package: not its demo page or the OAuth2 page with inline script.
+    await request(gw.server).get('/api/docs/oauth2-redirect.html').expect(404);
+    await request(gw.server).get('/api/docs/index.html').expect(404);
   });
 });
