@@ -173,7 +173,8 @@ function* decodeSteps(raw: Buffer, limits: Pcd01Limits): Generator<void, Pcd01De
   // the first sample-rate facet under each sub-ID, and the sub-IDs that are waveforms.
   const rateRowUnder = new Map<string, Segment>();
   const waveformSubIds = new Set<string>();
-  for (const r of rows) {
+  for (const [i, r] of rows.entries()) {
+    if ((i & 255) === 0) yield;
     if (field(r.seg, 2, d) === 'NA') waveformSubIds.add(r.subId);
     if (/SAMP_RATE/i.test(`${component(r.seg, 3, 1, d)} ${component(r.seg, 3, 2, d)}`)) {
       for (const p of prefixes(r.subId)) if (!rateRowUnder.has(p)) rateRowUnder.set(p, r.seg);
@@ -192,7 +193,8 @@ function* decodeSteps(raw: Buffer, limits: Pcd01Limits): Generator<void, Pcd01De
   };
 
   const equipment = new Set<string>();
-  for (const r of rows) {
+  for (const [i, r] of rows.entries()) {
+    if ((i & 255) === 0) yield;
     const eq = inherit(equipmentBySubId, r.subId);
     if (eq) equipment.add(eq);
   }
