@@ -21,6 +21,7 @@ import { AnalysisWindowRow } from './analysis-window.entity';
 import { storeAssessment } from './assessment-store';
 import { challengeColumns, findChallenge } from './challenge-window';
 import { assembleWindow, contextOfMessage } from './window-assembly';
+import { transactionWithRetry } from '../db/conflict-retry';
 
 export interface Engine {
   version: string;
@@ -56,7 +57,8 @@ export type ClaimOutcome = { windowId: string; status: 'done' | 'failed'; assess
 export async function analyseNextWindow(ctx: AppContext, engine: Engine, workerId: string): Promise<ClaimOutcome> {
   // Cycles averaged and decision bands are site settings an admin changes at run time.
   const site = (await getSiteSettings(ctx)).analysis;
-  return ctx.ds.transaction(async (m: EntityManager) => {
+  // Retried on a deadlock or a Galera certification failure (claims racing through two nodes).
+  return transactionWithRetry(ctx.ds, async (m: EntityManager) => {
     const w = await m
       .getRepository(AnalysisWindowRow)
       .createQueryBuilder('w')
@@ -98,7 +100,7 @@ export async function analyseNextWindow(ctx: AppContext, engine: Engine, workerI
     const row = await storeAssessment(m, { monitorId: w.monitorId, bedId: monitor?.bedId ?? null, windowStart: w.windowStart, windowEnd: w.windowEnd }, result, challenge);
     await m.update(AnalysisWindowRow, { id: w.id }, { status: 'done', attempts: w.attempts + 1, claimedBy: workerId, assessmentId: row.id, doneAt: new Date() });
     return { windowId: w.id, status: 'done' as const, assessmentId: row.id };
-  });
+  }, { onRetry: (attempt, err) => ctx.logger.warn({ attempt, err: (err as Error).message }, 'analysis claim conflicted; retrying') });
 }
 
 /** Background worker: drains due windows, then polls. Any number may run against one database. */
