@@ -57,3 +57,6 @@ export function ensureDemoCertificates(dir: string, clientNames: string[], days 
   });
   return { dir, caFile: path.join(dir, 'ca.crt'), certFile: path.join(dir, 'gateway.crt'), keyFile: path.join(dir, 'gateway.key'), clients };
 }
+
+/** The gateway's `mllp.tls` file settings for a set of demo certificates. */
+export const tlsFiles = (c: DemoCertificates) => ({ certFile: c.certFile, keyFile: c.keyFile, caFile: c.caFile });

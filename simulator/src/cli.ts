@@ -23,7 +23,10 @@ const USAGE = `usage: npm run simulate -- [options]
   --transport T         http | mllp (default http)
   --gateway URL         gateway base URL (default http://127.0.0.1:8480)
   --mllp-host H         MLLP listener host (default 127.0.0.1)
-  --mllp-port P         MLLP listener port (default 2575)
+  --mllp-port P         MLLP listener port (default 2575; 2576 with --tls-cert)
+  --tls-cert FILE       MLLP over TLS with this client certificate (PEM); with --tls-key and --tls-ca
+  --tls-key FILE        the client certificate's private key (PEM)
+  --tls-ca FILE         CA the gateway's certificate must chain to (PEM)
   --connections C       parallel MLLP connections (default min(monitors, 32))
   --sockets K           kept-alive HTTP connections to the gateway (default 64)
   --keys FILE           JSON {"<monitor identifier>": "<api key>"}; its monitors are used
@@ -57,7 +60,7 @@ async function main(): Promise<void> {
     args = parseArgs({
       options: {
         monitors: { type: 'string' }, interval: { type: 'string' }, transport: { type: 'string' }, gateway: { type: 'string' },
-        'mllp-host': { type: 'string' }, 'mllp-port': { type: 'string' }, connections: { type: 'string' }, sockets: { type: 'string' }, keys: { type: 'string' }, provision: { type: 'boolean' },
+        'mllp-host': { type: 'string' }, 'mllp-port': { type: 'string' }, 'tls-cert': { type: 'string' }, 'tls-key': { type: 'string' }, 'tls-ca': { type: 'string' }, connections: { type: 'string' }, sockets: { type: 'string' }, keys: { type: 'string' }, provision: { type: 'boolean' },
         scenario: { type: 'string' }, duration: { type: 'string' }, backfill: { type: 'string' }, spool: { type: 'string' }, help: { type: 'boolean' },
       },
     }).values;
@@ -104,8 +107,12 @@ async function main(): Promise<void> {
   });
   const scenarioOf = new Map(feeds.map((f) => [f.identifier, f.scenario]));
 
+  const tlsFiles = [args['tls-cert'], args['tls-key'], args['tls-ca']];
+  if (tlsFiles.some(Boolean) && !tlsFiles.every(Boolean)) fail('--tls-cert, --tls-key and --tls-ca go together');
+  const mllpTls = args['tls-cert'] ? { cert: await readFile(args['tls-cert']), key: await readFile(args['tls-key']!), ca: await readFile(args['tls-ca']!) } : undefined;
+  const mllpPortDefault = mllpTls ? 2576 : 2575;
   const latencies: number[] = [];
-  const base = simulatorTransport({ transport, gatewayUrl, httpSockets: Math.round(num(args.sockets, 'sockets', 64)), apiKeys: new Map(Object.entries(keys)), mllpHost: args['mllp-host'], mllpPort: num(args['mllp-port'], 'mllp-port', 2575), mllpConnections: Math.round(num(args.connections, 'connections', Math.min(identifiers.length, 32))), scenarioOf: (id) => scenarioOf.get(id) });
+  const base = simulatorTransport({ transport, gatewayUrl, httpSockets: Math.round(num(args.sockets, 'sockets', 64)), apiKeys: new Map(Object.entries(keys)), mllpHost: args['mllp-host'], mllpPort: num(args['mllp-port'], 'mllp-port', mllpPortDefault), mllpTls, mllpConnections: Math.round(num(args.connections, 'connections', Math.min(identifiers.length, 32))), scenarioOf: (id) => scenarioOf.get(id) });
   const timed: BatchTransport = {
     name: base.name,
     async send(b) {
@@ -127,7 +134,7 @@ async function main(): Promise<void> {
       if (e.kind === 'rejected' || e.kind === 'retrying') reasons.set(e.reason.slice(0, 120), (reasons.get(e.reason.slice(0, 120)) ?? 0) + 1);
     },
   });
-  console.log(`simulate: ${feeds.length} monitors, ${interval}-s batches over ${transport} → ${transport === 'http' ? gatewayUrl : `${args['mllp-host'] ?? '127.0.0.1'}:${args['mllp-port'] ?? 2575}`} (target ${(feeds.length / interval).toFixed(1)} batches/s); spool ${spoolDir}`);
+  console.log(`simulate: ${feeds.length} monitors, ${interval}-s batches over ${transport} → ${transport === 'http' ? gatewayUrl : `${args['mllp-host'] ?? '127.0.0.1'}:${args['mllp-port'] ?? mllpPortDefault}${mllpTls ? ' (TLS)' : ''}`} (target ${(feeds.length / interval).toFixed(1)} batches/s); spool ${spoolDir}`);
 
   let last = { at: performance.now(), accepted: 0, retries: 0, rejected: 0 };
   const report = () => {

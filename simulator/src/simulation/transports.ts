@@ -16,6 +16,8 @@ export interface TransportChoice {
   httpSockets?: number;
   /** Parallel MLLP connections (default 1). */
   mllpConnections?: number;
+  /** MLLP over TLS with this adapter's client certificate (PEM contents). */
+  mllpTls?: { ca: string | Buffer; cert: string | Buffer; key: string | Buffer };
   /** Scenario of each monitor, for the HR and SpO2 numerics of the HL7 message. */
   scenarioOf: (monitorId: string) => Scenario | undefined;
 }
@@ -28,6 +30,7 @@ export function simulatorTransport(c: TransportChoice): BatchTransport {
     port: c.mllpPort ?? 2575,
     ackMode: 'enhanced',
     connections: c.mllpConnections,
+    tls: c.mllpTls,
     numerics: (batch: IngestBatch): OruNumeric[] => {
       const s = c.scenarioOf(batch.monitorId);
       if (!s) return [];
