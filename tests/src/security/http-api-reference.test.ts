@@ -33,6 +33,11 @@ describe('API reference page', () => {
     expect(paths.length).toBe(ROUTES.length);
     for (const p of paths) expect(declared, p).toContain(p.replace(/\u200b/g, ''));
     expect(problems).toEqual([]);
+    // Negative control: the policy is in force and the listener hears it (an inline script is refused).
+    await page.addScriptTag({ content: 'window.inlineRan = true;' }).catch(() => undefined);
+    await page.waitForTimeout(300);
+    expect(problems.some((p) => p.includes('CSP violation: script-src'))).toBe(true);
+    expect(await page.evaluate('window.inlineRan === true')).toBe(false);
     await page.close();
   }, 60_000);
 });
