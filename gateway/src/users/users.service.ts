@@ -4,7 +4,7 @@ import type { CreateUser, Page, PageQuery, Role, UpdateUser, User } from '@ebbga
 import { recordAudit } from '../audit/audit.service';
 import { hashPassword } from '../auth/passwords';
 import { accountSubject } from '../auth/sign-in-throttle';
-import type { Principal } from '../auth/principal';
+import type { ChangeBy } from '../app-context';
 import { conflict, notFound } from '../http/problem';
 import { sortColumn } from '../http/sort';
 import { UserRow, UserSessionRow } from './user.entity';
@@ -22,11 +22,6 @@ export function toUser(row: UserRow): User {
   };
 }
 
-interface Actor {
-  principal: Principal | undefined;
-  requestId?: string;
-}
-
 const SORTABLE: Record<string, string> = { username: 'u.username', displayName: 'u.display_name', createdAt: 'u.created_at', lastSignInAt: 'u.last_sign_in_at' };
 
 export async function listUsers(ds: DataSource, q: PageQuery & { search?: string }): Promise<Page<User>> {
@@ -37,7 +32,7 @@ export async function listUsers(ds: DataSource, q: PageQuery & { search?: string
   return { items: rows.map(toUser), page: q.page, pageSize: q.pageSize, total };
 }
 
-export async function createUser(ds: DataSource, input: CreateUser, actor: Actor): Promise<User> {
+export async function createUser(ds: DataSource, input: CreateUser, actor: ChangeBy): Promise<User> {
   const passwordHash = await hashPassword(input.password);
   return ds.transaction(async (m) => {
     if (await m.findOneBy(UserRow, { username: input.username })) throw conflict(`A user named ${input.username} already exists.`);
@@ -62,7 +57,7 @@ export async function createUser(ds: DataSource, input: CreateUser, actor: Actor
   });
 }
 
-export async function updateUser(ds: DataSource, id: string, patch: UpdateUser, actor: Actor): Promise<User> {
+export async function updateUser(ds: DataSource, id: string, patch: UpdateUser, actor: ChangeBy): Promise<User> {
   return ds.transaction(async (m) => {
     const row = await m.findOneBy(UserRow, { id });
     if (!row) throw notFound(`User ${id}`);
@@ -97,7 +92,7 @@ async function keepOneActiveAdmin(m: EntityManager, row: UserRow, patch: UpdateU
 }
 
 /** Sets a new password, unlocks the account and ends its open sessions. */
-export async function resetPassword(ds: DataSource, id: string, password: string, actor: Actor): Promise<void> {
+export async function resetPassword(ds: DataSource, id: string, password: string, actor: ChangeBy): Promise<void> {
   const passwordHash = await hashPassword(password);
   await ds.transaction(async (m) => {
     const row = await m.findOneBy(UserRow, { id });
