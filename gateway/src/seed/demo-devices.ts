@@ -124,3 +124,31 @@ export async function seedDemoDevices(ds: DataSource): Promise<SeededMonitor[]> 
   }
   return out;
 }
+
+/** Demo names and ids of earlier versions, and what they are now (so an existing demo database keeps working). */
+const RETIRED_PROFILE_NAMES: Record<string, string> = {
+  'Ebbgate demo: Larkspur BM-40 bedside monitor': LARKSPUR_PROFILE.name,
+  'Ebbgate demo: Corvane BX-7 transport monitor': OTHER_DEMO_PROFILES[0]!.name,
+  'Ebbgate demo: Tessaly PM-3 anaesthesia monitor': OTHER_DEMO_PROFILES[1]!.name,
+};
+const RETIRED_MONITOR_PREFIX = '00A0B1FFFE';
+
+/**
+ * Brings a demo database made before the demo data were renamed up to date: the three demo
+ * profiles take their invented names, demo monitors their locally administered EUI-64. Only rows
+ * that carry exactly the old demo values change; nothing else is touched. Returns the rows changed.
+ */
+export async function upgradeDemoData(ds: DataSource): Promise<number> {
+  let changed = 0;
+  for (const [old, now] of Object.entries(RETIRED_PROFILE_NAMES)) {
+    const model = [LARKSPUR_PROFILE, ...OTHER_DEMO_PROFILES].find((p) => p.name === now)!;
+    const r = (await ds.query('UPDATE monitor_profile SET name = ?, model = ?, manufacturer = ? WHERE name = ? AND NOT EXISTS (SELECT 1 FROM (SELECT id FROM monitor_profile WHERE name = ?) x)', [now, model.model, model.manufacturer, old, now])) as { affectedRows: number };
+    changed += r.affectedRows;
+  }
+  for (let n = 1; n <= 16; n++) {
+    const old = `${RETIRED_MONITOR_PREFIX}${n.toString(16).toUpperCase().padStart(6, '0')}`;
+    const r = (await ds.query('UPDATE monitor SET identifier = ? WHERE identifier = ? AND NOT EXISTS (SELECT 1 FROM (SELECT id FROM monitor WHERE identifier = ?) x)', [demoMonitorIdentifier(n), old, demoMonitorIdentifier(n)])) as { affectedRows: number };
+    changed += r.affectedRows;
+  }
+  return changed;
+}
