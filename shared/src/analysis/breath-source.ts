@@ -55,15 +55,24 @@ export function spontaneousEvidence(byRole: Map<ChannelRole, ConditionedChannel>
   const paw = byRole.get('paw');
   if (bounds.source === 'paw' && paw) {
     const p = paw.smooth;
-    const len = Math.max(4, Math.floor(Math.min(...lengths) * fs * 0.9));
+    // Breath shapes compared every `stride` samples: airway pressure is low-passed at a few Hz, so
+    // ~25 points per second keep the shape and spare the work.
+    const stride = Math.max(1, Math.floor(fs / 25));
+    let shortest = Infinity;
+    for (const l of lengths) if (l < shortest) shortest = l;
+    const len = Math.max(4, Math.floor((shortest * fs * 0.9) / stride));
     const peaks: number[] = [];
     const shapes: Float64Array[] = [];
     for (let j = 0; j + 1 < bounds.onsets.length; j++) {
       const a = bounds.onsets[j];
-      if (a + len > p.length) break;
-      const s = p.subarray(a, a + len);
+      if (a + len * stride > p.length) break;
+      const s = new Float64Array(len);
       let pk = -Infinity;
-      for (let i = 0; i < s.length; i++) if (s[i] > pk) pk = s[i];
+      for (let i = 0; i < len; i++) {
+        const v = p[a + i * stride];
+        s[i] = v;
+        if (v > pk) pk = v;
+      }
       peaks.push(pk);
       shapes.push(s);
     }

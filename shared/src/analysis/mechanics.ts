@@ -34,10 +34,13 @@ export function respiratoryMechanics(paw: ConditionedChannel | undefined, bounds
     const a = bounds.onsets[j];
     const b = bounds.onsets[j + 1];
     // The onset sits where the pressure leaves the PEEP level (15 % of the swing above it): PEEP is
-    // the median of the 0.5 s of end-expiration before it.
+    // the mean of the 0.5 s of end-expiration before it.
     const from = a - Math.round(0.6 * fs);
     if (from < 0) continue;
-    const peep = median(Array.from(p.subarray(from, a - Math.round(0.1 * fs))));
+    let acc = 0;
+    const to = a - Math.round(0.1 * fs);
+    for (let i = from; i < to; i++) acc += p[i];
+    const peep = acc / Math.max(1, to - from);
     let pk = a;
     for (let i = a; i < b; i++) if (p[i] > p[pk]) pk = i;
     const peak = p[pk];

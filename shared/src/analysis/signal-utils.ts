@@ -39,11 +39,13 @@ export function robustPercentiles(x: ArrayLike<number>, ps: number[]): number[] 
   return ps.map((p) => select(buf, m, Math.min(m - 1, Math.max(0, Math.round((p / 100) * (m - 1))))));
 }
 
-export function median(values: number[]): number {
-  if (values.length === 0) return Number.NaN;
-  const s = values.slice().sort((a, b) => a - b);
-  const m = s.length >> 1;
-  return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
+export function median(values: ArrayLike<number>): number {
+  const n = values.length;
+  if (n === 0) return Number.NaN;
+  // A typed copy sorts numerically in native code (no comparator calls); NaN sorts last.
+  const s = Float64Array.from(values).sort();
+  const m = n >> 1;
+  return n % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
 }
 
 export function mean(values: number[]): number {
