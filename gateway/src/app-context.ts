@@ -6,7 +6,7 @@
  */
 import type { Logger } from 'pino';
 import type { DataSource } from 'typeorm';
-import type { Principal } from './auth/principal';
+import type { Principal } from './http/principal';
 import type { Config } from './config/schema';
 
 /** What every capability is given: the config, the database and the logger. */
