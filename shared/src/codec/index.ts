@@ -1,0 +1,1 @@
+export { decodeSegment, encodeSegment, isEncodedSegment } from './segment-codec';
