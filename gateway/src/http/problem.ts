@@ -2,6 +2,7 @@ import type { ErrorRequestHandler, RequestHandler } from 'express';
 import type { Logger } from 'pino';
 import { ZodError } from 'zod';
 import type { Problem } from '@ebbgate/shared';
+import { isDatabaseUnavailable } from '../db/unavailable';
 
 export interface FieldError {
   path: string;
@@ -101,6 +102,14 @@ export function problemHandler(logger: Logger): ErrorRequestHandler {
     }
     if (status && status >= 400 && status < 500) {
       return send(res, { type: TYPE_BASE + 'bad-request', title: 'Bad request', status, detail: e.message, instance });
+    }
+    if (isDatabaseUnavailable(err)) {
+      logger.warn({ err, reqId: req.id }, 'database unavailable; answered 503');
+      return send(
+        res,
+        { type: TYPE_BASE + 'service-unavailable', title: 'Service unavailable', status: 503, detail: 'The database cannot take this request right now; try again shortly.', instance },
+        { 'Retry-After': '5' },
+      );
     }
     logger.error({ err, reqId: req.id }, 'unhandled error');
     return send(res, {
