@@ -9,7 +9,7 @@ import { mkdtempSync, writeFileSync } from 'node:fs';
 import { cpus, loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { analyzeWindow, type AnalysisChannel } from '@ebbgate/shared/analysis';
+import { analyseWindow, type AnalysisChannel } from '@ebbgate/shared/analysis';
 import { generateWindow } from '@ebbgate/shared/synthetic';
 
 const FS = 125;
@@ -32,14 +32,14 @@ function runWindows(): number {
       { role: 'abp', sampleRate: FS, unit: 'mmHg', samples: abp.subarray(start, start + per) },
       { role: 'paw', sampleRate: FS, unit: 'cmH2O', samples: paw.subarray(start, start + per) },
     ];
-    cycles += analyzeWindow({ channels, context }).cycles.length;
+    cycles += analyseWindow({ channels, context }).cycles.length;
   }
   return cycles;
 }
 
 /** The whole hour as one window. */
 function runHour(): number {
-  return analyzeWindow({ channels: [{ role: 'abp', sampleRate: FS, unit: 'mmHg', samples: abp }, { role: 'paw', sampleRate: FS, unit: 'cmH2O', samples: paw }], context }).cycles.length;
+  return analyseWindow({ channels: [{ role: 'abp', sampleRate: FS, unit: 'mmHg', samples: abp }, { role: 'paw', sampleRate: FS, unit: 'cmH2O', samples: paw }], context }).cycles.length;
 }
 
 /**

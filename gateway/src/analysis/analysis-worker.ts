@@ -25,14 +25,14 @@ import { transactionWithRetry } from '../db/conflict-retry';
 
 export interface Engine {
   version: string;
-  analyze(input: AnalysisInput, settings?: Partial<AnalysisSettings>): AnalysisResult;
+  analyse(input: AnalysisInput, settings?: Partial<AnalysisSettings>): AnalysisResult;
   /** Judges a whole tidal volume challenge; engines without it skip challenges. */
   analyseChallenge?(input: ChallengeInput, settings?: Partial<AnalysisSettings>): TidalVolumeChallengeResult;
 }
 
 export const DEFAULT_ENGINE: Engine = {
   version: ENGINE_VERSION,
-  analyze: analyseWindow,
+  analyse: analyseWindow,
   analyseChallenge: (input, settings) => analyseTidalVolumeChallenge(input, settings).tidalVolumeChallenge,
 };
 
@@ -80,7 +80,7 @@ export async function analyseNextWindow(ctx: AppContext, engine: Engine, workerI
     const settings = { cyclesToAverage: site.cyclesToAverage, bands: site.bands };
     let result: AnalysisResult;
     try {
-      result = engine.analyze(input, settings);
+      result = engine.analyse(input, settings);
     } catch (err) {
       // Unreadable input (no data, unknown unit): the window is closed as failed with the reason.
       await m.update(AnalysisWindowRow, { id: w.id }, { status: 'failed', attempts: w.attempts + 1, claimedBy: workerId, lastError: String((err as Error).message).slice(0, 2000), doneAt: new Date() });

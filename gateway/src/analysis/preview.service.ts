@@ -1,5 +1,5 @@
 import type { AnalysisContext, PreviewResult, Waveform } from '@ebbgate/shared';
-import { analyzeWindow, AnalysisInputError, CaptureParseError, parseCsvCapture, roleForCode, type AnalysisChannel, type AnalysisInput } from '@ebbgate/shared/analysis';
+import { analyseWindow, AnalysisInputError, CaptureParseError, parseCsvCapture, roleForCode, type AnalysisChannel, type AnalysisInput } from '@ebbgate/shared/analysis';
 import type { AppContext } from '../app-context';
 import { MonitorProfileRow } from '../devices/device.entities';
 import { toProfile } from '../devices/device-views';
@@ -85,7 +85,7 @@ export async function previewCapture(ctx: AppContext, file: { buffer: Buffer; or
     }
     if (!input.channels.length) throw new AnalysisInputError('no channel with a known role');
     const site = (await getSiteSettings(ctx)).analysis;
-    const analysis = analyzeWindow(input, { cyclesToAverage: site.cyclesToAverage, bands: site.bands });
+    const analysis = analyseWindow(input, { cyclesToAverage: site.cyclesToAverage, bands: site.bands });
     const waveform: Waveform = {
       startTime: input.startTime ?? new Date(0).toISOString(),
       channels: input.channels.map((c) => ({ role: c.role, unit: c.unit, sampleRate: c.sampleRate, samples: Array.from(c.samples, (v) => (Number.isFinite(v) ? v : null)) })),

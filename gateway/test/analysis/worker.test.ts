@@ -1,5 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { analyzeWindow } from '@ebbgate/shared/analysis';
+import { analyseWindow } from '@ebbgate/shared/analysis';
 import { analyseNextWindow, AnalysisWorker, DEFAULT_ENGINE, requestReanalysis, type Engine } from '../../src/analysis/analysis-worker';
 import { assembleWindow } from '../../src/analysis/window-assembly';
 import { assessmentEvents } from '../../src/assessments/events';
@@ -67,7 +67,7 @@ describe('analysis scheduling', () => {
     // The same window analysed directly gives the same result: storage changed nothing.
     const { input } = await assembleWindow(gw.ctx.ds, m.monitorId, new Date(T0), new Date(T0 + 30_000));
     input.context = { probeSite: 'finger', plethScaling: 'raw', ventilationMode: 'controlled', tidalVolumeMl: 500, patientHeightCm: 175, patientSex: 'male' };
-    const direct = analyzeWindow(input, { cyclesToAverage: 3 });
+    const direct = analyseWindow(input, { cyclesToAverage: 3 });
     expect(direct.indices.ppv.value).toBe(result.indices.ppv.value);
     expect(direct.verdict).toBe(mine[0]!.verdict);
     const windows = await gw.ctx.ds.query("SELECT status, assessment_id FROM analysis_window WHERE monitor_id = ?", [m.monitorId]);
@@ -77,7 +77,7 @@ describe('analysis scheduling', () => {
   it('closes a window as failed with the reason when the engine cannot read it', async () => {
     const m = await registerMonitor(integrator, 'A0B1C2D3E4F50003');
     await sendRecording(gw, m.apiKey, 'A0B1C2D3E4F50003', T0, spec);
-    const broken: Engine = { version: DEFAULT_ENGINE.version, analyze: () => { throw new Error('unit "furlong" is not understood'); } };
+    const broken: Engine = { version: DEFAULT_ENGINE.version, analyse: () => { throw new Error('unit "furlong" is not understood'); } };
     await drain(broken);
     const rows = await gw.ctx.ds.query('SELECT status, last_error FROM analysis_window WHERE monitor_id = ?', [m.monitorId]);
     expect(rows.map((r: { status: string }) => r.status)).toEqual(['failed', 'failed']);
@@ -88,7 +88,7 @@ describe('analysis scheduling', () => {
     const m = await registerMonitor(integrator, 'A0B1C2D3E4F50004');
     await sendRecording(gw, m.apiKey, 'A0B1C2D3E4F50004', T0, spec);
     await drain();
-    const newer: Engine = { version: '99.0.0-test', analyze: (i, s) => ({ ...analyzeWindow(i, s), engineVersion: '99.0.0-test' }) };
+    const newer: Engine = { version: '99.0.0-test', analyse: (i, s) => ({ ...analyseWindow(i, s), engineVersion: '99.0.0-test' }) };
     expect(await requestReanalysis(gw.ctx, { engineVersion: newer.version, monitorId: m.monitorId })).toBe(2);
     expect(await requestReanalysis(gw.ctx, { engineVersion: newer.version, monitorId: m.monitorId })).toBe(0); // idempotent
     // A worker of the old version does not take the newer version's windows.

@@ -8,10 +8,10 @@ export const corvaneProfile = (name = 'Corvane BX-7 (test)'): MonitorProfileInpu
   model: 'BX-7',
   transports: ['http', 'mllp'],
   channels: [
-    // 150036 = MDC_PRESS_BLD_ART_ABP (IEEE 11073-10101, confirmed in the handbook's table).
+    // 150036 = MDC_PRESS_BLD_ART_ABP (IEEE 11073-10101 nomenclature, confirmed).
     { code: '150036', label: 'Arterial pressure', role: 'abp', unit: 'mmHg', gain: 1, offset: 0, sampleRate: 125 },
     { code: 'MDC_PRESS_BLD_ART_ABP', role: 'abp', unit: 'mmHg', gain: 1, offset: 0, sampleRate: 125 },
-    // 150452 = MDC_PULS_OXIM_PLETH ("from tables" in the handbook).
+    // 150452 = MDC_PULS_OXIM_PLETH (IEEE 11073-10101, from published code tables, not re-checked).
     { code: '150452', label: 'Pleth', role: 'pleth', unit: '1', gain: 1, offset: 0, sampleRate: 125 },
     { code: 'MDC_PULS_OXIM_PLETH', role: 'pleth', unit: '1', gain: 1, offset: 0, sampleRate: 125 },
     { code: 'MDC_PRESS_AWAY', role: 'paw', unit: 'cmH2O', gain: 1, offset: 0, sampleRate: 125 },

@@ -3,7 +3,7 @@
  * profile id (MSH-21), PID/PV1, one OBR, then OBX rows in depth-first order of the containment
  * tree (MDS 1.0.0.0 with OBX-18 EUI-64 → VMD → channel → metric), waveforms as NA with the
  * sample-rate facet at <metric>.1. Codes: 150036 MDC_PRESS_BLD_ART_ABP and 147842
- * MDC_ECG_HEART_RATE (confirmed in the handbook); 150452 MDC_PULS_OXIM_PLETH (from tables);
+ * MDC_ECG_HEART_RATE (IEEE 11073-10101, confirmed); 150452 MDC_PULS_OXIM_PLETH (from tables);
  * 69965 MDS and 67981 MDC_ATTR_SAMP_RATE, 264608 MDC_DIM_PER_SEC and 266016 MDC_DIM_MMHG units
  * (units confirmed; the MDS and sample-rate attribute codes from memory).
  */

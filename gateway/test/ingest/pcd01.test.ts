@@ -18,7 +18,7 @@ function refusalOf(text: string): IngestRefusal {
   throw new Error('expected a refusal');
 }
 
-describe('PCD-01 decoding (IHE PCD TF-2 rules in handbook standards.md)', () => {
+describe('PCD-01 decoding (IHE PCD Technical Framework Vol. 2 rules)', () => {
   it('reads NA waveform rows with their sample-rate facet, OBX-18 monitor, OBX-14 time and vent numerics', () => {
     const text = buildPcd01({ controlId: 'M1', equipment: '0123456789ABCDEF', start, waves: [wave], heartRate: 80, setRespiratoryRate: 14, tidalVolumeMl: 450 });
     const d = decodePcd01(Buffer.from(text));

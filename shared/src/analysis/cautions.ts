@@ -1,4 +1,4 @@
-/** Cautions carried by every result (handbook: "Cautions the product must show"). */
+/** Cautions carried by every result: the product defers to local protocol and licensed practice (common practice). */
 export const CAUTIONS: readonly string[] = [
   'Decision support for trained clinicians only: Ebbgate does not diagnose and does not order fluid.',
   'A large respiratory variation does not by itself mean fluid should be given: a patient who is not hypotensive and is haemodynamically stable probably needs none.',

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { generateWindow, type Disturbance } from '../synthetic/index';
 import { truthOverUsedCycles } from '../synthetic/test-support/grid-support';
-import { analyzeWindow } from './index';
+import { analyseWindow } from './index';
 import type { AnalysisContext, FlagCode } from './types';
 
 // Disturbed synthetic windows: on each, the flag named for that disturbance must fire.
@@ -35,7 +35,7 @@ describe('disturbed synthetic windows raise the right flag', () => {
       const s = ++seed;
       it(`${c.name} at HR ${hr}, RR ${rr}, PPV ${ppv} → ${c.flag} (${c.source})`, () => {
         const w = generateWindow({ seed: s, heartRate: hr, respiratoryRate: rr, ppv, channels: ['abp', 'pleth', 'paw'], disturbances: c.disturbances });
-        const r = analyzeWindow({ channels: w.channels, context: CONTEXT });
+        const r = analyseWindow({ channels: w.channels, context: CONTEXT });
         expect(r.flags.map((f) => f.code)).toContain(c.flag);
         expect(r.verdict).not.toBe('valid');
         // Whatever the engine still reports must come only from cycles it judged usable.
@@ -45,18 +45,18 @@ describe('disturbed synthetic windows raise the right flag', () => {
   }
 
   it('the direction of error is given where the literature says (Ann Intensive Care 2016, doi 10.1186/s13613-016-0216-7)', () => {
-    const spont = analyzeWindow({ channels: generateWindow({ seed: 1, heartRate: 80, respiratoryRate: 15, ppv: 10, disturbances: [{ kind: 'spontaneous-breaths', count: 3 }] }).channels, context: CONTEXT });
+    const spont = analyseWindow({ channels: generateWindow({ seed: 1, heartRate: 80, respiratoryRate: 15, ppv: 10, disturbances: [{ kind: 'spontaneous-breaths', count: 3 }] }).channels, context: CONTEXT });
     expect(spont.flags.find((f) => f.code === 'spontaneous-breathing')?.direction).toBe('false-high');
-    const af = analyzeWindow({ channels: generateWindow({ seed: 2, heartRate: 80, respiratoryRate: 15, ppv: 10, disturbances: [{ kind: 'irregular-rhythm', variability: 0.3 }] }).channels, context: CONTEXT });
+    const af = analyseWindow({ channels: generateWindow({ seed: 2, heartRate: 80, respiratoryRate: 15, ppv: 10, disturbances: [{ kind: 'irregular-rhythm', variability: 0.3 }] }).channels, context: CONTEXT });
     expect(af.flags.find((f) => f.code === 'irregular-rhythm')?.direction).toBe('false-high');
-    const slow = analyzeWindow({ channels: generateWindow({ seed: 3, heartRate: 55, respiratoryRate: 20, ppv: 10 }).channels, context: CONTEXT });
+    const slow = analyseWindow({ channels: generateWindow({ seed: 3, heartRate: 55, respiratoryRate: 20, ppv: 10 }).channels, context: CONTEXT });
     expect(slow.flags.find((f) => f.code === 'low-hr-rr-ratio')?.direction).toBe('false-low');
   });
 
   it('baseline wander is tolerated: no flag and PPV within ±1 point (PP = SBP − DBP of each beat cancels slow drift)', () => {
     for (const [hr, rr, ppv] of BASES) {
       const w = generateWindow({ seed: hr * rr, heartRate: hr, respiratoryRate: rr, ppv, disturbances: [{ kind: 'baseline-wander', amplitude: 0.3, frequencyHz: 0.05 }] });
-      const r = analyzeWindow({ channels: w.channels, context: CONTEXT });
+      const r = analyseWindow({ channels: w.channels, context: CONTEXT });
       expect(r.flags).toEqual([]);
       expect(Math.abs((r.indices.ppv.value as number) - (truthOverUsedCycles(r, w.truth, 'ppv') as number))).toBeLessThanOrEqual(1);
     }
@@ -65,11 +65,11 @@ describe('disturbed synthetic windows raise the right flag', () => {
   it('light noise (0.5 % of PP) is tolerated within ±1 point; noise above 1 % of PP is flagged as likely false high', () => {
     for (const [hr, rr, ppv] of BASES) {
       const light = generateWindow({ seed: hr + 1, heartRate: hr, respiratoryRate: rr, ppv, disturbances: [{ kind: 'noise', level: 0.005 }] });
-      const r1 = analyzeWindow({ channels: light.channels, context: CONTEXT });
+      const r1 = analyseWindow({ channels: light.channels, context: CONTEXT });
       expect(r1.flags).toEqual([]);
       expect(Math.abs((r1.indices.ppv.value as number) - (truthOverUsedCycles(r1, light.truth, 'ppv') as number))).toBeLessThanOrEqual(1);
       const noisy = generateWindow({ seed: hr + 2, heartRate: hr, respiratoryRate: rr, ppv, disturbances: [{ kind: 'noise', level: 0.02 }] });
-      const r2 = analyzeWindow({ channels: noisy.channels, context: CONTEXT });
+      const r2 = analyseWindow({ channels: noisy.channels, context: CONTEXT });
       const flag = r2.flags.find((f) => f.code === 'noise-motion' && f.source === 'abp');
       expect(flag?.direction).toBe('false-high');
     }
@@ -77,7 +77,7 @@ describe('disturbed synthetic windows raise the right flag', () => {
 
   it('ectopic beats are excluded: PPV from the remaining cycles stays within ±1 point', () => {
     const w = generateWindow({ seed: 42, heartRate: 90, respiratoryRate: 15, ppv: 14, disturbances: [{ kind: 'ectopic', count: 3 }] });
-    const r = analyzeWindow({ channels: w.channels, context: CONTEXT });
+    const r = analyseWindow({ channels: w.channels, context: CONTEXT });
     const ectopic = r.beats.abp!.beats.filter((b) => b.rejectReasons.includes('ectopic'));
     expect(ectopic.length).toBeGreaterThanOrEqual(3);
     expect(r.cycles.filter((c) => c.rejectReasons.includes('ectopic-beat')).length).toBeGreaterThanOrEqual(3);
@@ -87,7 +87,7 @@ describe('disturbed synthetic windows raise the right flag', () => {
   it('other monitor sample rates (62.5–500 Hz): beats all found and PPV, ΔPOP within ±1 point (Zong windows scaled with fs)', () => {
     for (const fs of [62.5, 100, 250, 500]) {
       const w = generateWindow({ seed: 60 + fs, heartRate: 95, respiratoryRate: 16, ppv: 15, sampleRate: fs, channels: ['abp', 'pleth', 'paw'] });
-      const r = analyzeWindow({ channels: w.channels, context: CONTEXT });
+      const r = analyseWindow({ channels: w.channels, context: CONTEXT });
       expect(r.beats.abp!.acceptedCount, `fs ${fs}`).toBeGreaterThanOrEqual(w.truth.beats.abp.length - 2);
       expect(Math.abs((r.indices.ppv.value as number) - (truthOverUsedCycles(r, w.truth, 'ppv') as number)), `fs ${fs}`).toBeLessThanOrEqual(1);
       expect(Math.abs((r.indices.deltaPop.value as number) - (truthOverUsedCycles(r, w.truth, 'deltaPop') as number)), `fs ${fs}`).toBeLessThanOrEqual(1);
@@ -96,7 +96,7 @@ describe('disturbed synthetic windows raise the right flag', () => {
 
   it('without paw, cycles come from CO2 and PPV stays within ±1 point', () => {
     const w = generateWindow({ seed: 77, heartRate: 85, respiratoryRate: 14, ppv: 16, channels: ['abp', 'co2'] });
-    const r = analyzeWindow({ channels: w.channels, context: CONTEXT });
+    const r = analyseWindow({ channels: w.channels, context: CONTEXT });
     expect(r.respiration.source).toBe('co2');
     expect(r.cycles.every((c) => c.source === 'co2')).toBe(true);
     const truth = w.truth.cycles.reduce((a, c) => a + (c.ppv as number), 0) / w.truth.cycles.length;
@@ -105,7 +105,7 @@ describe('disturbed synthetic windows raise the right flag', () => {
 
   it('without paw or CO2, cycles are inferred from the set rate, flagged, and PPV stays near the construction', () => {
     const w = generateWindow({ seed: 78, heartRate: 85, respiratoryRate: 14, ppv: 16, channels: ['abp'] });
-    const r = analyzeWindow({ channels: w.channels, context: { ...CONTEXT, setRespiratoryRate: 14 } });
+    const r = analyseWindow({ channels: w.channels, context: { ...CONTEXT, setRespiratoryRate: 14 } });
     expect(r.respiration.source).toBe('inferred');
     expect(r.flags.map((f) => f.code)).toContain('respiration-inferred');
     expect(r.verdict).toBe('questionable');
@@ -116,7 +116,7 @@ describe('disturbed synthetic windows raise the right flag', () => {
 
   it('without paw, CO2 or set rate, no cycles: indices not computable with the reason, flag no-respiration-source', () => {
     const w = generateWindow({ seed: 79, heartRate: 85, respiratoryRate: 14, ppv: 16, channels: ['abp'] });
-    const r = analyzeWindow({ channels: w.channels, context: CONTEXT });
+    const r = analyseWindow({ channels: w.channels, context: CONTEXT });
     expect(r.indices.ppv.value).toBeNull();
     expect(r.indices.ppv.notComputableReason).toMatch(/set ventilator rate/);
     expect(r.flags.map((f) => f.code)).toContain('no-respiration-source');

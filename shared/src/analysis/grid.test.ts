@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { generateWindow } from '../synthetic/index';
 import { createPrng } from '../synthetic/prng';
 import { matchBeats, truthLastCleanCycles } from '../synthetic/test-support/grid-support';
-import { analyzeWindow } from './index';
+import { analyseWindow } from './index';
 import type { AnalysisContext } from './types';
 
 // Synthetic signals whose PPV and ΔPOP are known by construction (shared/src/synthetic): the truth
@@ -40,7 +40,7 @@ for (const hr of HR)
       seed++;
       const pleth = seed % 3 === 0;
       const w = generateWindow({ seed, heartRate: hr, respiratoryRate: rr, ppv, channels: pleth ? ['abp', 'pleth', 'paw'] : ['abp', 'paw'] });
-      const r = analyzeWindow({ channels: w.channels, context: CONTEXT });
+      const r = analyseWindow({ channels: w.channels, context: CONTEXT });
       const m = matchBeats(r.beats.abp?.beats.map((b) => b.peakTime) ?? [], w.truth.beats.abp.map((b) => b.peakTime), 60);
       rows.push({
         hr,
@@ -129,7 +129,7 @@ interface Drawn {
   label: string;
   truthPpv: number;
   truthSpv: number;
-  engine: ReturnType<typeof analyzeWindow>;
+  engine: ReturnType<typeof analyseWindow>;
   catheter: { fn: number; zeta: number } | null;
   mode: 'controlled' | 'unknown' | undefined;
   compliance: number;
@@ -168,7 +168,7 @@ const drawn: Drawn[] = [];
       label: `#${k} HR ${hr} RR ${rr} PPV ${ppv.toFixed(1)} PP ${pp.toFixed(0)} DBP ${dbp.toFixed(0)} ${catheter ? `fn ${catheter.fn.toFixed(1)} ζ ${catheter.zeta.toFixed(2)}` : 'no catheter'} ${mode ?? 'absent'} C ${compliance.toFixed(0)}${pause ? ' pause' : ''}`,
       truthPpv: truthLastCleanCycles(w.truth, 'ppv') as number,
       truthSpv: truthLastCleanCycles(w.truth, 'spv') as number,
-      engine: analyzeWindow({ channels: w.channels, context }),
+      engine: analyseWindow({ channels: w.channels, context }),
       catheter,
       mode,
       compliance,

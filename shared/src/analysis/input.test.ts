@@ -6,7 +6,7 @@ import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
 import { ingestBatchSchema } from '../schemas/ingest';
 import { generateWindow, toCsvCapture, toIngestBatch } from '../synthetic/index';
-import { analyzeWindow } from './index';
+import { analyseWindow } from './index';
 import { batchToAnalysisInput, CaptureParseError, DEFAULT_CODE_ROLES, parseBatchJson, parseCsvCapture, roleForCode } from './input';
 
 const w = generateWindow({ seed: 31, heartRate: 88, respiratoryRate: 15, ppv: 13, channels: ['abp', 'paw'], durationSeconds: 30, disturbances: [{ kind: 'gap', start: 5, duration: 0.5 }] });
@@ -28,8 +28,8 @@ describe('capture input', () => {
     const input = batchToAnalysisInput(batch);
     expect(input.skipped).toEqual([]);
     expect(Number.isNaN(input.channels[0].samples[Math.round(5.2 * 125)])).toBe(true); // gap kept as NaN
-    const a = analyzeWindow(input).indices.ppv.value as number;
-    const b = analyzeWindow({ channels: w.channels }).indices.ppv.value as number;
+    const a = analyseWindow(input).indices.ppv.value as number;
+    const b = analyseWindow({ channels: w.channels }).indices.ppv.value as number;
     expect(Math.abs(a - b)).toBeLessThan(0.01);
   });
 
@@ -72,7 +72,7 @@ describe('capture input', () => {
   });
 });
 
-describe('CLI (npm run analyze)', () => {
+describe('CLI (npm run analyse)', () => {
   const dir = mkdtempSync(join(tmpdir(), 'ebbgate-cli-'));
   const tsx = fileURLToPath(new URL('../../../node_modules/.bin/tsx', import.meta.url));
   const cli = fileURLToPath(new URL('./cli.ts', import.meta.url));

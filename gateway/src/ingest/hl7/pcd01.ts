@@ -1,6 +1,6 @@
 /**
  * IHE PCD-01 (ORU^R01) waveform messages → a transport-neutral batch. Rules from IHE PCD TF-2
- * (see handbook standards.md): OBX-3 `code^REFID^MDC`, OBX-4 dotted hierarchy with time
+ * (IHE Patient Care Device Technical Framework, Vol. 2): OBX-3 `code^REFID^MDC`, OBX-4 dotted hierarchy with time
  * inherited from the nearest ancestor (OBX-14 over OBR-7), OBX-18 equipment identifier (EUI-64)
  * inherited from the MDS level, waveforms as NA with a sample-rate facet row under their sub-ID.
  */

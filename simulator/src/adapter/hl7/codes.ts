@@ -1,7 +1,7 @@
 /**
- * OBX-3 / OBX-6 codes the ORU^R01 builder uses. Statuses as in the standards notes
- * (`../shared/handbook/standards.md`): "confirmed" = read in the standard or an official value
- * set; "from memory" = not re-checked; "local" = our own code system `99EBB` (HL7 v2 table 0396
+ * OBX-3 / OBX-6 codes the ORU^R01 builder uses: IEEE 11073-10101 nomenclature (MDC codes) and
+ * UCUM units, as profiled by IHE PCD-01 (IHE PCD Technical Framework). Status of each code:
+ * "confirmed" = read in the standard or an official value set; "from memory" = not re-checked; "local" = our own code system `99EBB` (HL7 v2 table 0396
  * reserves 99zzz for local systems) where no standard code was found.
  */
 export interface CodedValue {
