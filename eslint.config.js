@@ -32,7 +32,7 @@ const featureBoundary = (feature) => ({
 });
 
 export default tseslint.config(
-  { ignores: ['**/node_modules/**', '**/dist/**', '.data/**', 'artefacts/**', 'tests/reference/**/*.py', 'tests/.results/**'] },
+  { ignores: ['**/node_modules/**', '**/dist/**', '.data/**', '.tmp/**', 'coverage/**', 'artefacts/**', 'tests/reference/**/*.py', 'tests/.results/**'] },
   js.configs.recommended,
   ...tseslint.configs.recommended,
   {
