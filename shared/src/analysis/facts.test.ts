@@ -76,7 +76,7 @@ describe('facts of the trade', () => {
     expect(r.verdict).toBe('valid'); // the arterial PPV is not affected by a pleth dropout
   });
 
-  it('declared monitor filtering is carried as a flag and in the channel report (common practice: a monitor's own filtering must be known and declared)', () => {
+  it('declared monitor filtering is carried as a flag and in the channel report (common practice: the filtering a monitor applies must be known and declared)', () => {
     const r = analyseWindow({ channels: window(), context: { ...CONTEXT, builtInFiltering: 'display filter 0.5–10 Hz' } });
     expect(r.flags.find((f) => f.code === 'monitor-filtering-declared')?.reason).toMatch(/0.5–10 Hz/);
     expect(r.channels.find((c) => c.role === 'pleth')?.declaredFiltering).toBe('display filter 0.5–10 Hz');
