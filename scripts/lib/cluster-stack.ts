@@ -43,6 +43,8 @@ export interface ClusterStackOptions {
   gateways?: number;
   /** Stream the demo scenario through HAProxy. */
   simulator?: boolean;
+  /** Hospital file for the mock EHR (beds, patients, encounters); the demo hospital when absent. */
+  mockEhrSeedFile?: string;
   /** Extra environment for every gateway (tests: faster polls). */
   gatewayEnv?: Record<string, string>;
   log?: (m: string) => void;
@@ -187,7 +189,7 @@ export async function startClusterStack(opts: ClusterStackOptions): Promise<Clus
       {
         name: 'mock EHR',
         script: path.join(repoRoot, 'mock-ehr/dist/main.js'),
-        env: { MOCK_EHR_HTTP_PORT: String(ports.mockEhr), MOCK_EHR_SMTP_PORT: String(ports.smtp), MOCK_EHR_MLLP_PORT: String(ports.hl7Receiver) },
+        env: { MOCK_EHR_HTTP_PORT: String(ports.mockEhr), MOCK_EHR_SMTP_PORT: String(ports.smtp), MOCK_EHR_MLLP_PORT: String(ports.hl7Receiver), ...(opts.mockEhrSeedFile ? { MOCK_EHR_SEED_FILE: opts.mockEhrSeedFile } : {}) },
         logFile: path.join(dir, 'logs/mock-ehr.log'),
         ready: () => httpAnswers(`${mockEhrUrl}/mail`),
       },
