@@ -100,6 +100,15 @@ describe('segment reader', () => {
     expect(parseHl7(msg(4), { maxSegments: 5, maxFieldsPerSegment: 50 }).segments).toHaveLength(5);
   });
 
+  it('reads the received bytes segment by segment the same as the text (UTF-8, CR or LF endings)', () => {
+    const text = 'MSH|^~\\&|Ä|B\rPID|||1||Ødegård^Åsa\nOBX|1|ST|x||naïve ✓\r\n';
+    const limits = { maxSegments: 10, maxFieldsPerSegment: 50 };
+    const fromBytes = parseHl7(Buffer.from('\x0b' + text), limits).segments;
+    expect(fromBytes.map((x) => x.fields)).toEqual(parseHl7(text, limits).segments.map((x) => x.fields));
+    expect(fromBytes.map((x) => x.name)).toEqual(['MSH', 'PID', 'OBX']);
+    expect(fromBytes[1]!.fields[5]).toBe('Ødegård^Åsa');
+  });
+
   it('the time-sliced reader gives the event loop turns on a large message and reads the same segments', async () => {
     const text = msg(60_000);
     let turns = 0;

@@ -47,36 +47,68 @@ export class Hl7ParseError extends Error {
  */
 export class SegmentCursor {
   readonly delimiters: Delimiters;
-  private readonly body: string;
+  private readonly text: string | null;
+  private readonly bytes: Buffer | null;
   private from = 0;
   private index = 0;
+  /** Lines of the current CR-separated piece still to read (a piece may hold LF-separated lines). */
+  private queued: string[] = [];
 
+  /**
+   * `input` as text, or as the received bytes: then each segment is decoded from UTF-8 on its own
+   * (CR and LF never occur inside a multi-byte character), so no single step converts megabytes.
+   */
   constructor(
-    text: string,
+    input: string | Buffer,
     private readonly limits: Hl7Limits = DEFAULT_HL7_LIMITS,
   ) {
-    const body = text.replace(/^[\s\v]+/, ''); // leading whitespace or a stray MLLP start byte (VT = \v)
-    if (!body.startsWith('MSH')) throw new Hl7ParseError('The message does not start with an MSH segment.', 100, 'MSH');
-    if (body.length < 8) throw new Hl7ParseError('The MSH segment is too short to carry its delimiters.', 101, 'MSH^1^1');
-    const field = body[3] as string;
-    const encEnd = body.indexOf(field, 4);
-    const enc = body.slice(4, encEnd < 0 ? 8 : Math.min(encEnd, 9));
+    let start = 0;
+    const at = (i: number) => (typeof input === 'string' ? input.charCodeAt(i) : (input[i] as number));
+    // Leading whitespace or a stray MLLP start byte (VT).
+    while (start < input.length && [0x20, 0x09, 0x0a, 0x0d, 0x0b, 0x0c].includes(at(start))) start++;
+    const headLen = Math.min(input.length - start, 64);
+    const head = typeof input === 'string' ? input.slice(start, start + headLen) : input.toString('utf8', start, start + headLen);
+    if (!head.startsWith('MSH')) throw new Hl7ParseError('The message does not start with an MSH segment.', 100, 'MSH');
+    if (head.length < 8) throw new Hl7ParseError('The MSH segment is too short to carry its delimiters.', 101, 'MSH^1^1');
+    const field = head[3] as string;
+    const encEnd = head.indexOf(field, 4);
+    const enc = head.slice(4, encEnd < 0 ? 8 : Math.min(encEnd, 9));
     if (/[A-Za-z0-9\s]/.test(field) || enc.length < 2 || /[A-Za-z0-9\s]/.test(enc)) {
       throw new Hl7ParseError('MSH-1/MSH-2 do not hold valid delimiters.', 102, 'MSH^1^2');
     }
     this.delimiters = { field, component: enc[0] as string, repetition: enc[1] as string, escape: enc[2] ?? '\\', subcomponent: enc[3] ?? '&' };
-    this.body = body;
+    this.text = typeof input === 'string' ? input : null;
+    this.bytes = typeof input === 'string' ? null : input;
+    this.from = start;
   }
 
-  /** The next segment, or null at the end of the message. */
-  next(): Segment | null {
-    const { body, limits } = this;
-    const field = this.delimiters.field;
-    while (this.from < body.length) {
+  private nextLine(): string | null {
+    if (this.queued.length) return this.queued.shift() as string;
+    if (this.text !== null) {
+      const body = this.text;
+      if (this.from >= body.length) return null;
       let to = this.from;
       while (to < body.length && body.charCodeAt(to) !== 13 && body.charCodeAt(to) !== 10) to++;
       const line = body.slice(this.from, to);
       this.from = to + 1;
+      return line;
+    }
+    const buf = this.bytes as Buffer;
+    if (this.from >= buf.length) return null;
+    let to = buf.indexOf(13, this.from);
+    if (to < 0) to = buf.length;
+    const piece = buf.toString('utf8', this.from, to);
+    this.from = to + 1;
+    if (!piece.includes('\n')) return piece;
+    this.queued = piece.split('\n');
+    return this.queued.shift() as string;
+  }
+
+  /** The next segment, or null at the end of the message. */
+  next(): Segment | null {
+    const { limits } = this;
+    const field = this.delimiters.field;
+    for (let line = this.nextLine(); line !== null; line = this.nextLine()) {
       if (!line.trim()) continue;
       const index = ++this.index;
       if (index > limits.maxSegments) {
@@ -96,7 +128,7 @@ export class SegmentCursor {
   }
 }
 
-export function parseHl7(text: string, limits: Hl7Limits = DEFAULT_HL7_LIMITS): Hl7Message {
+export function parseHl7(text: string | Buffer, limits: Hl7Limits = DEFAULT_HL7_LIMITS): Hl7Message {
   const cursor = new SegmentCursor(text, limits);
   const segments: Segment[] = [];
   for (let s = cursor.next(); s; s = cursor.next()) segments.push(s);
@@ -122,7 +154,7 @@ export function timeSlicer(budgetMs = 4): () => Promise<void> | undefined {
 }
 
 /** `parseHl7` that pauses every few ms of work. */
-export async function parseHl7Async(text: string, limits: Hl7Limits = DEFAULT_HL7_LIMITS, slice = timeSlicer()): Promise<Hl7Message> {
+export async function parseHl7Async(text: string | Buffer, limits: Hl7Limits = DEFAULT_HL7_LIMITS, slice = timeSlicer()): Promise<Hl7Message> {
   const cursor = new SegmentCursor(text, limits);
   const segments: Segment[] = [];
   for (let s = cursor.next(); s; s = cursor.next()) {

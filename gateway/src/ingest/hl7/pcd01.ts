@@ -121,7 +121,7 @@ function prefixes(subId: string): string[] {
 function* decodeSteps(raw: Buffer, limits: Pcd01Limits): Generator<void, Pcd01Decoded> {
   let msg: Hl7Message;
   try {
-    const cursor = new SegmentCursor(raw.toString('utf8'), limits);
+    const cursor = new SegmentCursor(raw, limits);
     const segments: Segment[] = [];
     for (let seg = cursor.next(); seg; seg = cursor.next()) {
       segments.push(seg);
