@@ -53,8 +53,9 @@ function sanitize<T>(value: T): T {
   if (value && typeof value === 'object') {
     const rec = value as Record<string, unknown>;
     // Beat values are read from the gap-bridged, filtered signal and are finite by construction
-    // (templateCorrelation goes through finiteOrNull), so the largest arrays are skipped.
-    for (const k of Object.keys(rec)) if (k !== 'beats' || !Array.isArray(rec[k])) rec[k] = sanitize(rec[k]);
+    // (templateCorrelation goes through finiteOrNull); cycle values are sample times, maxima and
+    // minima of finite beats, or go through finiteOrNull. So the largest arrays are skipped.
+    for (const k of Object.keys(rec)) if ((k !== 'beats' && k !== 'cycles') || !Array.isArray(rec[k])) rec[k] = sanitize(rec[k]);
   }
   return value;
 }

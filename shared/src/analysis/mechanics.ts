@@ -41,8 +41,10 @@ export function respiratoryMechanics(paw: ConditionedChannel | undefined, bounds
     const to = a - Math.round(0.1 * fs);
     for (let i = from; i < to; i++) acc += p[i];
     const peep = acc / Math.max(1, to - from);
+    // The peak lies in inspiration, which no ventilator setting makes longer than 70 % of the breath.
     let pk = a;
-    for (let i = a; i < b; i++) if (p[i] > p[pk]) pk = i;
+    const inspEnd = a + Math.ceil(0.7 * (b - a));
+    for (let i = a; i < inspEnd; i++) if (p[i] > p[pk]) pk = i;
     const peak = p[pk];
     peeps.push(peep);
     peaks.push(peak);

@@ -18,10 +18,13 @@ export function findSignalLoss(y: Float64Array, fs: number, minSeconds: number):
   if (nb < 6) return [];
   const lo = new Float64Array(nb);
   const hi = new Float64Array(nb);
+  // The trace is low-passed (16 Hz): reading every `stride`-th sample (~60 per second) cannot miss
+  // a pulse-sized swing and halves the work at 125 Hz.
+  const stride = Math.max(1, Math.floor(fs / 60));
   for (let k = 0; k < nb; k++) {
     let a = Infinity;
     let b = -Infinity;
-    for (let i = k * block, e = i + block; i < e; i++) {
+    for (let i = k * block, e = i + block; i < e; i += stride) {
       const v = y[i];
       if (v < a) a = v;
       if (v > b) b = v;
