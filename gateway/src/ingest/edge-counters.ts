@@ -12,7 +12,8 @@ export type EdgeEvent =
   | 'stranger-rate-limited'
   | 'unauthorized-sender'
   | 'storage-unavailable'
-  | 'monitor-backlog';
+  | 'monitor-backlog'
+  | 'conflicting-stream';
 
 export class EdgeCounters {
   readonly counts = new Map<EdgeEvent, number>();

@@ -99,6 +99,7 @@ export class IngestService {
     } catch (err) {
       if (!(err instanceof IngestRefusal)) throw err;
       if (err.kind === 'conflict' || err.kind === 'conflicting') {
+        if (err.kind === 'conflicting') this.counters.inc('conflicting-stream');
         if (err.kind === 'conflicting') this.ctx.logger.warn({ monitor: batch?.monitorIdentifier, sender: senderLabel(req.sender) }, 'second stream for a monitor refused (conflicting)');
         return { refusal: err, inboundMessageId: '' }; // already kept by storeBatch
       }

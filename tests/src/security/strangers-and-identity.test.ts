@@ -104,5 +104,7 @@ describe('a second stream for one monitor', () => {
     expect(listed.body.items.map((m: { batchId: string }) => m.batchId)).toEqual(['s2-2']);
     const [segs] = await e.query<{ n: number }>('SELECT COUNT(*) AS n FROM waveform_segment s JOIN inbound_message m ON m.id = s.inbound_message_id WHERE m.batch_id = ?', ['s2-2']);
     expect(Number(segs!.n)).toBe(0);
+    // Alerted: counted on /metrics for the monitoring that watches the gateway.
+    expect(await e.metric('conflicting-stream')).toBe(1);
   });
 });
