@@ -150,7 +150,6 @@ export class MllpReader {
 
   private collect(data: Buffer, out: MllpEvent[]): Buffer {
     let end = -1;
-    let rest = data;
     if (this.pendingFs && data[0] === MLLP_CR) {
       // FS was the last byte of the previous chunk: drop it from the parts and finish.
       const last = this.parts[this.parts.length - 1] as Buffer;
@@ -173,7 +172,7 @@ export class MllpReader {
       at = data.indexOf(MLLP_END, at + 1);
     }
     const body = end < 0 ? data : data.subarray(0, end);
-    rest = end < 0 ? Buffer.alloc(0) : data.subarray(end + 2);
+    const rest = end < 0 ? Buffer.alloc(0) : data.subarray(end + 2);
     if (this.partsLen + body.length - (end < 0 && this.pendingFs ? 1 : 0) > this.max) {
       const head = Buffer.concat([...this.parts, body]).subarray(0, this.headBytes);
       const size = this.partsLen + body.length;

@@ -54,8 +54,8 @@ export function checkHl7Case(input: Buffer, chunk: number): void {
     try {
       decodePcd01(raw);
     } catch (err) {
-      if (!(err instanceof IngestRefusal)) throw new Error(`decoder threw ${(err as Error).name}: ${(err as Error).message}`);
-      if (!err.reason) throw new Error('a refusal without a reason');
+      if (!(err instanceof IngestRefusal)) throw new Error(`decoder threw ${(err as Error).name}: ${(err as Error).message}`, { cause: err });
+      if (!err.reason) throw new Error('a refusal without a reason', { cause: err });
       refusal = err;
     }
     const ack = buildAck(header, ackCodeFor(refusal, header?.enhancedMode ?? false), refusal);
@@ -71,8 +71,8 @@ export function checkJsonCase(input: Buffer): void {
   try {
     decodeJsonBatch(input);
   } catch (err) {
-    if (!(err instanceof IngestRefusal)) throw new Error(`decoder threw ${(err as Error).name}: ${(err as Error).message}`);
-    if (!err.reason) throw new Error('a refusal without a reason');
+    if (!(err instanceof IngestRefusal)) throw new Error(`decoder threw ${(err as Error).name}: ${(err as Error).message}`, { cause: err });
+    if (!err.reason) throw new Error('a refusal without a reason', { cause: err });
   }
 }
 
