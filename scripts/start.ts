@@ -12,6 +12,7 @@ import { repoRoot } from '../gateway/src/config/load';
 import { readDemoUsers } from '../gateway/src/seed/demo-users';
 import { startPrivateMariaDb, type PrivateMariaDb } from './lib/mariadb';
 import { DEMO_OVERRIDES } from './lib/demo';
+import { ensureDemoCertificates, tlsFiles } from './lib/certs';
 import { httpAnswers, ipcMessage, supervise, type Supervised } from './lib/supervisor';
 
 const log = (m: string) => console.log(m);
@@ -97,7 +98,8 @@ async function main() {
           gateway: { port: gatewayPort, publicUrl: gatewayUrl, migrateOnStart: true, seedDemo: true },
           auth: { jwtSecret: env.EBBGATE_JWT_SECRET ?? secrets.jwtSecret },
           log: { level: env.EBBGATE_LOG_LEVEL ?? 'info' },
-          mllp: { port: mllpPort },
+          // MLLP over TLS with the demo CA's certificates (made on first start under .data/certs).
+          mllp: { port: mllpPort, tls: { enabled: true, port: port('EBBGATE_MLLP_TLS_PORT', 2576), ...tlsFiles(ensureDemoCertificates(path.join(dataDir, 'certs'), ['demo-simulator', 'load-simulator'])) } },
           ehr: { fhirBaseUrl: `${mockEhrUrl}/fhir`, tokenUrl: `${mockEhrUrl}/oauth/token` },
           mail: { smtpPort },
           ...(simulatorOn ? DEMO_OVERRIDES : {}),

@@ -102,8 +102,16 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env, overrides: Json
     const lines = parsed.error.issues.map((i) => `  ${i.path.join('.') || '(root)'}: ${i.message}`);
     throw new ConfigError(`invalid configuration:\n${lines.join('\n')}`);
   }
+  refuseInsecureInProduction(parsed.data);
   consoleDirAbsolute(parsed.data);
   return Object.freeze(parsed.data);
+}
+
+/** In production the EHR is reached over TLS only (its OAuth token and PHI must not cross the network in clear). */
+function refuseInsecureInProduction(config: Config): void {
+  if (config.env !== 'production') return;
+  const plain = (['fhirBaseUrl', 'tokenUrl'] as const).filter((k) => new URL(config.ehr[k]).protocol !== 'https:');
+  if (plain.length) throw new ConfigError(`invalid configuration:\n${plain.map((k) => `  ehr.${k}: must be an https:// URL in production`).join('\n')}`);
 }
 
 function consoleDirAbsolute(config: Config): void {
