@@ -1,6 +1,7 @@
 import { endianness } from 'node:os';
 import type { AnalysisContext, ChannelRole, IngestBatch } from '@ebbgate/shared';
 import { ingestBatchSchema } from '@ebbgate/shared';
+import { decodeSegment } from '@ebbgate/shared/codec';
 import { zodFieldErrors } from '../http/problem';
 import { IngestRefusal } from './refusal';
 
@@ -94,8 +95,9 @@ function float32Bytes(a: Float32Array): Buffer {
   return b;
 }
 
-/** Reads stored float32 LE bytes into a Float32Array (copying only when the Buffer is unaligned). */
-export function storedSamplesToFloat32(bytes: Buffer): Float32Array {
+/** Reads stored float32 LE bytes (compacted or not, see shared/codec) into a Float32Array (copying only when the Buffer is unaligned). */
+export function storedSamplesToFloat32(stored: Buffer): Float32Array {
+  const bytes = decodeSegment(stored);
   const n = Math.floor(bytes.length / 4);
   if (littleEndianHost && bytes.byteOffset % 4 === 0) return new Float32Array(bytes.buffer, bytes.byteOffset, n);
   const out = new Float32Array(n);

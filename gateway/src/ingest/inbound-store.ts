@@ -2,6 +2,7 @@ import { createHash } from 'node:crypto';
 import type { DataSource, QueryRunner } from 'typeorm';
 import type { Continuity, InboundOutcome, Transport } from '@ebbgate/shared';
 import { ENGINE_VERSION } from '@ebbgate/shared/analysis';
+import { encodeSegment } from '@ebbgate/shared/codec';
 import { isDuplicateKey } from '../db/errors';
 import type { MonitorForIngest } from '../devices/device-cache';
 import type { MappedChannel } from './channel-mapping';
@@ -181,7 +182,8 @@ async function storeInTransaction(qr: QueryRunner, req: StoreRequest, hash: stri
 
   const values: unknown[] = [];
   for (const c of channels) {
-    values.push(monitor.id, messageId, c.code, c.role, c.unit, c.sampleRate, batch.startTime, new Date(startMs + (c.sampleCount / c.sampleRate) * 1000), c.sampleCount, c.gain, c.offset, c.samples);
+    // Stored compacted (delta coding + DEFLATE, bit-exact; shared/codec); readers decode through storedSamplesToFloat32.
+    values.push(monitor.id, messageId, c.code, c.role, c.unit, c.sampleRate, batch.startTime, new Date(startMs + (c.sampleCount / c.sampleRate) * 1000), c.sampleCount, c.gain, c.offset, encodeSegment(c.samples));
   }
   await exec(qr,
     `INSERT INTO waveform_segment (monitor_id, inbound_message_id, channel_code, role, unit, sample_rate, start_time, end_time, sample_count, gain, value_offset, samples)

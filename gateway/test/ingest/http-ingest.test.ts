@@ -4,6 +4,7 @@ import { encodeSamplesFloat32, type IngestBatch } from '@ebbgate/shared';
 import { generateWindow, toIngestBatch } from '@ebbgate/shared/synthetic';
 import { startTestGateway, type SignedInClient, type TestGateway } from '../support/harness';
 import { corvaneProfile, registerMonitor } from '../devices/fixtures';
+import { decodeSegment } from '@ebbgate/shared/codec';
 
 let gw: TestGateway;
 let integrator: SignedInClient;
@@ -45,9 +46,9 @@ describe('POST /ingest/batches', () => {
       role: string;
     }[];
     expect(segs).toHaveLength(2);
-    // The stored BLOB is byte-for-byte the float32 little-endian encoding the adapter sent.
+    // The stored BLOB (compacted, shared/codec) decodes byte-for-byte to the float32 little-endian encoding the adapter sent.
     const sent = batch.channels[0]!.samples as { data: string };
-    expect(segs[0]!.samples.equals(Buffer.from(sent.data, 'base64'))).toBe(true);
+    expect(decodeSegment(segs[0]!.samples).equals(Buffer.from(sent.data, 'base64'))).toBe(true);
     expect(segs[0]!.start_time.getTime()).toBe(T0);
     expect(segs[0]!.end_time.getTime()).toBe(T0 + 10_000); // 1250 samples / 125 Hz
     const monitor = (await integrator.get(`/api/v1/monitors/${m.monitorId}`)).body;
@@ -82,7 +83,7 @@ describe('POST /ingest/batches', () => {
     const res = await send(m.apiKey, { monitorId: '00A0C9FFFE000003', batchId: 'b-json', startTime: iso(T0), channels: [{ code: 'paw-raw', sampleRate: 125, samples: raw }] });
     expect(res.status).toBe(202);
     const [seg] = (await gw.ctx.ds.query('SELECT samples, gain, value_offset FROM waveform_segment WHERE inbound_message_id = ?', [res.body.inboundMessageId])) as { samples: Buffer }[];
-    const stored = Array.from({ length: 4 }, (_, i) => seg!.samples.readFloatLE(i * 4));
+    const stored = Array.from({ length: 4 }, (_, i) => decodeSegment(seg!.samples).readFloatLE(i * 4));
     // Profile PAW-RAW: physical = 0.01 × raw − 5 (cmH2O); null becomes NaN.
     expect(stored[0]).toBeCloseTo(0, 5);
     expect(stored[1]).toBeCloseTo(5, 5);
