@@ -28,6 +28,16 @@ export interface RunningGateway {
   stop(): Promise<void>;
 }
 
+/**
+ * Least privilege: the gateway's own database user should hold data privileges only (migrations
+ * run as DATABASE_MIGRATION_URL). Says so loudly when it can change the schema or the audit triggers.
+ */
+async function warnIfSchemaPrivileges(ds: DataSource, logger: Logger): Promise<void> {
+  const grants = ((await ds.query('SHOW GRANTS').catch(() => [])) as Record<string, string>[]).map((r) => Object.values(r)[0] ?? '');
+  const broad = grants.filter((g) => /\b(ALL PRIVILEGES|CREATE|DROP|ALTER|TRIGGER|SUPER)\b/.test(g.replace(/IDENTIFIED BY .*/, '')));
+  if (broad.length) logger.warn({ grants: broad.map((g) => g.replace(/IDENTIFIED BY .*/, '')) }, 'the gateway runs as a database user that can change the schema; run it as a data-only user and migrations as DATABASE_MIGRATION_URL');
+}
+
 export class StartupRefused extends Error {
   override name = 'StartupRefused';
 }
@@ -50,6 +60,7 @@ export async function startGateway(opts: GatewayOptions): Promise<RunningGateway
     await ds.destroy();
     throw err;
   }
+  await warnIfSchemaPrivileges(ds, logger);
   const ctx: AppContext = { config, ds, logger };
   const metrics = createMetrics();
   const caps = buildCapabilities(ctx, metrics);

@@ -65,3 +65,25 @@ describe('database least privilege', () => {
     }
   });
 });
+
+describe('a gateway started as a user that can change the schema', () => {
+  it('warns at start, naming the broad grant (and DATABASE_MIGRATION_URL)', async () => {
+    const { Writable } = await import('node:stream');
+    const pino = (await import('pino')).default;
+    const { loadConfig } = await import('../../src/config/load');
+    const { startGateway } = await import('../../src/server');
+    const warningsFor = async (url: string) => {
+      const lines: string[] = [];
+      const logger = pino({ level: 'warn' }, new Writable({ write: (c, _e, cb) => (lines.push(String(c)), cb()) }));
+      const config = loadConfig({ NODE_ENV: 'test' }, { database: { url, poolSize: 2 }, gateway: { port: 0, consoleDir: '/nonexistent' }, auth: { jwtSecret: 'y'.repeat(32) }, log: { level: 'warn' }, mllp: { enabled: false, port: 0 }, workers: { enabled: false } });
+      const started = await startGateway({ config, logger, services: false });
+      await started.stop();
+      return lines.map((l) => JSON.parse(l) as { msg: string; grants?: string[] }).filter((l) => l.msg.includes('DATABASE_MIGRATION_URL'));
+    };
+    const [warning] = await warningsFor(gw.db.url);
+    expect(warning).toBeDefined();
+    expect(warning!.grants!.join()).toMatch(/ALL PRIVILEGES/);
+    expect(warning!.grants!.join()).not.toMatch(/PASSWORD/);
+    expect(await warningsFor(gw.db.runtimeUrl)).toEqual([]); // the data-only user: no warning
+  });
+});
