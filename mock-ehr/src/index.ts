@@ -9,6 +9,8 @@ import { SUPPORTED_TYPES } from './fhir/resource-types.js';
 import { ResourceStore } from './fhir/store.js';
 import { MllpReceiver } from './hl7/mllp-receiver.js';
 import { buildApp } from './http/app.js';
+import { Adt } from './admin/adt.js';
+import { defaultQuirks } from './fhir/quirks.js';
 import { RequestLog } from './http/request-log.js';
 import { MailCatcher } from './mail/mail-catcher.js';
 import { loadHospitalFile } from './seed/hospital-file.js';
@@ -21,7 +23,8 @@ export { patientIdFor } from './seed/seed-resources.js';
 export type { FaultRule, FaultSettings } from './faults/fault-rules.js';
 export type { ObservationCounts } from './admin/observation-counts.js';
 export type { CaughtMail } from './mail/mail-catcher.js';
-export type { ReceivedHl7 } from './hl7/mllp-receiver.js';
+export type { ReceivedHl7, Hl7Counts } from './hl7/mllp-receiver.js';
+export type { Occupancy, AdtEvent } from './admin/adt.js';
 
 export interface RunningMockEhr {
   baseUrl: string;
@@ -51,9 +54,12 @@ export async function startMockEhr(options?: MockEhrOptions): Promise<RunningMoc
   for (const t of SUPPORTED_TYPES) schemaFor(t); // compile now (~2 s) rather than on the first POST
 
   const store = new ResourceStore();
+  const adt = new Adt(store);
+  const quirks = defaultQuirks();
   const reseed = () => {
     store.clear();
     for (const r of seedResources(hospital)) store.write(r as typeof r & { id: string });
+    adt.reset();
   };
   reseed();
 
@@ -79,7 +85,7 @@ export async function startMockEhr(options?: MockEhrOptions): Promise<RunningMoc
       if (!stopped) server.listen(httpPort, opts.host, () => opts.logger.info('mock EHR: HTTP back up'));
     }, durationMs);
   };
-  const app = buildApp({ store, service: new ResourceService(store), tokens, faults, requests, mail, hl7, hospital, reseed, outage, logger: opts.logger, urls });
+  const app = buildApp({ store, service: new ResourceService(store), tokens, faults, requests, mail, hl7, hospital, reseed, outage, adt, quirks, logger: opts.logger, urls });
   server.on('request', app);
 
   try {

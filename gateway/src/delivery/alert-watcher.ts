@@ -1,18 +1,29 @@
 /**
  * E-mail alerts to the on-call list: a destination down for N minutes, failures past a threshold
- * in a window, or a configuration error (401/403). One incident row per episode (a unique key
- * while open), one mail when it opens and one when it clears, even with several gateway processes.
+ * in a window, a configuration error (401/403), or an entered-in-error amendment that could not be
+ * delivered (the withdrawn value may still stand in the chart). One incident row per episode (a
+ * unique key while open); its mails go through their own outbox (alert_mail: one row per incident
+ * and event, claimed with a lease and a fencing token, sent, then marked), so a process that dies
+ * between claiming and sending leaves the mail due again: at-least-once, with a stable Message-ID.
  */
+import { randomUUID } from 'node:crypto';
 import type { SiteSettings } from '@ebbgate/shared';
+import { In } from 'typeorm';
 import type { AppContext, BackgroundService } from '../app-context';
-import { createMailer, type Mailer } from '../mail/mailer';
-import { AlertIncidentRow, DestinationRow, type IncidentKind } from './delivery.entities';
+import { createMailer, messageIdDomain, type Mailer } from '../mail/mailer';
+import { AlertIncidentRow, AlertMailRow, DestinationRow, type IncidentKind } from './delivery.entities';
 
 interface Condition {
   kind: IncidentKind;
   active: boolean;
   detail: string;
 }
+
+/** The console screen the mail sends people to (admin-ui routes: Deliver → Deliveries, /deliveries). */
+export const CONSOLE_SCREEN = { name: 'Deliveries', path: '/deliveries' } as const;
+
+/** How long a claimed mail is left to its sender before another process may send it. */
+const MAIL_LEASE_MS = 60_000;
 
 export class AlertWatcher implements BackgroundService {
   readonly name = 'delivery-alerts';
@@ -23,10 +34,12 @@ export class AlertWatcher implements BackgroundService {
   constructor(
     private readonly ctx: AppContext,
     private readonly alertSettings: () => Promise<SiteSettings['alerts']>,
+    /** Tests replace the mailer (e.g. one that dies after the claim). */
+    private readonly makeMailer: () => Mailer = () => createMailer(ctx.config.mail),
   ) {}
 
   async start(): Promise<void> {
-    this.mailer = createMailer(this.ctx.config.mail);
+    this.mailer = this.makeMailer();
     const tick = () => {
       this.running = this.check()
         .catch((err) => this.ctx.logger.error({ err }, 'alert check failed'))
@@ -45,9 +58,9 @@ export class AlertWatcher implements BackgroundService {
     m?.close();
   }
 
-  private consoleLink(destinationId: string): string {
+  consoleLink(): string {
     const base = (this.ctx.config.delivery.alerts.consoleUrl ?? this.ctx.config.gateway.publicUrl).replace(/\/$/, '');
-    return `${base}/deliveries?destination=${encodeURIComponent(destinationId)}`;
+    return `${base}${CONSOLE_SCREEN.path}`;
   }
 
   /** One evaluation of every destination; exported for tests through the service. */
@@ -57,8 +70,10 @@ export class AlertWatcher implements BackgroundService {
     const destinations = await this.ctx.ds.getRepository(DestinationRow).find();
     const since = new Date(now.getTime() - cfg.failureWindowMinutes * 60_000);
     const failedRows = (await this.ctx.ds.query(`SELECT destination_id AS d, COUNT(*) AS c FROM delivery WHERE status = 'failed' AND updated_at >= ? GROUP BY destination_id`, [since])) as { d: string; c: string | number }[];
+    const failedAmends = (await this.ctx.ds.query(`SELECT destination_id AS d, COUNT(*) AS c FROM delivery WHERE status = 'failed' AND kind = 'amend' GROUP BY destination_id`)) as { d: string; c: string | number }[];
     for (const d of destinations) {
       const failed = Number(failedRows.find((r) => r.d === d.id)?.c ?? 0);
+      const amends = Number(failedAmends.find((r) => r.d === d.id)?.c ?? 0);
       const downForMs = d.downSince ? now.getTime() - d.downSince.getTime() : 0;
       const conditions: Condition[] = [
         {
@@ -69,13 +84,19 @@ export class AlertWatcher implements BackgroundService {
         {
           kind: 'failures',
           active: failed >= settings.failureThreshold,
-          detail: `${failed} deliveries to ${d.name} failed in the last ${cfg.failureWindowMinutes} minutes (threshold ${settings.failureThreshold}). They wait in the failed messages list for retry, replay or discard.`,
+          detail: `${failed} deliveries to ${d.name} failed in the last ${cfg.failureWindowMinutes} minutes (threshold ${settings.failureThreshold}). They wait on the ${CONSOLE_SCREEN.name} screen (status Failed) for retry, replay or discard.`,
         },
         { kind: 'configuration', active: !!d.configurationError, detail: `${d.name} refused Ebbgate's credentials: ${d.configurationError ?? ''}` },
+        {
+          kind: 'amendment',
+          active: amends > 0,
+          detail: `${amends} entered-in-error ${amends === 1 ? 'amendment' : 'amendments'} to ${d.name} failed: a value reviewers withdrew may still stand in the chart. See the ${CONSOLE_SCREEN.name} screen (kind Amend, status Failed) for the reason; correct it at the EHR by hand or retry once the original can be found.`,
+        },
       ];
       for (const c of conditions) await (c.active ? this.open(d, c, now) : this.clear(d, c.kind, now));
     }
-    await this.sendPendingMail(settings.recipients);
+    await this.queueMail(settings.recipients, now);
+    await this.sendDueMail(settings.recipients);
   }
 
   private async open(d: DestinationRow, c: Condition, now: Date): Promise<void> {
@@ -89,42 +110,69 @@ export class AlertWatcher implements BackgroundService {
     await this.ctx.ds.query(`UPDATE alert_incident SET cleared_at = ?, open_key = NULL WHERE open_key = ?`, [now, `${d.id}:${kind}`]);
   }
 
-  /** Claims each unsent mail with a conditional update, so only one process sends it. */
-  private async sendPendingMail(recipients: string[]): Promise<void> {
+  private messageId(incidentId: string, event: string): string {
+    return `<ebbgate-incident-${incidentId}-${event}@${messageIdDomain(this.ctx.config.mail.from)}>`;
+  }
+
+  /** One alert_mail row per incident and event (the unique key makes it one across processes). */
+  private async queueMail(recipients: string[], now: Date): Promise<void> {
+    if (recipients.length === 0) return;
+    await this.ctx.ds.transaction(async (m) => {
+      const opened = (await m.query(`SELECT id FROM alert_incident WHERE opened_mail_at IS NULL FOR UPDATE`)) as { id: string | number }[];
+      const cleared = (await m.query(`SELECT id FROM alert_incident WHERE cleared_at IS NOT NULL AND cleared_mail_at IS NULL FOR UPDATE`)) as { id: string | number }[];
+      for (const [rows, event, column] of [[opened, 'opened', 'opened_mail_at'], [cleared, 'cleared', 'cleared_mail_at']] as const) {
+        for (const r of rows) {
+          await m.query(`INSERT IGNORE INTO alert_mail (incident_id, event, message_id, status, tries, created_at) VALUES (?, ?, ?, 'pending', 0, ?)`, [r.id, event, this.messageId(String(r.id), event), now]);
+          await m.query(`UPDATE alert_incident SET ${column} = ? WHERE id = ?`, [now, r.id]);
+        }
+      }
+    });
+  }
+
+  /** Claims due mail (lease + fencing token), sends it, marks it sent only if the claim still holds. */
+  private async sendDueMail(recipients: string[]): Promise<void> {
     if (!this.mailer || recipients.length === 0) return;
-    const repo = this.ctx.ds.getRepository(AlertIncidentRow);
-    const due = await repo
-      .createQueryBuilder('i')
-      .where('i.opened_mail_at IS NULL OR (i.cleared_at IS NOT NULL AND i.cleared_mail_at IS NULL)')
-      .orderBy('i.id', 'ASC')
-      .getMany();
+    const claimId = randomUUID();
+    const now = new Date();
+    await this.ctx.ds.query(
+      `UPDATE alert_mail SET claim_id = ?, claimed_until = ?, tries = tries + 1 WHERE status = 'pending' AND (claimed_until IS NULL OR claimed_until <= ?) ORDER BY id LIMIT 20`,
+      [claimId, new Date(now.getTime() + MAIL_LEASE_MS), now],
+    );
+    const due = await this.ctx.ds.getRepository(AlertMailRow).find({ where: { claimId, status: 'pending' }, order: { id: 'ASC' } });
+    if (!due.length) return;
+    const incidents = new Map((await this.ctx.ds.getRepository(AlertIncidentRow).findBy({ id: In(due.map((d) => d.incidentId)) })).map((i) => [String(i.id), i]));
     const names = new Map((await this.ctx.ds.getRepository(DestinationRow).find()).map((d) => [d.id, d.name]));
-    for (const i of due) {
-      const column = i.openedMailAt === null ? 'opened_mail_at' : 'cleared_mail_at';
-      const claimed = (await this.ctx.ds.query(`UPDATE alert_incident SET ${column} = ? WHERE id = ? AND ${column} IS NULL`, [new Date(), i.id])) as { affectedRows?: number };
-      if (!claimed.affectedRows) continue;
-      const name = names.get(i.destinationId) ?? i.destinationId;
-      const what = { down: 'is down', failures: 'has failed deliveries past the threshold', configuration: 'rejects the configured credentials' }[i.kind];
-      const opening = column === 'opened_mail_at';
-      const subject = opening ? `[Ebbgate] ${name} ${what}` : `[Ebbgate] Cleared: ${name} ${what.replace(/^is /, 'was ').replace(/^has /, 'had ').replace(/^rejects/, 'rejected')}`;
-      const text = [
-        opening ? `Incident #${i.id} opened at ${i.openedAt.toISOString()}.` : `Incident #${i.id} (opened ${i.openedAt.toISOString()}) cleared at ${i.clearedAt?.toISOString()}.`,
-        '',
-        i.detail,
-        '',
-        `Open the console: ${this.consoleLink(i.destinationId)}`,
-        '',
-        'Results are kept in the outbox and are delivered when the destination answers again; nothing is lost.',
-        'This mail is sent once when an incident opens and once when it clears.',
-      ].join('\n');
+    for (const mail of due) {
+      const i = incidents.get(String(mail.incidentId));
+      if (!i) continue;
+      const { subject, text } = this.compose(i, mail.event === 'opened', names.get(i.destinationId) ?? i.destinationId);
       try {
-        await this.mailer.send({ to: recipients, subject, text });
-        this.ctx.logger.warn({ incident: i.id, kind: i.kind, destination: i.destinationId, opening }, 'alert mail sent');
+        await this.mailer.send({ to: recipients, subject, text, messageId: mail.messageId });
+        const marked = (await this.ctx.ds.query(`UPDATE alert_mail SET status = 'sent', sent_at = ?, last_error = NULL WHERE id = ? AND claim_id = ?`, [new Date(), mail.id, claimId])) as { affectedRows?: number };
+        this.ctx.logger.warn({ incident: i.id, kind: i.kind, destination: i.destinationId, event: mail.event, messageId: mail.messageId, marked: !!marked.affectedRows }, 'alert mail sent');
       } catch (err) {
-        // Not sent: release the claim so the next check tries again.
-        await this.ctx.ds.query(`UPDATE alert_incident SET ${column} = NULL WHERE id = ?`, [i.id]);
+        // Not sent: due again after a short pause (the claim is released; tries counts the attempts).
+        await this.ctx.ds.query(`UPDATE alert_mail SET claim_id = NULL, claimed_until = ?, last_error = ? WHERE id = ? AND claim_id = ?`, [new Date(Date.now() + Math.min(60_000, 1000 * 2 ** Math.min(mail.tries, 6))), String((err as Error)?.message ?? err).slice(0, 2000), mail.id, claimId]);
         this.ctx.logger.error({ err, incident: i.id }, 'alert mail failed');
       }
     }
+  }
+
+  compose(i: AlertIncidentRow, opening: boolean, name: string): { subject: string; text: string } {
+    const what = { down: 'is down', failures: 'has failed deliveries past the threshold', configuration: 'rejects the configured credentials', amendment: 'has an entered-in-error amendment that failed' }[i.kind];
+    const subject = opening ? `[Ebbgate] ${name} ${what}` : `[Ebbgate] Cleared: ${name} ${what.replace(/^is /, 'was ').replace(/^has /, 'had ').replace(/^rejects/, 'rejected')}`;
+    const text = [
+      opening ? `Incident #${i.id} opened at ${i.openedAt.toISOString()}.` : `Incident #${i.id} (opened ${i.openedAt.toISOString()}) cleared at ${i.clearedAt?.toISOString()}.`,
+      '',
+      i.detail,
+      '',
+      `Open the ${CONSOLE_SCREEN.name} screen of the Ebbgate console (Deliver → ${CONSOLE_SCREEN.name}), destination "${name}": ${this.consoleLink()}`,
+      '',
+      i.kind === 'amendment'
+        ? 'An amendment that failed is kept, with its reason, until someone retries or resolves it; it is never dropped.'
+        : 'Results are kept in the outbox and are delivered when the destination answers again; nothing is lost.',
+      'This mail is sent once when an incident opens and once when it clears; a copy with the same Message-ID is a resend of the same mail.',
+    ].join('\n');
+    return { subject, text };
   }
 }

@@ -57,6 +57,7 @@ export async function getDelivery(ds: DataSource, id: string): Promise<DeliveryD
  * also allowed on delivered rows: conditional create on the identifier makes it harmless.
  */
 export async function requeue(ds: DataSource, ids: string[], mode: 'retry' | 'replay', act: ChangeBy): Promise<DeliveryActionResult> {
+  await refuseEnteredInError(ds, ids, mode, act);
   const allowed = mode === 'retry' ? ['failed', 'waiting-context', 'pending'] : ['failed', 'waiting-context', 'pending', 'delivered', 'discarded', 'withheld'];
   const result: DeliveryActionResult = { updated: [], skipped: [] };
   await ds.transaction(async (m) => {
@@ -79,7 +80,8 @@ export async function requeue(ds: DataSource, ids: string[], mode: 'retry' | 're
       }
       const before = toDelivery(r);
       await m.update(DeliveryRow, { id: r.id }, {
-        status: 'pending', tries: 0, nextAttemptAt: now, updatedAt: now, discardReason: null, discardedBy: null,
+        // claimId null: a worker still holding the row from before is fenced out (its answer is not applied).
+        status: 'pending', tries: 0, nextAttemptAt: now, updatedAt: now, discardReason: null, discardedBy: null, claimId: null,
         ...(mode === 'replay' ? { payload: null } : {}),
       });
       await recordAudit(m, { principal: act.principal, action: `delivery.${mode}`, entityType: 'delivery', entityId: id, before, after: { status: 'pending', replay: mode === 'replay' }, requestId: act.requestId });
@@ -87,6 +89,32 @@ export async function requeue(ds: DataSource, ids: string[], mode: 'retry' | 're
     }
   });
   return result;
+}
+
+/**
+ * A result whose assessment is marked entered in error is never sent again (only its amendment
+ * goes out). The whole request is refused with 409 so nobody believes part of it went, and the
+ * refused attempt is audited (in its own transaction: the refusal itself is the event).
+ */
+async function refuseEnteredInError(ds: DataSource, ids: string[], mode: 'retry' | 'replay', act: ChangeBy): Promise<void> {
+  if (!ids.length) return;
+  const rows = (await ds.query(
+    `SELECT d.id AS id, d.assessment_id AS assessmentId, d.status AS status, a.entered_in_error_at AS markedAt, a.entered_in_error_by AS markedBy
+     FROM delivery d JOIN assessment a ON a.id = d.assessment_id WHERE d.id IN (?) AND d.kind = 'create' AND a.entered_in_error_at IS NOT NULL`,
+    [ids],
+  )) as { id: string | number; assessmentId: string; status: string; markedAt: Date; markedBy: string | null }[];
+  if (!rows.length) return;
+  await ds.transaction(async (m) => {
+    for (const r of rows) {
+      await recordAudit(m, {
+        principal: act.principal, action: `delivery.${mode}.refused`, entityType: 'delivery', entityId: String(r.id),
+        before: { status: r.status, assessmentId: r.assessmentId }, after: { refused: 'assessment entered in error', markedAt: new Date(r.markedAt).toISOString(), markedBy: r.markedBy },
+        requestId: act.requestId,
+      });
+    }
+  });
+  const list = rows.map((r) => `delivery ${r.id} (assessment ${r.assessmentId}, marked ${new Date(r.markedAt).toISOString()}${r.markedBy ? ` by ${r.markedBy}` : ''})`).join('; ');
+  throw conflict(`Refused: ${rows.length === 1 ? 'this result belongs' : `${rows.length} of these results belong`} to an assessment marked entered in error, so ${mode === 'retry' ? 'retrying' : 'replaying'} it would send a value reviewers withdrew. Its entered-in-error amendment is sent instead. Nothing was requeued: ${list}.`);
 }
 
 export async function discardDelivery(ds: DataSource, id: string, reason: string, act: ChangeBy): Promise<Delivery> {

@@ -13,10 +13,16 @@ import { PollLoop } from '../lib/poll-loop';
 import type { DeliveryConfig } from './delivery.config';
 import { DeliveryRow, DestinationRow } from './delivery.entities';
 import type { PassReport } from './fhir-destination';
-import { claimDue, ensureAmendRow, recordAttempts, recordDestinationHealth } from './outbox';
+import { claimDueFenced, ensureAmendRow, recordAttempts, recordDestinationHealth, renewLease } from './outbox';
 
 export interface DestinationHandler {
   process(rows: DeliveryRow[]): Promise<PassReport>;
+}
+
+/** What a pass tells the metrics besides its attempts. */
+export interface PassFacts {
+  claimsExpired: number;
+  fencingRefusals: number;
 }
 
 export class DeliveryWorker implements BackgroundService {
@@ -29,7 +35,7 @@ export class DeliveryWorker implements BackgroundService {
     private readonly cfg: DeliveryConfig,
     private readonly logger: Logger,
     /** Told about every recorded pass (metrics). */
-    private readonly onPass?: (destinationId: string, report: PassReport) => void,
+    private readonly onPass?: (destinationId: string, report: PassReport, facts: PassFacts) => void,
   ) {
     this.loop = new PollLoop(async () => (await this.runOnce()) > 0, () => cfg.pollMs, (err) => logger.error({ err }, 'delivery pass failed'));
   }
@@ -58,13 +64,24 @@ export class DeliveryWorker implements BackgroundService {
       } else if (d.circuitState === 'half-open') {
         limit = 1;
       }
-      const rows = await claimDue(this.ds, d.id, limit, this.cfg.leaseSeconds * 1000);
+      const leaseMs = this.cfg.leaseSeconds * 1000;
+      const claim = await claimDueFenced(this.ds, d.id, limit, leaseMs);
+      const rows = claim.rows;
       if (!rows.length) continue;
       handled += rows.length;
-      const report = await handler.process(rows);
-      await recordAttempts(this.ds, report.results);
+      if (claim.expired) this.logger.warn({ destination: d.id, rows: claim.expired }, 'claimed rows whose earlier claim had expired');
+      // Renew the lease while the pass works, so a slow EHR does not let another process take the rows.
+      const renew = setInterval(() => void renewLease(this.ds, claim.id, leaseMs).catch((err) => this.logger.warn({ err }, 'lease renewal failed')), Math.max(50, leaseMs / 3));
+      let report: PassReport;
+      try {
+        report = await handler.process(rows);
+      } finally {
+        clearInterval(renew);
+      }
+      const refusals = (await recordAttempts(this.ds, report.results)) + (report.fenced ?? 0);
+      if (refusals) this.logger.warn({ destination: d.id, refusals }, 'fencing: results of a claim that no longer held its rows were not applied');
       await recordDestinationHealth(this.ds, d.id, report, this.cfg.circuit);
-      this.onPass?.(d.id, report);
+      this.onPass?.(d.id, report, { claimsExpired: claim.expired, fencingRefusals: refusals });
       if (report.failed) this.logger.warn({ destination: d.id, failed: report.failed, error: report.lastError }, 'delivery attempts failed');
       await this.amendLateErrors(report);
     }

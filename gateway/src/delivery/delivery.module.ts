@@ -6,6 +6,7 @@ import type { Router } from 'express';
 import type { AppContext, BackgroundService, ReadinessCheck } from '../app-context';
 import { assessmentEvents } from '../assessments/events';
 import type { Metrics } from '../http/metrics';
+import { bedReassigned } from '../devices/beds.service';
 import { getSiteSettings } from '../settings/settings.service';
 import { AlertWatcher } from './alert-watcher';
 import { defaultCodeMap, type CodeMap } from './code-map';
@@ -58,11 +59,25 @@ export function buildDelivery(ctx: AppContext, metrics?: Metrics, codes: CodeMap
 
   const ehr = new EhrClient({ ...ctx.config.ehr, requestTimeoutMs: cfg.requestTimeoutMs });
   const contexts = new PatientContextResolver(ehr, cfg.patientContext.cacheSeconds * 1000);
+  // A bed changed (another location, or removed): its cached patient context no longer holds.
+  bedReassigned.push((locations) => locations.forEach((l) => contexts.drop(l)));
   const handlers = new Map<string, DestinationHandler>([[FHIR_DESTINATION_ID, new FhirDestination(ctx.ds, ehr, contexts, new DeviceSync(ehr, codes), codes, cfg, policy)]]);
   if (cfg.hl7.enabled) handlers.set(HL7_DESTINATION_ID, new Hl7Destination(ctx.ds, contexts, ehr, codes, cfg, policy));
   const attempts = metrics?.counter('ebbgate_delivery_attempts_total', 'Delivery attempts by destination and outcome', ['destination', 'outcome']);
-  const worker = new DeliveryWorker(ctx.ds, handlers, cfg, ctx.logger, (destination, report) => {
+  const expired = metrics?.counter('ebbgate_delivery_claims_expired_total', 'Outbox rows claimed again after an earlier claim ran out (a dead or overrunning worker)', ['destination']);
+  const refused = metrics?.counter('ebbgate_delivery_fencing_refusals_total', 'Results or sends refused because their claim no longer held the row', ['destination']);
+  metrics?.gauge('ebbgate_delivery_lag_seconds', 'Per destination: age of the oldest result not yet delivered, failed or set aside (0 when none)', ['destination'], async (g) => {
+    g.reset();
+    const rows = (await ctx.ds.query(`SELECT destination_id AS d, MIN(created_at) AS oldest FROM delivery WHERE status IN ('pending','waiting-context') GROUP BY destination_id`)) as { d: string; oldest: Date | string }[];
+    for (const s of specs) {
+      const r = rows.find((x) => x.d === s.id);
+      g.set({ destination: s.id }, r ? Math.max(0, (Date.now() - new Date(r.oldest).getTime()) / 1000) : 0);
+    }
+  });
+  const worker = new DeliveryWorker(ctx.ds, handlers, cfg, ctx.logger, (destination, report, facts) => {
     for (const r of report.results) attempts?.inc({ destination, outcome: r.outcome });
+    if (facts.claimsExpired) expired?.inc({ destination }, facts.claimsExpired);
+    if (facts.fencingRefusals) refused?.inc({ destination }, facts.fencingRefusals);
   });
   const alerts = new AlertWatcher(ctx, async () => (await getSiteSettings(ctx)).alerts);
 

@@ -5,6 +5,7 @@
  */
 import { Client } from 'fhir-kit-client';
 import type { Bundle, Device, Observation } from './fhir-types';
+import { parseResourceLocation } from './fhir-location';
 import { classifyHttpStatus, parseRetryAfter, type SendOutcome } from './send-outcome';
 
 export interface EhrSettings {
@@ -139,6 +140,12 @@ export class EhrClient {
     return (await this.authed((headers, signal) => this.client.read({ resourceType, id, options: { headers, signal } }))) as Record<string, unknown>;
   }
 
+  /** Server ids of the Observations holding an identifier (the fallback when no Location was given). */
+  async findObservationIds(identifier: { system: string; value: string }): Promise<string[]> {
+    const b = await this.search('Observation', { identifier: `${identifier.system}|${identifier.value}` });
+    return (b.entry ?? []).map((e) => e.resource?.id).filter((x): x is string => typeof x === 'string');
+  }
+
   /** Conditional update on the identifier: creates the Device the first time, updates it after. */
   async upsertDevice(device: Device, identifier: { system: string; value: string }): Promise<string> {
     const res = await this.authed((headers, signal) =>
@@ -162,8 +169,11 @@ export class EhrClient {
           options: { headers: { ...headers, 'if-none-exist': ifNoneExist }, signal },
         }),
       );
-      const status = Client.httpFor(res as never).response?.status ?? null;
-      return { kind: 'delivered', httpStatus: status, serverId: typeof res.id === 'string' ? res.id : null, created: status === 201, response: null };
+      const http = Client.httpFor(res as never).response;
+      const status = http?.status ?? null;
+      // The id from the body when the server returns one, else from the Location header (any form).
+      const serverId = typeof res.id === 'string' ? res.id : (parseResourceLocation(http?.headers?.get('location'), 'Observation')?.id ?? null);
+      return { kind: 'delivered', httpStatus: status, serverId, created: status === 201, response: null };
     } catch (err) {
       return outcomeOfError(err);
     }

@@ -15,6 +15,7 @@ import { DeliveryRow } from './delivery.entities';
 import type { DeviceSync } from './device-sync';
 import { errorText, type EhrClient } from './ehr-client';
 import type { Bundle, Observation } from './fhir-types';
+import { parseResourceLocation } from './fhir-location';
 import { buildObservation, enteredInErrorAmendment, ifNoneExistQuery } from './observation-builder';
 import type { AttemptResult } from './outbox';
 import type { PatientContextResolver } from './patient-context';
@@ -29,6 +30,9 @@ interface Prepared {
   row: DeliveryRow;
   payload: Observation;
   patientRef: string | null;
+  encounterRef?: string | null;
+  patientName?: string | null;
+  patientMrn?: string | null;
 }
 
 export interface PassReport {
@@ -37,6 +41,8 @@ export interface PassReport {
   failed: number;
   lastError: string | null;
   configurationError: string | null;
+  /** Rows not sent because the claim no longer held them (fencing refusals before a send). */
+  fenced?: number;
 }
 
 /** FHIR R4 transaction Bundle of conditional creates (request.ifNoneExist on each identifier). */
@@ -51,12 +57,6 @@ export function transactionBundle(codes: CodeMap, items: { resource: Observation
   };
 }
 
-/** A result can be filed to an encounter only if its window started after the encounter did. */
-export function windowFitsEncounter(windowStart: Date, encounterStart: string | undefined): boolean {
-  if (!encounterStart) return true;
-  const t = Date.parse(encounterStart);
-  return !Number.isFinite(t) || windowStart.getTime() >= t;
-}
 
 export class FhirDestination {
   constructor(
@@ -131,16 +131,13 @@ export class FhirDestination {
       this.waitForContext(report, row, 'no patient context: the monitor was not at a bed during this window');
       return null;
     }
-    const context = await this.contexts.resolve(bed.locationIdentifier);
-    if (!context) {
-      this.waitForContext(report, row, `no patient context: no in-progress encounter at location ${bed.locationIdentifier}`);
+    const answer = await this.contexts.resolveAt(bed.locationIdentifier, a.windowStart, a.windowEnd);
+    if (answer.kind === 'none') {
+      // Patient safety: no context in force for the whole window (nobody, ambiguous or undated) → hold, never guess.
+      this.waitForContext(report, row, `no patient context: ${answer.reason}`);
       return null;
     }
-    if (!windowFitsEncounter(a.windowStart, context.encounterStart)) {
-      // Patient safety: a window from before this encounter began belongs to someone else.
-      this.waitForContext(report, row, `no patient context: the window (${a.windowStart.toISOString()}) is from before the current encounter at ${bed.locationIdentifier} began (${context.encounterStart})`);
-      return null;
-    }
+    const context = answer.context;
     const monitor = maps.monitor.get(a.monitorId);
     const profile = monitor?.profileId ? maps.profile.get(monitor.profileId) : undefined;
     const deviceId = monitor
@@ -155,23 +152,48 @@ export class FhirDestination {
       report.results.push({ row, status: 'withheld', nextAttemptAt: new Date(), countsAsTry: false, httpStatus: null, outcome: 'withheld', detail: built.reason, response: null, mode: 'single', durationMs: 0 });
       return null;
     }
-    return { row, payload: built.resource, patientRef: `Patient/${context.patientId}` };
+    return { row, payload: built.resource, patientRef: `Patient/${context.patientId}`, encounterRef: `Encounter/${context.encounterId}`, patientName: context.patientName, patientMrn: context.patientMrn };
   }
 
   private async prepareAmend(row: DeliveryRow, report: PassReport): Promise<Prepared | null> {
     if (row.payload) return { row, payload: row.payload as Observation, patientRef: row.patientRef };
     const create = await this.ds.getRepository(DeliveryRow).findOneBy({ assessmentId: row.assessmentId, destinationId: row.destinationId, indexName: row.indexName, kind: 'create' });
     const a = await this.ds.getRepository(AssessmentRow).findOneBy({ id: row.assessmentId });
-    if (create?.status === 'delivered' && create.serverId && create.payload && a) {
-      const payload = enteredInErrorAmendment(create.payload as Observation, create.serverId, a.enteredInErrorBy ?? 'a reviewer', a.enteredInErrorReason ?? 'no reason given', a.enteredInErrorAt ?? new Date());
-      return { row, payload, patientRef: create.patientRef };
+    const settle = (status: 'pending' | 'discarded' | 'failed', outcome: string, detail: string, later = 5000) =>
+      report.results.push({ row, status, nextAttemptAt: new Date(Date.now() + later), countsAsTry: false, httpStatus: null, outcome, detail, response: null, mode: 'single', durationMs: 0 });
+    if (!create || !a) {
+      settle('failed', 'original-not-found', 'the original delivery or its assessment is gone: nothing here says what to amend');
+      return null;
     }
-    const later = create && (create.status === 'pending' || create.status === 'waiting-context');
-    report.results.push({
-      row, status: later ? 'pending' : 'discarded', nextAttemptAt: new Date(Date.now() + 5000), countsAsTry: false, httpStatus: null,
-      outcome: later ? 'waiting-original' : 'nothing-to-amend', detail: later ? 'the original is not delivered yet' : 'nothing was delivered to amend', response: null, mode: 'single', durationMs: 0,
-    });
-    return null;
+    if (create.status === 'pending' || create.status === 'waiting-context') {
+      settle('pending', 'waiting-original', 'the original is not delivered yet');
+      return null;
+    }
+    const identifier = { system: this.codes.identifierSystems.observation, value: create.identifier };
+    // The EHR's id: kept from the create's answer, else found by identifier (a 200 without
+    // Location, or an attempt that timed out but did reach the EHR).
+    let serverId = create.serverId;
+    let original = create.payload as Observation | null;
+    if (!serverId) {
+      const ids = await this.ehr.findObservationIds(identifier);
+      if (ids.length > 1) {
+        settle('failed', 'original-ambiguous', `${ids.length} Observations at the EHR hold identifier ${identifier.value}: amend by hand (${ids.join(', ')})`);
+        return null;
+      }
+      serverId = ids[0] ?? null;
+      if (serverId && !original) original = (await this.ehr.read('Observation', serverId)) as unknown as Observation;
+    }
+    if (!serverId || !original) {
+      if (create.status === 'delivered') {
+        // Never discarded: the EHR accepted it, so a wrong value may stand there. An operator must act (alert).
+        settle('failed', 'original-not-found', `the EHR accepted the original but it cannot be found (no id in its answer, none by identifier ${identifier.value}): the value may still stand in the chart`);
+      } else {
+        settle('discarded', 'nothing-to-amend', `never delivered, and the EHR has no Observation with identifier ${identifier.value}`);
+      }
+      return null;
+    }
+    const payload = enteredInErrorAmendment(original, serverId, a.enteredInErrorBy ?? 'a reviewer', a.enteredInErrorReason ?? 'no reason given', a.enteredInErrorAt ?? new Date());
+    return { row, payload, patientRef: create.patientRef };
   }
 
   private async sendSingly(items: Prepared[], report: PassReport): Promise<void> {
@@ -204,7 +226,7 @@ export class FhirDestination {
     items.forEach((p, i) => {
       const resp = answer.bundle.entry?.[i]?.response;
       const status = Number.parseInt(resp?.status ?? '', 10);
-      const serverId = resp?.location?.split('/')[1] ?? null;
+      const serverId = parseResourceLocation(resp?.location, 'Observation')?.id ?? (typeof answer.bundle.entry?.[i]?.resource?.id === 'string' ? String(answer.bundle.entry[i]!.resource!.id) : null);
       const outcome: SendOutcome =
         status >= 200 && status < 300
           ? { kind: 'delivered', httpStatus: status, serverId, created: status === 201, response: null }
@@ -215,7 +237,7 @@ export class FhirDestination {
 
   private apply(report: PassReport, row: DeliveryRow, o: SendOutcome, mode: 'single' | 'bundle', durationMs: number, p?: Prepared): void {
     const now = Date.now();
-    const base = { row, httpStatus: o.httpStatus, response: o.response, mode, durationMs, ...(p ? { payload: p.payload as object, patientRef: p.patientRef } : {}) };
+    const base = { row, httpStatus: o.httpStatus, response: o.response, mode, durationMs, ...(p ? { payload: p.payload as object, patientRef: p.patientRef, encounterRef: p.encounterRef, patientName: p.patientName, patientMrn: p.patientMrn } : {}) };
     if (o.kind === 'delivered') {
       report.answered++;
       report.results.push({ ...base, status: 'delivered', nextAttemptAt: new Date(now), countsAsTry: true, outcome: o.created ? 'created' : 'delivered', detail: o.created ? 'created' : 'accepted (already there or updated)', serverId: o.serverId ?? row.serverId });

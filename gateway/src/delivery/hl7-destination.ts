@@ -15,7 +15,8 @@ import type { CodeMap, DeliveredIndex } from './code-map';
 import type { DeliveryConfig } from './delivery.config';
 import type { DeliveryRow } from './delivery.entities';
 import { errorText, type EhrClient } from './ehr-client';
-import { windowFitsEncounter, type DeliveryPolicy, type PassReport } from './fhir-destination';
+import type { DeliveryPolicy, PassReport } from './fhir-destination';
+import { stillHeld } from './outbox';
 import { buildObservation, enteredInErrorAmendment } from './observation-builder';
 import { buildOru } from './oru-message';
 import type { PatientContextResolver } from './patient-context';
@@ -63,11 +64,12 @@ export class Hl7Destination {
       try {
         const a = assessments.get(row.assessmentId)!;
         const bed = a.bedId ? await this.ds.getRepository(BedRow).findOneBy({ id: a.bedId }) : null;
-        const context = bed ? await this.contexts.resolve(bed.locationIdentifier) : null;
-        if (!bed || !context || !windowFitsEncounter(a.windowStart, context.encounterStart)) {
-          report.results.push({ ...base, status: 'waiting-context', nextAttemptAt: new Date(Date.now() + this.cfg.patientContext.retrySeconds * 1000), countsAsTry: false, outcome: 'waiting-context', detail: 'no patient context', durationMs: 0 });
+        const answer = bed ? await this.contexts.resolveAt(bed.locationIdentifier, a.windowStart, a.windowEnd) : ({ kind: 'none', reason: 'the monitor was not at a bed during this window' } as const);
+        if (!bed || answer.kind === 'none') {
+          report.results.push({ ...base, status: 'waiting-context', nextAttemptAt: new Date(Date.now() + this.cfg.patientContext.retrySeconds * 1000), countsAsTry: false, outcome: 'waiting-context', detail: `no patient context: ${answer.kind === 'none' ? answer.reason : 'no bed'}`, durationMs: 0 });
           continue;
         }
+        const context = answer.context;
         let message = (row.payload as { message?: string } | null)?.message;
         if (!message) {
           const built = buildObservation({
@@ -79,13 +81,17 @@ export class Hl7Destination {
             continue;
           }
           const obs = row.kind === 'amend' ? enteredInErrorAmendment(built.resource, row.identifier, a.enteredInErrorBy ?? 'a reviewer', a.enteredInErrorReason ?? '', a.enteredInErrorAt ?? new Date()) : built.resource;
-          const patient = await this.ehr.read('Patient', context.patientId);
-          const mrn = ((patient.identifier as { value?: string; type?: { coding?: { code?: string }[] } }[] | undefined) ?? []).find((x) => x.type?.coding?.some((c) => c.code === 'MR'))?.value ?? null;
+          const mrn = context.patientMrn;
           const monitor = await this.ds.getRepository(MonitorRow).findOneBy({ id: a.monitorId });
           message = buildOru(this.codes, {
             observation: obs, controlId: `${row.identifier}-${row.kind}`.slice(0, 199), mrn, locationIdentifier: bed.locationIdentifier,
             sendingFacility: this.cfg.hl7.sendingFacility, receivingApplication: this.cfg.hl7.receivingApplication, monitorIdentifier: monitor?.identifier ?? null, at: new Date(),
           });
+        }
+        // Fencing: HL7 v2 has no conditional create, so a claim that no longer holds the row must not send.
+        if (row.claimId && !(await stillHeld(this.ds, row.id, row.claimId, this.cfg.leaseSeconds * 1000))) {
+          report.fenced = (report.fenced ?? 0) + 1;
+          continue;
         }
         const ack = await sendMllp(this.cfg.hl7.host, this.cfg.hl7.port, message, this.cfg.requestTimeoutMs);
         const code = ackCode(ack);

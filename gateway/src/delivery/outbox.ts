@@ -2,7 +2,11 @@
  * The outbox tables: rows are added in the same transaction as the assessment they deliver,
  * claimed with FOR UPDATE SKIP LOCKED, and leased by pushing next_attempt_at forward, so a worker
  * that dies leaves its rows due again after the lease (then conditional create keeps it exactly once).
+ * Each claim writes a fresh fencing token (claim_id); the holder's every state change is
+ * conditional on it, and the holder renews the lease while it works, so a worker whose lease ran
+ * out changes nothing (and, for HL7 v2, does not send: there is no conditional create there).
  */
+import { randomUUID } from 'node:crypto';
 import type { DataSource, EntityManager } from 'typeorm';
 import { In } from 'typeorm';
 import type { AnalysisResult } from '@ebbgate/shared/analysis';
@@ -78,8 +82,21 @@ async function outboxTransaction<T>(ds: DataSource, work: (m: EntityManager) => 
   }
 }
 
+export interface Claim {
+  id: string;
+  rows: DeliveryRow[];
+  /** Rows whose previous claim ran out without its holder recording anything (a dead or slow worker). */
+  expired: number;
+}
+
 /** Claims due rows of one destination: SKIP LOCKED so parallel workers never take the same row. */
 export async function claimDue(ds: DataSource, destinationId: string, limit: number, leaseMs: number): Promise<DeliveryRow[]> {
+  return (await claimDueFenced(ds, destinationId, limit, leaseMs)).rows;
+}
+
+/** As claimDue, with the claim's fencing token and the count of expired earlier claims. */
+export async function claimDueFenced(ds: DataSource, destinationId: string, limit: number, leaseMs: number): Promise<Claim> {
+  const claimId = randomUUID();
   return outboxTransaction(ds, async (m) => {
     const now = new Date();
     const rows = await m
@@ -94,11 +111,28 @@ export async function claimDue(ds: DataSource, destinationId: string, limit: num
       .setLock('pessimistic_write')
       .setOnLocked('skip_locked')
       .getMany();
+    const expired = rows.filter((r) => r.claimId !== null).length;
     if (rows.length) {
-      await m.update(DeliveryRow, { id: In(rows.map((r) => r.id)) }, { nextAttemptAt: new Date(now.getTime() + leaseMs) });
+      await m.update(DeliveryRow, { id: In(rows.map((r) => r.id)) }, { nextAttemptAt: new Date(now.getTime() + leaseMs), claimId, claimedAt: now });
+      for (const r of rows) Object.assign(r, { claimId, claimedAt: now });
     }
-    return rows;
+    return { id: claimId, rows, expired };
   });
+}
+
+/** Renews the lease of the rows this claim still holds; returns how many it holds. */
+export async function renewLease(ds: DataSource, claimId: string, leaseMs: number): Promise<number> {
+  const res = (await ds.query(`UPDATE delivery SET next_attempt_at = ? WHERE claim_id = ? AND status IN ('pending','waiting-context')`, [new Date(Date.now() + leaseMs), claimId])) as { affectedRows?: number };
+  return res.affectedRows ?? 0;
+}
+
+/**
+ * Fencing check before an irrevocable step (an HL7 v2 send): true only if this claim still holds
+ * the row, and the lease is pushed forward so it cannot run out during the step.
+ */
+export async function stillHeld(ds: DataSource, rowId: string, claimId: string, leaseMs: number): Promise<boolean> {
+  const res = (await ds.query(`UPDATE delivery SET next_attempt_at = ? WHERE id = ? AND claim_id = ? AND status IN ('pending','waiting-context')`, [new Date(Date.now() + leaseMs), rowId, claimId])) as { affectedRows?: number };
+  return (res.affectedRows ?? 0) === 1;
 }
 
 export interface AttemptResult {
@@ -114,6 +148,9 @@ export interface AttemptResult {
   payload?: object | null;
   serverId?: string | null;
   patientRef?: string | null;
+  encounterRef?: string | null;
+  patientName?: string | null;
+  patientMrn?: string | null;
   mode: 'single' | 'bundle' | 'mllp';
   durationMs: number;
 }
@@ -127,8 +164,8 @@ function caseOf(rows: AttemptResult[], value: (r: AttemptResult) => unknown, fal
   return `CASE id ${parts.join(' ')} ELSE ${fallback} END`;
 }
 
-async function bulkUpdate(m: EntityManager, rows: AttemptResult[], at: Date, onlyOpen: boolean): Promise<void> {
-  if (!rows.length) return;
+async function bulkUpdate(m: EntityManager, rows: AttemptResult[], at: Date, onlyOpen: boolean): Promise<string[]> {
+  if (!rows.length) return [];
   const p: unknown[] = [];
   const sets = [
     `status = ${caseOf(rows, (r) => r.status, 'status', p)}`,
@@ -144,22 +181,42 @@ async function bulkUpdate(m: EntityManager, rows: AttemptResult[], at: Date, onl
   optional('payload', (r) => (r.payload === undefined ? undefined : r.payload === null ? null : JSON.stringify(r.payload)));
   optional('server_id', (r) => r.serverId);
   optional('patient_ref', (r) => r.patientRef);
+  optional('encounter_ref', (r) => r.encounterRef);
+  optional('patient_name', (r) => r.patientName);
+  optional('patient_mrn', (r) => r.patientMrn);
   optional('delivered_at', (r) => (r.status === 'delivered' ? at : undefined));
-  sets.push('attempt_count = attempt_count + 1', 'updated_at = ?');
+  // The claim is released: a row found claimed later is one whose holder died or overran its lease.
+  sets.push('attempt_count = attempt_count + 1', 'updated_at = ?', 'claim_id = NULL');
   p.push(at);
+  // Fencing: only rows this claim still holds change (a row claimed by nobody, as in tests, too).
   const ids = rows.map((r) => r.row.id);
+  const claimIds = [...new Set(rows.map((r) => r.row.claimId ?? null))];
+  if (claimIds.length !== 1) throw new Error('recordAttempts: one claim at a time');
+  const claim = claimIds[0];
   p.push(ids);
-  await m.query(`UPDATE delivery SET ${sets.join(', ')} WHERE id IN (?)${onlyOpen ? " AND status IN ('pending','waiting-context')" : ''}`, p);
+  let where = `WHERE id IN (?)${onlyOpen ? " AND status IN ('pending','waiting-context')" : ''}`;
+  if (claim) {
+    where += ' AND claim_id = ?';
+    p.push(claim);
+  }
+  // Which rows the claim still held (read under the same locks the UPDATE takes).
+  const held = claim
+    ? ((await m.query(`SELECT id FROM delivery WHERE id IN (?) AND claim_id = ? FOR UPDATE`, [ids, claim])) as { id: string | number }[]).map((r) => String(r.id))
+    : ids.map(String);
+  await m.query(`UPDATE delivery SET ${sets.join(', ')} ${where}`, p);
+  return held;
 }
 
 /**
  * Writes a batch of attempts in one transaction (one INSERT, two bulk UPDATEs). A row that someone
- * discarded while it was in flight keeps that status unless it was in fact delivered.
+ * discarded while it was in flight keeps that status unless it was in fact delivered. Returns the
+ * number of fencing refusals: results whose claim no longer held the row (nothing changed there
+ * but the attempt itself, which is kept as evidence).
  */
-export async function recordAttempts(ds: DataSource, results: AttemptResult[]): Promise<void> {
-  if (!results.length) return;
+export async function recordAttempts(ds: DataSource, results: AttemptResult[]): Promise<number> {
+  if (!results.length) return 0;
   const at = new Date();
-  await outboxTransaction(ds, async (m) => {
+  return outboxTransaction(ds, async (m) => {
     await m.insert(
       DeliveryAttemptRow,
       results.map((r) => ({
@@ -168,16 +225,24 @@ export async function recordAttempts(ds: DataSource, results: AttemptResult[]): 
       })),
     );
     const delivered = results.filter((r) => r.status === 'delivered');
-    await bulkUpdate(m, delivered, at, false);
-    await bulkUpdate(m, results.filter((r) => r.status !== 'delivered'), at, true);
+    const heldDelivered = await bulkUpdate(m, delivered, at, false);
+    const rest = results.filter((r) => r.status !== 'delivered');
+    const heldRest = await bulkUpdate(m, rest, at, true);
     // The patient the EHR filed it under is shown (and filtered on) with the assessment itself.
-    const filed = delivered.filter((r) => r.patientRef).map((r) => r.row.id);
+    const filed = delivered.filter((r) => r.patientRef && heldDelivered.includes(String(r.row.id))).map((r) => r.row.id);
     if (filed.length) {
       await m.query(
-        'UPDATE assessment a JOIN delivery d ON d.assessment_id = a.id SET a.patient_ref = d.patient_ref WHERE d.id IN (?) AND d.patient_ref IS NOT NULL AND (a.patient_ref IS NULL OR a.patient_ref <> d.patient_ref)',
+        `UPDATE assessment a JOIN delivery d ON d.assessment_id = a.id
+         SET a.patient_ref = d.patient_ref, a.patient_name = COALESCE(d.patient_name, a.patient_name), a.patient_mrn = COALESCE(d.patient_mrn, a.patient_mrn)
+         WHERE d.id IN (?) AND d.patient_ref IS NOT NULL AND (a.patient_ref IS NULL OR a.patient_ref <> d.patient_ref OR a.patient_name IS NULL)`,
         [filed],
       );
     }
+    // Refused: delivered results whose row is no longer this claim's, and open-row results likewise
+    // (a row discarded meanwhile is not a refusal: its status was meant to win).
+    const refusedDelivered = delivered.filter((r) => r.row.claimId && !heldDelivered.includes(String(r.row.id))).length;
+    const refusedRest = rest.filter((r) => r.row.claimId && !heldRest.includes(String(r.row.id))).length;
+    return refusedDelivered + refusedRest;
   });
 }
 
@@ -215,7 +280,11 @@ export async function recordDestinationHealth(
   });
 }
 
-/** Reviewer marked an assessment in error: amend what was delivered, stop what was not. */
+/**
+ * Reviewer marked an assessment in error: amend what was delivered, stop what was not. A result
+ * that was attempted but not confirmed (a timeout, a crash after sending) may still have reached
+ * the EHR: it is stopped and gets an amendment too, which looks it up by identifier first.
+ */
 export async function markAssessmentInError(m: EntityManager, a: AssessmentRow): Promise<void> {
   const rows = await m.getRepository(DeliveryRow).find({ where: { assessmentId: a.id, kind: 'create' } });
   const now = new Date();
@@ -223,20 +292,20 @@ export async function markAssessmentInError(m: EntityManager, a: AssessmentRow):
     if (r.status === 'delivered') await ensureAmendRow(m, r, now);
     else if (r.status === 'pending' || r.status === 'waiting-context' || r.status === 'failed') {
       await m.update(DeliveryRow, { id: r.id }, { status: 'discarded', discardReason: 'entered in error before delivery', discardedBy: a.enteredInErrorBy, updatedAt: now });
+      if (r.attemptCount > 0 && r.status !== 'waiting-context') await ensureAmendRow(m, r, now);
     }
   }
 }
 
+/** Queues the amendment of a create row; one that was set aside earlier (nothing to amend then) is opened again. */
 export async function ensureAmendRow(m: EntityManager, create: DeliveryRow, now = new Date()): Promise<void> {
-  await m
-    .createQueryBuilder()
-    .insert()
-    .into(DeliveryRow)
-    .values({
-      assessmentId: create.assessmentId, destinationId: create.destinationId, indexName: create.indexName, kind: 'amend', status: 'pending',
-      identifier: create.identifier, payload: null, serverId: create.serverId, patientRef: create.patientRef, tries: 0, attemptCount: 0,
-      nextAttemptAt: now, lastHttpStatus: null, lastError: null, discardReason: null, discardedBy: null, createdAt: now, updatedAt: now, deliveredAt: null,
-    })
-    .orIgnore()
-    .execute();
+  const params = [
+    create.assessmentId, create.destinationId, create.indexName, create.identifier, create.serverId, create.patientRef, create.patientName ?? null, create.patientMrn ?? null, create.encounterRef ?? null, now, now, now,
+  ];
+  await m.query(
+    `INSERT INTO delivery (assessment_id, destination_id, index_name, kind, status, identifier, payload, server_id, patient_ref, patient_name, patient_mrn, encounter_ref, tries, attempt_count, next_attempt_at, created_at, updated_at)
+     VALUES (?, ?, ?, 'amend', 'pending', ?, NULL, ?, ?, ?, ?, ?, 0, 0, ?, ?, ?)
+     ON DUPLICATE KEY UPDATE status = IF(status = 'discarded', 'pending', status), next_attempt_at = IF(status = 'pending', VALUES(next_attempt_at), next_attempt_at), discard_reason = IF(status = 'pending', NULL, discard_reason)`,
+    params,
+  );
 }

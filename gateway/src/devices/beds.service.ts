@@ -10,6 +10,9 @@ import { forgetDevices } from './device-cache';
 import { likePattern, orderAndPage } from './device-paging';
 import { toBed } from './device-views';
 
+/** Told the location identifiers of a bed that was changed or removed (delivery drops its cached patient context). */
+export const bedReassigned: ((locationIdentifiers: string[]) => void)[] = [];
+
 /** The monitor on each of the given beds (a bed holds at most one). */
 async function monitorsByBed(ds: DataSource, bedIds: string[]): Promise<Map<string, string>> {
   if (!bedIds.length) return new Map();
@@ -53,10 +56,12 @@ export async function createBed(ds: DataSource, input: BedInput & { id?: string 
 }
 
 export async function updateBed(ds: DataSource, id: string, input: Partial<BedInput>, by: ChangeBy): Promise<Bed> {
+  let previousLocation: string | undefined;
   try {
     const out = await ds.transaction(async (m) => {
       const row = await m.findOne(BedRow, { where: { id }, lock: { mode: 'pessimistic_write' } });
       if (!row) throw notFound(`Bed ${id}`);
+      previousLocation = row.locationIdentifier;
       const monitor = await m.findOneBy(MonitorRow, { bedId: id });
       const before = toBed(row, monitor?.id ?? null);
       Object.assign(row, input, { updatedAt: new Date() });
@@ -66,6 +71,7 @@ export async function updateBed(ds: DataSource, id: string, input: Partial<BedIn
       return after;
     });
     forgetDevices();
+    for (const h of bedReassigned) h([out.locationIdentifier, ...(previousLocation ? [previousLocation] : [])]);
     return out;
   } catch (err) {
     if (isDuplicateKey(err)) throw conflict(`A bed named "${input.name}" exists already.`);
@@ -74,6 +80,7 @@ export async function updateBed(ds: DataSource, id: string, input: Partial<BedIn
 }
 
 export async function deleteBed(ds: DataSource, id: string, by: ChangeBy): Promise<void> {
+  let previousLocation: string | undefined;
   await ds.transaction(async (m) => {
     const row = await m.findOneBy(BedRow, { id });
     if (!row) throw notFound(`Bed ${id}`);
@@ -81,6 +88,8 @@ export async function deleteBed(ds: DataSource, id: string, by: ChangeBy): Promi
     const monitor = await m.findOneBy(MonitorRow, { bedId: id });
     await m.delete(BedRow, { id });
     await recordAudit(m, { principal: by.principal, action: 'bed.delete', entityType: 'bed', entityId: id, before: toBed(row, monitor?.id ?? null), requestId: by.requestId });
+    previousLocation = row.locationIdentifier;
   });
   forgetDevices();
+  for (const h of bedReassigned) h(previousLocation ? [previousLocation] : []);
 }

@@ -1,5 +1,5 @@
 import type { RequestHandler } from 'express';
-import { Counter, Histogram, Registry, collectDefaultMetrics } from 'prom-client';
+import { Counter, Gauge, Histogram, Registry, collectDefaultMetrics } from 'prom-client';
 
 /** One Prometheus registry per gateway app; capabilities add their own counters to it. */
 export function createMetrics() {
@@ -21,6 +21,9 @@ export function createMetrics() {
     next();
   };
   const counter = (name: string, help: string, labelNames: string[] = []) => new Counter({ name, help, labelNames, registers: [registry] });
-  return { registry, middleware, counter };
+  /** A gauge read when scraped (collect sets its values, e.g. from the database). */
+  const gauge = (name: string, help: string, labelNames: string[], collect: (g: Gauge) => Promise<void>) =>
+    new Gauge({ name, help, labelNames, registers: [registry], async collect() { await collect(this); } });
+  return { registry, middleware, counter, gauge };
 }
 export type Metrics = ReturnType<typeof createMetrics>;

@@ -100,7 +100,9 @@ describe('delivery to the mock EHR', () => {
     expect(mails.filter((m) => /Cleared: EHR \(FHIR R4\) was down/.test(m.subject))).toHaveLength(1);
     const alert = mails.find((m) => /is down/.test(m.subject))!;
     expect(alert.to).toContain('icu-oncall@harrowmere.example');
-    expect(alert.text).toContain('http://console.harrowmere.example/deliveries?destination=ehr-fhir');
+    // The console screen by its name and route (admin-ui/src/app/routes.ts: /deliveries, nav "Deliveries").
+    expect(alert.text).toContain('Open the Deliveries screen of the Ebbgate console');
+    expect(alert.text).toContain('http://console.harrowmere.example/deliveries');
   });
 
   it('422 fails at once with the OperationOutcome kept; an operator sees it, retries it (audited) and it is delivered', async () => {
@@ -140,10 +142,22 @@ describe('delivery to the mock EHR', () => {
     const token = await mockToken();
     const post = (type: string, body: object) =>
       fetch(`${ehr.fhirBaseUrl}/${type}`, { method: 'POST', headers: { authorization: `Bearer ${token}`, 'content-type': 'application/fhir+json' }, body: JSON.stringify(body) }).then((r) => r.json() as Promise<{ id: string }>);
-    const patient = await post('Patient', { resourceType: 'Patient', name: [{ family: 'Ashgrove', given: ['Wren'] }], gender: 'female' });
-    await post('Encounter', { resourceType: 'Encounter', status: 'in-progress', class: { system: 'http://terminology.hl7.org/CodeSystem/v3-ActCode', code: 'IMP' }, subject: { reference: `Patient/${patient.id}` }, location: [{ location: { reference: 'Location/icu-05' } }] });
+    const patient = await post('Patient', { resourceType: 'Patient', name: [{ family: 'Ashgrove', given: ['Wren'] }], gender: 'female', identifier: [{ type: { coding: [{ system: 'http://terminology.hl7.org/CodeSystem/v2-0203', code: 'MR' }] }, system: 'urn:ebbgate:demo:mrn', value: 'HGH-409901' }] });
+    // An encounter without period.start says nothing about when the patient arrived: never used.
+    const undated = await post('Encounter', { resourceType: 'Encounter', status: 'in-progress', class: { system: 'http://terminology.hl7.org/CodeSystem/v3-ActCode', code: 'IMP' }, subject: { reference: `Patient/${patient.id}` }, location: [{ location: { reference: 'Location/icu-05' } }] });
+    const refused = await waitFor('the undated encounter refused by name', async () => {
+      const r = (await rowsOf([a.id]))[0];
+      return r?.status === 'waiting-context' && r.lastError?.includes(`Encounter/${undated.id}`) ? r : undefined;
+    });
+    expect(refused.lastError).toMatch(/without period\.start refused/);
+    // Admitted (recorded as such) before the window began: filed to that patient, with name and MRN.
+    await post('Encounter', { resourceType: 'Encounter', status: 'in-progress', class: { system: 'http://terminology.hl7.org/CodeSystem/v3-ActCode', code: 'IMP' }, subject: { reference: `Patient/${patient.id}` }, period: { start: new Date(windowStart(0).getTime() - 60_000).toISOString() }, location: [{ location: { reference: 'Location/icu-05' } }] });
     const rows = await waitFor('delivered after admission', allSettled([a.id]));
     expect((rows[0]!.payload as { subject: { reference: string } }).subject.reference).toBe(`Patient/${patient.id}`);
+    expect(rows[0]!.patientName).toBe('Wren Ashgrove');
+    expect(rows[0]!.patientMrn).toBe('HGH-409901');
+    const stored = (await gw.ctx.ds.query('SELECT patient_name AS n, patient_mrn AS m FROM assessment WHERE id = ?', [a.id])) as { n: string; m: string }[];
+    expect(stored[0]).toEqual({ n: 'Wren Ashgrove', m: 'HGH-409901' });
   });
 
   it('a window from before the current encounter began is not filed to that patient (waits for context)', async () => {
@@ -151,7 +165,7 @@ describe('delivery to the mock EHR', () => {
     // The mock's seeded encounters began three hours before it started; this window is older.
     const a = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, new Date(Date.now() - 6 * 3_600_000));
     const rows = await waitFor('waiting-context', allSettled([a.id], ['waiting-context']));
-    expect(rows[0]!.lastError).toMatch(/before the current encounter/);
+    expect(rows[0]!.lastError).toMatch(/no encounter at ICU-01 covers/);
     expect(rows.every((r) => r.payload === null)).toBe(true);
   });
 
@@ -232,6 +246,9 @@ describe('delivery to the mock EHR', () => {
     expect(down.checks.find((c) => c.name === 'ehr')!.ok).toBe(false);
     const metrics = await fetch(`${gw.url}/metrics`).then((r) => r.text());
     expect(metrics).toMatch(/ebbgate_delivery_attempts_total\{destination="ehr-fhir",outcome="created"\} [1-9]/);
+    expect(metrics).toMatch(/ebbgate_delivery_lag_seconds\{destination="ehr-fhir"\} \d/);
+    expect(metrics).toMatch(/# TYPE ebbgate_delivery_claims_expired_total counter/);
+    expect(metrics).toMatch(/# TYPE ebbgate_delivery_fencing_refusals_total counter/);
   });
 
   it('the reviewer cannot retry and the operator cannot discard a delivered result', async () => {

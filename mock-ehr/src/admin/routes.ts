@@ -10,6 +10,8 @@ import type { MailCatcher } from '../mail/mail-catcher.js';
 import { mailPage } from '../mail/mail-page.js';
 import type { HospitalFile } from '../seed/hospital-file.js';
 import { countObservations } from './observation-counts.js';
+import type { Adt } from './adt.js';
+import { defaultQuirks, quirksSchema, type Quirks } from '../fhir/quirks.js';
 
 // The mock's own control API under /_admin (no auth: loopback only, test tooling).
 
@@ -23,7 +25,14 @@ export interface AdminDeps {
   hospital: HospitalFile;
   reseed: () => void;
   outage: (durationMs: number) => void;
+  adt: Adt;
+  quirks: Quirks;
 }
+
+const adtPatientSchema = z.object({
+  mrn: z.string().min(1).max(32), family: z.string().min(1).max(64), given: z.array(z.string().min(1).max(64)).min(1).max(3),
+  sex: z.enum(['female', 'male', 'other', 'unknown']), birthDate: z.string().regex(/^\d{4}-\d{2}-\d{2}$/),
+});
 
 function parseBody<T>(schema: z.ZodType<T>, req: Request, res: Response): T | undefined {
   const parsed = schema.safeParse(req.body);
@@ -54,6 +63,7 @@ export function adminRouter(d: AdminDeps): express.Router {
     d.mail.clear();
     d.hl7.clear();
     d.reseed();
+    Object.assign(d.quirks, defaultQuirks());
     res.status(204).end();
   });
 
@@ -78,7 +88,37 @@ export function adminRouter(d: AdminDeps): express.Router {
     res.json(d.requests.last(limit.data));
   });
 
+  // ADT-style changes (a transfer, a discharge, an admission) and the occupancy log they keep.
+  r.get('/_admin/adt', (_req, res) => void res.json(d.adt.view()));
+  r.post('/_admin/adt/transfer', (req, res) => {
+    const body = parseBody(z.object({ from: z.string().min(1), to: z.string().min(1) }), req, res);
+    if (body) res.status(201).json(d.adt.transfer(body.from, body.to));
+  });
+  r.post('/_admin/adt/discharge', (req, res) => {
+    const body = parseBody(z.object({ location: z.string().min(1) }), req, res);
+    if (body) res.status(201).json(d.adt.discharge(body.location));
+  });
+  r.post('/_admin/adt/admit', (req, res) => {
+    const body = parseBody(z.object({ location: z.string().min(1), patient: adtPatientSchema }), req, res);
+    if (body) res.status(201).json(d.adt.admit(body.location, body.patient));
+  });
+
+  r.get('/_admin/quirks', (_req, res) => void res.json(d.quirks));
+  r.put('/_admin/quirks', (req, res) => {
+    const q = parseBody(quirksSchema, req, res);
+    if (!q) return;
+    Object.assign(d.quirks, q);
+    res.json(d.quirks);
+  });
+
   r.get('/_admin/hl7', (_req, res) => void res.json(d.hl7.list()));
+  r.get('/_admin/hl7/counts', (_req, res) => void res.json(d.hl7.counts()));
+  r.put('/_admin/hl7/ack-delay', (req, res) => {
+    const body = parseBody(z.object({ ms: z.number().int().min(0).max(120_000) }), req, res);
+    if (!body) return;
+    d.hl7.setAckDelay(body.ms);
+    res.status(204).end();
+  });
   r.delete('/_admin/hl7', (_req, res) => {
     d.hl7.clear();
     res.status(204).end();

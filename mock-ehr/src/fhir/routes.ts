@@ -5,6 +5,7 @@ import { FHIR_JSON, sendResource } from './respond.js';
 import { requireType, type ResourceService } from './resource-service.js';
 import { parseSearch, runSearch } from './search.js';
 import type { ResourceStore } from './store.js';
+import type { Quirks } from './quirks.js';
 import { processBundle } from './transaction.js';
 
 // Thin REST routes for the FHIR R4 API; the work is in ResourceService and processBundle.
@@ -25,13 +26,13 @@ const requireJsonBody: RequestHandler = (req, _res, next) => {
   next();
 };
 
-export function fhirRouter(deps: { store: ResourceStore; service: ResourceService; fhirBase: () => string }): express.Router {
+export function fhirRouter(deps: { store: ResourceStore; service: ResourceService; fhirBase: () => string; quirks?: Quirks }): express.Router {
   const { store, service } = deps;
   const r = express.Router();
 
   r.post('/', requireJsonBody, (req, res) => {
     const minimal = /return=minimal/i.test(req.get('prefer') ?? '');
-    const bundle = processBundle(req.body, { store, service, fhirBase: deps.fhirBase(), minimal });
+    const bundle = processBundle(req.body, { store, service, fhirBase: deps.fhirBase(), minimal, quirks: deps.quirks });
     res.status(200).type(FHIR_JSON).send(JSON.stringify(bundle));
   });
 
@@ -45,14 +46,14 @@ export function fhirRouter(deps: { store: ResourceStore; service: ResourceServic
 
   r.post('/:type', requireJsonBody, (req, res) => {
     const result = service.create(p(req.params.type), req.body, { ifNoneExist: req.get('if-none-exist') ?? undefined });
-    sendResource(req, res, result.status, result.resource, deps.fhirBase(), { location: true });
+    sendResource(req, res, result.status, result.resource, deps.fhirBase(), { location: true, quirks: deps.quirks });
   });
 
   r.put('/:type', requireJsonBody, (req, res) => {
     const query = rawQuery(req).toString();
     if (!query) throw FhirError.of(400, 'invalid', 'PUT needs an id (Type/id) or a search (Type?param=value)');
     const result = service.conditionalUpdate(p(req.params.type), query, req.body);
-    sendResource(req, res, result.status, result.resource, deps.fhirBase(), { location: result.status === 201 });
+    sendResource(req, res, result.status, result.resource, deps.fhirBase(), { location: result.status === 201, quirks: deps.quirks });
   });
 
   r.get('/:type/:id', (req, res) => {
@@ -65,7 +66,7 @@ export function fhirRouter(deps: { store: ResourceStore; service: ResourceServic
 
   r.put('/:type/:id', requireJsonBody, (req, res) => {
     const result = service.update(p(req.params.type), p(req.params.id), req.body, { ifMatch: req.get('if-match') ?? undefined });
-    sendResource(req, res, result.status, result.resource, deps.fhirBase(), { location: result.status === 201 });
+    sendResource(req, res, result.status, result.resource, deps.fhirBase(), { location: result.status === 201, quirks: deps.quirks });
   });
 
   r.all('/{*rest}', (req) => {

@@ -1,5 +1,6 @@
 import { randomUUID } from 'node:crypto';
 import { etagOf, searchsetBundle, STATUS_TEXT, versionedLocation } from './bundles.js';
+import type { Quirks } from './quirks.js';
 import { FhirError } from './operation-outcome.js';
 import { isSupportedType, type FhirResource } from './resource-types.js';
 import type { ResourceService } from './resource-service.js';
@@ -20,7 +21,7 @@ interface Planned extends Entry {
 }
 interface EntryAnswer { status: number; resource?: FhirResource; outcome?: unknown }
 
-export function processBundle(body: unknown, deps: { store: ResourceStore; service: ResourceService; fhirBase: string; minimal: boolean }): FhirResource {
+export function processBundle(body: unknown, deps: { store: ResourceStore; service: ResourceService; fhirBase: string; minimal: boolean; quirks?: Quirks }): FhirResource {
   const bundle = body as Obj | undefined;
   if (!bundle || bundle.resourceType !== 'Bundle') throw FhirError.of(400, 'invalid', 'POST to the base URL takes a Bundle', ['Bundle']);
   if (bundle.type !== 'transaction' && bundle.type !== 'batch') throw FhirError.of(400, 'invalid', `Bundle.type must be transaction or batch, not ${String(bundle.type)}`, ['Bundle.type']);
@@ -170,7 +171,7 @@ function execute(e: Planned, deps: { store: ResourceStore; service: ResourceServ
   }
 }
 
-function responseEntry(a: EntryAnswer, deps: { fhirBase: string; minimal: boolean }): Obj {
+function responseEntry(a: EntryAnswer, deps: { fhirBase: string; minimal: boolean; quirks?: Quirks }): Obj {
   const status = `${a.status} ${STATUS_TEXT[a.status] ?? ''}`.trim();
   if (a.outcome) return { response: { status, outcome: a.outcome } };
   const r = a.resource!;
@@ -180,9 +181,15 @@ function responseEntry(a: EntryAnswer, deps: { fhirBase: string; minimal: boolea
     ...(deps.minimal ? {} : { resource: r }),
     response: {
       status,
-      ...(isWrite ? { location: versionedLocation(r), etag: etagOf(r), lastModified: r.meta?.lastUpdated } : {}),
+      ...(isWrite ? { ...locationOf(r, deps), etag: etagOf(r), lastModified: r.meta?.lastUpdated } : {}),
     },
   };
+}
+
+function locationOf(r: FhirResource, deps: { fhirBase: string; quirks?: Quirks }): Obj {
+  const style = deps.quirks?.createLocation ?? 'standard';
+  if (style === 'none') return {};
+  return { location: style === 'absolute' ? `${deps.fhirBase}/${versionedLocation(r)}` : versionedLocation(r) };
 }
 
 function prefixed(err: unknown, where: string): unknown {

@@ -41,8 +41,26 @@ function unframe(raw: string): string {
   return s;
 }
 
+/** Every control id (MSH-10) ever received and how often: a resend is seen even after the list rolls over. */
+export interface Hl7Counts {
+  total: number;
+  distinct: number;
+  duplicated: { controlId: string; count: number }[];
+  /** Control ids received with different content (MSH-7, the send time, aside): a receiver could not drop these as resends. */
+  conflicting: string[];
+}
+
+/** The message without MSH-7 (date/time of message), which a resend may carry anew. */
+function contentKey(message: string): string {
+  return message.replace(/^(MSH(?:\|[^|\r\n]*){5}\|)[^|\r\n]*/, '$1');
+}
+
 export class MllpReceiver {
   private messages: ReceivedHl7[] = [];
+  private readonly byControlId = new Map<string, number>();
+  private readonly contentOf = new Map<string, Set<string>>();
+  private total = 0;
+  private ackDelayMs = 0;
   private nextId = 1;
   private server: ReturnType<typeof hl7.Server.createTcpServer> | undefined;
   private readonly sockets = new Set<Socket>();
@@ -61,8 +79,15 @@ export class MllpReceiver {
         messageType: message.split(/\r|\n/)[0]?.split('|')[8] ?? '', ackCode: code,
         ...(error ? { error: `${error.code}: ${error.text}` } : {}), message, ack,
       });
+      this.total++;
+      this.byControlId.set(controlId, (this.byControlId.get(controlId) ?? 0) + 1);
+      const contents = this.contentOf.get(controlId) ?? new Set<string>();
+      contents.add(contentKey(message));
+      this.contentOf.set(controlId, contents);
       res.ack = ack;
-      res.end();
+      // A slow receiver (tests of the sender's lease and fencing): the ACK comes late.
+      if (this.ackDelayMs > 0) setTimeout(() => res.end(), this.ackDelayMs);
+      else res.end();
     });
     server.start({ port, host });
     const net = server.server!;
@@ -89,6 +114,20 @@ export class MllpReceiver {
 
   clear(): void {
     this.messages = [];
+    this.byControlId.clear();
+    this.contentOf.clear();
+    this.total = 0;
+    this.ackDelayMs = 0;
+  }
+
+  counts(): Hl7Counts {
+    const duplicated = [...this.byControlId].filter(([, n]) => n > 1).map(([controlId, count]) => ({ controlId, count }));
+    const conflicting = [...this.contentOf].filter(([, c]) => c.size > 1).map(([id]) => id);
+    return { total: this.total, distinct: this.byControlId.size, duplicated, conflicting };
+  }
+
+  setAckDelay(ms: number): void {
+    this.ackDelayMs = ms;
   }
 
   private keep(m: ReceivedHl7): void {

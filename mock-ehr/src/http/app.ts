@@ -49,7 +49,7 @@ export function buildApp(d: AppDeps): express.Express {
     });
   });
   app.use('/fhir', requireBearer(d.tokens));
-  app.use('/fhir', fhirRouter({ store: d.store, service: d.service, fhirBase: () => d.urls().fhirBaseUrl }));
+  app.use('/fhir', fhirRouter({ store: d.store, service: d.service, fhirBase: () => d.urls().fhirBaseUrl, quirks: d.quirks }));
   app.use(errorHandler(d.logger));
   return app;
 }

@@ -49,7 +49,7 @@ export function seedResources(file: HospitalFile, now = new Date()): FhirResourc
       class: { system: 'http://terminology.hl7.org/CodeSystem/v3-ActCode', code: 'IMP', display: 'inpatient encounter' },
       subject: { reference: `Patient/${patientId}` },
       period: { start: started },
-      location: [{ location: { reference: `Location/${bed.id}`, display: bed.name }, status: 'active' }],
+      location: [{ location: { reference: `Location/${bed.id}`, display: bed.name }, status: 'active', period: { start: started } }],
     });
   }
   return out;
