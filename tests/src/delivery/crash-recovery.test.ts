@@ -4,9 +4,9 @@
  * brings back the rows the dead process held; conditional create (FHIR R4 If-None-Exist) makes
  * the resend of a row the EHR already has a no-op.
  */
-import { spawn, type ChildProcess } from 'node:child_process';
+import type { ChildProcess } from 'node:child_process';
 import { randomBytes } from 'node:crypto';
-import { mkdtempSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import type { DataSource } from 'typeorm';
@@ -20,6 +20,7 @@ import { DeliveryRow } from '@ebbgate/gateway/delivery/delivery.entities';
 import { FHIR_DESTINATION_ID } from '@ebbgate/gateway/delivery/delivery.module';
 import { enqueueAssessment, syncDestinations } from '@ebbgate/gateway/delivery/outbox';
 import { insertBedAndMonitor, mockAdmin, storeAssessment, waitFor, windowStart } from '@ebbgate/gateway/test/delivery/support';
+import { endProcess, killGroup, spawnTracked } from '../ingest/gateway-process';
 
 const ASSESSMENTS = 40;
 let ehr: RunningMockEhr;
@@ -28,8 +29,12 @@ let ds: DataSource;
 let configFile: string;
 const children: ChildProcess[] = [];
 
+/**
+ * The gateway itself is the spawned process (node with tsx as a loader, its own process group):
+ * a SIGKILL reaches the gateway, not a launcher that would leave it running with parent pid 1.
+ */
 function startGatewayProcess(): ChildProcess {
-  const child = spawn(path.join(repoRoot, 'node_modules/.bin/tsx'), ['gateway/src/main.ts'], {
+  const child = spawnTracked(path.join(repoRoot, 'gateway/src/main.ts'), [], {
     cwd: repoRoot,
     env: {
       PATH: process.env.PATH,
@@ -48,6 +53,22 @@ function startGatewayProcess(): ChildProcess {
   });
   children.push(child);
   return child;
+}
+
+/** Live processes whose environment points at this test's temporary config (Linux /proc). */
+function processesWithOurConfig(): number[] {
+  const found: number[] = [];
+  for (const name of readdirSync('/proc')) {
+    const pid = Number(name);
+    if (!Number.isInteger(pid) || pid === process.pid) continue;
+    try {
+      if (readFileSync(`/proc/${pid}/stat`, 'utf8').split(') ')[1]?.startsWith('Z')) continue;
+      if (readFileSync(`/proc/${pid}/environ`, 'utf8').split('\0').includes(`EBBGATE_CONFIG=${configFile}`)) found.push(pid);
+    } catch {
+      // gone, or not ours to read
+    }
+  }
+  return found;
 }
 
 const delivered = async () => ds.getRepository(DeliveryRow).countBy({ status: 'delivered' });
@@ -71,7 +92,8 @@ beforeAll(async () => {
 }, 120_000);
 
 afterAll(async () => {
-  for (const c of children) if (c.exitCode === null && c.signalCode === null) c.kill('SIGKILL');
+  // Ended whether the test passed or not (afterAll runs after a failure too); waits for the exit.
+  await Promise.all(children.map((c) => endProcess(c, 5000)));
   await ds?.destroy();
   await db?.drop();
   await ehr?.stop();
@@ -86,13 +108,16 @@ describe('SIGKILL mid-delivery', () => {
 
     const first = startGatewayProcess();
     await waitFor('some deliveries', async () => (await delivered()) >= total * 0.25, 90_000, 50);
-    first.kill('SIGKILL');
-    await new Promise((r) => first.once('exit', r));
+    const exited = new Promise((r) => first.once('exit', r));
+    killGroup(first, 'SIGKILL');
+    await exited;
+    // Nothing of the killed gateway survives it (a launcher's child once did, with parent pid 1).
+    await waitFor('no process of the killed gateway left', async () => processesWithOurConfig().length === 0, 5000, 100);
     const atKill = await delivered();
     expect(atKill).toBeGreaterThan(0);
     expect(atKill).toBeLessThan(total); // the kill came mid-delivery
 
-    startGatewayProcess();
+    const second = startGatewayProcess();
     await waitFor('all delivered after restart', async () => (await delivered()) === total, 120_000, 100);
 
     const counts = await mockAdmin(ehr.baseUrl).observations();
@@ -100,5 +125,8 @@ describe('SIGKILL mid-delivery', () => {
     for (const r of rows) expect(counts.byIdentifier[`urn:ebbgate:observation|${r.identifier}`]).toBe(1);
     expect(counts.duplicated).toEqual([]);
     expect(counts.total).toBe(total);
+    await endProcess(second);
+    expect(second.exitCode !== null || second.signalCode !== null).toBe(true);
+    expect(processesWithOurConfig()).toEqual([]);
   });
 });

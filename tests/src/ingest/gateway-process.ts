@@ -1,8 +1,14 @@
 /**
- * A gateway as its own OS process (`tsx gateway/src/main.ts`), configured only through the
- * environment, for tests where several gateways share one database.
+ * A gateway as its own OS process (`node --import tsx gateway/src/main.ts`), configured only
+ * through the environment, for tests where several gateways share one database.
+ *
+ * Processes are started in their own process group and ended as a group: the `tsx` launcher runs
+ * the program in a child of its own, so a SIGKILL of the launcher alone used to leave the gateway
+ * running with parent pid 1. Every process carries EBBGATE_TEST_RUN (set by `npm test`) so the
+ * run can check at the end that none is left, and any still alive when this test process exits
+ * is killed.
  */
-import { spawn, type ChildProcess } from 'node:child_process';
+import { spawn, type ChildProcess, type SpawnOptions } from 'node:child_process';
 import net from 'node:net';
 import path from 'node:path';
 import { repoRoot } from '@ebbgate/gateway/config/load';
@@ -18,6 +24,53 @@ export async function freePort(): Promise<number> {
   });
 }
 
+const live = new Set<ChildProcess>();
+process.once('exit', () => {
+  for (const c of live) killGroup(c, 'SIGKILL');
+});
+
+/** Signals the child's whole process group (it leads one: spawned detached). */
+export function killGroup(child: ChildProcess, signal: NodeJS.Signals): void {
+  if (child.pid === undefined) return;
+  try {
+    process.kill(-child.pid, signal);
+  } catch {
+    // the group is gone already
+  }
+}
+
+/**
+ * Spawns a TypeScript program under Node with tsx as a loader (one process, so its pid is the
+ * program's), in its own process group, tracked until it exits.
+ */
+export function spawnTracked(script: string, args: string[], opts: SpawnOptions & { env: NodeJS.ProcessEnv }): ChildProcess {
+  const child = spawn(process.execPath, ['--import', 'tsx', script, ...args], {
+    ...opts,
+    detached: true,
+    env: { ...opts.env, ...(process.env.EBBGATE_TEST_RUN ? { EBBGATE_TEST_RUN: process.env.EBBGATE_TEST_RUN } : {}) },
+  });
+  live.add(child);
+  child.once('exit', () => live.delete(child));
+  return child;
+}
+
+/** Ends a tracked process: SIGTERM to its group, SIGKILL after `graceMs`; resolves once it exited. */
+export function endProcess(child: ChildProcess, graceMs = 15_000): Promise<void> {
+  return new Promise<void>((resolve) => {
+    if (child.exitCode !== null || child.signalCode !== null) {
+      killGroup(child, 'SIGKILL'); // anything it left in its group
+      return resolve();
+    }
+    const force = setTimeout(() => killGroup(child, 'SIGKILL'), graceMs);
+    child.once('exit', () => {
+      clearTimeout(force);
+      killGroup(child, 'SIGKILL');
+      resolve();
+    });
+    killGroup(child, 'SIGTERM');
+  });
+}
+
 export interface GatewayProcess {
   url: string;
   mllpPort: number | null;
@@ -26,10 +79,10 @@ export interface GatewayProcess {
   stop(): Promise<void>;
 }
 
-export async function spawnGateway(opts: { databaseUrl: string; jwtSecret: string; mllp?: boolean; workers?: boolean; env?: Record<string, string> }): Promise<GatewayProcess> {
-  const port = await freePort();
-  const mllpPort = opts.mllp ? await freePort() : null;
-  const child = spawn(path.join(repoRoot, 'node_modules/.bin/tsx'), [path.join(repoRoot, 'gateway/src/main.ts')], {
+export async function spawnGateway(opts: { databaseUrl: string; jwtSecret: string; mllp?: boolean; workers?: boolean; env?: Record<string, string>; port?: number; mllpPort?: number }): Promise<GatewayProcess> {
+  const port = opts.port ?? (await freePort());
+  const mllpPort = opts.mllp ? (opts.mllpPort ?? (await freePort())) : null;
+  const child = spawnTracked(path.join(repoRoot, 'gateway/src/main.ts'), [], {
     cwd: repoRoot,
     env: {
       PATH: process.env.PATH ?? '',
@@ -58,13 +111,16 @@ export async function spawnGateway(opts: { databaseUrl: string; jwtSecret: strin
   const until = Date.now() + 60_000;
   for (;;) {
     if (child.exitCode !== null) throw new Error(`gateway exited with ${child.exitCode}:\n${out}`);
+    if (Date.now() > until) {
+      await endProcess(child, 2000);
+      throw new Error(`gateway did not start:\n${out}`);
+    }
     try {
       const r = await fetch(`${url}/readyz`);
       if (r.status === 200 || r.status === 503) break;
     } catch {
       // not listening yet
     }
-    if (Date.now() > until) throw new Error(`gateway did not start:\n${out}`);
     await new Promise((r) => setTimeout(r, 250));
   }
   return {
@@ -72,16 +128,7 @@ export async function spawnGateway(opts: { databaseUrl: string; jwtSecret: strin
     mllpPort,
     child,
     output: () => out,
-    stop: () =>
-      new Promise<void>((resolve) => {
-        if (child.exitCode !== null) return resolve();
-        const force = setTimeout(() => child.kill('SIGKILL'), 15_000);
-        child.once('exit', () => {
-          clearTimeout(force);
-          resolve();
-        });
-        child.kill('SIGTERM');
-      }),
+    stop: () => endProcess(child),
   };
 }
 
