@@ -30,7 +30,23 @@ export interface DemoOptions {
   backfillSeconds?: number;
   /** EHR outage timing, or false for none (default: EHR_OUTAGE of the scenario catalogue). */
   ehrOutage?: false | { atSeconds: number; durationSeconds: number; refusalWaitSeconds?: number };
+  /** ADT-style changes recorded at the mock EHR during the run, or false for none (default: DEMO_ADT). */
+  adt?: false | typeof DEMO_ADT;
 }
+
+/**
+ * The demo's bed changes (config/demo/hospital.json): the ICU-03 patient is transferred to the
+ * free ICU-05, later the OR-02 patient is discharged and a new (invented) patient admitted there.
+ * The monitors stay at their beds, so ICU-03's results then wait for a patient, OR-02's go to
+ * the new one, and nothing from before a change is filed to whoever came after.
+ */
+export const DEMO_ADT = {
+  transfer: { atSeconds: 150, from: 'ICU-03', to: 'ICU-05' },
+  dischargeAdmit: {
+    atSeconds: 240, location: 'OR-02', admitAfterSeconds: 30,
+    patient: { mrn: 'HGH-400877', family: 'Wrenfield-Moss', given: ['Tamsin'], sex: 'female' as const, birthDate: '1967-09-21' },
+  },
+};
 
 export interface RunningDemo {
   stop(): Promise<void>;
@@ -94,6 +110,20 @@ export function runDemoScenario(opts: DemoOptions): RunningDemo {
         timers.push(setTimeout(() => void clearFaults().catch((e) => log(`could not end the EHR outage: ${String(e)}`)), outage.durationSeconds * 1000));
       };
       timers.push(setTimeout(() => void begin().catch((e) => log(`could not start the EHR outage: ${String(e)}`)), outage.atSeconds * 1000));
+    }
+    const adt = opts.adt === undefined ? DEMO_ADT : opts.adt;
+    if (adt) {
+      const post = async (p: string, body: object, message: string) => {
+        if (stopped) return;
+        const res = await fetch(new URL(`/_admin/adt/${p}`, opts.mockEhrUrl), { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify(body) });
+        if (!res.ok) throw new Error(`mock EHR answered ${res.status} to ${p}: ${await res.text()}`);
+        log(message);
+      };
+      const t = adt.transfer;
+      timers.push(setTimeout(() => void post('transfer', { from: t.from, to: t.to }, `EHR: patient in ${t.from} transferred to ${t.to}`).catch((e) => log(String(e))), t.atSeconds * 1000));
+      const d = adt.dischargeAdmit;
+      timers.push(setTimeout(() => void post('discharge', { location: d.location }, `EHR: patient in ${d.location} discharged`).catch((e) => log(String(e))), d.atSeconds * 1000));
+      timers.push(setTimeout(() => void post('admit', { location: d.location, patient: d.patient }, `EHR: new patient ${d.patient.mrn} admitted to ${d.location}`).catch((e) => log(String(e))), (d.atSeconds + d.admitAfterSeconds) * 1000));
     }
   })();
 
