@@ -60,7 +60,8 @@ export async function signIn(ctx: AppContext, username: string, password: string
   if (!user || !ok || user.disabled) {
     await countFailure(ctx.ds, ctx.config.auth.throttle, username, source.ip);
     // The console shows the account's wait as `lockedUntil`; the count itself is atomic here too.
-    if (user) await ctx.ds.query(`UPDATE app_user SET failed_attempts = failed_attempts + 1, locked_until = (SELECT blocked_until FROM sign_in_throttle WHERE scope = 'account' AND subject = ?) WHERE id = ?`, [accountSubject(username), user.id]);
+    // Run for unknown names as well (it then changes no row), so every failure costs the same queries.
+    await ctx.ds.query(`UPDATE app_user SET failed_attempts = failed_attempts + 1, locked_until = (SELECT blocked_until FROM sign_in_throttle WHERE scope = 'account' AND subject = ?) WHERE username = ?`, [accountSubject(username), username]);
     const reason = !user ? 'unknown-user' : !ok ? 'wrong-password' : 'disabled';
     await recordAudit(ctx.ds.manager, { principal: undefined, action: 'auth.sign-in-failed', entityType: 'user', entityId: user?.id ?? null, after: { username, reason, source: source.ip }, requestId });
     throw invalidCredentials();
