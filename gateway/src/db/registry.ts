@@ -17,6 +17,7 @@ import { Assessments1764650000000 } from './migrations/1764650000000-assessments
 import { SiteSettings1764900000000 } from './migrations/1764900000000-site-settings';
 import { SignInThrottle1765300000000 } from './migrations/1765300000000-sign-in-throttle';
 import { EngineTwo1765100000000 } from './migrations/1765100000000-engine-two';
+import { RawEncoding1765500000000 } from './migrations/1765500000000-raw-encoding';
 
 import { AlertIncidentRow, AlertMailRow, DeliveryAttemptRow, DeliveryRow, DestinationRow } from '../delivery/delivery.entities';
 import { Delivery1764800000001 } from './migrations/1764800000001-delivery';
@@ -24,4 +25,4 @@ import { DeliveryReliability1765400000000 } from './migrations/1765400000000-del
 
 export const ENTITIES = [UserRow, UserSessionRow, AuditEntryRow, MonitorProfileRow, BedRow, MonitorRow, DeviceKeyRow, AssessmentRow, InboundMessageRow, WaveformSegmentRow, AnalysisWindowRow, DestinationRow, DeliveryRow, DeliveryAttemptRow, AlertIncidentRow, AlertMailRow, SiteSettingRow, EdgeCredentialRow];
 
-export const MIGRATIONS = [Foundation1764600000000, Assessments1764650000000, Ingest1764700000001, Delivery1764800000001, SiteSettings1764900000000, EdgeSecurity1765200000000, SignInThrottle1765300000000, DeliveryReliability1765400000000, EngineTwo1765100000000];
+export const MIGRATIONS = [Foundation1764600000000, Assessments1764650000000, Ingest1764700000001, Delivery1764800000001, SiteSettings1764900000000, EdgeSecurity1765200000000, SignInThrottle1765300000000, DeliveryReliability1765400000000, EngineTwo1765100000000, RawEncoding1765500000000];

@@ -8,6 +8,7 @@ import type { MonitorForIngest } from '../devices/device-cache';
 import type { MappedChannel } from './channel-mapping';
 import type { ReceivedBatch } from './decoded-batch';
 import { IngestRefusal } from './refusal';
+import { compressRawBody } from './raw-body';
 import { continuityOf, plannedWindowStarts } from './window-plan';
 
 export interface StreamSettings {
@@ -172,10 +173,12 @@ async function storeInTransaction(qr: QueryRunner, req: StoreRequest, hash: stri
     );
     messageId = req.reprocessOf;
   } else {
+    const rawKept = compressRawBody(req.raw);
     const res = (await exec(qr,
-      `INSERT INTO inbound_message (received_at, transport, outcome, monitor_id, monitor_identifier, batch_id, batch_key, content_hash, size_bytes, raw, batch_start, context, continuity, continuity_ms, sender, source_address)
-       VALUES (?, ?, 'accepted', ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
-      [req.receivedAt, req.transport, monitor.id, monitor.identifier, batch.batchId, batchKey, hash, req.raw.length, req.raw, batch.startTime, contextJson, continuity, continuityMs, req.sender ?? null, req.sourceAddress ?? null],
+      `INSERT INTO inbound_message (received_at, transport, outcome, monitor_id, monitor_identifier, batch_id, batch_key, content_hash, size_bytes, raw, raw_encoding, batch_start, context, continuity, continuity_ms, sender, source_address)
+       VALUES (?, ?, 'accepted', ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+      // The samples are stored decoded below, so the raw body is kept compressed (ingest/raw-body.ts).
+      [req.receivedAt, req.transport, monitor.id, monitor.identifier, batch.batchId, batchKey, hash, req.raw.length, rawKept.bytes, rawKept.encoding, batch.startTime, contextJson, continuity, continuityMs, req.sender ?? null, req.sourceAddress ?? null],
     )) as { insertId: number | string };
     messageId = String(res.insertId);
   }

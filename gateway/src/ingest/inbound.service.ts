@@ -9,6 +9,7 @@ import { InboundMessageRow } from './ingest.entities';
 import type { IngestService } from './ingest.service';
 import { IngestRefusal } from './refusal';
 import { sortColumn } from '../http/sort';
+import { rawBodyOf } from './raw-body';
 
 export function toInboundMessage(r: InboundMessageRow): InboundMessage {
   return {
@@ -56,8 +57,8 @@ export async function getInbound(ds: DataSource, id: string, readBy: ChangeBy): 
   await recordAudit(ds.manager, { principal: readBy.principal, action: 'inbound.read-raw', entityType: 'inbound-message', entityId: id, requestId: readBy.requestId });
   return {
     ...toInboundMessage(r),
-    raw: r.raw.subarray(0, RAW_SHOWN).toString('utf8'),
-    rawTruncated: r.raw.length > RAW_SHOWN,
+    raw: rawBodyOf(r).subarray(0, RAW_SHOWN).toString('utf8'),
+    rawTruncated: rawBodyOf(r).length > RAW_SHOWN,
     handledAt: r.handledAt?.toISOString() ?? null,
     handledBy: r.handledBy,
   };
@@ -83,7 +84,7 @@ export async function reprocessInbound(
   let result: 'reprocessed' | 'duplicate' | 'quarantined' | 'conflicting';
   let reason: string | null = null;
   try {
-    const out = await service.reprocess(id, row.transport, row.raw, decoders[row.transport], who(by.principal), { sender: row.sender, sourceAddress: row.sourceAddress, monitorId: row.monitorId });
+    const out = await service.reprocess(id, row.transport, rawBodyOf(row), decoders[row.transport], who(by.principal), { sender: row.sender, sourceAddress: row.sourceAddress, monitorId: row.monitorId });
     result = out.stored!.outcome === 'accepted' ? 'reprocessed' : 'duplicate';
   } catch (err) {
     if (!(err instanceof IngestRefusal)) throw err;

@@ -17,6 +17,8 @@ export class InboundMessageRow {
   @Column({ name: 'content_hash', type: 'char', length: 64, nullable: true }) contentHash!: string | null;
   @Column({ name: 'size_bytes', type: 'int' }) sizeBytes!: number;
   @Column({ type: 'longblob' }) raw!: Buffer;
+  /** How `raw` is kept (ingest/raw-body.ts): null = as received, 'deflate' = compressed. Read the body through rawBodyOf. */
+  @Column({ name: 'raw_encoding', type: 'varchar', length: 8, nullable: true }) rawEncoding!: string | null;
   @Column({ name: 'batch_start', type: 'datetime', precision: 3, nullable: true }) batchStart!: Date | null;
   @Column({ type: 'text', nullable: true }) context!: string | null;
   @Column({ type: 'varchar', length: 12, nullable: true }) continuity!: Continuity | null;

@@ -1,3 +1,4 @@
+import { inflateRawSync } from 'node:zlib';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { encodeSamplesFloat32, type IngestBatch } from '@ebbgate/shared';
@@ -56,7 +57,9 @@ describe('POST /ingest/batches', () => {
     expect(monitor.lastSeenAt).not.toBeNull();
     const row = await inboundRow(res.body.inboundMessageId);
     expect(row.outcome).toBe('accepted');
-    expect((row.raw as Buffer).toString('utf8')).toBe(JSON.stringify(batch));
+    // Kept compressed (the samples are stored decoded too); it inflates to the body exactly as sent.
+    expect(row.raw_encoding).toBe('deflate');
+    expect(inflateRawSync(row.raw as Buffer).toString('utf8')).toBe(JSON.stringify(batch));
   });
 
   it('answers 200 for a repeat of the same batch and 409 for the same id with other content, keeping both', async () => {
