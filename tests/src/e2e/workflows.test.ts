@@ -18,8 +18,8 @@ let stack: Stack;
 let browser: Browser;
 const work = mkdtempSync(path.join(tmpdir(), 'ebbgate-e2e-'));
 const suffix = randomBytes(3).toString('hex').toUpperCase();
-/** A fresh EUI-64-style identifier per run. */
-const monitorIdentifier = `00E0EB${suffix}${randomBytes(2).toString('hex').toUpperCase()}`;
+/** A fresh locally administered EUI-64 per run (first octet 02: U/L bit set). */
+const monitorIdentifier = `02E0EB${suffix}${randomBytes(2).toString('hex').toUpperCase()}`;
 let apiKey = '';
 
 beforeAll(async () => {
@@ -50,7 +50,7 @@ describe('integrator maps a new monitor', () => {
     await page.goto(`${stack.gatewayUrl}/profiles/new`);
     await page.getByLabel('Profile name').fill(`E2E bay monitor ${suffix}`);
     await page.getByLabel('Manufacturer').fill('Tidewell Instruments (invented)');
-    await page.getByLabel('Model').fill('TW-4');
+    await page.getByLabel('Model').fill('Gullwing (invented)');
     // Inline validation first: an empty channel code is refused beside the field.
     await page.getByRole('button', { name: 'Create profile' }).click();
     await page.getByLabel('Channel 1 code').and(page.locator('[aria-invalid="true"]')).waitFor();
@@ -79,7 +79,7 @@ describe('integrator maps a new monitor', () => {
     await page.getByRole('button', { name: 'Add monitor' }).click();
     const dialog = page.getByRole('dialog', { name: 'Add monitor' });
     await dialog.getByLabel('Identifier').fill(monitorIdentifier);
-    await dialog.getByLabel('Profile').selectOption({ label: `E2E bay monitor ${suffix} — Tidewell Instruments (invented) TW-4` });
+    await dialog.getByLabel('Profile').selectOption({ label: `E2E bay monitor ${suffix} — Tidewell Instruments (invented) Gullwing (invented)` });
     await dialog.getByLabel('Bed').selectOption({ label: `E2E bed ${suffix} · ICU` });
     await dialog.getByRole('button', { name: 'Add monitor' }).click();
     const row = page.getByRole('row').filter({ hasText: monitorIdentifier });

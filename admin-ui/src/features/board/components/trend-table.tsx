@@ -1,14 +1,23 @@
+import { useMemo, useState } from 'react';
 import { Link } from 'react-router-dom';
+import { Button } from '@/components/ui/button';
 import type { BedTrend } from '@ebbgate/shared';
 import { VERDICT_TEXT } from '@/components/ui/badge';
 import { VerdictShape, VerdictValue } from '@/components/analysis/verdict-mark';
 import { formatDateTime } from '@/lib/format';
 import { TREND_SERIES } from './trend-chart';
 
-/** The chart's text alternative: the same points, newest first, each linking to its assessment. */
+const PAGE = 100;
+
+/** The chart's text alternative: the same points, newest first, each linking to its assessment; 100 a page. */
 export function TrendTable({ trend }: { trend: BedTrend }) {
-  const rows = [...trend.points].reverse();
+  const [page, setPage] = useState(0);
+  const all = useMemo(() => [...trend.points].reverse(), [trend.points]);
+  const pages = Math.max(1, Math.ceil(all.length / PAGE));
+  const current = Math.min(page, pages - 1);
+  const rows = all.slice(current * PAGE, (current + 1) * PAGE);
   return (
+    <>
     <div className="max-h-[28rem] overflow-auto rounded border border-line" tabIndex={0} role="region" aria-label="Trend values as a table">
       <table className="w-full text-sm">
         <caption className="sr-only">{`${trend.bed.name}: ${trend.points.length} points from ${formatDateTime(trend.from)} to ${formatDateTime(trend.to)}${trend.downsampled ? `, minimum and maximum per ${trend.bucketSeconds} s` : ''}`}</caption>
@@ -37,5 +46,13 @@ export function TrendTable({ trend }: { trend: BedTrend }) {
         </tbody>
       </table>
     </div>
+    {pages > 1 && (
+      <nav aria-label="Table pages" className="mt-1 flex items-center gap-2 text-xs">
+        <Button size="sm" disabled={current === 0} onClick={() => setPage(current - 1)}>Newer</Button>
+        <span>Rows {current * PAGE + 1}–{Math.min(all.length, (current + 1) * PAGE)} of {all.length}</span>
+        <Button size="sm" disabled={current >= pages - 1} onClick={() => setPage(current + 1)}>Older</Button>
+      </nav>
+    )}
+    </>
   );
 }
