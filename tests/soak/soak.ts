@@ -251,9 +251,11 @@ async function main(): Promise<number> {
         const rv = await reviewer();
         const op = await signIn(a.url, 'otto.operator', 'Harrowmere-operator-1').catch(() => undefined);
         if (!rv || !op) throw new Error('demo reviewer/operator could not sign in');
-        const list = (await rv.get('/assessments?pageSize=100&order=desc')).body?.items as { id: string; enteredInError: boolean; deliveryStatus: string | null }[] | undefined;
+        type Row = { id: string; enteredInError: boolean; deliveryStatus: string | null };
+        const oldest = ((await rv.get('/assessments?pageSize=100&order=asc')).body?.items as Row[] | undefined) ?? [];
+        const newest = ((await rv.get('/assessments?pageSize=100&order=desc')).body?.items as Row[] | undefined) ?? [];
         // Some already delivered (amended at the EHR), one not yet (stopped before it goes).
-        const pick = [...(list ?? []).filter((y) => !y.enteredInError && y.deliveryStatus === 'delivered').slice(0, 5), ...(list ?? []).filter((y) => !y.enteredInError && y.deliveryStatus === 'pending').slice(0, 1)];
+        const pick = [...oldest.filter((y) => !y.enteredInError && y.deliveryStatus === 'delivered').slice(20, 25), ...newest.filter((y) => !y.enteredInError && y.deliveryStatus !== 'delivered').slice(0, 1)];
         for (const x of pick) {
           const r = await rv.post(`/assessments/${x.id}/mark-in-error`, { reason: 'soak: artefact confirmed at the bedside' });
           if (r.status < 300) marks.push(x.id);
@@ -372,6 +374,7 @@ async function reconcile(q: Query, admin: Admin, ehr: RunningMockEhr, marks: str
   console.log(`soak: batches sent ${sentLog.size}, stored once ${once}, still in an adapter spool ${inSpool}, refused by the gateway (kept as rejected) ${refused}`);
   const reasons = new Map<string, number>();
   for (const r of rejected.values()) reasons.set(r.slice(0, 120), (reasons.get(r.slice(0, 120)) ?? 0) + 1);
+  // The unmapped-channel scenario sends a channel its profile does not map: refused by design, kept.
   for (const [r, n] of reasons) console.log(`soak:   refused ${n}× : ${r}`);
   const [keptRejected] = await q(`SELECT COUNT(*) AS n FROM inbound_message WHERE outcome IN ('rejected','quarantined','conflicting')`);
   console.log(`soak: inbound messages kept as rejected, quarantined or conflicting at the gateway: ${String(keptRejected!.n)}`);
@@ -436,6 +439,7 @@ async function reconcile(q: Query, admin: Admin, ehr: RunningMockEhr, marks: str
   console.log(`soak: marks in error ${marks.length} (assessments), Observations amended ${reached}; replays ${f.replays}, replays of withdrawn results refused ${f.replayRefusals}`);
   c.line(notReached === 0, 'in-error marks that did not reach the EHR', notReached);
   c.line(marks.length > 0, 'marks in error made through the API', marks.length);
+  c.line(reached > 0, 'Observations amended to entered-in-error at the EHR', reached);
 
   // 5. Subject = the patient the EHR's occupancy log had in the bed over the whole window.
   const adt = (await admin('GET', '/adt')) as { occupancy: { locationIdentifier: string; patientId: string; from: string; to: string | null }[]; events: unknown[] };
