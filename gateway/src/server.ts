@@ -1,9 +1,13 @@
-import { createServer, type Server } from 'node:http';
+import { readFileSync } from 'node:fs';
+import { createServer, type Server, type ServerOptions } from 'node:http';
+import { createServer as createHttpsServer } from 'node:https';
+import path from 'node:path';
 import type { Logger } from 'pino';
 import type { DataSource } from 'typeorm';
 import type { AppContext } from './app-context';
 import { authenticate } from './auth/auth.middleware';
 import { buildCapabilities } from './capabilities';
+import { repoRoot } from './config/load';
 import type { Config } from './config/schema';
 import { createDataSource, migrateWith } from './db/data-source';
 import { createApp } from './http/app';
@@ -68,7 +72,12 @@ export async function startGateway(opts: GatewayOptions): Promise<RunningGateway
   // Slow senders: the headers must arrive within headersTimeout and the whole request within
   // requestTimeout (else 408 and the socket closes); checked every second, not Node's default 30 s.
   const { headersTimeoutMs, requestTimeoutMs } = config.gateway;
-  const server = createServer({ headersTimeout: Math.min(headersTimeoutMs, requestTimeoutMs), requestTimeout: requestTimeoutMs, connectionsCheckingInterval: 1_000, keepAliveTimeout: 5_000 }, app);
+  const httpOptions: ServerOptions = { headersTimeout: Math.min(headersTimeoutMs, requestTimeoutMs), requestTimeout: requestTimeoutMs, connectionsCheckingInterval: 1_000, keepAliveTimeout: 5_000 };
+  const { tls } = config.gateway;
+  const file = (f: string) => readFileSync(path.resolve(repoRoot, f));
+  const server: Server = tls.enabled
+    ? createHttpsServer({ ...httpOptions, key: file(tls.keyFile), cert: file(tls.certFile), minVersion: 'TLSv1.2' }, app)
+    : createServer(httpOptions, app);
   await new Promise<void>((resolve, reject) => {
     server.once('error', reject);
     server.listen(config.gateway.port, config.gateway.host, () => {
@@ -80,7 +89,7 @@ export async function startGateway(opts: GatewayOptions): Promise<RunningGateway
   if (runServices) for (const s of caps.services) await s.start();
   const address = server.address();
   const port = typeof address === 'object' && address ? address.port : config.gateway.port;
-  const url = `http://${config.gateway.host}:${port}`;
+  const url = `${tls.enabled ? 'https' : 'http'}://${config.gateway.host}:${port}`;
   logger.info({ url }, 'gateway listening');
 
   let stopping: Promise<void> | undefined;

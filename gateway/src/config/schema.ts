@@ -26,6 +26,11 @@ export const configSchema = z.object({
     metricsToken: z.string().min(16, 'at least 16 characters').nullable(),
     /** API requests per minute per device key or session (perKey), and per source address for anonymous callers. */
     rateLimit: z.object({ perSourcePerMinute: z.number().int().min(1), perKeyPerMinute: z.number().int().min(1) }),
+    /**
+     * Serve the API and console over HTTPS (TLS 1.2+, BCP 195) with the same kind of certificate files
+     * as MLLP over TLS. Off by default (loopback); a hospital turns it on or puts a TLS proxy in front.
+     */
+    tls: z.object({ enabled: z.boolean(), certFile: z.string().min(1), keyFile: z.string().min(1) }),
   }),
   database: z.object({
     /** The runtime user: data privileges only (SELECT, INSERT, UPDATE, DELETE). */
