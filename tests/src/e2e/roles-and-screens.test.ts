@@ -5,6 +5,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { collectPageErrors, navLinks, openBrowser, screenshot, signIn, signOut, type Browser } from './browser';
 import { startE2eStack, type Stack } from './running-stack';
+import { axeViolations } from './axe';
 
 let stack: Stack;
 let browser: Browser;
@@ -21,7 +22,9 @@ afterAll(async () => {
 });
 
 const SCREENS: Record<string, { path: string; heading: string }> = {
-  Overview: { path: '/', heading: 'Overview' },
+  'Beds board': { path: '/board', heading: 'Beds board' },
+  Overview: { path: '/overview', heading: 'Overview' },
+  Reanalyse: { path: '/reanalyse', heading: 'Reanalyse' },
   Assessments: { path: '/assessments', heading: 'Assessments' },
   Monitors: { path: '/monitors', heading: 'Monitors' },
   'Monitor profiles': { path: '/profiles', heading: 'Monitor profiles' },
@@ -35,10 +38,10 @@ const SCREENS: Record<string, { path: string; heading: string }> = {
 };
 
 const EXPECTED = {
-  admin: { sees: ['Overview', 'Assessments', 'Monitors', 'Deliveries', 'Users & roles', 'Audit log', 'Settings'], not: ['Test bench', 'Inbound & quarantine'] },
-  integrator: { sees: ['Overview', 'Assessments', 'Monitors', 'Monitor profiles', 'Beds', 'Test bench', 'Inbound & quarantine', 'Settings'], not: ['Users & roles', 'Audit log', 'Deliveries'] },
-  reviewer: { sees: ['Overview', 'Assessments', 'Deliveries', 'Settings'], not: ['Users & roles', 'Test bench', 'Monitors', 'Inbound & quarantine'] },
-  operator: { sees: ['Overview', 'Assessments', 'Deliveries', 'Inbound & quarantine', 'Settings'], not: ['Users & roles', 'Test bench', 'Monitors', 'Audit log'] },
+  admin: { sees: ['Beds board', 'Overview', 'Assessments', 'Monitors', 'Deliveries', 'Users & roles', 'Audit log', 'Settings'], not: ['Test bench', 'Inbound & quarantine'] },
+  integrator: { sees: ['Beds board', 'Overview', 'Assessments', 'Monitors', 'Monitor profiles', 'Beds', 'Test bench', 'Reanalyse', 'Inbound & quarantine', 'Settings'], not: ['Users & roles', 'Audit log', 'Deliveries'] },
+  reviewer: { sees: ['Beds board', 'Overview', 'Assessments', 'Deliveries', 'Settings'], not: ['Users & roles', 'Test bench', 'Monitors', 'Inbound & quarantine', 'Reanalyse'] },
+  operator: { sees: ['Beds board', 'Overview', 'Assessments', 'Deliveries', 'Inbound & quarantine', 'Settings'], not: ['Users & roles', 'Test bench', 'Monitors', 'Audit log', 'Reanalyse'] },
 } as const;
 
 describe('console by role', () => {
@@ -47,6 +50,7 @@ describe('console by role', () => {
     await page.goto(`${stack.gatewayUrl}/assessments`);
     await page.getByRole('heading', { name: 'Sign in' }).waitFor();
     expect(page.url()).toContain('/sign-in?next=');
+    expect(await axeViolations(page), 'sign-in').toEqual([]);
     await screenshot(page, 'sign-in');
     await page.getByLabel('User name').fill('nobody.here');
     await page.getByLabel('Password').fill('not-the-password-1');
@@ -60,6 +64,9 @@ describe('console by role', () => {
       // Each role starts signed out, whatever the previous test left behind.
       await browser.context.clearCookies();
       const user = await signIn(page, stack.gatewayUrl, role);
+      // The first screen: the beds board for reviewers and operators, the overview for admins and integrators.
+      await page.goto(`${stack.gatewayUrl}/`);
+      await page.getByRole('heading', { level: 1, name: role === 'reviewer' || role === 'operator' ? 'Beds board' : 'Overview' }).waitFor();
       expect(await page.getByLabel('Roles').textContent()).toContain(role);
       expect(await page.getByTestId('current-user').isVisible()).toBe(true);
       const links = await navLinks(page);
@@ -72,7 +79,10 @@ describe('console by role', () => {
         await page.getByRole('heading', { level: 1, name: screen.heading }).waitFor();
         // Designed states only: wait until the loading indicator has given way to content.
         await page.locator('[role="status"]').filter({ hasText: /^Loading/ }).first().waitFor({ state: 'detached', timeout: 15_000 }).catch(() => {});
-        await screenshot(page, `${role}-${screen.path === '/' ? 'overview' : screen.path.slice(1)}`);
+        // WCAG 2.0/2.1 A and AA rules of axe-core on every screen the role can open: none may fail.
+        const violations = await axeViolations(page);
+        expect(violations, `${role} ${screen.path}: ${JSON.stringify(violations, null, 1)}`).toEqual([]);
+        await screenshot(page, `${role}-${screen.path.slice(1)}`);
       }
 
       // A screen the role may not open says so instead of failing.
