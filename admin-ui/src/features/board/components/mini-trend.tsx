@@ -7,7 +7,7 @@ const H = 34;
 /** The last hour's PPV, 5-minute means, each bucket drawn with the shape of its worst verdict. */
 export function MiniTrend({ points, label }: { points: BedTile['trend']; label: string }) {
   const values = points.map((p) => p.ppv).filter((v): v is number => v !== null);
-  if (values.length === 0) return <p className="h-[34px] text-xs text-muted">No PPV in the last hour.</p>;
+  if (values.length === 0) return <p className="h-[34px] text-xs text-muted">No valid or questionable PPV in the last hour.</p>;
   const max = Math.max(20, ...values);
   const x = (i: number) => 4 + (i / Math.max(1, points.length - 1)) * (W - 8);
   const y = (v: number) => H - 4 - (v / max) * (H - 8);
