@@ -15,10 +15,10 @@ export interface AxeViolation { id: string; impact: string | null; help: string;
 
 export async function axeViolations(page: Page): Promise<AxeViolation[]> {
   // Evaluated through the DevTools protocol, so the console's CSP (script-src 'self') stays as it is.
-  if (!(await page.evaluate(() => 'axe' in window))) await page.evaluate(AXE_SOURCE);
-  const result = await page.evaluate(async (tags) => {
-    const axe = (window as unknown as { axe: { run(ctx: Document, opts: object): Promise<{ violations: { id: string; impact: string | null; help: string; nodes: { target: string[]; failureSummary?: string }[] }[] }> } }).axe;
-    return axe.run(document, { runOnly: { type: 'tag', values: tags }, resultTypes: ['violations'] });
-  }, WCAG_21_AA);
+  // The tests workspace has no DOM types: the page-side code is given as text.
+  if (!(await page.evaluate("'axe' in window"))) await page.evaluate(AXE_SOURCE);
+  const result = (await page.evaluate(
+    `window.axe.run(document, { runOnly: { type: 'tag', values: ${JSON.stringify(WCAG_21_AA)} }, resultTypes: ['violations'] })`,
+  )) as { violations: { id: string; impact: string | null; help: string; nodes: { target: string[]; failureSummary?: string }[] }[] };
   return result.violations.map((v) => ({ id: v.id, impact: v.impact, help: v.help, nodes: v.nodes.slice(0, 5).map((n) => `${n.target.join(' ')}${n.failureSummary ? ` — ${n.failureSummary.split('\n').slice(1, 2).join(' ').trim()}` : ''}`) }));
 }

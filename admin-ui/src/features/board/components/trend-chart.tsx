@@ -59,7 +59,9 @@ export function TrendChart({ trend, shown, onOpen, width: fixedWidth }: { trend:
     return [x, ...TREND_SERIES.map((s) => trend.points.map((p) => p[s.key]))] as uPlot.AlignedData;
   }, [trend]);
   const onOpenRef = useRef(onOpen);
-  onOpenRef.current = onOpen;
+  useEffect(() => {
+    onOpenRef.current = onOpen;
+  }, [onOpen]);
 
   useEffect(() => {
     if (fixedWidth || !host.current || typeof ResizeObserver === 'undefined') return;
