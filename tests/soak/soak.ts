@@ -154,6 +154,16 @@ async function main(): Promise<number> {
     await ehr.stop().catch(() => {});
     await db.stop().catch(() => {});
   };
+  // Ctrl-C or a CI timeout: end what the soak started before leaving.
+  for (const sig of ['SIGINT', 'SIGTERM'] as const) {
+    process.once(sig, () => {
+      log(`${sig}: stopping everything the soak started`);
+      void stopAll().finally(() => {
+        rmSync(work, { recursive: true, force: true });
+        process.exit(130);
+      });
+    });
+  }
 
   try {
     // --- provisioning through the API, as the demo integrator ---
