@@ -1,6 +1,6 @@
 import { createHash, randomBytes, randomUUID, timingSafeEqual } from 'node:crypto';
 import { IsNull } from 'typeorm';
-import type { AppContext } from '../app-context';
+import type { AppContext, ChangeBy } from '../app-context';
 import { recordAudit } from '../audit/audit.service';
 import { DeviceKeyRow, MonitorRow } from '../devices/device.entities';
 import { notFound } from '../http/problem';
@@ -14,7 +14,7 @@ const sha256 = (s: string) => createHash('sha256').update(s).digest('hex');
  * Issues a new API key for a monitor, revoking any earlier one. The key is `ebk_<keyId>_<secret>`;
  * only SHA-256(secret) is stored (the secret is 256 random bits, so a slow hash adds nothing).
  */
-export async function issueDeviceKey(ctx: AppContext, monitorId: string, principal: Principal | undefined, requestId?: string) {
+export async function issueDeviceKey(ctx: AppContext, monitorId: string, by: ChangeBy = { principal: undefined }) {
   return ctx.ds.transaction(async (m) => {
     const monitor = await m.findOneBy(MonitorRow, { id: monitorId });
     if (!monitor) throw notFound(`Monitor ${monitorId}`);
@@ -24,17 +24,17 @@ export async function issueDeviceKey(ctx: AppContext, monitorId: string, princip
     const secret = randomBytes(32).toString('base64url');
     keyCache.clear();
     await m.insert(DeviceKeyRow, { id: keyId, monitorId, keyHash: sha256(secret), createdAt: now, revokedAt: null, lastUsedAt: null });
-    await recordAudit(m, { principal, action: 'device-key.issue', entityType: 'monitor', entityId: monitorId, after: { keyId }, requestId });
+    await recordAudit(m, { principal: by.principal, action: 'device-key.issue', entityType: 'monitor', entityId: monitorId, after: { keyId }, requestId: by.requestId });
     return { apiKey: `${PREFIX}_${keyId}_${secret}`, keyId, createdAt: now.toISOString() };
   });
 }
 
-export async function revokeDeviceKeys(ctx: AppContext, monitorId: string, principal: Principal | undefined, requestId?: string): Promise<number> {
+export async function revokeDeviceKeys(ctx: AppContext, monitorId: string, by: ChangeBy = { principal: undefined }): Promise<number> {
   return ctx.ds.transaction(async (m) => {
     const live = await m.find(DeviceKeyRow, { where: { monitorId, revokedAt: IsNull() } });
     if (!live.length) return 0;
     await m.createQueryBuilder().update(DeviceKeyRow).set({ revokedAt: new Date() }).where('monitor_id = :monitorId AND revoked_at IS NULL', { monitorId }).execute();
-    await recordAudit(m, { principal, action: 'device-key.revoke', entityType: 'monitor', entityId: monitorId, before: { keyIds: live.map((k) => k.id) }, requestId });
+    await recordAudit(m, { principal: by.principal, action: 'device-key.revoke', entityType: 'monitor', entityId: monitorId, before: { keyIds: live.map((k) => k.id) }, requestId: by.requestId });
     keyCache.clear();
     return live.length;
   });

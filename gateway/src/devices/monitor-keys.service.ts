@@ -9,7 +9,7 @@ import { getMonitor } from './monitors.service';
  * monitor cache forgets what it knew here, so the next batch is judged on the database.
  */
 export async function issueMonitorKey(ctx: AppContext, monitorId: string, by: ChangeBy): Promise<ApiKeyIssued> {
-  const issued = await issueDeviceKey(ctx, monitorId, by.principal, by.requestId);
+  const issued = await issueDeviceKey(ctx, monitorId, by);
   forgetDevices();
   return issued;
 }
@@ -17,5 +17,5 @@ export async function issueMonitorKey(ctx: AppContext, monitorId: string, by: Ch
 /** Revokes the monitor's live keys (audited); an unknown monitor is a 404, a monitor without a key a no-op. */
 export async function revokeMonitorKey(ctx: AppContext, monitorId: string, by: ChangeBy): Promise<void> {
   await getMonitor(ctx.ds, monitorId);
-  await revokeDeviceKeys(ctx, monitorId, by.principal, by.requestId);
+  await revokeDeviceKeys(ctx, monitorId, by);
 }
