@@ -9,6 +9,7 @@ import type { MappedChannel } from './channel-mapping';
 import type { ReceivedBatch } from './decoded-batch';
 import { IngestRefusal } from './refusal';
 import { compressRawBody } from './raw-body';
+import { GroupCommitter } from './group-commit';
 import { continuityOf, plannedWindowStarts } from './window-plan';
 
 export interface StreamSettings {
@@ -110,8 +111,32 @@ export interface StoreRequest {
  * Stores one batch in one transaction: the inbound message row, one segment row per channel,
  * the monitor's stream position and any analysis windows the new data completes. Answers
  * `duplicate` for a repeat of the same batch id and content; refuses (409) other content.
+ * New batches share their transaction and commit with those arriving within 2 ms (group commit).
  */
-export async function storeBatch(ds: DataSource, req: StoreRequest, settings: StreamSettings): Promise<StoredBatch> {
+export function storeBatch(ds: DataSource, req: StoreRequest, settings: StreamSettings): Promise<StoredBatch> {
+  if (req.reprocessOf) return storeBatchAlone(ds, req, settings);
+  return groupCommitterFor(ds).store(req, settings);
+}
+
+const committers = new WeakMap<DataSource, GroupCommitter>();
+
+/** The ingest group committer of a data source (ingest/group-commit.ts): 2-ms window, up to 32 batches. */
+export function groupCommitterFor(ds: DataSource): GroupCommitter {
+  let g = committers.get(ds);
+  if (!g) {
+    g = new GroupCommitter(ds, {
+      windowMs: 2,
+      maxGroup: 32,
+      alone: storeBatchAlone,
+      inTransaction: (qr, req, settings) => storeInTransaction(qr, req, contentHash(req.batch, req.channels), `${req.monitor.id}|${req.batch.batchId}`, settings),
+    });
+    committers.set(ds, g);
+  }
+  return g;
+}
+
+/** One batch in a transaction of its own (reprocessing, and a batch that failed inside a group). */
+export async function storeBatchAlone(ds: DataSource, req: StoreRequest, settings: StreamSettings): Promise<StoredBatch> {
   const { batch, channels, monitor } = req;
   const hash = contentHash(batch, channels);
   const batchKey = `${monitor.id}|${batch.batchId}`;
