@@ -1,6 +1,7 @@
 import type { DataSource, EntityManager } from 'typeorm';
 import type { AuditEntry, AuditQuery, Page } from '@ebbgate/shared';
-import { actorOf, type Principal } from '../auth/principal';
+import type { Principal } from '../app-context';
+import { actorOf } from './actor';
 import { sortColumn } from '../http/sort';
 import { AuditEntryRow } from './audit-entry.entity';
 

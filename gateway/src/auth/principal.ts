@@ -1,10 +1,3 @@
-import type { Principal } from '../http/principal';
-
 export type { Principal } from '../http/principal';
-
-/** Who did it, as the audit log records it. */
-export function actorOf(principal: Principal | undefined): { actorType: 'user' | 'device' | 'system'; actorId: string | null; actorName: string | null } {
-  if (!principal) return { actorType: 'system', actorId: null, actorName: null };
-  if (principal.kind === 'user') return { actorType: 'user', actorId: principal.userId, actorName: principal.username };
-  return { actorType: 'device', actorId: principal.keyId, actorName: principal.monitorIdentifier };
-}
+/** Kept here for existing callers; the audit capability owns how an actor is recorded. */
+export { actorOf } from '../audit/actor';
