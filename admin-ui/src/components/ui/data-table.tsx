@@ -1,4 +1,5 @@
-import type { ReactNode } from 'react';
+import { useMemo, type ReactNode } from 'react';
+import { flexRender, getCoreRowModel, useReactTable, type ColumnDef, type RowSelectionState, type SortingState } from '@tanstack/react-table';
 import type { ListParams } from '@/lib/paging';
 import { EmptyState, ErrorState, LoadingState } from './states';
 
@@ -32,16 +33,45 @@ interface DataTableProps<T> {
 
 const PAGE_SIZES = [25, 50, 100];
 
-/** Table over a server-paginated list: sorting and paging are requests, never client-side slicing. */
+/**
+ * Table over a server-paginated list on TanStack Table's headless model (manual paging, sorting
+ * and row selection: each is a request or the caller's state, never client-side slicing).
+ */
 export function DataTable<T>(props: DataTableProps<T>) {
   const { caption, columns, rows, total, rowId, params, onParamsChange, loading, fetching, error, onRetry, emptyTitle, emptyHint, selected, onSelectedChange, onRowClick } = props;
   const selectable = !!onSelectedChange;
   const pageIds = rows?.map(rowId) ?? [];
   const allOnPage = selectable && pageIds.length > 0 && pageIds.every((id) => selected?.has(id));
+  const defs = useMemo<ColumnDef<T>[]>(
+    () => columns.map((c) => ({ id: c.key, header: c.header, enableSorting: Boolean(c.sortField), cell: ({ row }) => c.render(row.original), meta: c })),
+    [columns],
+  );
+  const sortColumn = columns.find((c) => c.sortField && c.sortField === params.sort);
+  const sorting: SortingState = sortColumn ? [{ id: sortColumn.key, desc: params.order === 'desc' }] : [];
+  const rowSelection: RowSelectionState = Object.fromEntries(pageIds.filter((id) => selected?.has(id)).map((id) => [id, true]));
+  const table = useReactTable<T>({
+    data: rows ?? [],
+    columns: defs,
+    getRowId: (row) => rowId(row),
+    getCoreRowModel: getCoreRowModel(),
+    manualPagination: true,
+    manualSorting: true,
+    enableRowSelection: selectable,
+    rowCount: total ?? 0,
+    state: { sorting, rowSelection, pagination: { pageIndex: params.page - 1, pageSize: params.pageSize } },
+    onSortingChange: (updater) => {
+      const next = typeof updater === 'function' ? updater(sorting) : updater;
+      const first = next[0];
+      const field = first ? columns.find((c) => c.key === first.id)?.sortField : undefined;
+      if (field) onParamsChange({ ...params, sort: field, order: first!.desc ? 'desc' : 'asc', page: 1 });
+    },
+  });
 
+  // Desc first on a new column, then toggling: the order the server lists were designed for.
   const toggleSort = (field: string) => {
-    const order = params.sort === field && params.order === 'desc' ? 'asc' : 'desc';
-    onParamsChange({ ...params, sort: field, order, page: 1 });
+    const column = columns.find((c) => c.sortField === field)!;
+    const desc = !(params.sort === field && params.order === 'desc');
+    table.setSorting([{ id: column.key, desc }]);
   };
   const toggleAll = () => {
     const next = new Set(selected);
@@ -58,7 +88,7 @@ export function DataTable<T>(props: DataTableProps<T>) {
     onSelectedChange?.(next);
   };
 
-  const pages = total ? Math.max(1, Math.ceil(total / params.pageSize)) : 1;
+  const pages = Math.max(1, table.getPageCount());
   const from = total ? (params.page - 1) * params.pageSize + 1 : 0;
   const to = total ? Math.min(total, params.page * params.pageSize) : 0;
 
@@ -74,14 +104,16 @@ export function DataTable<T>(props: DataTableProps<T>) {
                   <input type="checkbox" aria-label="Select all on this page" className="accent-ink-700" checked={allOnPage} onChange={toggleAll} />
                 </th>
               )}
-              {columns.map((c) => {
-                const sorted = c.sortField && params.sort === c.sortField;
+              {table.getHeaderGroups()[0]!.headers.map((h) => {
+                const c = h.column.columnDef.meta as Column<T>;
+                const dir = h.column.getIsSorted();
+                const sorted = Boolean(dir);
                 return (
-                  <th key={c.key} scope="col" className={`whitespace-nowrap px-2 py-1.5 ${c.className ?? ''}`}
-                    aria-sort={sorted ? (params.order === 'asc' ? 'ascending' : 'descending') : undefined}>
+                  <th key={h.id} scope="col" className={`whitespace-nowrap px-2 py-1.5 ${c.className ?? ''}`}
+                    aria-sort={sorted ? (dir === 'asc' ? 'ascending' : 'descending') : undefined}>
                     {c.sortField ? (
                       <button type="button" className="inline-flex items-center gap-1 hover:text-ink-950" onClick={() => toggleSort(c.sortField!)}>
-                        {c.header}
+                        {flexRender(h.column.columnDef.header, h.getContext())}
                         <span aria-hidden className={sorted ? 'text-ink-700' : 'text-ink-300'}>{sorted ? (params.order === 'asc' ? '▲' : '▼') : '↕'}</span>
                       </button>
                     ) : c.header}
@@ -91,17 +123,19 @@ export function DataTable<T>(props: DataTableProps<T>) {
             </tr>
           </thead>
           <tbody>
-            {rows?.map((row) => {
-              const id = rowId(row);
+            {table.getRowModel().rows.map((r) => {
+              const row = r.original;
+              const id = r.id;
               return (
                 <tr key={id} className={`border-t border-line/70 hover:bg-sand-100/50 ${onRowClick ? 'cursor-pointer' : ''} ${selected?.has(id) ? 'bg-sand-100/70' : ''}`}
                   onClick={onRowClick ? (e) => { if (!(e.target as HTMLElement).closest('a,button,input,label')) onRowClick(row); } : undefined}>
                   {selectable && (
                     <td className="px-2 py-1">
-                      <input type="checkbox" aria-label={`Select ${id}`} className="accent-ink-700" checked={selected?.has(id) ?? false} onChange={() => toggleOne(id)} />
+                      <input type="checkbox" aria-label={`Select ${id}`} className="accent-ink-700" checked={r.getIsSelected()} onChange={() => toggleOne(id)} />
                     </td>
                   )}
-                  {columns.map((c) => <td key={c.key} className={`px-2 py-1 align-top ${c.className ?? ''}`}>{c.render(row)}</td>)}
+                  {/* Cells render through this render's columns (by id): the table model keeps column defs between renders, and a cell must not close over an earlier render's state. */}
+                  {r.getVisibleCells().map((cell) => <td key={cell.id} className={`px-2 py-1 align-top ${(cell.column.columnDef.meta as Column<T>).className ?? ''}`}>{(columns.find((c) => c.key === cell.column.id) ?? (cell.column.columnDef.meta as Column<T>)).render(r.original)}</td>)}
                 </tr>
               );
             })}
