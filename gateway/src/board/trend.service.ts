@@ -119,9 +119,9 @@ export async function getBedTrend(ctx: AppContext, bedId: string, query: TrendQu
  */
 async function challengeEvents(ctx: AppContext, bedId: string, from: Date, to: Date): Promise<TrendEvent[]> {
   const rows = (await ctx.ds.query(
-    `SELECT id, window_end, flags, JSON_EXTRACT(result, '$.arterialLine.flushTests') AS ft, JSON_EXTRACT(result, '$.tidalVolumeChallenge') AS ch
+    `SELECT id, window_end, flags, JSON_EXTRACT(result, '$.arterialLine.flushTests') AS ft, challenge_verdict, challenge_delta_ppv
      FROM assessment WHERE bed_id = ? AND window_start >= ? AND window_start < ? AND entered_in_error_at IS NULL
-       AND (flags LIKE '%"arterial-flush"%' OR flags LIKE '%"arterial-underdamped"%' OR flags LIKE '%"arterial-damped"%')`,
+       AND (flags LIKE '%"arterial-flush"%' OR flags LIKE '%"arterial-underdamped"%' OR flags LIKE '%"arterial-damped"%' OR challenge_verdict IS NOT NULL)`,
     [bedId, from, to],
   )) as Row[];
   const out: TrendEvent[] = [];
@@ -135,8 +135,11 @@ async function challengeEvents(ctx: AppContext, bedId: string, from: Date, to: D
       const z = f.dampingRatio === null ? 'ζ —' : `ζ ${f.dampingRatio.toFixed(2)}`;
       out.push({ t, kind: 'flush-test', label: `Flush test: ${fn}, ${z}${f.regionText ? ` — ${f.regionText}` : ''}`, assessmentId: String(r.id) });
     }
-    const ch = parseJson<{ verdict?: string } | null>(r.ch, null);
-    if (ch && typeof ch === 'object') out.push({ t, kind: 'tidal-volume-challenge', label: `Tidal volume challenge${ch.verdict ? `: ${ch.verdict}` : ''}`, assessmentId: String(r.id) });
+    // The engine's judgement, stored on the assessment that completed the challenge.
+    if (r.challenge_verdict) {
+      const delta = r.challenge_delta_ppv === null || r.challenge_delta_ppv === undefined ? '' : `, ΔPPV ${Number(r.challenge_delta_ppv) > 0 ? '+' : ''}${Number(r.challenge_delta_ppv).toFixed(1)} points`;
+      out.push({ t, kind: 'tidal-volume-challenge', label: `Tidal volume challenge judged: ${String(r.challenge_verdict).replace(/-/g, ' ')}${delta}`, assessmentId: String(r.id) });
+    }
   }
   return out;
 }

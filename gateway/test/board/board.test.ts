@@ -171,6 +171,12 @@ describe('line checks and context on the trend', () => {
     for (const [s, c] of ctxAt) {
       await q(`INSERT INTO inbound_message (received_at, transport, outcome, monitor_id, size_bytes, raw, batch_start, context) VALUES (NOW(3), 'http', 'accepted', ?, 2, 'x', ?, ?)`, [m.id, new Date(t0 + s * 1000), JSON.stringify(c)]);
     }
+    // The engine's judgement of the challenge, as the analysis worker stores it on the completing window.
+    const judged = randomUUID();
+    await q(
+      `INSERT INTO assessment (id, monitor_id, bed_id, window_start, window_end, engine_version, verdict, flags, result, challenge_verdict, challenge_delta_ppv, created_at) VALUES (?, ?, ?, ?, ?, 'test', 'valid', '[]', '{}', 'positive', 4.4, NOW(3))`,
+      [judged, m.id, b, new Date(t0 + 150_000), new Date(t0 + 160_000)],
+    );
     const reviewer = await gw.signIn('reviewer');
     const res = await reviewer.get(`/api/v1/board/monitors/${m.identifier}/flush-test`).expect(200);
     expect(res.body.latest.flushTest).toMatchObject({ naturalFrequencyHz: 18.5, dampingRatio: 0.42, region: 'optimal' });
@@ -184,7 +190,9 @@ describe('line checks and context on the trend', () => {
       'tidal-volume: Tidal volume 560 → 420 mL',
       'tidal-volume-challenge: Tidal volume raised 420 → 560 mL for 60 s',
       'vasopressor: Vasopressor started',
+      'tidal-volume-challenge: Tidal volume challenge judged: positive, ΔPPV +4.4 points',
     ]));
+    expect(trend.body.events.find((e: { label: string }) => e.label.includes('judged'))!.assessmentId).toBe(judged);
     expect(kinds.filter((k: string) => k.startsWith('flush-test'))).toHaveLength(2);
     expect(kinds.some((k: string) => k.includes('fn 18.5 Hz, ζ 0.42'))).toBe(true);
   });
