@@ -189,6 +189,7 @@ async function main(): Promise<void> {
     EBBGATE_LOG_LEVEL: 'warn',
     EBBGATE_INGEST_BACKLOG_LIMIT: '100000000',
     EBBGATE_DB_POOL_SIZE: '30',
+    ...(process.env.EBBGATE_INGEST_GROUP_COMMIT ? { EBBGATE_INGEST_GROUP_COMMIT: process.env.EBBGATE_INGEST_GROUP_COMMIT } : {}),
   });
   const barePort = await freePort();
   const bare = spawnLogged(process.execPath, ['-e', BARE_SERVER], { PORT: String(barePort) });

@@ -21,11 +21,15 @@ const batchOf = (monitorId: string, batchId: string, startMs: number, seed = 1) 
 
 describe('ingest group commit', () => {
   let gw: TestGateway;
+  const before = process.env.EBBGATE_INGEST_GROUP_COMMIT;
   beforeAll(async () => {
+    process.env.EBBGATE_INGEST_GROUP_COMMIT = 'on'; // opt-in (see inbound-store.ts)
     gw = await startTestGateway();
   });
   afterAll(async () => {
     await gw?.stop();
+    if (before === undefined) delete process.env.EBBGATE_INGEST_GROUP_COMMIT;
+    else process.env.EBBGATE_INGEST_GROUP_COMMIT = before;
   });
 
   it('stores concurrent batches once each in shared commits, and refuses a bad one alone', async () => {
