@@ -175,7 +175,18 @@ function makeNode(i: number, baseDir: string, basePort: number, gcomm: string, o
       chownSync(d, owner.uid, owner.gid);
     }
     if (!existsSync(path.join(dataDir, 'mysql'))) {
-      execFileSync('mariadb-install-db', ['--no-defaults', `--datadir=${dataDir}`, '--user=mysql', '--auth-root-authentication-method=normal', '--skip-test-db'], { stdio: 'ignore' });
+      const install = () =>
+        execFileSync('mariadb-install-db', ['--no-defaults', `--datadir=${dataDir}`, '--user=mysql', '--auth-root-authentication-method=normal', '--skip-test-db'], { stdio: 'pipe' });
+      try {
+        install();
+      } catch (err) {
+        // Seen once under heavy load; a second attempt on a clean folder, then the tool's own output.
+        log(`galera ${name}: mariadb-install-db failed (${String((err as { stderr?: Buffer }).stderr ?? err).trim().slice(-300)}); trying again`);
+        rmSync(dataDir, { recursive: true, force: true });
+        mkdirSync(dataDir, { recursive: true });
+        chownSync(dataDir, owner.uid, owner.gid);
+        install();
+      }
     }
   };
 
