@@ -27,6 +27,7 @@ async function send(which: 'a' | 'b', window: SyntheticWindow, startTime: Date, 
   const res = await fetch(`${stack.gatewayUrl}/api/v1/ingest/batches`, { method: 'POST', headers: { authorization: `Bearer ${b.apiKey}`, 'content-type': 'application/json' }, body: JSON.stringify(batch) });
   expect(res.status).toBe(202);
 }
+const challenge = generateChallenge({ seed: 5, kind: 'responder', patientHeightCm: 175, patientSex: 'male' });
 const steady = (seed: number, seconds = 30) => generateWindow({ seed, durationSeconds: seconds, heartRate: 80, respiratoryRate: 16, ppv: 14, channels: ['abp', 'pleth', 'paw'] });
 
 beforeAll(async () => {
@@ -100,7 +101,6 @@ describe('beds board', () => {
     await page.goBack();
 
     // Bed A keeps sending (then goes through a tidal volume challenge); bed B's monitor stops.
-    const challenge = generateChallenge({ seed: 5, kind: 'responder', patientHeightCm: 175, patientSex: 'male' });
     let t = Date.now() - 5_000;
     for (const seg of challenge.segments) {
       await send('a', { channels: seg.channels, truth: seg.truth }, new Date(t), { ...CONTEXT, ...seg.context });
@@ -134,14 +134,19 @@ describe('beds board', () => {
     const { page } = browser;
     const reviewer = await apiSignIn(stack.gatewayUrl, 'reviewer');
     await eventually(async () => {
-      const tr = await reviewer.call<{ events: { kind: string }[] }>('GET', `/board/beds/${beds.a.id}/trend?hours=1`);
-      return tr.body.events.some((e) => e.kind === 'tidal-volume-challenge') ? true : undefined;
+      const tr = await reviewer.call<{ events: { kind: string; label: string }[] }>('GET', `/board/beds/${beds.a.id}/trend?hours=1`);
+      return tr.body.events.some((e) => e.kind === 'tidal-volume-challenge' && e.label.includes('judged')) ? true : undefined;
     }, 'the challenge on the trend', 60, 2000);
     await page.goto(`${stack.gatewayUrl}/board/beds/${beds.a.id}?hours=1`);
     await page.getByRole('heading', { level: 1, name: `Trend · ${beds.a.name}` }).waitFor();
     const challenges = page.getByRole('list', { name: 'Tidal volume challenges in the span' });
     await challenges.waitFor();
-    expect(await challenges.textContent()).toMatch(/Tidal volume raised \d+ → \d+ mL for \d+ s/);
+    // The engine judged the streamed challenge; the generator's truth for a responder is a positive test.
+    expect(challenge.truth.expected).toBe('positive');
+    expect(await challenges.textContent()).toMatch(/Tidal volume challenge judged: positive, ΔPPV \+\d+\.\d points/);
+    const panel = page.getByRole('region', { name: 'Tidal volume challenge', exact: true });
+    expect(await panel.getByTestId('challenge-verdict').textContent()).toBe('PPV rose by the threshold or more');
+    expect(await panel.textContent()).toContain('Myatra');
     expect(await page.getByTestId('grey-zone').textContent()).toContain('Source:');
     const rows = page.getByRole('region', { name: 'Trend values as a table' }).getByRole('row');
     expect(await rows.count()).toBeGreaterThan(2);
