@@ -1,6 +1,7 @@
 /**
  * Every entity and migration of the gateway, listed explicitly (no globbing, so tsx, vitest and
- * a compiled build all load the same set). Add a capability's rows and migrations here.
+ * a compiled build all load the same set). Add a capability's rows and migrations here; migrations
+ * in timestamp order (the order TypeORM applies them in).
  */
 import { AssessmentRow } from '../assessments/assessment.entity';
 import { AuditEntryRow } from '../audit/audit-entry.entity';
@@ -25,4 +26,4 @@ import { DeliveryReliability1765400000000 } from './migrations/1765400000000-del
 
 export const ENTITIES = [UserRow, UserSessionRow, AuditEntryRow, MonitorProfileRow, BedRow, MonitorRow, DeviceKeyRow, AssessmentRow, InboundMessageRow, WaveformSegmentRow, AnalysisWindowRow, DestinationRow, DeliveryRow, DeliveryAttemptRow, AlertIncidentRow, AlertMailRow, SiteSettingRow, EdgeCredentialRow];
 
-export const MIGRATIONS = [Foundation1764600000000, Assessments1764650000000, Ingest1764700000001, Delivery1764800000001, SiteSettings1764900000000, EdgeSecurity1765200000000, SignInThrottle1765300000000, DeliveryReliability1765400000000, EngineTwo1765100000000, RawEncoding1765500000000];
+export const MIGRATIONS = [Foundation1764600000000, Assessments1764650000000, Ingest1764700000001, Delivery1764800000001, SiteSettings1764900000000, EngineTwo1765100000000, EdgeSecurity1765200000000, SignInThrottle1765300000000, DeliveryReliability1765400000000, RawEncoding1765500000000];
