@@ -10,7 +10,7 @@
  * Batches run in monitor order within a group, so groups take the monitors' row locks in one order.
  */
 import type { DataSource, QueryRunner } from 'typeorm';
-import type { StoreRequest, StoredBatch, StreamSettings } from './inbound-store';
+import type { StoreRequest, StoredBatch, StreamSettings } from './store-types';
 
 interface Pending {
   req: StoreRequest;

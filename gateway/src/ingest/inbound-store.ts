@@ -4,27 +4,15 @@ import type { Continuity, InboundOutcome, Transport } from '@ebbgate/shared';
 import { ENGINE_VERSION } from '@ebbgate/shared/analysis';
 import { encodeSegment } from '@ebbgate/shared/codec';
 import { isDuplicateKey } from '../db/errors';
-import type { MonitorForIngest } from '../devices/device-cache';
 import type { MappedChannel } from './channel-mapping';
 import type { ReceivedBatch } from './decoded-batch';
 import { IngestRefusal } from './refusal';
 import { compressRawBody } from './raw-body';
 import { GroupCommitter } from './group-commit';
 import { continuityOf, plannedWindowStarts } from './window-plan';
+import type { StoreRequest, StoredBatch, StreamSettings } from './store-types';
 
-export interface StreamSettings {
-  windowSeconds: number;
-  stepSeconds: number;
-  gapResetSeconds: number;
-}
-
-export interface StoredBatch {
-  outcome: 'accepted' | 'duplicate';
-  inboundMessageId: string;
-  continuity: Continuity | null;
-  continuityMs: number | null;
-  windowsPlanned: number;
-}
+export type { StoreRequest, StoredBatch, StreamSettings } from './store-types';
 
 export interface InboundRecord {
   transport: Transport;
@@ -91,21 +79,6 @@ function exec<T = unknown>(qr: QueryRunner, sql: string, params: unknown[]): Pro
 }
 
 const ms = (d: Date | string | null): number | null => (d === null ? null : new Date(d).getTime());
-
-export interface StoreRequest {
-  transport: Transport;
-  receivedAt: Date;
-  raw: Buffer;
-  monitor: MonitorForIngest;
-  batch: ReceivedBatch;
-  channels: MappedChannel[];
-  /** When reprocessing: the quarantined message whose row becomes the stored one. */
-  reprocessOf?: string;
-  handledBy?: string | null;
-  /** Who sent it (senderLabel) and from where; a reprocessed message keeps its original sender. */
-  sender?: string | null;
-  sourceAddress?: string | null;
-}
 
 /**
  * Stores one batch in one transaction: the inbound message row, one segment row per channel,
