@@ -40,6 +40,14 @@ function quantity(codes: CodeMap, value: number, unit: string, display: string):
 
 const local = (codes: CodeMap, c: { code: string; display: string }): CodeableConcept => ({ coding: [{ system: codes.localSystem, code: c.code, display: c.display }], text: c.display });
 
+/** The delivery row name (delivery.index_name) of a challenge result, beside ppv, spv, deltaPop, perfusionIndex. */
+export const CHALLENGE_DELIVERY = 'tidalVolumeChallenge';
+
+/** The idempotency identifier, as observationIdentifier gives the indices: one per assessment. */
+export function challengeIdentifier(codes: CodeMap, assessmentId: string): { system: string; value: string } {
+  return { system: codes.identifierSystems.observation, value: `${assessmentId}-${LOCAL.code.code}` };
+}
+
 export function buildChallengeObservation(input: ChallengeObservationInput): Observation {
   const { codes, challenge: t } = input;
   const judged = t.verdict !== 'cannot-be-judged' && t.deltaPpv !== null;
@@ -57,7 +65,7 @@ export function buildChallengeObservation(input: ChallengeObservationInput): Obs
   if (t.reasonTexts.length) lines.push(`Cannot be judged: ${t.reasonTexts.join('; ')}.`);
   return {
     resourceType: 'Observation',
-    identifier: [{ use: 'official', system: codes.identifierSystems.observation, value: `${input.assessmentId}-${LOCAL.code.code}` }],
+    identifier: [{ use: 'official', ...challengeIdentifier(codes, input.assessmentId) }],
     status: input.status,
     category: [{ coding: codes.category.coding }, { coding: [{ system: codes.localSystem, code: codes.category.local.code, display: codes.category.local.display }] }],
     code: local(codes, LOCAL.code),

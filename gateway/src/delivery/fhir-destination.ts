@@ -5,18 +5,18 @@
  */
 import type { DataSource } from 'typeorm';
 import { In } from 'typeorm';
-import type { AnalysisResult } from '@ebbgate/shared/analysis';
 import { AssessmentRow } from '../assessments/assessment.entity';
 import { BedRow, MonitorProfileRow, MonitorRow } from '../devices/device.entities';
 import { backoffDelayMs } from './backoff';
-import type { CodeMap, DeliveredIndex } from './code-map';
+import type { CodeMap } from './code-map';
 import type { DeliveryConfig } from './delivery.config';
 import { DeliveryRow } from './delivery.entities';
 import type { DeviceSync } from './device-sync';
 import { errorText, type EhrClient } from './ehr-client';
 import type { Bundle, Observation } from './fhir-types';
 import { parseResourceLocation } from './fhir-location';
-import { buildObservation, enteredInErrorAmendment, ifNoneExistQuery } from './observation-builder';
+import { enteredInErrorAmendment, ifNoneExistQuery } from './observation-builder';
+import { buildRowObservation } from './row-observation';
 import type { AttemptResult } from './outbox';
 import type { PatientContextResolver } from './patient-context';
 import { outcomeSummary, type SendOutcome } from './send-outcome';
@@ -143,9 +143,8 @@ export class FhirDestination {
     const deviceId = monitor
       ? await this.devices.ensure({ identifier: monitor.identifier, manufacturer: profile?.manufacturer ?? null, model: profile?.model ?? null, locationId: context.locationId })
       : null;
-    const built = buildObservation({
-      assessmentId: a.id, index: row.indexName as DeliveredIndex, windowStart: a.windowStart, windowEnd: a.windowEnd,
-      result: a.result as AnalysisResult, context, deviceId, status: this.current.observationStatus, notValidPolicy: this.current.notValidPolicy,
+    const built = buildRowObservation({
+      indexName: row.indexName, assessment: a, context, deviceId, status: this.current.observationStatus, notValidPolicy: this.current.notValidPolicy,
       issued: new Date(), codes: this.codes,
     });
     if (built.kind === 'withheld') {

@@ -7,17 +7,17 @@ import net from 'node:net';
 import { frameMllp, MllpReader } from '@ebbgate/shared/hl7';
 import type { DataSource } from 'typeorm';
 import { In } from 'typeorm';
-import type { AnalysisResult } from '@ebbgate/shared/analysis';
 import { AssessmentRow } from '../assessments/assessment.entity';
 import { BedRow, MonitorRow } from '../devices/device.entities';
 import { backoffDelayMs } from './backoff';
-import type { CodeMap, DeliveredIndex } from './code-map';
+import type { CodeMap } from './code-map';
 import type { DeliveryConfig } from './delivery.config';
 import type { DeliveryRow } from './delivery.entities';
 import { errorText, type EhrClient } from './ehr-client';
 import type { DeliveryPolicy, PassReport } from './fhir-destination';
 import { stillHeld } from './outbox';
-import { buildObservation, enteredInErrorAmendment } from './observation-builder';
+import { enteredInErrorAmendment } from './observation-builder';
+import { buildRowObservation } from './row-observation';
 import { buildOru } from './oru-message';
 import type { PatientContextResolver } from './patient-context';
 
@@ -72,9 +72,8 @@ export class Hl7Destination {
         const context = answer.context;
         let message = (row.payload as { message?: string } | null)?.message;
         if (!message) {
-          const built = buildObservation({
-            assessmentId: a.id, index: row.indexName as DeliveredIndex, windowStart: a.windowStart, windowEnd: a.windowEnd, result: a.result as AnalysisResult,
-            context, deviceId: null, status: policy.observationStatus, notValidPolicy: policy.notValidPolicy, issued: new Date(), codes: this.codes,
+          const built = buildRowObservation({
+            indexName: row.indexName, assessment: a, context, deviceId: null, status: policy.observationStatus, notValidPolicy: policy.notValidPolicy, issued: new Date(), codes: this.codes,
           });
           if (built.kind === 'withheld') {
             report.results.push({ ...base, status: 'withheld', nextAttemptAt: new Date(), countsAsTry: false, outcome: 'withheld', detail: built.reason, durationMs: 0 });

@@ -9,13 +9,15 @@
 import { randomUUID } from 'node:crypto';
 import type { DataSource, EntityManager } from 'typeorm';
 import { In } from 'typeorm';
-import type { AnalysisResult } from '@ebbgate/shared/analysis';
+import type { AnalysisResult, TidalVolumeChallengeResult } from '@ebbgate/shared/analysis';
+import { CHALLENGE_DELIVERY, challengeIdentifier } from '../analysis/challenge-observation';
 import type { AssessmentRow } from '../assessments/assessment.entity';
 import { isRetryableLockError } from '../db/errors';
 import { DELIVERED_INDICES, type CodeMap } from './code-map';
 import type { DeliveryConfig } from './delivery.config';
 import { DeliveryAttemptRow, DeliveryRow, DestinationRow, type DeliveryStatus, type DestinationKind } from './delivery.entities';
 import { observationIdentifier } from './observation-builder';
+import { challengeWithheldReason } from './row-observation';
 
 export interface DestinationSpec {
   id: string;
@@ -57,6 +59,19 @@ export async function enqueueAssessment(m: EntityManager, a: AssessmentRow, dest
         assessmentId: a.id, destinationId, indexName: index, kind: 'create',
         status: withheld ? 'withheld' : 'pending',
         identifier: observationIdentifier(codes, a.id, index).value,
+        payload: null, serverId: null, patientRef: null, tries: 0, attemptCount: 0,
+        nextAttemptAt: now, lastHttpStatus: null, lastError: withheld, discardReason: null, discardedBy: null,
+        createdAt: now, updatedAt: now, deliveredAt: null,
+      });
+    }
+    // A tidal volume challenge this assessment completed travels as one more Observation.
+    const challenge = a.tidalVolumeChallenge as TidalVolumeChallengeResult | null;
+    if (challenge) {
+      const withheld = challengeWithheldReason(challenge, policy);
+      rows.push({
+        assessmentId: a.id, destinationId, indexName: CHALLENGE_DELIVERY, kind: 'create',
+        status: withheld ? 'withheld' : 'pending',
+        identifier: challengeIdentifier(codes, a.id).value,
         payload: null, serverId: null, patientRef: null, tries: 0, attemptCount: 0,
         nextAttemptAt: now, lastHttpStatus: null, lastError: withheld, discardReason: null, discardedBy: null,
         createdAt: now, updatedAt: now, deliveredAt: null,

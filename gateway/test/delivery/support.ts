@@ -37,13 +37,13 @@ export async function insertBedAndMonitor(ds: DataSource, locationIdentifier: st
 }
 
 /** Stores one assessment and runs the stored-hooks in the same transaction, as the analysis worker does. */
-export async function storeAssessment(ds: DataSource, at: { bedId: string | null; monitorId: string }, windowStart: Date, result: AnalysisResult = engineResult(), hooks = true): Promise<AssessmentRow> {
+export async function storeAssessment(ds: DataSource, at: { bedId: string | null; monitorId: string }, windowStart: Date, result: AnalysisResult = engineResult(), hooks = true, extra: Partial<AssessmentRow> = {}): Promise<AssessmentRow> {
   const row: AssessmentRow = {
     id: randomUUID(), monitorId: at.monitorId, bedId: at.bedId, windowStart, windowEnd: new Date(windowStart.getTime() + 30_000),
     engineVersion: result.engineVersion, verdict: result.verdict, ppv: result.indices.ppv.value, spv: result.indices.spv.value,
     deltaPop: result.indices.deltaPop.value, perfusionIndex: result.indices.perfusionIndex.value, heartRate: result.indices.heartRate.value,
     respiratoryRate: result.indices.respiratoryRate.value, flags: result.flags.map((f) => f.code), result: { ...result, startTime: windowStart.toISOString() },
-    enteredInErrorAt: null, enteredInErrorBy: null, enteredInErrorReason: null, createdAt: new Date(),
+    enteredInErrorAt: null, enteredInErrorBy: null, enteredInErrorReason: null, createdAt: new Date(), ...extra,
   } as AssessmentRow;
   await ds.transaction(async (m: EntityManager) => {
     await m.getRepository(AssessmentRow).insert(row);
