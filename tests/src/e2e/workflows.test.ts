@@ -216,13 +216,16 @@ describe('reviewer and the screens with data', () => {
     const { page, context } = browser;
     await context.clearCookies();
     await signIn(page, stack.gatewayUrl, 'operator');
-    await page.goto(`${stack.gatewayUrl}/`);
+    // The operator's first screen is the beds board; the overview has its own address.
+    await page.goto(`${stack.gatewayUrl}/overview`);
     await page.getByRole('heading', { level: 1, name: 'Overview' }).waitFor();
     const delivered = page.getByText('delivered', { exact: true }).first();
     await delivered.waitFor();
     await screenshot(page, 'operator-overview-with-data');
 
     await page.goto(`${stack.gatewayUrl}/deliveries?status=delivered`);
+    await page.getByRole('heading', { level: 1, name: 'Deliveries' }).waitFor();
+    await screenshot(page, 'operator-deliveries-delivered');
     await page.getByRole('button', { name: 'Details' }).first().click();
     const detail = page.getByRole('dialog', { name: /^Delivery / });
     await detail.getByRole('table', { name: 'Attempts' }).waitFor();
