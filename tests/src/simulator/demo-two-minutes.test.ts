@@ -88,6 +88,8 @@ describe('the demo scenario within two minutes', () => {
       return list.length ? list : undefined;
     }, withinTwoMinutes());
     expect(JSON.stringify((await as.operator('GET', `/deliveries/${failed[0].id}`)).body)).toContain('422');
+    // The demo's log line can trail the first refused post on a busy machine: wait for it (bounded).
+    await waitFor('the outage to be announced', async () => (log.some((l) => l.includes('EHR outage begins')) ? true : undefined), withinTwoMinutes());
     expect(log.some((l) => l.includes('EHR outage begins'))).toBe(true);
     await waitFor('the outage to end', async () => (log.some((l) => l.includes('EHR outage over')) ? true : undefined), withinTwoMinutes());
     const delivered = await waitFor('deliveries after recovery', async () => {
