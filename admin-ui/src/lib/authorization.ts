@@ -17,6 +17,7 @@ export const ACCESS = {
   reanalyse: rolesWith('analysis.reanalyse'),
   devices: narrowed('monitors.read', ['integrator', 'admin']),
   manageDevices: rolesWith('monitors.write'),
+  edgeCredentials: rolesWith('monitors.keys'),
   deliveries: rolesWith('deliveries.read'),
   manageDeliveries: rolesWith('deliveries.write'),
   manageDestinations: rolesWith('destinations.write'),

@@ -16,6 +16,7 @@ import { Link } from 'react-router-dom';
 import { ErrorState, LoadingState } from '@/components/ui/states';
 import { MonitorForm } from '../components/monitor-form';
 import { ApiKeyDialog } from '../components/api-key-dialog';
+import { EdgeCredentialsSection } from '../components/edge-credentials-section';
 import { FlushTestSummary } from '@/components/analysis/line-checks';
 
 type Pending = { kind: 'create' } | { kind: 'edit' | 'issue' | 'revoke' | 'delete'; monitor: Monitor } | null;
@@ -48,8 +49,10 @@ export function MonitorsRoute() {
   const toast = useToast();
   const { can } = useAuth();
   const manage = can('manageDevices');
+  const edge = can('edgeCredentials');
   const [pending, setPending] = useState<Pending>(null);
   const [lineCheck, setLineCheck] = useState<Monitor | null>(null);
+  const [edgeOf, setEdgeOf] = useState<Monitor | null>(null);
   const [issued, setIssued] = useState<{ key: ApiKeyIssued; monitor: string } | null>(null);
   const profileName = useMemo(() => new Map((profiles.data?.items ?? []).map((p) => [p.id, p.name])), [profiles.data]);
   const bedName = useMemo(() => new Map((beds.data?.items ?? []).map((b) => [b.id, `${b.name} · ${b.unit}`])), [beds.data]);
@@ -64,6 +67,7 @@ export function MonitorsRoute() {
     { key: 'dataRate', header: 'Samples/s', className: 'text-right', sortField: 'dataRate', render: (m) => <span className="num">{formatNumber(m.dataRate, 0)}</span> },
     { key: 'key', header: 'API key', render: (m) => (m.hasApiKey ? <Badge tone="good">issued</Badge> : <Badge>none</Badge>) },
     { key: 'line', header: 'Arterial line', render: (m) => <Button size="sm" variant="ghost" onClick={() => setLineCheck(m)} aria-label={`Latest flush test of ${m.identifier}`}>Latest flush test</Button> },
+    ...(edge ? [{ key: 'edge', header: 'Device edge', render: (m: Monitor) => <Button size="sm" variant="ghost" onClick={() => setEdgeOf(m)} aria-label={`Device edge of ${m.identifier}`}>Device edge</Button> }] : []),
     ...(manage ? [{ key: 'actions', header: 'Actions', render: (m: Monitor) => (
       <span className="flex flex-wrap gap-1">
         <Button size="sm" onClick={() => setPending({ kind: 'edit', monitor: m })}>Edit</Button>
@@ -123,6 +127,11 @@ export function MonitorsRoute() {
       {lineCheck && (
         <Dialog open title={`Arterial line of ${lineCheck.identifier}`} onClose={() => setLineCheck(null)}>
           <FlushTestDialogBody monitorId={lineCheck.id} />
+        </Dialog>
+      )}
+      {edgeOf && (
+        <Dialog open wide title={`Device edge of ${edgeOf.identifier}`} onClose={() => setEdgeOf(null)}>
+          <EdgeCredentialsSection scope="monitor" id={edgeOf.id} />
         </Dialog>
       )}
       <ApiKeyDialog issued={issued?.key ?? null} monitor={issued?.monitor ?? ''} onClose={() => setIssued(null)} />

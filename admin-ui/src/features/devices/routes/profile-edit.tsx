@@ -5,6 +5,7 @@ import { ErrorState, LoadingState } from '@/components/ui/states';
 import { useToast } from '@/components/ui/toast';
 import { useProfile, useSaveProfile } from '../api/devices';
 import { ProfileForm } from '../components/profile-form';
+import { EdgeCredentialsSection } from '../components/edge-credentials-section';
 
 export function ProfileEditRoute() {
   const { id } = useParams();
@@ -28,6 +29,11 @@ export function ProfileEditRoute() {
             onSubmit={(v) => save.mutate(v, { onSuccess: (p) => { toast.success(`Profile ${p.name} saved`); navigate('/profiles'); } })} />
         ) : <p className="text-sm text-muted">Only integrators can change profiles.</p>}
       </Panel>
+      {!isNew && id && can('edgeCredentials') && (
+        <Panel title="Device edge" className="mt-3">
+          <EdgeCredentialsSection scope="profile" id={id} />
+        </Panel>
+      )}
     </>
   );
 }

@@ -18,7 +18,29 @@ import { ErrorState, LoadingState } from '@/components/ui/states';
 import { useToast } from '@/components/ui/toast';
 import { discardInbound, reprocessInbound, useInboundMessage, useInboundMessages, useInvalidateInbound } from '../api/inbound';
 
-const OUTCOMES = ['quarantined', 'rejected', 'accepted', 'duplicate', 'reprocessed', 'discarded'];
+const OUTCOMES = ['quarantined', 'rejected', 'conflicting', 'accepted', 'duplicate', 'reprocessed', 'discarded'];
+/** Filter labels; `conflicting` is a second sender's stream for a monitor, refused and kept apart, never merged. */
+const OUTCOME_TEXT: Record<string, string> = { conflicting: 'conflicting (second sender)' };
+
+/** `api-key:<id>`, `certificate:<SHA-256>`, `source:<address>` in words; long fingerprints shortened (the detail shows them whole). */
+function senderText(sender: string | null | undefined, full = false): string | null {
+  if (!sender) return null;
+  const [kind, ...rest] = sender.split(':');
+  const value = rest.join(':');
+  if (kind === 'api-key') return `API key ${value}`;
+  if (kind === 'certificate') return `certificate ${full || value.length <= 16 ? value : `${value.slice(0, 16)}…`}`;
+  if (kind === 'source') return `source ${value}`;
+  return sender;
+}
+
+function StrangerMark() {
+  return <Badge tone="bad" title="Unauthenticated or unknown sender: only its metadata and the start of the message are kept">stranger</Badge>;
+}
+
+function OutcomeBadge({ outcome }: { outcome: string }) {
+  if (outcome === 'conflicting') return <Badge tone="bad" title="Another sender already streams for this monitor; refused and kept, never merged">conflicting stream</Badge>;
+  return <StatusBadge status={outcome} />;
+}
 
 export function InboundRoute() {
   const list = useListState({ sort: 'receivedAt', order: 'desc' }, { outcome: 'quarantined' });
@@ -48,9 +70,16 @@ export function InboundRoute() {
   const columns: Column<InboundMessage>[] = [
     { key: 'receivedAt', header: 'Received', sortField: 'receivedAt', render: (m) => <span className="num whitespace-nowrap">{formatDateTime(m.receivedAt)}</span> },
     { key: 'transport', header: 'Via', render: (m) => <Badge>{m.transport}</Badge> },
-    { key: 'outcome', header: 'Outcome', sortField: 'outcome', render: (m) => <StatusBadge status={m.outcome} /> },
+    { key: 'outcome', header: 'Outcome', sortField: 'outcome', render: (m) => <OutcomeBadge outcome={m.outcome} /> },
     { key: 'reason', header: 'Reason', render: (m) => <span className="text-xs">{m.reason ?? <span className="text-muted">—</span>}</span> },
     { key: 'monitor', header: 'Monitor', render: (m) => <span className="font-mono text-xs">{m.monitorIdentifier ?? '—'}</span> },
+    { key: 'sender', header: 'Sender', render: (m) => (
+      <span className="flex flex-col items-start gap-0.5 text-xs">
+        {m.stranger && <StrangerMark />}
+        <span className="font-mono">{senderText(m.sender) ?? <span className="text-muted">—</span>}</span>
+        {m.sourceAddress && <span className="font-mono text-muted">from {m.sourceAddress}</span>}
+      </span>
+    ) },
     { key: 'batch', header: 'Batch', render: (m) => <span className="font-mono text-xs">{m.batchId ?? '—'}</span> },
     { key: 'continuity', header: 'Continuity', render: (m) => (m.continuity ? <span className="text-xs">{m.continuity}{m.continuityMs ? ` (${m.continuityMs} ms)` : ''}</span> : '—') },
     { key: 'size', header: 'Size', sortField: 'sizeBytes', className: 'text-right', render: (m) => <span className="num">{formatBytes(m.sizeBytes)}</span> },
@@ -63,7 +92,7 @@ export function InboundRoute() {
     <>
       <PageHeader title="Inbound & quarantine" description="Every message a monitor sent, with what became of it. Nothing is dropped: quarantined messages wait here to be reprocessed or discarded." />
       <FilterBar onClear={clear}>
-        <SelectField label="Outcome" placeholder="any" wrapClassName="w-40" value={list.filters.outcome ?? ''} onChange={(e) => list.setFilter('outcome', e.target.value)} options={OUTCOMES.map((o) => ({ value: o, label: o }))} />
+        <SelectField label="Outcome" placeholder="any" wrapClassName="w-40" value={list.filters.outcome ?? ''} onChange={(e) => list.setFilter('outcome', e.target.value)} options={OUTCOMES.map((o) => ({ value: o, label: OUTCOME_TEXT[o] ?? o }))} />
         <SelectField label="Transport" placeholder="any" wrapClassName="w-32" value={list.filters.transport ?? ''} onChange={(e) => list.setFilter('transport', e.target.value)} options={[{ value: 'http', label: 'HTTP' }, { value: 'mllp', label: 'MLLP' }]} />
         <TextField label="Monitor" placeholder="identifier" wrapClassName="w-44" value={list.filters.monitor ?? ''} onChange={(e) => list.setFilter('monitor', e.target.value)} />
         <TextField label="From" type="datetime-local" wrapClassName="w-48" value={from} onChange={(e) => { setFrom(e.target.value); list.setFilter('from', localInputToIso(e.target.value)); }} />
@@ -114,7 +143,9 @@ function InboundDetailDialog({ id, onClose }: { id: string | null; onClose: () =
         {m && (
           <div className="flex flex-col gap-3">
             <DefinitionList items={[
-              ['Received', formatDateTime(m.receivedAt)], ['Transport', m.transport], ['Outcome', <StatusBadge key="o" status={m.outcome} />], ['Reason', m.reason ?? '—'],
+              ['Received', formatDateTime(m.receivedAt)], ['Transport', m.transport], ['Outcome', <OutcomeBadge key="o" outcome={m.outcome} />], ['Reason', m.reason ?? '—'],
+              ['Sender', m.stranger ? <span key="s" className="flex items-center gap-1"><StrangerMark /> {senderText(m.sender, true) ?? 'not authenticated'}</span> : senderText(m.sender, true) ?? '—'],
+              ['Source address', m.sourceAddress ?? '—'],
               ['Monitor', m.monitorIdentifier ?? '—'], ['Batch', m.batchId ?? '—'], ['Size', formatBytes(m.sizeBytes)], ['Handled', m.handledAt ? `${formatDateTime(m.handledAt)} by ${m.handledBy ?? '—'}` : '—'],
             ]} />
             <div>
