@@ -13,6 +13,7 @@ import type { BatchTransport } from './adapter/transport';
 import { SCENARIOS, SCENARIO_IDS } from './scenarios/catalogue';
 import type { ScenarioId } from './scenarios/types';
 import { SharedLoop } from './simulation/loop-source';
+import { BedStream } from './stream/bed-stream';
 import { MonitorFeed } from './simulation/monitor-feed';
 import { demoIntegrator, loadMonitorId, provisionMonitors } from './simulation/provision';
 import { simulatorTransport } from './simulation/transports';
@@ -96,14 +97,16 @@ async function main(): Promise<void> {
   const identifiers = Object.keys(keys).length ? Object.keys(keys).slice(0, count) : Array.from({ length: count }, (_, i) => loadMonitorId(i + 1));
   if (identifiers.length < count) fail(`--keys holds ${identifiers.length} monitors, ${count} asked for`);
 
-  const scenarioIds: ScenarioId[] = args.scenario ? [args.scenario as ScenarioId] : SCENARIO_IDS.filter((id) => SCENARIOS[id].expect.outcome === 'assessed');
-  const loops = new Map(scenarioIds.map((id) => [id, new SharedLoop(SCENARIOS[id])]));
+  // Load runs loop steady scenarios; a tidal volume challenge changes its context mid-stream, so it
+  // runs only when asked for, each monitor on its own stream (the shared loop keeps no context).
+  const scenarioIds: ScenarioId[] = args.scenario ? [args.scenario as ScenarioId] : SCENARIO_IDS.filter((id) => SCENARIOS[id].expect.outcome === 'assessed' && !SCENARIOS[id].tidalVolumeChallenge);
+  const loops = new Map(scenarioIds.filter((id) => !SCENARIOS[id].tidalVolumeChallenge).map((id) => [id, new SharedLoop(SCENARIOS[id])]));
   const start = new Date(Date.now() - num(args.backfill, 'backfill', 1e-9) * 1000);
   const feeds = identifiers.map((identifier, i) => {
     const id = scenarioIds[i % scenarioIds.length];
     // Spread monitors over the batch period so they do not all send on the same tick.
     const startTime = new Date(start.getTime() + Math.round(((i % 1000) / 1000) * interval * 1000) - interval * 1000);
-    return new MonitorFeed({ identifier, scenario: SCENARIOS[id], source: loops.get(id)!.reader((i * 7.3) % 100), transport, batchSeconds: interval, startTime });
+    return new MonitorFeed({ identifier, scenario: SCENARIOS[id], source: SCENARIOS[id].tidalVolumeChallenge ? new BedStream({ scenario: SCENARIOS[id], seed: 1000 + i }) : loops.get(id)!.reader((i * 7.3) % 100), transport, batchSeconds: interval, startTime });
   });
   const scenarioOf = new Map(feeds.map((f) => [f.identifier, f.scenario]));
 

@@ -118,6 +118,31 @@ export const SCENARIOS: Record<ScenarioId, Scenario> = {
     disturbancesPerMinute: [],
     expect: { outcome: 'quarantined', flags: [], absentFlags: [], ppvRecovered: false, reading: 'The gateway refuses each batch into the inbound quarantine, naming the unmapped code.' },
   },
+  // Tidal volume challenge (Myatra et al., Crit Care Med 2017, from memory): at 6 mL/kg PBW the
+  // window PPV is not valid (tidal volume too low); raising it to 8 mL/kg for a minute and reading
+  // the rise of PPV answers instead. Baseline 120 s, so the stream is back at 6 mL/kg between steps.
+  'tidal-volume-challenge-responder': {
+    id: 'tidal-volume-challenge-responder',
+    title: 'Tidal volume challenge: responder',
+    story: 'ARDS ventilated at 6 mL/kg PBW; the clinician raises the tidal volume to 8 mL/kg for one minute, then back.',
+    patient: { heightCm: 176, sex: 'male', heartRate: 94, spo2: 92, edp: 4 },
+    ventilator: controlled(16, 6),
+    channels: ['abp', 'paw'],
+    disturbancesPerMinute: [],
+    tidalVolumeChallenge: { kind: 'responder', baselineSeconds: 120, challengeSeconds: 60 },
+    expect: { outcome: 'assessed', flags: [], absentFlags: ['irregular-rhythm', 'spontaneous-breathing'], ppvRecovered: false, reading: 'PPV rises by 3.5 points or more when the tidal volume goes to 8 mL/kg: challenge positive.' },
+  },
+  'tidal-volume-challenge-non-responder': {
+    id: 'tidal-volume-challenge-non-responder',
+    title: 'Tidal volume challenge: non-responder',
+    story: 'Lung-protective ventilation at 6 mL/kg PBW after fluids; the one-minute step to 8 mL/kg barely moves PPV.',
+    patient: { heightCm: 164, sex: 'female', heartRate: 82, spo2: 94, edp: 11 },
+    ventilator: controlled(18, 6),
+    channels: ['abp', 'paw'],
+    disturbancesPerMinute: [],
+    tidalVolumeChallenge: { kind: 'non-responder', baselineSeconds: 120, challengeSeconds: 60 },
+    expect: { outcome: 'assessed', flags: [], absentFlags: ['irregular-rhythm', 'spontaneous-breathing'], ppvRecovered: false, reading: 'PPV rises by less than 3.5 points at 8 mL/kg: challenge negative.' },
+  },
 };
 
 export const SCENARIO_IDS = Object.keys(SCENARIOS) as ScenarioId[];

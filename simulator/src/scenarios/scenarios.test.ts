@@ -1,12 +1,17 @@
 import { describe, expect, it } from 'vitest';
-import { analyzeWindow } from '@ebbgate/shared/analysis';
+import type { AnalysisContext } from '@ebbgate/shared';
+import { analyseTidalVolumeChallenge, analyzeWindow } from '@ebbgate/shared/analysis';
 import { generateWindow } from '@ebbgate/shared/synthetic';
-import { BedStream } from '../stream/bed-stream';
+import { MonitorFeed } from '../simulation/monitor-feed';
+import { BedStream, type StreamChunk } from '../stream/bed-stream';
 import { SCENARIOS, SCENARIO_IDS } from './catalogue';
 import { checkWindow } from './ground-truth';
 import { expandDisturbances, scenarioContext, scenarioSpec, scenarioSwing } from './spec';
 
-const assessed = SCENARIO_IDS.filter((id) => SCENARIOS[id].expect.outcome === 'assessed');
+// Window-by-window expectations hold for the steady scenarios; the challenge scenarios change
+// their tidal volume on purpose and are checked as challenges below.
+const assessed = SCENARIO_IDS.filter((id) => SCENARIOS[id].expect.outcome === 'assessed' && !SCENARIOS[id].tidalVolumeChallenge);
+const challenges = SCENARIO_IDS.filter((id) => SCENARIOS[id].tidalVolumeChallenge);
 
 describe('scenario truth is what the shared generator puts in', () => {
   it.each(assessed)('%s: the generator is given the Frank–Starling PPV and its beats carry it', (id) => {
@@ -92,5 +97,77 @@ describe('demo monitor model', () => {
     const codes = new Set(p.channels.map((c) => c.code));
     for (const t of ['http', 'mllp'] as const) for (const code of Object.values(channelCodesFor(t))) expect(codes.has(code)).toBe(true);
     expect(codes.has(SCENARIOS['unmapped-channel'].unmappedChannel!.code)).toBe(false);
+  });
+});
+
+describe('tidal volume challenge scenarios (stream cut from generateChallenge, judged by the engine)', () => {
+  it('there is one responder and one non-responder', () => {
+    expect(challenges.map((id) => SCENARIOS[id].tidalVolumeChallenge!.kind).sort()).toEqual(['non-responder', 'responder']);
+  });
+
+  it.each(challenges)('%s: each 5-s chunk carries its segment context; 6 → 8 mL/kg for a minute, then back; the verdict is the generator truth', (id) => {
+    const s = SCENARIOS[id];
+    const c = s.tidalVolumeChallenge!;
+    const stream = new BedStream({ scenario: s, seed: 31, keepTruth: true });
+    const chunks: StreamChunk[] = [];
+    const period = c.baselineSeconds + c.challengeSeconds;
+    for (let t = 0; t < period + c.baselineSeconds; t += 5) chunks.push(stream.read(5));
+    const truths = stream.challengeTruth();
+    expect(truths.length).toBeGreaterThanOrEqual(2);
+    const [first, second] = truths;
+    expect(first!.truth.expected).toBe(c.kind === 'responder' ? 'positive' : 'negative');
+    expect(first!.stepTime).toBe(c.baselineSeconds);
+    expect(second!.startTime).toBe(period);
+    // Generator truth: 6 and 8 mL/kg of the Devine PBW the generator computes for this patient.
+    const vt = (ch: StreamChunk) => (ch.context as AnalysisContext).tidalVolumeMl;
+    for (const ch of chunks) expect(ch.context).toBeDefined();
+    const low = first!.truth.baselineTidalVolumeMl;
+    const high = first!.truth.challengeTidalVolumeMl;
+    expect(high).toBeGreaterThan(low);
+    const devineKg = (s.patient.sex === 'male' ? 50 : 45.5) + 0.91 * (s.patient.heightCm - 152.4); // Devine 1974, ARDSNet 2000
+    expect(low / devineKg).toBeCloseTo(6, 1);
+    expect(high / devineKg).toBeCloseTo(8, 1);
+    const expectedVt = (offset: number) => (offset % period < c.baselineSeconds ? low : high);
+    for (const ch of chunks) expect(vt(ch), `chunk at ${ch.offset} s`).toBe(expectedVt(ch.offset));
+    expect(vt(chunks[chunks.length - 1]!)).toBe(low); // back at 6 mL/kg after the minute
+
+    // The engine judges the first challenge from the chunks, split where the context changes.
+    const join = (from: number, to: number) => {
+      const part = chunks.filter((ch) => ch.offset >= from && ch.offset < to);
+      return {
+        context: part[0]!.context as AnalysisContext,
+        channels: s.channels.map((role) => {
+          const all = part.map((ch) => ch.channels.find((x) => x.role === role)!);
+          const samples = new Float64Array(all.reduce((n, x) => n + x.samples.length, 0));
+          let at = 0;
+          for (const x of all) (samples.set(x.samples, at), (at += x.samples.length));
+          return { role, sampleRate: 125, unit: all[0]!.unit, samples };
+        }),
+      };
+    };
+    const t = analyseTidalVolumeChallenge({ segments: [join(0, c.baselineSeconds), join(c.baselineSeconds, period)] }).tidalVolumeChallenge;
+    expect(t.verdict).toBe(first!.truth.expected);
+    expect(t.baselinePpv).not.toBeNull();
+    expect(t.challengePpv).not.toBeNull();
+    expect(first!.truth.baselinePpv).not.toBeNull();
+    expect(first!.truth.challengePpv).not.toBeNull();
+    expect(Math.abs((t.baselinePpv as number) - (first!.truth.baselinePpv as number))).toBeLessThanOrEqual(1);
+    expect(Math.abs((t.challengePpv as number) - (first!.truth.challengePpv as number))).toBeLessThanOrEqual(1);
+  });
+
+  it('the monitor feed sends each batch with the context of its segment (tidalVolumeMl switches at the step)', () => {
+    const s = SCENARIOS[challenges[0]!];
+    const c = s.tidalVolumeChallenge!;
+    const start = new Date('2026-12-01T10:00:00Z');
+    const stream = new BedStream({ scenario: s, seed: 7 });
+    const feed = new MonitorFeed({ identifier: '02EB6AFFFE0000A1', scenario: s, source: stream, transport: 'http', batchSeconds: 5, startTime: start });
+    const batches = feed.due(start.getTime() + (c.baselineSeconds + c.challengeSeconds + 20) * 1000);
+    const truth = stream.challengeTruth()[0]!.truth;
+    expect(batches.length).toBeGreaterThan(0);
+    for (const b of batches) {
+      const t = (Date.parse(b.startTime) - start.getTime()) / 1000;
+      const inChallenge = t >= c.baselineSeconds && t < c.baselineSeconds + c.challengeSeconds;
+      expect(b.context?.tidalVolumeMl, `batch at ${t} s`).toBe(inChallenge ? truth.challengeTidalVolumeMl : truth.baselineTidalVolumeMl);
+    }
   });
 });

@@ -11,7 +11,9 @@ export type ScenarioId =
   | 'damped-arterial-line'
   | 'vasopressor-finger-probe'
   | 'low-tidal-volume'
-  | 'unmapped-channel';
+  | 'unmapped-channel'
+  | 'tidal-volume-challenge-responder'
+  | 'tidal-volume-challenge-non-responder';
 
 /** An invented patient of the demo hospital, as the simulator models them. */
 export interface ScenarioPatient {
@@ -71,5 +73,11 @@ export interface Scenario {
   disturbancesPerMinute: Disturbance[];
   /** A channel its monitor profile does not map (the gateway quarantines the batch). */
   unmappedChannel?: { code: string; sampleRate: number; unit: string };
+  /**
+   * A repeated tidal volume challenge: the stream is cut from `generateChallenge` of
+   * @ebbgate/shared/synthetic (6 mL/kg PBW, then 8 mL/kg for `challengeSeconds`, then back), each
+   * segment with its own context; `ventilator.tidalVolumeMlPerKg` is the low volume.
+   */
+  tidalVolumeChallenge?: { kind: 'responder' | 'non-responder'; baselineSeconds: number; challengeSeconds: number };
   expect: ScenarioExpectation;
 }

@@ -64,6 +64,8 @@ export class MonitorFeed {
     const out: IngestBatch[] = [];
     while (this.nextBatchEnd <= now) {
       const chunk = this.opts.source.read(this.opts.batchSeconds);
+      // A stream that changes the context (tidal volume challenge) says so per chunk: each batch carries its own.
+      if (chunk.context) this.batcher.setContext(chunk.context);
       for (const c of chunk.channels) out.push(...this.batcher.push(this.codes[c.role], c.samples));
       if (chunk.unmapped && this.opts.scenario.unmappedChannel) out.push(...this.batcher.push(this.opts.scenario.unmappedChannel.code, chunk.unmapped));
       this.produced++;

@@ -1,5 +1,5 @@
-import type { ChannelRole } from '@ebbgate/shared';
-import { generateWindow, type SyntheticWindow, type TruthCycle } from '@ebbgate/shared/synthetic';
+import type { AnalysisContext, ChannelRole } from '@ebbgate/shared';
+import { generateChallenge, generateWindow, type SyntheticChallenge, type SyntheticWindow, type TruthCycle } from '@ebbgate/shared/synthetic';
 import { scenarioSpec } from '../scenarios/spec';
 import type { Scenario } from '../scenarios/types';
 
@@ -20,6 +20,8 @@ interface Segment {
   end: number;
   /** Stream sample index of sample `first`. */
   start: number;
+  /** The batch context of this stretch (challenge scenarios: its own tidal volume). */
+  context?: AnalysisContext;
 }
 
 export interface StreamChunk {
@@ -28,6 +30,15 @@ export interface StreamChunk {
   channels: { role: ChannelRole; unit: string; samples: Float64Array }[];
   /** The scenario's unmapped extra channel, when it has one. */
   unmapped?: Float64Array;
+  /** Context in force at the chunk's first sample, when the stream changes it (tidal volume challenge). */
+  context?: AnalysisContext;
+}
+
+/** One challenge (low volume, then high) as generated, with its stream start time, s. */
+export interface ChallengeTruth {
+  startTime: number;
+  stepTime: number;
+  truth: SyntheticChallenge['truth'];
 }
 
 /**
@@ -39,6 +50,7 @@ export class BedStream {
   readonly sampleRate: number;
   private readonly segmentSeconds: number;
   private segments: Segment[] = [];
+  private challenges: ChallengeTruth[] = [];
   private history: Segment[] = [];
   private generated = 0;
   /** Stream sample index where the next generated stretch begins. */
@@ -67,6 +79,7 @@ export class BedStream {
     const roles = this.opts.scenario.channels;
     const out = roles.map(() => new Float64Array(n));
     const offset = this.time;
+    const context = this.opts.scenario.tidalVolumeChallenge ? this.segmentAt(this.position).context : undefined;
     let filled = 0;
     while (filled < n) {
       const seg = this.segmentAt(this.position + filled);
@@ -81,7 +94,7 @@ export class BedStream {
     this.position += n;
     this.dropBefore(this.position);
     const unit = (role: ChannelRole) => (role === 'abp' || role === 'co2' ? 'mmHg' : role === 'paw' ? 'cmH2O' : 'au');
-    const chunk: StreamChunk = { offset, channels: roles.map((role, k) => ({ role, unit: unit(role), samples: out[k] })) };
+    const chunk: StreamChunk = { offset, channels: roles.map((role, k) => ({ role, unit: unit(role), samples: out[k] })), ...(context ? { context } : {}) };
     const extra = this.opts.scenario.unmappedChannel;
     if (extra) {
       // Not a physiological channel the engine reads: a plain breathing-rate sinusoid is enough.
@@ -109,6 +122,11 @@ export class BedStream {
     return out;
   }
 
+  /** The challenges generated so far (challenge scenarios), with their stream times. */
+  challengeTruth(): ChallengeTruth[] {
+    return [...this.challenges];
+  }
+
   /** Stretches still needed for reading, plus all earlier ones when `keepTruth` is on. */
   private allSegments(): Segment[] {
     return this.opts.keepTruth ? this.history : this.segments;
@@ -123,6 +141,7 @@ export class BedStream {
   }
 
   private generateNext(): void {
+    if (this.opts.scenario.tidalVolumeChallenge) return this.generateChallenge();
     const fs = this.sampleRate;
     const window = generateWindow(scenarioSpec(this.opts.scenario, this.opts.seed + this.generated, this.segmentSeconds, fs));
     this.generated++;
@@ -133,6 +152,32 @@ export class BedStream {
     this.nextStart += end - first;
     this.segments.push(seg);
     if (this.opts.keepTruth) this.history.push(seg);
+  }
+
+  /**
+   * A challenge scenario's next stretch: the two segments of `generateChallenge` (low, then high
+   * tidal volume), kept whole so each lasts exactly its seconds and a batch cut on whole seconds
+   * that divide them lies inside one segment with one context. The join is the generator's own
+   * (as an adapter sends the segments); the next challenge's low segment is the "back to 6 mL/kg".
+   */
+  private generateChallenge(): void {
+    const s = this.opts.scenario;
+    const c = s.tidalVolumeChallenge!;
+    const g = generateChallenge({
+      seed: this.opts.seed + this.generated, kind: c.kind, heartRate: s.patient.heartRate, respiratoryRate: s.ventilator.rate,
+      baselineSeconds: c.baselineSeconds, challengeSeconds: c.challengeSeconds, sampleRate: this.sampleRate, patientHeightCm: s.patient.heightCm, patientSex: s.patient.sex,
+    });
+    this.generated++;
+    const startTime = this.nextStart / this.sampleRate;
+    for (const part of g.segments) {
+      const window: SyntheticWindow = { channels: part.channels, truth: part.truth };
+      const n = part.channels[0].samples.length;
+      const seg: Segment = { window, first: 0, end: n, start: this.nextStart, context: part.context };
+      this.nextStart += n;
+      this.segments.push(seg);
+      if (this.opts.keepTruth) this.history.push(seg);
+    }
+    this.challenges.push({ startTime, stepTime: startTime + g.segments[0].durationSeconds, truth: g.truth });
   }
 
   private dropBefore(sample: number): void {
