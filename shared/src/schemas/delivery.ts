@@ -5,7 +5,8 @@ import { isoDateTime, pageQuerySchema } from './common';
 export const deliveryStatusSchema = z.enum(['pending', 'waiting-context', 'delivered', 'failed', 'discarded', 'withheld']);
 export type DeliveryStatus = z.infer<typeof deliveryStatusSchema>;
 
-export const deliveredIndexSchema = z.enum(['ppv', 'spv', 'deltaPop', 'perfusionIndex']);
+/** The indices, and the tidal volume challenge an assessment may carry (one more Observation). */
+export const deliveredIndexSchema = z.enum(['ppv', 'spv', 'deltaPop', 'perfusionIndex', 'tidalVolumeChallenge']);
 
 export const deliveryQuerySchema = pageQuerySchema.extend({
   status: deliveryStatusSchema.optional(),
