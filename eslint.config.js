@@ -24,7 +24,10 @@ const featureBoundary = (feature) => ({
         patterns: [
           { regex: '^@/app(/|$)', message: 'Features do not import the app shell (app → features → shared).' },
           { regex: `^@/features/(?!${feature}/)`, message: 'A feature does not import another feature; move what both need to components/, lib/ or hooks/.' },
-          { regex: '^\\.\\./\\.\\./', message: 'Reach code outside this feature through @/… (components, lib, hooks), never by climbing out of the feature folder.' },
+          {
+            regex: '^\\.\\./\\.\\./',
+            message: 'Reach code outside this feature through @/… (components, lib, hooks), never by climbing out of the feature folder.',
+          },
         ],
       },
     ],
@@ -49,11 +52,27 @@ export default tseslint.config(
   {
     files: ['admin-ui/src/**/*.{ts,tsx}'],
     ignores: ['admin-ui/src/**/*.test.{ts,tsx}', 'admin-ui/src/test/**'],
-    rules: { 'no-restricted-globals': ['error', ...['process', 'Buffer', 'global', 'require', '__dirname', '__filename', 'setImmediate'].map((name) => ({ name, message: 'The console runs in the browser: no Node globals.' }))] },
+    rules: {
+      'no-restricted-globals': [
+        'error',
+        ...['process', 'Buffer', 'global', 'require', '__dirname', '__filename', 'setImmediate'].map((name) => ({
+          name,
+          message: 'The console runs in the browser: no Node globals.',
+        })),
+      ],
+    },
   },
   {
     files: ['{gateway,shared,simulator,mock-ehr}/src/**/*.ts'],
-    rules: { 'no-restricted-globals': ['error', ...['window', 'document', 'localStorage', 'sessionStorage', 'navigator'].map((name) => ({ name, message: 'This code runs in Node: no browser globals.' }))] },
+    rules: {
+      'no-restricted-globals': [
+        'error',
+        ...['window', 'document', 'localStorage', 'sessionStorage', 'navigator'].map((name) => ({
+          name,
+          message: 'This code runs in Node: no browser globals.',
+        })),
+      ],
+    },
   },
   // The console's tests run under vitest in Node with a DOM (happy-dom).
   { files: ['admin-ui/src/**/*.test.{ts,tsx}', 'admin-ui/src/test/**'], languageOptions: { globals: { ...globals.browser, ...globals.node } } },
@@ -77,7 +96,11 @@ export default tseslint.config(
     rules: {
       'no-restricted-imports': [
         'error',
-        { patterns: [{ regex: '^(@/|(\\.\\./)+)(app|features)(/|$)', message: 'Shared console code (components, lib, hooks) imports no feature and not the app shell.' }] },
+        {
+          patterns: [
+            { regex: '^(@/|(\\.\\./)+)(app|features)(/|$)', message: 'Shared console code (components, lib, hooks) imports no feature and not the app shell.' },
+          ],
+        },
       ],
     },
   },

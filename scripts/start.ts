@@ -79,7 +79,11 @@ async function main() {
       {
         name: 'mock EHR',
         script: dist('mock-ehr/dist/main.js'),
-        env: { MOCK_EHR_HTTP_PORT: String(mockEhrPort), MOCK_EHR_SMTP_PORT: String(smtpPort), MOCK_EHR_MLLP_PORT: String(port('EBBGATE_HL7_RECEIVER_PORT', 2577)) },
+        env: {
+          MOCK_EHR_HTTP_PORT: String(mockEhrPort),
+          MOCK_EHR_SMTP_PORT: String(smtpPort),
+          MOCK_EHR_MLLP_PORT: String(port('EBBGATE_HL7_RECEIVER_PORT', 2577)),
+        },
         logFile: path.join(dataDir, 'logs/mock-ehr.log'),
         ready: () => httpAnswers(`${mockEhrUrl}/mail`),
       },
@@ -99,7 +103,14 @@ async function main() {
           auth: { jwtSecret: env.EBBGATE_JWT_SECRET ?? secrets.jwtSecret },
           log: { level: env.EBBGATE_LOG_LEVEL ?? 'info' },
           // MLLP over TLS with the demo CA's certificates (made on first start under .data/certs).
-          mllp: { port: mllpPort, tls: { enabled: true, port: port('EBBGATE_MLLP_TLS_PORT', 2576), ...tlsFiles(ensureDemoCertificates(path.join(dataDir, 'certs'), ['demo-simulator', 'load-simulator'])) } },
+          mllp: {
+            port: mllpPort,
+            tls: {
+              enabled: true,
+              port: port('EBBGATE_MLLP_TLS_PORT', 2576),
+              ...tlsFiles(ensureDemoCertificates(path.join(dataDir, 'certs'), ['demo-simulator', 'load-simulator'])),
+            },
+          },
           ehr: { fhirBaseUrl: `${mockEhrUrl}/fhir`, tokenUrl: `${mockEhrUrl}/oauth/token` },
           mail: { smtpPort },
           ...(simulatorOn ? DEMO_OVERRIDES : {}),

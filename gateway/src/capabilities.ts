@@ -29,7 +29,18 @@ export function buildCapabilities(ctx: AppContext, _metrics: Metrics): Capabilit
   const analysis = buildAnalysis(ctx);
   const delivery = buildDelivery(ctx, _metrics);
   return {
-    routers: [authRouter(ctx), usersRouter(ctx), auditRouter(ctx), settingsRouter(ctx), overviewRouter(ctx), boardRouter(ctx), devicesRouter(ctx), ...ingest.routers, ...analysis.routers, ...delivery.routers],
+    routers: [
+      authRouter(ctx),
+      usersRouter(ctx),
+      auditRouter(ctx),
+      settingsRouter(ctx),
+      overviewRouter(ctx),
+      boardRouter(ctx),
+      devicesRouter(ctx),
+      ...ingest.routers,
+      ...analysis.routers,
+      ...delivery.routers,
+    ],
     rawBodyRouters: [...ingest.rawBodyRouters],
     readiness: [...delivery.readiness],
     services: [...ingest.services, ...analysis.services, ...delivery.services],

@@ -5,7 +5,11 @@ import { StartupRefused, startGateway } from './server';
 try {
   const config = loadConfig();
   const gateway = await startGateway({ config, migrate: config.gateway.migrateOnStart, seedDemo: config.gateway.seedDemo });
-  const shutdown = () => void gateway.stop().then(() => process.exit(0), () => process.exit(1));
+  const shutdown = () =>
+    void gateway.stop().then(
+      () => process.exit(0),
+      () => process.exit(1),
+    );
   process.once('SIGINT', shutdown);
   process.once('SIGTERM', shutdown);
   // Started by a launcher with an IPC channel (npm start, npm run cluster): stop when it goes away.

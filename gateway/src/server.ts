@@ -39,7 +39,11 @@ export interface RunningGateway {
 async function warnIfSchemaPrivileges(ds: DataSource, logger: Logger): Promise<void> {
   const grants = ((await ds.query('SHOW GRANTS').catch(() => [])) as Record<string, string>[]).map((r) => Object.values(r)[0] ?? '');
   const broad = grants.filter((g) => /\b(ALL PRIVILEGES|CREATE|DROP|ALTER|TRIGGER|SUPER)\b/.test(g.replace(/IDENTIFIED BY .*/, '')));
-  if (broad.length) logger.warn({ grants: broad.map((g) => g.replace(/IDENTIFIED BY .*/, '')) }, 'the gateway runs as a database user that can change the schema; run it as a data-only user and migrations as DATABASE_MIGRATION_URL');
+  if (broad.length)
+    logger.warn(
+      { grants: broad.map((g) => g.replace(/IDENTIFIED BY .*/, '')) },
+      'the gateway runs as a database user that can change the schema; run it as a data-only user and migrations as DATABASE_MIGRATION_URL',
+    );
 }
 
 export class StartupRefused extends Error {
@@ -57,7 +61,9 @@ export async function startGateway(opts: GatewayOptions): Promise<RunningGateway
     if (config.env === 'production') {
       const unchanged = await unchangedDemoCredentials(ds);
       if (unchanged.length) {
-        throw new StartupRefused(`refusing to start in production: demo credentials unchanged for ${unchanged.join(', ')}; reset their passwords or disable them first`);
+        throw new StartupRefused(
+          `refusing to start in production: demo credentials unchanged for ${unchanged.join(', ')}; reset their passwords or disable them first`,
+        );
       }
     }
   } catch (err) {
@@ -68,11 +74,22 @@ export async function startGateway(opts: GatewayOptions): Promise<RunningGateway
   const ctx: AppContext = { config, ds, logger };
   const metrics = createMetrics();
   const caps = buildCapabilities(ctx, metrics);
-  const app = createApp(ctx, { routers: caps.routers, rawBodyRouters: caps.rawBodyRouters, readiness: caps.readiness, metrics, authenticate: authenticate(ctx) });
+  const app = createApp(ctx, {
+    routers: caps.routers,
+    rawBodyRouters: caps.rawBodyRouters,
+    readiness: caps.readiness,
+    metrics,
+    authenticate: authenticate(ctx),
+  });
   // Slow senders: the headers must arrive within headersTimeout and the whole request within
   // requestTimeout (else 408 and the socket closes); checked every second, not Node's default 30 s.
   const { headersTimeoutMs, requestTimeoutMs } = config.gateway;
-  const httpOptions: ServerOptions = { headersTimeout: Math.min(headersTimeoutMs, requestTimeoutMs), requestTimeout: requestTimeoutMs, connectionsCheckingInterval: 1_000, keepAliveTimeout: 5_000 };
+  const httpOptions: ServerOptions = {
+    headersTimeout: Math.min(headersTimeoutMs, requestTimeoutMs),
+    requestTimeout: requestTimeoutMs,
+    connectionsCheckingInterval: 1_000,
+    keepAliveTimeout: 5_000,
+  };
   const { tls } = config.gateway;
   const file = (f: string) => readFileSync(path.resolve(repoRoot, f));
   const server: Server = tls.enabled
@@ -99,7 +116,8 @@ export async function startGateway(opts: GatewayOptions): Promise<RunningGateway
       const closed = new Promise<void>((resolve) => server.close(() => resolve()));
       server.closeIdleConnections();
       const force = setTimeout(() => server.closeAllConnections(), config.gateway.shutdownGraceMs);
-      if (runServices) for (const s of [...caps.services].reverse()) await s.stop().catch((err) => logger.error({ err, service: s.name }, 'service stop failed'));
+      if (runServices)
+        for (const s of [...caps.services].reverse()) await s.stop().catch((err) => logger.error({ err, service: s.name }, 'service stop failed'));
       await closed;
       clearTimeout(force);
       await ds.destroy();

@@ -37,10 +37,17 @@ export type ResolvedOptions = Required<Omit<MockEhrOptions, 'logger'>> & { logge
 const silent: MockEhrLogger = { info() {}, warn() {}, error() {} };
 
 export function resolveOptions(opts: MockEhrOptions = {}): ResolvedOptions {
-  const pick = <K extends keyof typeof MOCK_EHR_DEFAULTS>(k: K) => (opts[k] ?? MOCK_EHR_DEFAULTS[k]) as (typeof MOCK_EHR_DEFAULTS)[K] extends number ? number : string;
+  const pick = <K extends keyof typeof MOCK_EHR_DEFAULTS>(k: K) =>
+    (opts[k] ?? MOCK_EHR_DEFAULTS[k]) as (typeof MOCK_EHR_DEFAULTS)[K] extends number ? number : string;
   return {
-    host: pick('host'), httpPort: pick('httpPort'), smtpPort: pick('smtpPort'), mllpPort: pick('mllpPort'),
-    seedFile: pick('seedFile'), clientId: pick('clientId'), clientSecret: pick('clientSecret'), tokenTtlSeconds: pick('tokenTtlSeconds'),
+    host: pick('host'),
+    httpPort: pick('httpPort'),
+    smtpPort: pick('smtpPort'),
+    mllpPort: pick('mllpPort'),
+    seedFile: pick('seedFile'),
+    clientId: pick('clientId'),
+    clientSecret: pick('clientSecret'),
+    tokenTtlSeconds: pick('tokenTtlSeconds'),
     logger: opts.logger ?? silent,
   };
 }

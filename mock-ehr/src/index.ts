@@ -18,7 +18,15 @@ import { seedResources } from './seed/seed-resources.js';
 
 export type { MockEhrOptions, MockEhrLogger } from './config.js';
 export { MOCK_EHR_DEFAULTS } from './config.js';
-export { hospitalFileSchema, loadHospitalFile, LOCATION_SYSTEM, MRN_SYSTEM, DEFAULT_HOSPITAL_FILE, type HospitalFile, type HospitalBed } from './seed/hospital-file.js';
+export {
+  hospitalFileSchema,
+  loadHospitalFile,
+  LOCATION_SYSTEM,
+  MRN_SYSTEM,
+  DEFAULT_HOSPITAL_FILE,
+  type HospitalFile,
+  type HospitalBed,
+} from './seed/hospital-file.js';
 export { patientIdFor } from './seed/seed-resources.js';
 export type { FaultRule, FaultSettings } from './faults/fault-rules.js';
 export type { ObservationCounts } from './admin/observation-counts.js';
@@ -85,7 +93,22 @@ export async function startMockEhr(options?: MockEhrOptions): Promise<RunningMoc
       if (!stopped) server.listen(httpPort, opts.host, () => opts.logger.info('mock EHR: HTTP back up'));
     }, durationMs);
   };
-  const app = buildApp({ store, service: new ResourceService(store), tokens, faults, requests, mail, hl7, hospital, reseed, outage, adt, quirks, logger: opts.logger, urls });
+  const app = buildApp({
+    store,
+    service: new ResourceService(store),
+    tokens,
+    faults,
+    requests,
+    mail,
+    hl7,
+    hospital,
+    reseed,
+    outage,
+    adt,
+    quirks,
+    logger: opts.logger,
+    urls,
+  });
   server.on('request', app);
 
   try {
@@ -94,7 +117,11 @@ export async function startMockEhr(options?: MockEhrOptions): Promise<RunningMoc
     const mllpPort = await hl7.start(opts.host, opts.mllpPort);
     opts.logger.info(`mock EHR: FHIR ${urls().fhirBaseUrl}, SMTP ${opts.host}:${smtpPort}, MLLP ${opts.host}:${mllpPort}`);
     return {
-      ...urls(), httpPort, smtpPort, mllpPort, clientId: opts.clientId,
+      ...urls(),
+      httpPort,
+      smtpPort,
+      mllpPort,
+      clientId: opts.clientId,
       async stop() {
         stopped = true;
         clearTimeout(outageTimer);

@@ -26,9 +26,12 @@ for (const signal of ['SIGINT', 'SIGTERM', 'disconnect'] as const) {
   process.on(signal, () => {
     if (stopping) return;
     stopping = true;
-    ehr.stop().then(() => process.exit(0), (err: unknown) => {
-      console.error(err);
-      process.exit(1);
-    });
+    ehr.stop().then(
+      () => process.exit(0),
+      (err: unknown) => {
+        console.error(err);
+        process.exit(1);
+      },
+    );
   });
 }

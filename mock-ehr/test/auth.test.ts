@@ -47,7 +47,8 @@ describe('OAuth2 client credentials and bearer tokens', () => {
   });
 
   it('accepts an HS256 client assertion and rejects one for the wrong audience', async () => {
-    const sign = (aud: string) => jwt.sign({ jti: `j-${aud.length}` }, CLIENT.secret, { algorithm: 'HS256', issuer: CLIENT.id, subject: CLIENT.id, audience: aud, expiresIn: 60 });
+    const sign = (aud: string) =>
+      jwt.sign({ jti: `j-${aud.length}` }, CLIENT.secret, { algorithm: 'HS256', issuer: CLIENT.id, subject: CLIENT.id, audience: aud, expiresIn: 60 });
     const type = 'urn:ietf:params:oauth:client-assertion-type:jwt-bearer';
     const good = await form({ grant_type: 'client_credentials', client_assertion_type: type, client_assertion: sign(ehr.tokenUrl) });
     expect(good.status).toBe(200);

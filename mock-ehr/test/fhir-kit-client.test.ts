@@ -39,7 +39,9 @@ describe('with fhir-kit-client', () => {
 
   it('posts a transaction Bundle', async () => {
     const res = await answer<{ type: string; entry: { response: { status: string } }[] }>(
-      client.transaction({ body: { resourceType: 'Bundle', type: 'transaction', entry: [{ resource: observation('fkc-2'), request: { method: 'POST', url: 'Observation' } }] } }),
+      client.transaction({
+        body: { resourceType: 'Bundle', type: 'transaction', entry: [{ resource: observation('fkc-2'), request: { method: 'POST', url: 'Observation' } }] },
+      }),
     );
     expect(res.type).toBe('transaction-response');
     expect(res.entry[0]!.response.status).toBe('201 Created');

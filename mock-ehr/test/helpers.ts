@@ -25,10 +25,22 @@ export interface FhirAnswer {
   body: any;
 }
 
-export async function fhir(ehr: RunningMockEhr, token: string, method: string, path: string, body?: unknown, headers: Record<string, string> = {}): Promise<FhirAnswer> {
+export async function fhir(
+  ehr: RunningMockEhr,
+  token: string,
+  method: string,
+  path: string,
+  body?: unknown,
+  headers: Record<string, string> = {},
+): Promise<FhirAnswer> {
   const res = await fetch(`${ehr.fhirBaseUrl}/${path.replace(/^\//, '')}`, {
     method,
-    headers: { authorization: `Bearer ${token}`, accept: 'application/fhir+json', ...(body !== undefined ? { 'content-type': 'application/fhir+json' } : {}), ...headers },
+    headers: {
+      authorization: `Bearer ${token}`,
+      accept: 'application/fhir+json',
+      ...(body !== undefined ? { 'content-type': 'application/fhir+json' } : {}),
+      ...headers,
+    },
     body: body === undefined ? undefined : typeof body === 'string' ? body : JSON.stringify(body),
   });
   const text = await res.text();

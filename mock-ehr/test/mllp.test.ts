@@ -38,7 +38,9 @@ const oru = (controlId: string, msh15 = '') =>
     'OBX|1|NM|PPV^Pulse pressure variation^urn:ebbgate:local|1.0.0.1|12.5|%^%^UCUM|||||F',
   ].join('\r');
 
-interface Seg { getField(i: number): unknown }
+interface Seg {
+  getField(i: number): unknown;
+}
 const parse = (ack: string) => new hl7.Parser().parse(ack) as unknown as { getSegment(n: string): Seg | undefined };
 const field = (seg: Seg | undefined, i: number) => String(seg?.getField(i) ?? '');
 

@@ -44,7 +44,11 @@ describe('REST error answers', () => {
 
   it('a fault scoped to the token endpoint answers with an OAuth error body (RFC 6749 §5.2 shape)', async () => {
     await admin(ehr, 'PUT', 'faults', { rules: [{ scope: 'token', errorRate: 1, statusCodes: [503], retryAfterSeconds: 2, remaining: 1 }] });
-    const res = await fetch(ehr.tokenUrl, { method: 'POST', headers: { 'content-type': 'application/x-www-form-urlencoded' }, body: 'grant_type=client_credentials' });
+    const res = await fetch(ehr.tokenUrl, {
+      method: 'POST',
+      headers: { 'content-type': 'application/x-www-form-urlencoded' },
+      body: 'grant_type=client_credentials',
+    });
     expect(res.status).toBe(503);
     expect(res.headers.get('retry-after')).toBe('2');
     expect(((await res.json()) as { error: string }).error).toBe('temporarily_unavailable');

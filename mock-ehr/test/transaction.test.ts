@@ -25,7 +25,8 @@ const post = (resource: Record<string, unknown>, fullUrl?: string, ifNoneExist?:
 describe('transaction Bundles', () => {
   it('creates every entry, rewrites urn:uuid references and answers a status per entry', async () => {
     const bundle = {
-      resourceType: 'Bundle', type: 'transaction',
+      resourceType: 'Bundle',
+      type: 'transaction',
       entry: [
         post(observation('tx-1', { device: { reference: deviceUuid } })),
         post({ resourceType: 'Device', identifier: [{ system: 'urn:ebbgate:test:device', value: 'tx-dev' }] }, deviceUuid),
@@ -53,7 +54,7 @@ describe('transaction Bundles', () => {
     expect(counts.body.byIdentifier['urn:ebbgate:test:result|tx-2']).toBe(1);
   });
 
-  it('answers a repeated conditional create within one Bundle with the first one\'s resource', async () => {
+  it("answers a repeated conditional create within one Bundle with the first one's resource", async () => {
     const entry = post(observation('tx-7'), undefined, 'identifier=urn:ebbgate:test:result|tx-7');
     const a = await fhir(ehr, token, 'POST', '', { resourceType: 'Bundle', type: 'transaction', entry: [entry, entry] });
     expect(a.body.entry.map((e: { response: { status: string } }) => e.response.status)).toEqual(['201 Created', '200 OK']);
@@ -64,7 +65,8 @@ describe('transaction Bundles', () => {
   it('is all or nothing: one invalid entry fails the Bundle and nothing from it is stored', async () => {
     const before = (await admin(ehr, 'GET', 'observations')).body.total as number;
     const bundle = {
-      resourceType: 'Bundle', type: 'transaction',
+      resourceType: 'Bundle',
+      type: 'transaction',
       entry: [post(observation('tx-3a')), post(observation('tx-3b', { status: 'not-a-status' }))],
     };
     const a = await fhir(ehr, token, 'POST', '', bundle);
@@ -80,10 +82,14 @@ describe('transaction Bundles', () => {
     const created = await fhir(ehr, token, 'POST', 'Observation', observation('tx-4'));
     const id = created.body.id as string;
     const bundle = {
-      resourceType: 'Bundle', type: 'transaction',
+      resourceType: 'Bundle',
+      type: 'transaction',
       entry: [
         { resource: { ...observation('tx-4'), id, status: 'amended' }, request: { method: 'PUT', url: `Observation/${id}` } },
-        { resource: observation('tx-4b', { subject: { reference: 'Patient?identifier=urn:ebbgate:demo:mrn|NOBODY' } }), request: { method: 'POST', url: 'Observation' } },
+        {
+          resource: observation('tx-4b', { subject: { reference: 'Patient?identifier=urn:ebbgate:demo:mrn|NOBODY' } }),
+          request: { method: 'POST', url: 'Observation' },
+        },
       ],
     };
     const a = await fhir(ehr, token, 'POST', '', bundle);
@@ -95,7 +101,8 @@ describe('transaction Bundles', () => {
 
   it('resolves conditional references to exactly one resource', async () => {
     const bundle = {
-      resourceType: 'Bundle', type: 'transaction',
+      resourceType: 'Bundle',
+      type: 'transaction',
       entry: [post(observation('tx-5', { subject: { reference: 'Patient?identifier=urn:ebbgate:demo:mrn|HGH-400245' } }))],
     };
     const a = await fhir(ehr, token, 'POST', '', bundle);
@@ -105,7 +112,8 @@ describe('transaction Bundles', () => {
 
   it('a batch answers each entry on its own', async () => {
     const bundle = {
-      resourceType: 'Bundle', type: 'batch',
+      resourceType: 'Bundle',
+      type: 'batch',
       entry: [post(observation('tx-6')), post(observation('tx-6b', { status: 'bogus' }))],
     };
     const a = await fhir(ehr, token, 'POST', '', bundle);

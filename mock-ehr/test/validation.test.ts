@@ -48,7 +48,9 @@ describe('validation of posted resources', () => {
   });
 
   it('enforces obs-6: dataAbsentReason only without a value', async () => {
-    const broken = observation('v-3', { dataAbsentReason: { coding: [{ system: 'http://terminology.hl7.org/CodeSystem/data-absent-reason', code: 'error' }] } });
+    const broken = observation('v-3', {
+      dataAbsentReason: { coding: [{ system: 'http://terminology.hl7.org/CodeSystem/data-absent-reason', code: 'error' }] },
+    });
     expect(holds(OBS_6, broken)).toBe(false);
     const a = await fhir(ehr, token, 'POST', 'Observation', broken);
     expect(a.status).toBe(422);

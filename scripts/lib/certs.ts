@@ -38,7 +38,27 @@ function issue(dir: string, name: string, subject: string, ext: string, days: nu
   openssl(['ecparam', '-name', 'prime256v1', '-genkey', '-noout', '-out', key], dir);
   openssl(['req', '-new', '-key', key, '-subj', subject, '-out', `${name}.csr`], dir);
   writeFileSync(path.join(dir, `${name}.ext`), ext);
-  openssl(['x509', '-req', '-in', `${name}.csr`, '-CA', 'ca.crt', '-CAkey', 'ca.key', '-CAcreateserial', '-days', String(days), '-sha256', '-extfile', `${name}.ext`, '-out', `${name}.crt`], dir);
+  openssl(
+    [
+      'x509',
+      '-req',
+      '-in',
+      `${name}.csr`,
+      '-CA',
+      'ca.crt',
+      '-CAkey',
+      'ca.key',
+      '-CAcreateserial',
+      '-days',
+      String(days),
+      '-sha256',
+      '-extfile',
+      `${name}.ext`,
+      '-out',
+      `${name}.crt`,
+    ],
+    dir,
+  );
 }
 
 /** Makes (or reuses) the demo CA, the gateway certificate and a client certificate for each name. */
@@ -46,14 +66,52 @@ export function ensureDemoCertificates(dir: string, clientNames: string[], days 
   mkdirSync(dir, { recursive: true, mode: 0o700 });
   if (!existsSync(path.join(dir, 'ca.crt')) || !existsSync(path.join(dir, 'ca.key'))) {
     openssl(['ecparam', '-name', 'prime256v1', '-genkey', '-noout', '-out', 'ca.key'], dir);
-    openssl(['req', '-x509', '-new', '-key', 'ca.key', '-sha256', '-days', String(days), '-subj', '/O=Harrowmere General (demo)/CN=Ebbgate demo CA', '-addext', 'basicConstraints=critical,CA:TRUE', '-addext', 'keyUsage=critical,keyCertSign,cRLSign', '-out', 'ca.crt'], dir);
+    openssl(
+      [
+        'req',
+        '-x509',
+        '-new',
+        '-key',
+        'ca.key',
+        '-sha256',
+        '-days',
+        String(days),
+        '-subj',
+        '/O=Harrowmere General (demo)/CN=Ebbgate demo CA',
+        '-addext',
+        'basicConstraints=critical,CA:TRUE',
+        '-addext',
+        'keyUsage=critical,keyCertSign,cRLSign',
+        '-out',
+        'ca.crt',
+      ],
+      dir,
+    );
   }
-  issue(dir, 'gateway', '/O=Harrowmere General (demo)/CN=ebbgate-gateway', 'basicConstraints=CA:FALSE\nkeyUsage=critical,digitalSignature\nextendedKeyUsage=serverAuth\nsubjectAltName=IP:127.0.0.1,IP:::1,DNS:localhost\n', days);
+  issue(
+    dir,
+    'gateway',
+    '/O=Harrowmere General (demo)/CN=ebbgate-gateway',
+    'basicConstraints=CA:FALSE\nkeyUsage=critical,digitalSignature\nextendedKeyUsage=serverAuth\nsubjectAltName=IP:127.0.0.1,IP:::1,DNS:localhost\n',
+    days,
+  );
   const clients = clientNames.map((name) => {
     if (!/^[a-z0-9][a-z0-9-]{0,62}$/.test(name)) throw new Error(`client certificate name "${name}": lower-case letters, digits and dashes only`);
-    issue(dir, `client-${name}`, `/O=Harrowmere General (demo)/CN=${name}`, 'basicConstraints=CA:FALSE\nkeyUsage=critical,digitalSignature\nextendedKeyUsage=clientAuth\n', days);
+    issue(
+      dir,
+      `client-${name}`,
+      `/O=Harrowmere General (demo)/CN=${name}`,
+      'basicConstraints=CA:FALSE\nkeyUsage=critical,digitalSignature\nextendedKeyUsage=clientAuth\n',
+      days,
+    );
     const certFile = path.join(dir, `client-${name}.crt`);
-    return { name, certFile, keyFile: path.join(dir, `client-${name}.key`), fingerprint: fingerprintOf(certFile), subject: new X509Certificate(readFileSync(certFile)).subject.replace(/\n/g, ',') };
+    return {
+      name,
+      certFile,
+      keyFile: path.join(dir, `client-${name}.key`),
+      fingerprint: fingerprintOf(certFile),
+      subject: new X509Certificate(readFileSync(certFile)).subject.replace(/\n/g, ','),
+    };
   });
   return { dir, caFile: path.join(dir, 'ca.crt'), certFile: path.join(dir, 'gateway.crt'), keyFile: path.join(dir, 'gateway.key'), clients };
 }

@@ -182,14 +182,25 @@ export async function startClusterStack(opts: ClusterStackOptions): Promise<Clus
 
     const databaseUrl = galera.appUrlFor(ports.lbSql);
     const migrate = unitCommand('ebbgate-migrate.service');
-    await runOnce('db:migrate', migrate.file, migrate.args, { ...migrate.env, NODE_ENV: 'development', DATABASE_URL: galera.adminUrlFor(ports.lbSql), DATABASE_MIGRATION_URL: galera.adminUrlFor(ports.lbSql) }, log);
+    await runOnce(
+      'db:migrate',
+      migrate.file,
+      migrate.args,
+      { ...migrate.env, NODE_ENV: 'development', DATABASE_URL: galera.adminUrlFor(ports.lbSql), DATABASE_MIGRATION_URL: galera.adminUrlFor(ports.lbSql) },
+      log,
+    );
 
     const mockEhrUrl = `http://127.0.0.1:${ports.mockEhr}`;
     const mockEhr = supervise(
       {
         name: 'mock EHR',
         script: path.join(repoRoot, 'mock-ehr/dist/main.js'),
-        env: { MOCK_EHR_HTTP_PORT: String(ports.mockEhr), MOCK_EHR_SMTP_PORT: String(ports.smtp), MOCK_EHR_MLLP_PORT: String(ports.hl7Receiver), ...(opts.mockEhrSeedFile ? { MOCK_EHR_SEED_FILE: opts.mockEhrSeedFile } : {}) },
+        env: {
+          MOCK_EHR_HTTP_PORT: String(ports.mockEhr),
+          MOCK_EHR_SMTP_PORT: String(ports.smtp),
+          MOCK_EHR_MLLP_PORT: String(ports.hl7Receiver),
+          ...(opts.mockEhrSeedFile ? { MOCK_EHR_SEED_FILE: opts.mockEhrSeedFile } : {}),
+        },
         logFile: path.join(dir, 'logs/mock-ehr.log'),
         ready: () => httpAnswers(`${mockEhrUrl}/mail`),
       },

@@ -37,7 +37,9 @@ export function galeraAvailable(): boolean {
 }
 
 function mysqlUser(): { uid: number; gid: number } | undefined {
-  const line = readFileSync('/etc/passwd', 'utf8').split('\n').find((l) => l.startsWith('mysql:'));
+  const line = readFileSync('/etc/passwd', 'utf8')
+    .split('\n')
+    .find((l) => l.startsWith('mysql:'));
   if (!line) return undefined;
   const [, , uid, gid] = line.split(':');
   return { uid: Number(uid), gid: Number(gid) };
@@ -176,12 +178,20 @@ function makeNode(i: number, baseDir: string, basePort: number, gcomm: string, o
     }
     if (!existsSync(path.join(dataDir, 'mysql'))) {
       const install = () =>
-        execFileSync('mariadb-install-db', ['--no-defaults', `--datadir=${dataDir}`, '--user=mysql', '--auth-root-authentication-method=normal', '--skip-test-db'], { stdio: 'pipe' });
+        execFileSync(
+          'mariadb-install-db',
+          ['--no-defaults', `--datadir=${dataDir}`, '--user=mysql', '--auth-root-authentication-method=normal', '--skip-test-db'],
+          { stdio: 'pipe' },
+        );
       try {
         install();
       } catch (err) {
         // Seen once under heavy load; a second attempt on a clean folder, then the tool's own output.
-        log(`galera ${name}: mariadb-install-db failed (${String((err as { stderr?: Buffer }).stderr ?? err).trim().slice(-300)}); trying again`);
+        log(
+          `galera ${name}: mariadb-install-db failed (${String((err as { stderr?: Buffer }).stderr ?? err)
+            .trim()
+            .slice(-300)}); trying again`,
+        );
         rmSync(dataDir, { recursive: true, force: true });
         mkdirSync(dataDir, { recursive: true });
         chownSync(dataDir, owner.uid, owner.gid);
@@ -212,7 +222,9 @@ function makeNode(i: number, baseDir: string, basePort: number, gcomm: string, o
   const status = async (): Promise<Record<string, string>> => {
     const conn = await root();
     try {
-      const rows = (await conn.query("SHOW GLOBAL STATUS WHERE Variable_name IN ('wsrep_local_state_comment','wsrep_cluster_size','wsrep_ready','wsrep_cluster_status','wsrep_connected')")) as { Variable_name: string; Value: string }[];
+      const rows = (await conn.query(
+        "SHOW GLOBAL STATUS WHERE Variable_name IN ('wsrep_local_state_comment','wsrep_cluster_size','wsrep_ready','wsrep_cluster_status','wsrep_connected')",
+      )) as { Variable_name: string; Value: string }[];
       return Object.fromEntries(rows.map((r) => [r.Variable_name, r.Value]));
     } finally {
       await conn.end();

@@ -91,16 +91,14 @@ export function migrationCredentials(user: string, password: string): { user: st
  * (`<user>_mig`, password from `migrationCredentials`) with every privilege on this database.
  * Re-running it narrows an application user left with broader grants by an older version.
  */
-export async function provisionDatabase(
-  conn: mariadb.Connection,
-  database: string,
-  user: string,
-  password: string,
-): Promise<void> {
+export async function provisionDatabase(conn: mariadb.Connection, database: string, user: string, password: string): Promise<void> {
   if (!/^[a-zA-Z0-9_]+$/.test(database) || !/^[a-zA-Z0-9_]+$/.test(user)) throw new Error('bad database or user name');
   const migration = migrationCredentials(user, password);
   await conn.query(`CREATE DATABASE IF NOT EXISTS \`${database}\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci`);
-  for (const [name, secret] of [[user, password], [migration.user, migration.password]] as const) {
+  for (const [name, secret] of [
+    [user, password],
+    [migration.user, migration.password],
+  ] as const) {
     await conn.query(`CREATE USER IF NOT EXISTS '${name}'@'127.0.0.1' IDENTIFIED BY ?`, [secret]);
     await conn.query(`ALTER USER '${name}'@'127.0.0.1' IDENTIFIED BY ?`, [secret]);
   }
@@ -212,11 +210,9 @@ export async function startPrivateMariaDb(opts: StartOptions): Promise<PrivateMa
   }
   if (!existsSync(path.join(dataDir, 'mysql'))) {
     mkdirSync(dataDir, { recursive: true });
-    execFileSync(
-      'mariadb-install-db',
-      ['--no-defaults', `--datadir=${dataDir}`, '--user=root', '--auth-root-authentication-method=normal', '--skip-test-db'],
-      { stdio: 'ignore' },
-    );
+    execFileSync('mariadb-install-db', ['--no-defaults', `--datadir=${dataDir}`, '--user=root', '--auth-root-authentication-method=normal', '--skip-test-db'], {
+      stdio: 'ignore',
+    });
   }
   const child = spawn(
     mariadbdPath(),

@@ -45,7 +45,8 @@ export function supervise(spec: ChildSpec, log: (m: string) => void): Supervised
   }
 
   const prefix = (chunk: Buffer) => {
-    for (const line of chunk.toString('utf8').split('\n')) if (line.trim()) log(line.startsWith(`${spec.name}:`) || line.startsWith('ebbgate:') ? line : `${spec.name}: ${line}`);
+    for (const line of chunk.toString('utf8').split('\n'))
+      if (line.trim()) log(line.startsWith(`${spec.name}:`) || line.startsWith('ebbgate:') ? line : `${spec.name}: ${line}`);
   };
 
   const launch = async (): Promise<void> => {
@@ -77,7 +78,9 @@ export function supervise(spec: ChildSpec, log: (m: string) => void): Supervised
       }, delay).unref();
     });
     if (spec.ready) {
-      const exited = new Promise<never>((_, reject) => c.once('exit', (code, signal) => reject(new Error(`${spec.name} exited during start (${signal ?? `code ${code}`})`))));
+      const exited = new Promise<never>((_, reject) =>
+        c.once('exit', (code, signal) => reject(new Error(`${spec.name} exited during start (${signal ?? `code ${code}`})`))),
+      );
       await Promise.race([spec.ready(c), exited]);
     }
   };

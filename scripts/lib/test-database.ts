@@ -26,7 +26,12 @@ function adminUrl(): string {
 
 async function adminConnection(): Promise<mariadb.Connection> {
   const u = new URL(adminUrl());
-  return mariadb.createConnection({ host: u.hostname, port: Number(u.port || 3306), user: decodeURIComponent(u.username), password: decodeURIComponent(u.password) });
+  return mariadb.createConnection({
+    host: u.hostname,
+    port: Number(u.port || 3306),
+    user: decodeURIComponent(u.username),
+    password: decodeURIComponent(u.password),
+  });
 }
 
 export async function createTestDatabase(): Promise<TestDatabase> {

@@ -60,9 +60,24 @@ async function main(): Promise<void> {
   try {
     args = parseArgs({
       options: {
-        monitors: { type: 'string' }, interval: { type: 'string' }, transport: { type: 'string' }, gateway: { type: 'string' },
-        'mllp-host': { type: 'string' }, 'mllp-port': { type: 'string' }, 'tls-cert': { type: 'string' }, 'tls-key': { type: 'string' }, 'tls-ca': { type: 'string' }, connections: { type: 'string' }, sockets: { type: 'string' }, keys: { type: 'string' }, provision: { type: 'boolean' },
-        scenario: { type: 'string' }, duration: { type: 'string' }, backfill: { type: 'string' }, spool: { type: 'string' }, help: { type: 'boolean' },
+        monitors: { type: 'string' },
+        interval: { type: 'string' },
+        transport: { type: 'string' },
+        gateway: { type: 'string' },
+        'mllp-host': { type: 'string' },
+        'mllp-port': { type: 'string' },
+        'tls-cert': { type: 'string' },
+        'tls-key': { type: 'string' },
+        'tls-ca': { type: 'string' },
+        connections: { type: 'string' },
+        sockets: { type: 'string' },
+        keys: { type: 'string' },
+        provision: { type: 'boolean' },
+        scenario: { type: 'string' },
+        duration: { type: 'string' },
+        backfill: { type: 'string' },
+        spool: { type: 'string' },
+        help: { type: 'boolean' },
       },
     }).values;
   } catch (err) {
@@ -99,23 +114,44 @@ async function main(): Promise<void> {
 
   // Load runs loop steady scenarios; a tidal volume challenge changes its context mid-stream, so it
   // runs only when asked for, each monitor on its own stream (the shared loop keeps no context).
-  const scenarioIds: ScenarioId[] = args.scenario ? [args.scenario as ScenarioId] : SCENARIO_IDS.filter((id) => SCENARIOS[id].expect.outcome === 'assessed' && !SCENARIOS[id].tidalVolumeChallenge);
+  const scenarioIds: ScenarioId[] = args.scenario
+    ? [args.scenario as ScenarioId]
+    : SCENARIO_IDS.filter((id) => SCENARIOS[id].expect.outcome === 'assessed' && !SCENARIOS[id].tidalVolumeChallenge);
   const loops = new Map(scenarioIds.filter((id) => !SCENARIOS[id].tidalVolumeChallenge).map((id) => [id, new SharedLoop(SCENARIOS[id])]));
   const start = new Date(Date.now() - num(args.backfill, 'backfill', 1e-9) * 1000);
   const feeds = identifiers.map((identifier, i) => {
     const id = scenarioIds[i % scenarioIds.length];
     // Spread monitors over the batch period so they do not all send on the same tick.
     const startTime = new Date(start.getTime() + Math.round(((i % 1000) / 1000) * interval * 1000) - interval * 1000);
-    return new MonitorFeed({ identifier, scenario: SCENARIOS[id], source: SCENARIOS[id].tidalVolumeChallenge ? new BedStream({ scenario: SCENARIOS[id], seed: 1000 + i }) : loops.get(id)!.reader((i * 7.3) % 100), transport, batchSeconds: interval, startTime });
+    return new MonitorFeed({
+      identifier,
+      scenario: SCENARIOS[id],
+      source: SCENARIOS[id].tidalVolumeChallenge ? new BedStream({ scenario: SCENARIOS[id], seed: 1000 + i }) : loops.get(id)!.reader((i * 7.3) % 100),
+      transport,
+      batchSeconds: interval,
+      startTime,
+    });
   });
   const scenarioOf = new Map(feeds.map((f) => [f.identifier, f.scenario]));
 
   const tlsFiles = [args['tls-cert'], args['tls-key'], args['tls-ca']];
   if (tlsFiles.some(Boolean) && !tlsFiles.every(Boolean)) fail('--tls-cert, --tls-key and --tls-ca go together');
-  const mllpTls = args['tls-cert'] ? { cert: await readFile(args['tls-cert']), key: await readFile(args['tls-key']!), ca: await readFile(args['tls-ca']!) } : undefined;
+  const mllpTls = args['tls-cert']
+    ? { cert: await readFile(args['tls-cert']), key: await readFile(args['tls-key']!), ca: await readFile(args['tls-ca']!) }
+    : undefined;
   const mllpPortDefault = mllpTls ? 2576 : 2575;
   const latencies: number[] = [];
-  const base = simulatorTransport({ transport, gatewayUrl, httpSockets: Math.round(num(args.sockets, 'sockets', 64)), apiKeys: new Map(Object.entries(keys)), mllpHost: args['mllp-host'], mllpPort: num(args['mllp-port'], 'mllp-port', mllpPortDefault), mllpTls, mllpConnections: Math.round(num(args.connections, 'connections', Math.min(identifiers.length, 32))), scenarioOf: (id) => scenarioOf.get(id) });
+  const base = simulatorTransport({
+    transport,
+    gatewayUrl,
+    httpSockets: Math.round(num(args.sockets, 'sockets', 64)),
+    apiKeys: new Map(Object.entries(keys)),
+    mllpHost: args['mllp-host'],
+    mllpPort: num(args['mllp-port'], 'mllp-port', mllpPortDefault),
+    mllpTls,
+    mllpConnections: Math.round(num(args.connections, 'connections', Math.min(identifiers.length, 32))),
+    scenarioOf: (id) => scenarioOf.get(id),
+  });
   const timed: BatchTransport = {
     name: base.name,
     async send(b) {
@@ -137,7 +173,9 @@ async function main(): Promise<void> {
       if (e.kind === 'rejected' || e.kind === 'retrying') reasons.set(e.reason.slice(0, 120), (reasons.get(e.reason.slice(0, 120)) ?? 0) + 1);
     },
   });
-  console.log(`simulate: ${feeds.length} monitors, ${interval}-s batches over ${transport} → ${transport === 'http' ? gatewayUrl : `${args['mllp-host'] ?? '127.0.0.1'}:${args['mllp-port'] ?? mllpPortDefault}${mllpTls ? ' (TLS)' : ''}`} (target ${(feeds.length / interval).toFixed(1)} batches/s); spool ${spoolDir}`);
+  console.log(
+    `simulate: ${feeds.length} monitors, ${interval}-s batches over ${transport} → ${transport === 'http' ? gatewayUrl : `${args['mllp-host'] ?? '127.0.0.1'}:${args['mllp-port'] ?? mllpPortDefault}${mllpTls ? ' (TLS)' : ''}`} (target ${(feeds.length / interval).toFixed(1)} batches/s); spool ${spoolDir}`,
+  );
 
   let last = { at: performance.now(), accepted: 0, retries: 0, rejected: 0 };
   const report = () => {
@@ -172,7 +210,9 @@ async function main(): Promise<void> {
     await sender.close();
     report();
     const s = sender.stats;
-    console.log(`simulate: done: ${s.accepted} accepted (${s.repeats} repeats), ${s.rejected} refused, ${s.retries} retries, ${sender.pending()} left in ${spoolDir}`);
+    console.log(
+      `simulate: done: ${s.accepted} accepted (${s.repeats} repeats), ${s.rejected} refused, ${s.retries} retries, ${sender.pending()} left in ${spoolDir}`,
+    );
     process.exit(0);
   };
   process.once('SIGINT', () => void stop());

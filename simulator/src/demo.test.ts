@@ -48,7 +48,14 @@ describe('runDemoScenario', () => {
     const monitors = [DEMO_MONITORS[0], DEMO_MONITORS[8]].map((m, i) => ({ identifier: m.identifier, apiKey: `key-${i}` }));
     const lines: string[] = [];
     const t0 = Date.now();
-    const demo = runDemoScenario({ gatewayUrl: gw.url, mockEhrUrl: ehr.url, monitors, spoolDir, log: (m) => lines.push(m), ehrOutage: { atSeconds: 1, durationSeconds: 1 } });
+    const demo = runDemoScenario({
+      gatewayUrl: gw.url,
+      mockEhrUrl: ehr.url,
+      monitors,
+      spoolDir,
+      log: (m) => lines.push(m),
+      ehrOutage: { atSeconds: 1, durationSeconds: 1 },
+    });
     await demo.ready;
     await new Promise((r) => setTimeout(r, 3200));
     await demo.stop();

@@ -43,7 +43,9 @@ export interface DemoOptions {
 export const DEMO_ADT = {
   transfer: { atSeconds: 150, from: 'ICU-03', to: 'ICU-05' },
   dischargeAdmit: {
-    atSeconds: 240, location: 'OR-02', admitAfterSeconds: 30,
+    atSeconds: 240,
+    location: 'OR-02',
+    admitAfterSeconds: 30,
     patient: { mrn: 'HGH-400877', family: 'Wrenfield-Moss', given: ['Tamsin'], sex: 'female' as const, birthDate: '1967-09-21' },
   },
 };
@@ -79,7 +81,14 @@ export function runDemoScenario(opts: DemoOptions): RunningDemo {
   const feeds = opts.monitors.map((m, i) => {
     const scenario = assignScenario(m, i);
     scenarios.set(m.identifier, scenario);
-    return new MonitorFeed({ identifier: m.identifier, scenario, source: new BedStream({ scenario, seed: 1000 + i * 17 }), transport, batchSeconds, startTime: start });
+    return new MonitorFeed({
+      identifier: m.identifier,
+      scenario,
+      source: new BedStream({ scenario, seed: 1000 + i * 17 }),
+      transport,
+      batchSeconds,
+      startTime: start,
+    });
   });
   const apiKeys = new Map(opts.monitors.map((m) => [m.identifier, m.apiKey]));
   const timers: NodeJS.Timeout[] = [];
@@ -115,15 +124,37 @@ export function runDemoScenario(opts: DemoOptions): RunningDemo {
     if (adt) {
       const post = async (p: string, body: object, message: string) => {
         if (stopped) return;
-        const res = await fetch(new URL(`/_admin/adt/${p}`, opts.mockEhrUrl), { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify(body) });
+        const res = await fetch(new URL(`/_admin/adt/${p}`, opts.mockEhrUrl), {
+          method: 'POST',
+          headers: { 'content-type': 'application/json' },
+          body: JSON.stringify(body),
+        });
         if (!res.ok) throw new Error(`mock EHR answered ${res.status} to ${p}: ${await res.text()}`);
         log(message);
       };
       const t = adt.transfer;
-      timers.push(setTimeout(() => void post('transfer', { from: t.from, to: t.to }, `EHR: patient in ${t.from} transferred to ${t.to}`).catch((e) => log(String(e))), t.atSeconds * 1000));
+      timers.push(
+        setTimeout(
+          () => void post('transfer', { from: t.from, to: t.to }, `EHR: patient in ${t.from} transferred to ${t.to}`).catch((e) => log(String(e))),
+          t.atSeconds * 1000,
+        ),
+      );
       const d = adt.dischargeAdmit;
-      timers.push(setTimeout(() => void post('discharge', { location: d.location }, `EHR: patient in ${d.location} discharged`).catch((e) => log(String(e))), d.atSeconds * 1000));
-      timers.push(setTimeout(() => void post('admit', { location: d.location, patient: d.patient }, `EHR: new patient ${d.patient.mrn} admitted to ${d.location}`).catch((e) => log(String(e))), (d.atSeconds + d.admitAfterSeconds) * 1000));
+      timers.push(
+        setTimeout(
+          () => void post('discharge', { location: d.location }, `EHR: patient in ${d.location} discharged`).catch((e) => log(String(e))),
+          d.atSeconds * 1000,
+        ),
+      );
+      timers.push(
+        setTimeout(
+          () =>
+            void post('admit', { location: d.location, patient: d.patient }, `EHR: new patient ${d.patient.mrn} admitted to ${d.location}`).catch((e) =>
+              log(String(e)),
+            ),
+          (d.atSeconds + d.admitAfterSeconds) * 1000,
+        ),
+      );
     }
   })();
 

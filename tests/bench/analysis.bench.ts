@@ -17,7 +17,19 @@ const HOUR = 3600;
 const WINDOW = 60;
 const REPEATS = 10;
 
-const hour = generateWindow({ seed: 2026, heartRate: 88, respiratoryRate: 16, ppv: 12, durationSeconds: HOUR, sampleRate: FS, channels: ['abp', 'paw'], disturbances: [{ kind: 'noise', level: 0.01 }, { kind: 'ectopic', count: 40 }] });
+const hour = generateWindow({
+  seed: 2026,
+  heartRate: 88,
+  respiratoryRate: 16,
+  ppv: 12,
+  durationSeconds: HOUR,
+  sampleRate: FS,
+  channels: ['abp', 'paw'],
+  disturbances: [
+    { kind: 'noise', level: 0.01 },
+    { kind: 'ectopic', count: 40 },
+  ],
+});
 const abp = hour.channels.find((c) => c.role === 'abp')!.samples;
 const paw = hour.channels.find((c) => c.role === 'paw')!.samples;
 const totalSamples = abp.length + paw.length;
@@ -39,7 +51,13 @@ function runWindows(): number {
 
 /** The whole hour as one window. */
 function runHour(): number {
-  return analyseWindow({ channels: [{ role: 'abp', sampleRate: FS, unit: 'mmHg', samples: abp }, { role: 'paw', sampleRate: FS, unit: 'cmH2O', samples: paw }], context }).cycles.length;
+  return analyseWindow({
+    channels: [
+      { role: 'abp', sampleRate: FS, unit: 'mmHg', samples: abp },
+      { role: 'paw', sampleRate: FS, unit: 'cmH2O', samples: paw },
+    ],
+    context,
+  }).cycles.length;
 }
 
 /**
@@ -73,21 +91,42 @@ const dir = mkdtempSync(join(tmpdir(), 'ebbgate-bench-'));
 writeFileSync(join(dir, 'abp.f64'), Buffer.from(abp.buffer, abp.byteOffset, abp.byteLength));
 writeFileSync(join(dir, 'paw.f64'), Buffer.from(paw.buffer, paw.byteOffset, paw.byteLength));
 const script = fileURLToPath(new URL('./analysis_scipy.py', import.meta.url));
-let py: { windowsSeconds: number; hourSeconds: number; windowsWall: number; hourWall: number; cyclesWindows: number; cyclesHour: number; numpy: string; scipy: string } | null = null;
+let py: {
+  windowsSeconds: number;
+  hourSeconds: number;
+  windowsWall: number;
+  hourWall: number;
+  cyclesWindows: number;
+  cyclesHour: number;
+  numpy: string;
+  scipy: string;
+} | null = null;
 try {
-  py = JSON.parse(execFileSync('/usr/bin/python3', [script, dir, String(FS), String(WINDOW), String(REPEATS)], { encoding: 'utf8', stdio: ['ignore', 'pipe', 'inherit'] }));
+  py = JSON.parse(
+    execFileSync('/usr/bin/python3', [script, dir, String(FS), String(WINDOW), String(REPEATS)], { encoding: 'utf8', stdio: ['ignore', 'pipe', 'inherit'] }),
+  );
 } catch (e) {
   console.error(`NumPy/SciPy pipeline not run: ${(e as Error).message}`);
 }
 
 console.log(`Analysis pipeline benchmark: 1 h of abp + paw at ${FS} Hz = ${totalSamples.toLocaleString('en')} samples, best of ${REPEATS}`);
 console.log(`  (CPU time of one core; wall-clock figures in brackets; load average now ${loadavg()[0].toFixed(1)} on ${cpus().length} cores)`);
-console.log(`  TypeScript, 60 s windows  : ${(win.seconds * 1000).toFixed(1)} ms  ${mega(win.seconds)} M samples/s  [wall ${mega(win.wall)}]  (${win.check} cycles)`);
-console.log(`  TypeScript, one 1 h window: ${(whole.seconds * 1000).toFixed(1)} ms  ${mega(whole.seconds)} M samples/s  [wall ${mega(whole.wall)}]  (${whole.check} cycles)`);
+console.log(
+  `  TypeScript, 60 s windows  : ${(win.seconds * 1000).toFixed(1)} ms  ${mega(win.seconds)} M samples/s  [wall ${mega(win.wall)}]  (${win.check} cycles)`,
+);
+console.log(
+  `  TypeScript, one 1 h window: ${(whole.seconds * 1000).toFixed(1)} ms  ${mega(whole.seconds)} M samples/s  [wall ${mega(whole.wall)}]  (${whole.check} cycles)`,
+);
 if (py) {
-  console.log(`  NumPy ${py.numpy} / SciPy ${py.scipy}, 60 s windows  : ${(py.windowsSeconds * 1000).toFixed(1)} ms  ${mega(py.windowsSeconds)} M samples/s  [wall ${mega(py.windowsWall)}]  (${py.cyclesWindows} cycles)`);
-  console.log(`  NumPy ${py.numpy} / SciPy ${py.scipy}, one 1 h window: ${(py.hourSeconds * 1000).toFixed(1)} ms  ${mega(py.hourSeconds)} M samples/s  [wall ${mega(py.hourWall)}]  (${py.cyclesHour} cycles)`);
-  console.log(`  ratio TypeScript / SciPy: ${(py.windowsSeconds / win.seconds).toFixed(2)}× (60 s windows), ${(py.hourSeconds / whole.seconds).toFixed(2)}× (1 h window)`);
+  console.log(
+    `  NumPy ${py.numpy} / SciPy ${py.scipy}, 60 s windows  : ${(py.windowsSeconds * 1000).toFixed(1)} ms  ${mega(py.windowsSeconds)} M samples/s  [wall ${mega(py.windowsWall)}]  (${py.cyclesWindows} cycles)`,
+  );
+  console.log(
+    `  NumPy ${py.numpy} / SciPy ${py.scipy}, one 1 h window: ${(py.hourSeconds * 1000).toFixed(1)} ms  ${mega(py.hourSeconds)} M samples/s  [wall ${mega(py.hourWall)}]  (${py.cyclesHour} cycles)`,
+  );
+  console.log(
+    `  ratio TypeScript / SciPy: ${(py.windowsSeconds / win.seconds).toFixed(2)}× (60 s windows), ${(py.hourSeconds / whole.seconds).toFixed(2)}× (1 h window)`,
+  );
 }
 console.log(`  OPENBLAS_CORETYPE ${process.env.OPENBLAS_CORETYPE ?? 'unset'} (the NumPy side uses BLAS for one matrix-vector product only)`);
 console.log(`  goal: ≥ 20 M samples/s on one core and ahead of SciPy`);

@@ -60,7 +60,14 @@ function benchHospital(n: number, file: string): void {
       encounterId: `enc-bench-${k}`,
     };
   });
-  writeFileSync(file, JSON.stringify({ hospital: { name: 'Benchmark General (invented)', identifier: { system: 'urn:ebbgate:bench:organization', value: 'BENCH' } }, units: [{ code: 'ICU', name: 'Benchmark ICU' }], beds }));
+  writeFileSync(
+    file,
+    JSON.stringify({
+      hospital: { name: 'Benchmark General (invented)', identifier: { system: 'urn:ebbgate:bench:organization', value: 'BENCH' } },
+      units: [{ code: 'ICU', name: 'Benchmark ICU' }],
+      beds,
+    }),
+  );
 }
 
 function procStat(pid: number): { cpuS: number; rssMb: number } {
@@ -103,7 +110,12 @@ async function singlePipeline(hospitalFile: string): Promise<Pipeline> {
     {
       name: 'mock EHR',
       script: path.join(repoRoot, 'mock-ehr/dist/main.js'),
-      env: { MOCK_EHR_HTTP_PORT: String(ehrPort), MOCK_EHR_SMTP_PORT: String(await freePort()), MOCK_EHR_MLLP_PORT: String(await freePort()), MOCK_EHR_SEED_FILE: hospitalFile },
+      env: {
+        MOCK_EHR_HTTP_PORT: String(ehrPort),
+        MOCK_EHR_SMTP_PORT: String(await freePort()),
+        MOCK_EHR_MLLP_PORT: String(await freePort()),
+        MOCK_EHR_SEED_FILE: hospitalFile,
+      },
       ready: () => httpAnswers(`http://127.0.0.1:${ehrPort}/mail`),
     },
     () => {},
@@ -193,7 +205,18 @@ async function addBeds(p: Pipeline, from: number, to: number, profileId: string,
     const key = await api.post(`/monitors/${m.body.id}/api-key`);
     // Start times spread over one batch length so the beds do not all send in the same instant.
     const start = new Date(Math.floor(now / 1000) * 1000 - Math.floor(Math.random() * BATCH_S * 1000));
-    out.push({ identifier, apiKey: key.body.apiKey as string, feed: new MonitorFeed({ identifier, scenario: SCENARIO, source: loop.reader(Math.random() * 100), transport: 'http', batchSeconds: BATCH_S, startTime: start }) });
+    out.push({
+      identifier,
+      apiKey: key.body.apiKey as string,
+      feed: new MonitorFeed({
+        identifier,
+        scenario: SCENARIO,
+        source: loop.reader(Math.random() * 100),
+        transport: 'http',
+        batchSeconds: BATCH_S,
+        startTime: start,
+      }),
+    });
   }
   void p;
   return out;
@@ -221,7 +244,13 @@ async function runPipeline(p: Pipeline): Promise<void> {
   if (prof.status !== 201) throw new Error(`profile: ${prof.status} ${JSON.stringify(prof.body)}`);
   const loop = new SharedLoop(SCENARIO, 120, 3);
   const u = new URL(p.adminUrl);
-  const sql = await mariadb.createConnection({ host: u.hostname, port: Number(u.port), user: decodeURIComponent(u.username), password: decodeURIComponent(u.password), database: u.pathname.slice(1) });
+  const sql = await mariadb.createConnection({
+    host: u.hostname,
+    port: Number(u.port),
+    user: decodeURIComponent(u.username),
+    password: decodeURIComponent(u.password),
+    database: u.pathname.slice(1),
+  });
   const beds: Bed[] = [];
   let latencies: number[] = [];
   let failures = 0;
@@ -233,7 +262,11 @@ async function runPipeline(p: Pipeline): Promise<void> {
     inFlight++;
     const t = performance.now();
     try {
-      const res = await fetch(`${p.url}/api/v1/ingest/batches`, { method: 'POST', headers: { 'content-type': 'application/json', authorization: `Bearer ${b.apiKey}` }, body: JSON.stringify(batch) });
+      const res = await fetch(`${p.url}/api/v1/ingest/batches`, {
+        method: 'POST',
+        headers: { 'content-type': 'application/json', authorization: `Bearer ${b.apiKey}` },
+        body: JSON.stringify(batch),
+      });
       await res.arrayBuffer();
       latencies.push(performance.now() - t);
       if (res.status >= 300) failures++;
@@ -267,7 +300,9 @@ async function runPipeline(p: Pipeline): Promise<void> {
       failures = 0;
       sent = 0;
       const t0 = new Date();
-      const cpu0 = Object.fromEntries(Object.entries({ ...p.pids(), 'load generator': process.pid }).map(([k, pid]) => [k, pid ? procStat(pid).cpuS : Number.NaN]));
+      const cpu0 = Object.fromEntries(
+        Object.entries({ ...p.pids(), 'load generator': process.pid }).map(([k, pid]) => [k, pid ? procStat(pid).cpuS : Number.NaN]),
+      );
       const w0 = performance.now();
       await sleep(HOLD_S * 1000);
       const wall = (performance.now() - w0) / 1000;
@@ -278,22 +313,35 @@ async function runPipeline(p: Pipeline): Promise<void> {
           return `${k} ${(((s.cpuS - (cpu0[k] ?? Number.NaN)) / wall) * 100).toFixed(0)} % CPU ${s.rssMb.toFixed(0)} MB`;
         })
         .join(', ');
-      const lags = (await sql.query('SELECT TIMESTAMPDIFF(MICROSECOND, window_end, done_at) / 1e6 AS lag FROM analysis_window WHERE done_at BETWEEN ? AND ?', [t0, t1])) as { lag: number }[];
-      const [due] = (await sql.query("SELECT TIMESTAMPDIFF(MICROSECOND, MIN(window_end), UTC_TIMESTAMP(3)) / 1e6 AS age FROM analysis_window WHERE status = 'due'")) as { age: number | null }[];
+      const lags = (await sql.query('SELECT TIMESTAMPDIFF(MICROSECOND, window_end, done_at) / 1e6 AS lag FROM analysis_window WHERE done_at BETWEEN ? AND ?', [
+        t0,
+        t1,
+      ])) as { lag: number }[];
+      const [due] = (await sql.query(
+        "SELECT TIMESTAMPDIFF(MICROSECOND, MIN(window_end), UTC_TIMESTAMP(3)) / 1e6 AS age FROM analysis_window WHERE status = 'due'",
+      )) as { age: number | null }[];
       const dlags = (await sql.query(
         "SELECT TIMESTAMPDIFF(MICROSECOND, a.window_end, d.delivered_at) / 1e6 AS lag FROM delivery d JOIN assessment a ON a.id = d.assessment_id WHERE d.status = 'delivered' AND d.kind = 'create' AND d.delivered_at BETWEEN ? AND ?",
         [t0, t1],
       )) as { lag: number }[];
-      const [pend] = (await sql.query("SELECT TIMESTAMPDIFF(MICROSECOND, MIN(a.window_end), UTC_TIMESTAMP(3)) / 1e6 AS age FROM delivery d JOIN assessment a ON a.id = d.assessment_id WHERE d.status = 'pending'")) as { age: number | null }[];
+      const [pend] = (await sql.query(
+        "SELECT TIMESTAMPDIFF(MICROSECOND, MIN(a.window_end), UTC_TIMESTAMP(3)) / 1e6 AS age FROM delivery d JOIN assessment a ON a.id = d.assessment_id WHERE d.status = 'pending'",
+      )) as { age: number | null }[];
       const r: StepResult = {
         beds: n,
         ingestP50: pct(latencies, 50),
         ingestP99: pct(latencies, 99),
         failures,
         sent,
-        analysisLagP99: pct(lags.map((l) => Number(l.lag)), 99),
+        analysisLagP99: pct(
+          lags.map((l) => Number(l.lag)),
+          99,
+        ),
         analysisOldestDue: Number(due?.age ?? 0),
-        deliveryLagP99: pct(dlags.map((l) => Number(l.lag)), 99),
+        deliveryLagP99: pct(
+          dlags.map((l) => Number(l.lag)),
+          99,
+        ),
         deliveryOldestPending: Number(pend?.age ?? 0),
         procs,
         ok: false,
@@ -311,7 +359,11 @@ async function runPipeline(p: Pipeline): Promise<void> {
           `analysis lag p99 ${r.analysisLagP99.toFixed(1)} s (oldest due ${r.analysisOldestDue.toFixed(1)} s, ${lags.length} windows); ` +
           `delivery lag p99 ${r.deliveryLagP99.toFixed(1)} s (oldest pending ${r.deliveryOldestPending.toFixed(1)} s, ${dlags.length} Observations) → ${r.ok ? 'meets the goals' : 'misses the goals'}`,
       );
-      log(`        ${procs}; load average ${loadavg().map((l) => l.toFixed(2)).join(' ')}`);
+      log(
+        `        ${procs}; load average ${loadavg()
+          .map((l) => l.toFixed(2))
+          .join(' ')}`,
+      );
       // Stop at the first step that misses (CAPACITY_KEEP_STEPPING=1 goes on, to see where the lags grow).
       if (!r.ok && env.CAPACITY_KEEP_STEPPING !== '1') break;
     }
@@ -322,15 +374,21 @@ async function runPipeline(p: Pipeline): Promise<void> {
     for (let i = 0; i < 100 && inFlight > 0; i++) await sleep(100);
   }
   const best = results.filter((r) => r.ok).pop();
-  log(`largest N meeting the goals on ${p.name}: ${best ? `${best.beds} beds` : 'none of the steps'} (held ${HOLD_S} s per step${HOLD_S < 300 ? '; the goal asks for 5 minutes: CAPACITY_HOLD_SECONDS=300' : ''})`);
+  log(
+    `largest N meeting the goals on ${p.name}: ${best ? `${best.beds} beds` : 'none of the steps'} (held ${HOLD_S} s per step${HOLD_S < 300 ? '; the goal asks for 5 minutes: CAPACITY_HOLD_SECONDS=300' : ''})`,
+  );
 
   // Storage per bed per day, from what the run stored.
-  const [seg] = (await sql.query('SELECT COALESCE(SUM(LENGTH(samples)), 0) AS stored, COALESCE(SUM(sample_count), 0) AS samples, COUNT(*) AS n FROM waveform_segment')) as { stored: number; samples: number; n: number }[];
+  const [seg] = (await sql.query(
+    'SELECT COALESCE(SUM(LENGTH(samples)), 0) AS stored, COALESCE(SUM(sample_count), 0) AS samples, COUNT(*) AS n FROM waveform_segment',
+  )) as { stored: number; samples: number; n: number }[];
   const [raw] = (await sql.query("SELECT COALESCE(SUM(LENGTH(raw)), 0) AS raw FROM inbound_message WHERE outcome = 'accepted'")) as { raw: number }[];
-  const [disk] = (await sql.query('SELECT SUM(DATA_LENGTH + INDEX_LENGTH) AS bytes FROM information_schema.TABLES WHERE TABLE_SCHEMA = DATABASE()')) as { bytes: number }[];
+  const [disk] = (await sql.query('SELECT SUM(DATA_LENGTH + INDEX_LENGTH) AS bytes FROM information_schema.TABLES WHERE TABLE_SCHEMA = DATABASE()')) as {
+    bytes: number;
+  }[];
   const bedSeconds = Number(seg?.samples ?? 0) / 125 / SCENARIO.channels.length;
   if (bedSeconds > 0) {
-    const perDay = (bytes: number) => `${((Number(bytes) / bedSeconds) * 86_400 / 1e6).toFixed(1)} MB`;
+    const perDay = (bytes: number) => `${(((Number(bytes) / bedSeconds) * 86_400) / 1e6).toFixed(1)} MB`;
     log(
       `storage per bed per day (${SCENARIO.channels.length} channels at 125 Hz, from ${(bedSeconds / 3600).toFixed(1)} bed-hours stored): ` +
         `waveform segments ${perDay(seg!.stored)} as stored vs ${perDay(Number(seg!.samples) * 4)} as raw float32 (ratio ${(Number(seg!.stored) / (Number(seg!.samples) * 4)).toFixed(2)}); ` +
@@ -341,7 +399,11 @@ async function runPipeline(p: Pipeline): Promise<void> {
 }
 
 async function main(): Promise<void> {
-  console.log(`capacity benchmark: ${cpus().length} cores (${cpus()[0]?.model ?? '?'}), load average ${loadavg().map((l) => l.toFixed(2)).join(' ')}`);
+  console.log(
+    `capacity benchmark: ${cpus().length} cores (${cpus()[0]?.model ?? '?'}), load average ${loadavg()
+      .map((l) => l.toFixed(2))
+      .join(' ')}`,
+  );
   if (buildIsStale()) await buildAll(() => {}, ['shared', 'gateway', 'mock-ehr', 'simulator', 'scripts']);
   const dir = mkdtempSync(path.join(tmpdir(), 'ebbgate-capacity-'));
   const hospitalFile = path.join(dir, 'hospital.json');
@@ -367,5 +429,3 @@ main().then(
     process.exit(1);
   },
 );
-
-

@@ -33,9 +33,18 @@ const T0 = Date.now() - 3_600_000;
 
 async function run(label: string, ds: DataSource, ehr: { fhirBaseUrl: string; tokenUrl: string }, delivery: Config['delivery'], _run: number): Promise<void> {
   const codes = defaultCodeMap();
-  const client = new EhrClient({ fhirBaseUrl: ehr.fhirBaseUrl, tokenUrl: ehr.tokenUrl, clientId: 'ebbgate-gateway', clientSecret: 'mock-ehr-dev-secret', requestTimeoutMs: 30_000 });
+  const client = new EhrClient({
+    fhirBaseUrl: ehr.fhirBaseUrl,
+    tokenUrl: ehr.tokenUrl,
+    clientId: 'ebbgate-gateway',
+    clientSecret: 'mock-ehr-dev-secret',
+    requestTimeoutMs: 30_000,
+  });
   const contexts = new PatientContextResolver(client, 300_000);
-  const handler = new FhirDestination(ds, client, contexts, new DeviceSync(client, codes), codes, delivery, async () => ({ observationStatus: 'preliminary', notValidPolicy: 'data-absent' }));
+  const handler = new FhirDestination(ds, client, contexts, new DeviceSync(client, codes), codes, delivery, async () => ({
+    observationStatus: 'preliminary',
+    notValidPolicy: 'data-absent',
+  }));
   const worker = new DeliveryWorker(ds, new Map([[FHIR_DESTINATION_ID, handler]]), delivery, pino({ level: 'silent' }));
   const { bed, monitor } = await insertBedAndMonitor(ds, 'ICU-02');
   for (let i = 0; i < ASSESSMENTS; i++) {
@@ -49,7 +58,9 @@ async function run(label: string, ds: DataSource, ehr: { fhirBaseUrl: string; to
   const seconds = (performance.now() - t0) / 1000;
   const done = await ds.getRepository(DeliveryRow).countBy({ status: 'delivered' });
   const failed = await ds.getRepository(DeliveryRow).countBy({ status: 'failed' });
-  console.log(`${label.padEnd(34)} ${String(due).padStart(5)} Observations in ${seconds.toFixed(2)} s = ${(due / seconds).toFixed(0).padStart(5)} /s  (${passes} passes, ${done} delivered in total, ${failed} failed)`);
+  console.log(
+    `${label.padEnd(34)} ${String(due).padStart(5)} Observations in ${seconds.toFixed(2)} s = ${(due / seconds).toFixed(0).padStart(5)} /s  (${passes} passes, ${done} delivered in total, ${failed} failed)`,
+  );
   // Park this run's rows so the next run counts only its own.
   await ds.query(`UPDATE delivery SET status = 'benchmarked' WHERE status = 'delivered'`);
 }
@@ -57,7 +68,9 @@ async function run(label: string, ds: DataSource, ehr: { fhirBaseUrl: string; to
 /** The mock EHR in its own process, as the EHR is in production: it does not share our event loop. */
 async function startMockProcess() {
   const child = spawn(path.join(repoRoot, 'node_modules/.bin/tsx'), ['mock-ehr/src/main.ts'], {
-    cwd: repoRoot, env: { PATH: process.env.PATH, MOCK_EHR_HTTP_PORT: '0', MOCK_EHR_SMTP_PORT: '0', MOCK_EHR_MLLP_PORT: '0' }, stdio: ['ignore', 'pipe', 'inherit'],
+    cwd: repoRoot,
+    env: { PATH: process.env.PATH, MOCK_EHR_HTTP_PORT: '0', MOCK_EHR_SMTP_PORT: '0', MOCK_EHR_MLLP_PORT: '0' },
+    stdio: ['ignore', 'pipe', 'inherit'],
   });
   const baseUrl = await new Promise<string>((resolve, reject) => {
     let out = '';
@@ -91,10 +104,12 @@ http.createServer((req, res) => { let b = ''; req.on('data', (c) => (b += c)); r
 
 async function startStubProcess() {
   const child = spawn(process.execPath, ['-e', STUB], { stdio: ['ignore', 'pipe', 'inherit'] });
-  const baseUrl = await new Promise<string>((resolve) => child.stdout!.on('data', (c: Buffer) => {
-    const m = /stub ready: (http:\/\/[^\s]+)/.exec(c.toString());
-    if (m) resolve(m[1]!);
-  }));
+  const baseUrl = await new Promise<string>((resolve) =>
+    child.stdout!.on('data', (c: Buffer) => {
+      const m = /stub ready: (http:\/\/[^\s]+)/.exec(c.toString());
+      if (m) resolve(m[1]!);
+    }),
+  );
   return { fhirBaseUrl: `${baseUrl}/fhir`, tokenUrl: `${baseUrl}/oauth/token`, stop: async () => void child.kill('SIGTERM') };
 }
 
@@ -107,7 +122,9 @@ try {
   await migrate(ds);
   await syncDestinations(ds, [{ id: FHIR_DESTINATION_ID, name: 'EHR (FHIR R4)', kind: 'fhir' }]);
   const base = loadConfig({ NODE_ENV: 'test' }, { database: { url: db.url }, auth: { jwtSecret: 'x'.repeat(32) } }).delivery;
-  console.log(`delivery benchmark: ${ASSESSMENTS} assessments × 4 indices per run; ${cpus().length} cores, load ${loadavg()[0]!.toFixed(2)}; mock EHR (own process) validates each resource against the R4 schema`);
+  console.log(
+    `delivery benchmark: ${ASSESSMENTS} assessments × 4 indices per run; ${cpus().length} cores, load ${loadavg()[0]!.toFixed(2)}; mock EHR (own process) validates each resource against the R4 schema`,
+  );
   await run('warm-up (singly, not counted)', ds, ehr, { ...base, claimBatch: 100, concurrency: 8, bundleSize: 1 }, 1);
   await run('singly, 16 in flight', ds, ehr, { ...base, claimBatch: 200, concurrency: 16, bundleSize: 1 }, 2);
   await run('singly, 32 in flight', ds, ehr, { ...base, claimBatch: 400, concurrency: 32, bundleSize: 1 }, 3);

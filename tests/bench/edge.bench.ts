@@ -17,8 +17,15 @@ const CONNECTIONS = Number(process.env.BENCH_CONNECTIONS ?? 1000);
 
 function manyRows(rows: number, equipment = '02EB6AFFFE00EB01'): string {
   const t = '20261201090000.000+0000';
-  const segs = [`MSH|^~\\&|BENCH^${equipment}^EUI-64|HGH|EBBGATE|HGH|${t}||ORU^R01^ORU_R01|bench-${rows}|P|2.6`, `OBR|1|||182777000^monitoring of patient^SCT|||${t}`, `OBX|1||69965^MDC_DEV_MON_PHYSIO_MULTI_PARAM_MDS^MDC|1.0.0.0|||||||X|||||||${equipment}^^${equipment}^EUI-64`];
-  for (let i = 0; i < rows; i++) segs.push(`OBX|${i + 2}|NM|147842^MDC_ECG_HEART_RATE^MDC|1.1.${Math.floor(i / 1000) + 1}.${(i % 1000) + 1}|${60 + (i % 40)}|264864^MDC_DIM_BEAT_PER_MIN^MDC|||||R|||${t}`);
+  const segs = [
+    `MSH|^~\\&|BENCH^${equipment}^EUI-64|HGH|EBBGATE|HGH|${t}||ORU^R01^ORU_R01|bench-${rows}|P|2.6`,
+    `OBR|1|||182777000^monitoring of patient^SCT|||${t}`,
+    `OBX|1||69965^MDC_DEV_MON_PHYSIO_MULTI_PARAM_MDS^MDC|1.0.0.0|||||||X|||||||${equipment}^^${equipment}^EUI-64`,
+  ];
+  for (let i = 0; i < rows; i++)
+    segs.push(
+      `OBX|${i + 2}|NM|147842^MDC_ECG_HEART_RATE^MDC|1.1.${Math.floor(i / 1000) + 1}.${(i % 1000) + 1}|${60 + (i % 40)}|264864^MDC_DIM_BEAT_PER_MIN^MDC|||||R|||${t}`,
+    );
   return segs.join('\r') + '\r';
 }
 
@@ -35,17 +42,22 @@ async function decoderFigures(): Promise<void> {
     await decodePcd01Async(raw, limits);
     const asyncMs = performance.now() - t0;
     h.disable();
-    console.log(`decoder ${rows} OBX rows (${(raw.length / 1e6).toFixed(1)} MB): ${syncMs.toFixed(0)} ms in one go; time-sliced ${asyncMs.toFixed(0)} ms, longest event-loop delay ${(h.max / 1e6).toFixed(1)} ms`);
+    console.log(
+      `decoder ${rows} OBX rows (${(raw.length / 1e6).toFixed(1)} MB): ${syncMs.toFixed(0)} ms in one go; time-sliced ${asyncMs.toFixed(0)} ms, longest event-loop delay ${(h.max / 1e6).toFixed(1)} ms`,
+    );
   }
 }
 
 function keylessPost(url: string, bytes: Buffer): Promise<number | string> {
   return new Promise((resolve) => {
     const u = new URL(`${url}/api/v1/ingest/batches`);
-    const req = http.request({ host: u.hostname, port: u.port, path: u.pathname, method: 'POST', headers: { 'content-type': 'application/json', 'content-length': bytes.length } }, (res) => {
-      res.resume();
-      res.on('end', () => resolve(res.statusCode ?? 0));
-    });
+    const req = http.request(
+      { host: u.hostname, port: u.port, path: u.pathname, method: 'POST', headers: { 'content-type': 'application/json', 'content-length': bytes.length } },
+      (res) => {
+        res.resume();
+        res.on('end', () => resolve(res.statusCode ?? 0));
+      },
+    );
     req.on('error', (err: NodeJS.ErrnoException) => resolve(err.code ?? 'error'));
     req.end(bytes);
   });
@@ -66,14 +78,20 @@ async function gatewayFigures(): Promise<void> {
     const ackMs = performance.now() - a0;
     p.close();
     const closed = await Promise.all(idle.map((x) => x.closed(30_000)));
-    console.log(`connections: ${CONNECTIONS} idle held, all closed by the server ${((Math.min(...closed) - t0) / 1000).toFixed(1)}–${((Math.max(...closed) - t0) / 1000).toFixed(1)} s after opening (idle timeout 5 s); a normal ORU meanwhile: ${ack.code} in ${ackMs.toFixed(0)} ms`);
+    console.log(
+      `connections: ${CONNECTIONS} idle held, all closed by the server ${((Math.min(...closed) - t0) / 1000).toFixed(1)}–${((Math.max(...closed) - t0) / 1000).toFixed(1)} s after opening (idle timeout 5 s); a normal ORU meanwhile: ${ack.code} in ${ackMs.toFixed(0)} ms`,
+    );
 
     // Strangers: keyless 8 MB POSTs.
     const body = Buffer.alloc(8 * 1024 * 1024, 0x20);
     const s0 = performance.now();
     for (let round = 0; round < 10; round++) await Promise.all(Array.from({ length: 20 }, () => keylessPost(e.gw.url, body)));
-    const [kept] = await e.query<{ n: number; stored: number }>('SELECT COUNT(*) AS n, COALESCE(SUM(LENGTH(raw)), 0) AS stored FROM inbound_message WHERE stranger = 1');
-    console.log(`strangers: 200 keyless 8 MB POSTs (1.68 GB offered) in ${((performance.now() - s0) / 1000).toFixed(1)} s → ${kept!.n} records, ${kept!.stored} bytes stored`);
+    const [kept] = await e.query<{ n: number; stored: number }>(
+      'SELECT COUNT(*) AS n, COALESCE(SUM(LENGTH(raw)), 0) AS stored FROM inbound_message WHERE stranger = 1',
+    );
+    console.log(
+      `strangers: 200 keyless 8 MB POSTs (1.68 GB offered) in ${((performance.now() - s0) / 1000).toFixed(1)} s → ${kept!.n} records, ${kept!.stored} bytes stored`,
+    );
 
     // /healthz while a 64k-OBX message arrives.
     const text = manyRows(65_536, M);
@@ -96,16 +114,24 @@ async function gatewayFigures(): Promise<void> {
     done = true;
     await poll;
     peer.close();
-    console.log(`64k-OBX message (${(text.length / 1e6).toFixed(1)} MB): ${big.code} in ${(performance.now() - b0).toFixed(0)} ms; /healthz slowest ${slowest.toFixed(1)} ms over ${polls} polls`);
+    console.log(
+      `64k-OBX message (${(text.length / 1e6).toFixed(1)} MB): ${big.code} in ${(performance.now() - b0).toFixed(0)} ms; /healthz slowest ${slowest.toFixed(1)} ms over ${polls} polls`,
+    );
   } finally {
     await e.stop();
   }
 }
 
 async function main(): Promise<void> {
-  console.log(`edge benchmark: ${cpus().length} cores, load average ${loadavg().map((l) => l.toFixed(2)).join(' ')}`);
+  console.log(
+    `edge benchmark: ${cpus().length} cores, load average ${loadavg()
+      .map((l) => l.toFixed(2))
+      .join(' ')}`,
+  );
   const f = fuzzInProcess(RUNS);
-  console.log(`fuzz (fast-check, in process): MLLP ${f.mllp.cases} cases tried in ${(f.mllp.ms / 1000).toFixed(1)} s; HTTP ${f.http.cases} cases tried in ${(f.http.ms / 1000).toFixed(1)} s; no unclear outcome`);
+  console.log(
+    `fuzz (fast-check, in process): MLLP ${f.mllp.cases} cases tried in ${(f.mllp.ms / 1000).toFixed(1)} s; HTTP ${f.http.cases} cases tried in ${(f.http.ms / 1000).toFixed(1)} s; no unclear outcome`,
+  );
   await decoderFigures();
   let stopDb: (() => Promise<void>) | null = null;
   if (!process.env.EBBGATE_TEST_ADMIN_URL) {

@@ -65,7 +65,11 @@ async function waitHttp(url: string, child: ChildProcess, out: () => string): Pr
 }
 
 function spawnLogged(cmd: string, args: string[], env: Record<string, string>) {
-  const child = spawn(cmd, args, { cwd: repoRoot, env: { PATH: process.env.PATH ?? '', HOME: process.env.HOME ?? '/tmp', ...env }, stdio: ['ignore', 'pipe', 'pipe'] });
+  const child = spawn(cmd, args, {
+    cwd: repoRoot,
+    env: { PATH: process.env.PATH ?? '', HOME: process.env.HOME ?? '/tmp', ...env },
+    stdio: ['ignore', 'pipe', 'pipe'],
+  });
   let out = '';
   child.stdout!.on('data', (d: Buffer) => (out = (out + d.toString()).slice(-10_000)));
   child.stderr!.on('data', (d: Buffer) => (out = (out + d.toString()).slice(-10_000)));
@@ -117,7 +121,8 @@ async function cannon(url: string, keys: { identifier: string; apiKey: string }[
   return { rate: r.requests.average, p50: r.latency.p50, p99: r.latency.p99, non2xx: r.non2xx, errors: r.errors };
 }
 
-const fmt = (r: Result) => `${r.rate.toFixed(0).padStart(6)} batches/s   p50 ${String(r.p50).padStart(4)} ms   p99 ${String(r.p99).padStart(4)} ms   non-2xx ${r.non2xx}   errors ${r.errors}`;
+const fmt = (r: Result) =>
+  `${r.rate.toFixed(0).padStart(6)} batches/s   p50 ${String(r.p50).padStart(4)} ms   p99 ${String(r.p99).padStart(4)} ms   non-2xx ${r.non2xx}   errors ${r.errors}`;
 
 /** MLLP: several connections, each sending PCD-01 messages one after another, waiting for each ACK. */
 async function mllpRate(port: number, identifiers: string[], seconds: number): Promise<{ rate: number; acks: Record<string, number> }> {
@@ -133,7 +138,12 @@ async function mllpRate(port: number, identifiers: string[], seconds: number): P
           let i = 0;
           const next = () => {
             if (Date.now() > until) return socket.end(() => resolve());
-            const text = buildPcd01({ controlId: `mllp-${c}-${i}`, equipment: identifier, start: new Date(T0 + i * 10_000), waves: [{ code: '150036', refId: 'MDC_PRESS_BLD_ART_ABP', sampleRate: 125, samples: window.channels[0]!.samples }] });
+            const text = buildPcd01({
+              controlId: `mllp-${c}-${i}`,
+              equipment: identifier,
+              start: new Date(T0 + i * 10_000),
+              waves: [{ code: '150036', refId: 'MDC_PRESS_BLD_ART_ABP', sampleRate: 125, samples: window.channels[0]!.samples }],
+            });
             i++;
             socket.write(Buffer.concat([Buffer.from([0x0b]), Buffer.from(text), Buffer.from([0x1c, 0x0d])]));
           };
@@ -157,7 +167,11 @@ async function mllpRate(port: number, identifiers: string[], seconds: number): P
 }
 
 async function main(): Promise<void> {
-  console.log(`ingest benchmark: ${cpus().length} cores, load average ${loadavg().map((l) => l.toFixed(2)).join(' ')}; ${SECONDS} s per run, ${CONNECTIONS} connections, ${MONITORS} monitors`);
+  console.log(
+    `ingest benchmark: ${cpus().length} cores, load average ${loadavg()
+      .map((l) => l.toFixed(2))
+      .join(' ')}; ${SECONDS} s per run, ${CONNECTIONS} connections, ${MONITORS} monitors`,
+  );
   let stopDb: (() => Promise<void>) | null = null;
   if (!process.env.EBBGATE_TEST_ADMIN_URL) {
     const { server, adminUrl } = await startTestMariaDb();
@@ -224,10 +238,17 @@ async function main(): Promise<void> {
     console.log(`gateway at 1,000 batches/s:    ${fmt(goal)}`);
     console.log(`gateway / bare server: ${((gwMax.rate / bareMax.rate) * 100).toFixed(1)} % (goal >= 30 %)`);
     const mllpIds = keys.slice(0, 8).map((k) => k.identifier);
-    const mllp = await mllpRate(mllpPort, mllpIds, SECONDS).catch((err: Error) => ({ rate: Number.NaN, acks: { error: err.message } as unknown as Record<string, number> }));
+    const mllp = await mllpRate(mllpPort, mllpIds, SECONDS).catch((err: Error) => ({
+      rate: Number.NaN,
+      acks: { error: err.message } as unknown as Record<string, number>,
+    }));
     console.log(`MLLP PCD-01 (1 × 1,250-sample NA, 8 connections, ACK awaited): ${mllp.rate.toFixed(0)} messages/s, acks ${JSON.stringify(mllp.acks)}`);
     console.log(`gateway resident memory: idle ${idleRss.toFixed(0)} MB, peak under load ${peakRss.toFixed(0)} MB (goal < 300 MB)`);
-    console.log(`load average after: ${loadavg().map((l) => l.toFixed(2)).join(' ')} (other work on the machine lowers every figure)`);
+    console.log(
+      `load average after: ${loadavg()
+        .map((l) => l.toFixed(2))
+        .join(' ')} (other work on the machine lowers every figure)`,
+    );
   } finally {
     clearInterval(sampler);
     gw.child.kill('SIGTERM');

@@ -7,14 +7,26 @@ import { DeliveriesPage } from '@/app/pages';
 afterEach(() => vi.unstubAllGlobals());
 
 const delivery = (id: string) => ({
-  id, assessmentId: `a-${id}`, destinationId: 'ehr', index: 'ppv', kind: 'create', status: 'failed', patientRef: 'HGH-1', attemptCount: 3,
-  nextAttemptAt: null, lastHttpStatus: 503, lastError: 'Service Unavailable', createdAt: '2026-12-01T21:00:00Z', deliveredAt: null,
+  id,
+  assessmentId: `a-${id}`,
+  destinationId: 'ehr',
+  index: 'ppv',
+  kind: 'create',
+  status: 'failed',
+  patientRef: 'HGH-1',
+  attemptCount: 3,
+  nextAttemptAt: null,
+  lastHttpStatus: 503,
+  lastError: 'Service Unavailable',
+  createdAt: '2026-12-01T21:00:00Z',
+  deliveredAt: null,
 });
 
 function gateway(roles: string[]) {
   return fakeGateway((c) => {
     if (c.url.pathname === '/api/v1/auth/session') return { body: SESSION(roles) };
-    if (c.url.pathname === '/api/v1/destinations') return { body: [{ id: 'ehr', name: 'Demo EHR', kind: 'fhir', paused: false, circuitState: 'open', consecutiveFailures: 5, state: 'circuit-open' }] };
+    if (c.url.pathname === '/api/v1/destinations')
+      return { body: [{ id: 'ehr', name: 'Demo EHR', kind: 'fhir', paused: false, circuitState: 'open', consecutiveFailures: 5, state: 'circuit-open' }] };
     if (c.url.pathname === '/api/v1/deliveries') return { body: { items: ['d1', 'd2', 'd3'].map(delivery), page: 1, pageSize: 25, total: 3 } };
     if (c.url.pathname === '/api/v1/deliveries/retry') {
       const [id] = (c.body as { ids: string[] }).ids;

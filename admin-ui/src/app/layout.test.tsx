@@ -9,9 +9,23 @@ afterEach(() => vi.unstubAllGlobals());
 
 async function navFor(roles: string[]) {
   fakeGateway((c) => (c.url.pathname === '/api/v1/auth/session' ? { body: SESSION(roles) } : undefined));
-  renderApp(<Routes><Route element={<RequireSession><AppLayout /></RequireSession>}><Route path="/" element={<p>x</p>} /></Route></Routes>);
+  renderApp(
+    <Routes>
+      <Route
+        element={
+          <RequireSession>
+            <AppLayout />
+          </RequireSession>
+        }
+      >
+        <Route path="/" element={<p>x</p>} />
+      </Route>
+    </Routes>,
+  );
   const nav = await screen.findByRole('navigation', { name: 'Main' });
-  return within(nav).getAllByRole('link').map((a) => a.textContent);
+  return within(nav)
+    .getAllByRole('link')
+    .map((a) => a.textContent);
 }
 
 describe('navigation by role', () => {

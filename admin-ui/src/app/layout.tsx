@@ -12,7 +12,9 @@ export function AppLayout() {
 
   return (
     <div className="grid min-h-screen grid-cols-[13.5rem_1fr] grid-rows-[auto_1fr]">
-      <a href="#main" className="sr-only focus:not-sr-only focus:absolute focus:left-2 focus:top-2 focus:z-50 focus:bg-white focus:px-2">Skip to content</a>
+      <a href="#main" className="sr-only focus:not-sr-only focus:absolute focus:left-2 focus:top-2 focus:z-50 focus:bg-white focus:px-2">
+        Skip to content
+      </a>
       <header className="col-span-2 flex items-center gap-3 bg-ink-900 px-4 py-2 text-white">
         <BrandMark className="h-6 w-6" />
         <span className="font-semibold tracking-tight">Ebbgate</span>
@@ -21,14 +23,29 @@ export function AppLayout() {
           {user && (
             <>
               <span className="text-right leading-tight">
-                <span className="block font-medium" data-testid="current-user">{user.displayName}</span>
+                <span className="block font-medium" data-testid="current-user">
+                  {user.displayName}
+                </span>
                 <span className="block text-xs text-ink-300">{user.username}</span>
               </span>
               <span className="flex gap-1" aria-label="Roles">
-                {user.roles.map((r) => <Badge key={r} tone="info">{r}</Badge>)}
+                {user.roles.map((r) => (
+                  <Badge key={r} tone="info">
+                    {r}
+                  </Badge>
+                ))}
               </span>
-              <Button size="sm" variant="ghost" className="text-white hover:bg-ink-800"
-                onClick={async () => { await signOut(); navigate('/sign-in', { replace: true }); }}>Sign out</Button>
+              <Button
+                size="sm"
+                variant="ghost"
+                className="text-white hover:bg-ink-800"
+                onClick={async () => {
+                  await signOut();
+                  navigate('/sign-in', { replace: true });
+                }}
+              >
+                Sign out
+              </Button>
             </>
           )}
         </div>
@@ -43,8 +60,13 @@ export function AppLayout() {
               <ul>
                 {items.map((i) => (
                   <li key={i.to}>
-                    <NavLink to={i.to} end={i.to === '/'}
-                      className={({ isActive }) => `block rounded px-2 py-1 text-sm ${isActive ? 'bg-ink-700 font-medium text-white' : 'text-ink-900 hover:bg-ink-50'}`}>
+                    <NavLink
+                      to={i.to}
+                      end={i.to === '/'}
+                      className={({ isActive }) =>
+                        `block rounded px-2 py-1 text-sm ${isActive ? 'bg-ink-700 font-medium text-white' : 'text-ink-900 hover:bg-ink-50'}`
+                      }
+                    >
                       {i.label}
                     </NavLink>
                   </li>

@@ -8,7 +8,11 @@ import { RequirePermission, RequireSession } from './guards';
 import { routes } from './routes';
 
 function guarded(permission: Permission, node: ReactNode) {
-  return <RequirePermission permission={permission}><Suspense fallback={<LoadingState />}>{node}</Suspense></RequirePermission>;
+  return (
+    <RequirePermission permission={permission}>
+      <Suspense fallback={<LoadingState />}>{node}</Suspense>
+    </RequirePermission>
+  );
 }
 
 export function AppRouter() {
@@ -16,7 +20,13 @@ export function AppRouter() {
     <BrowserRouter>
       <Routes>
         <Route path="/sign-in" element={<SignInRoute />} />
-        <Route element={<RequireSession><AppLayout /></RequireSession>}>
+        <Route
+          element={
+            <RequireSession>
+              <AppLayout />
+            </RequireSession>
+          }
+        >
           {routes.map(({ path, permission, component: C }) => (
             <Route key={path} path={path} element={guarded(permission, <C />)} />
           ))}

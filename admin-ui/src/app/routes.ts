@@ -12,7 +12,11 @@ export const routes: AppRoute[] = [
   { path: '/reanalyse', permission: 'reanalyse', component: lazyNamed(() => import('@/features/reanalyse/routes/reanalyse'), 'ReanalyseRoute') },
   { path: '/test-bench', permission: 'testBench', component: lazyNamed(() => import('@/features/test-bench/routes/test-bench'), 'TestBenchRoute') },
   { path: '/assessments', permission: 'assessments', component: lazyNamed(() => import('@/features/assessments/routes/assessments'), 'AssessmentsRoute') },
-  { path: '/assessments/:id', permission: 'assessments', component: lazyNamed(() => import('@/features/assessments/routes/assessment-detail'), 'AssessmentDetailRoute') },
+  {
+    path: '/assessments/:id',
+    permission: 'assessments',
+    component: lazyNamed(() => import('@/features/assessments/routes/assessment-detail'), 'AssessmentDetailRoute'),
+  },
   { path: '/monitors', permission: 'devices', component: lazyNamed(() => import('@/features/devices/routes/monitors'), 'MonitorsRoute') },
   { path: '/profiles', permission: 'devices', component: lazyNamed(() => import('@/features/devices/routes/profiles'), 'ProfilesRoute') },
   { path: '/profiles/:id', permission: 'devices', component: lazyNamed(() => import('@/features/devices/routes/profile-edit'), 'ProfileEditRoute') },

@@ -13,25 +13,28 @@ export function useBulkAction<R, A = void>(run: (id: string, arg: A) => Promise<
   const runRef = useRef(run);
   runRef.current = run;
 
-  const start = useCallback(async (ids: string[], arg: A) => {
-    setRunning(true);
-    setItems(ids.map((id) => ({ id, status: 'waiting' })));
-    const set = (id: string, patch: Partial<ItemState>) => setItems((xs) => xs.map((x) => (x.id === id ? { ...x, ...patch } : x)));
-    const queue = [...ids];
-    const worker = async () => {
-      for (let id = queue.shift(); id !== undefined; id = queue.shift()) {
-        set(id, { status: 'running' });
-        try {
-          const r = await runRef.current(id, arg);
-          set(id, { status: 'done', message: describe?.(r) });
-        } catch (err) {
-          set(id, { status: 'failed', message: errorMessage(err) });
+  const start = useCallback(
+    async (ids: string[], arg: A) => {
+      setRunning(true);
+      setItems(ids.map((id) => ({ id, status: 'waiting' })));
+      const set = (id: string, patch: Partial<ItemState>) => setItems((xs) => xs.map((x) => (x.id === id ? { ...x, ...patch } : x)));
+      const queue = [...ids];
+      const worker = async () => {
+        for (let id = queue.shift(); id !== undefined; id = queue.shift()) {
+          set(id, { status: 'running' });
+          try {
+            const r = await runRef.current(id, arg);
+            set(id, { status: 'done', message: describe?.(r) });
+          } catch (err) {
+            set(id, { status: 'failed', message: errorMessage(err) });
+          }
         }
-      }
-    };
-    await Promise.all([worker(), worker()]);
-    setRunning(false);
-  }, [describe]);
+      };
+      await Promise.all([worker(), worker()]);
+      setRunning(false);
+    },
+    [describe],
+  );
 
   const reset = useCallback(() => setItems([]), []);
   const done = items.filter((i) => i.status === 'done').length;

@@ -3,7 +3,10 @@ import { fireEvent, screen, waitFor } from '@testing-library/react';
 import { fakeGateway, renderApp, SESSION } from '@/test/render';
 import { useAuth } from './auth';
 
-afterEach(() => { vi.restoreAllMocks(); vi.unstubAllGlobals(); });
+afterEach(() => {
+  vi.restoreAllMocks();
+  vi.unstubAllGlobals();
+});
 
 function Who() {
   const { session, loading } = useAuth();

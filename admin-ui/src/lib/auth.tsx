@@ -57,18 +57,23 @@ export function AuthProvider({ children }: { children: ReactNode }) {
     if (session) setCsrfToken(session.csrfToken);
   }, [session]);
 
-  const endSession = useCallback((byUser = false) => {
-    if (!byUser && qc.getQueryData(sessionKey)) setEnded(true);
-    setCsrfToken(null);
-    qc.setQueryData(sessionKey, null);
-    // Nothing cached under the previous user may be shown to the next one.
-    qc.removeQueries({ predicate: (q) => q.queryKey[0] !== 'auth' });
-  }, [qc]);
+  const endSession = useCallback(
+    (byUser = false) => {
+      if (!byUser && qc.getQueryData(sessionKey)) setEnded(true);
+      setCsrfToken(null);
+      qc.setQueryData(sessionKey, null);
+      // Nothing cached under the previous user may be shown to the next one.
+      qc.removeQueries({ predicate: (q) => q.queryKey[0] !== 'auth' });
+    },
+    [qc],
+  );
 
   useEffect(() => onUnauthorized(() => endSession()), [endSession]);
 
   useEffect(() => {
-    const mark = () => { lastActivity.current = Date.now(); };
+    const mark = () => {
+      lastActivity.current = Date.now();
+    };
     window.addEventListener('pointerdown', mark);
     window.addEventListener('keydown', mark);
     return () => {

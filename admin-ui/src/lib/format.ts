@@ -1,6 +1,12 @@
 /** Formatting shared by every screen, so a time or a percentage reads the same everywhere. */
 const dateTime = new Intl.DateTimeFormat('en-GB', {
-  year: 'numeric', month: 'short', day: '2-digit', hour: '2-digit', minute: '2-digit', second: '2-digit', hour12: false,
+  year: 'numeric',
+  month: 'short',
+  day: '2-digit',
+  hour: '2-digit',
+  minute: '2-digit',
+  second: '2-digit',
+  hour12: false,
 });
 
 export function formatDateTime(iso: string | null | undefined): string {

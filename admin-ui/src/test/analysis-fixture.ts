@@ -5,7 +5,9 @@ import type { AnalysisResult, Beat, RespiratoryCycle, Waveform } from '@/lib/ana
  * ventilator cycle every 4 s. Which beats and cycles are rejected is chosen here, so a test can
  * count the marks it expects. Not engine output: the plot only draws what it is given.
  */
-export function fixtureWindow(opts: { rejected?: Record<number, Beat['rejectReasons']>; unusableCycles?: Record<number, RespiratoryCycle['rejectReasons']> } = {}) {
+export function fixtureWindow(
+  opts: { rejected?: Record<number, Beat['rejectReasons']>; unusableCycles?: Record<number, RespiratoryCycle['rejectReasons']> } = {},
+) {
   const fs = 125;
   const duration = 30;
   const n = fs * duration;
@@ -32,9 +34,21 @@ export function fixtureWindow(opts: { rejected?: Record<number, Beat['rejectReas
     const peak = foot + 0.2;
     const reasons = opts.rejected?.[k] ?? [];
     beats.push({
-      n: k, footSample: Math.round(foot * fs), footTime: foot, peakSample: Math.round(peak * fs), peakTime: peak,
-      sbp: 115, dbp: 70, pp: 45, map: 85, amplitude: null, dc: null, ibi: k === 0 ? null : 0.8, templateCorrelation: 0.97,
-      accepted: reasons.length === 0, rejectReasons: reasons,
+      n: k,
+      footSample: Math.round(foot * fs),
+      footTime: foot,
+      peakSample: Math.round(peak * fs),
+      peakTime: peak,
+      sbp: 115,
+      dbp: 70,
+      pp: 45,
+      map: 85,
+      amplitude: null,
+      dc: null,
+      ibi: k === 0 ? null : 0.8,
+      templateCorrelation: 0.97,
+      accepted: reasons.length === 0,
+      rejectReasons: reasons,
     });
   }
   const cycles: RespiratoryCycle[] = [];
@@ -43,10 +57,25 @@ export function fixtureWindow(opts: { rejected?: Record<number, Beat['rejectReas
     const end = Math.min(duration, start + 4);
     const reasons = opts.unusableCycles?.[c] ?? [];
     cycles.push({
-      n: c, source: 'paw', startSample: start * fs, endSample: end * fs, startTime: start, endTime: end,
-      abpBeatIndices: beats.filter((b) => b.peakTime >= start && b.peakTime < end).map((b) => b.n), plethBeatIndices: [],
-      usable: reasons.length === 0, rejectReasons: reasons,
-      ppv: reasons.length ? null : 11.8, spv: reasons.length ? null : 8, deltaPop: null, ppMax: 48, ppMin: 42.6, sbpMax: 119, sbpMin: 111, popMax: null, popMin: null,
+      n: c,
+      source: 'paw',
+      startSample: start * fs,
+      endSample: end * fs,
+      startTime: start,
+      endTime: end,
+      abpBeatIndices: beats.filter((b) => b.peakTime >= start && b.peakTime < end).map((b) => b.n),
+      plethBeatIndices: [],
+      usable: reasons.length === 0,
+      rejectReasons: reasons,
+      ppv: reasons.length ? null : 11.8,
+      spv: reasons.length ? null : 8,
+      deltaPop: null,
+      ppMax: 48,
+      ppMin: 42.6,
+      sbpMax: 119,
+      sbpMin: 111,
+      popMax: null,
+      popMin: null,
       usedInWindow: reasons.length === 0 && c >= 1 && c <= 3,
       variationAllBeats: reasons.length ? null : 11.8,
     });
@@ -58,25 +87,64 @@ export function fixtureWindow(opts: { rejected?: Record<number, Beat['rejectReas
     startTime: waveform.startTime,
     durationSeconds: duration,
     channels: [],
-    beats: { abp: { source: 'abp', sampleRate: fs, method: 'zong-2003-ssf', beats, acceptedCount: beats.filter((b) => b.accepted).length, rejectedCount: beats.filter((b) => !b.accepted).length }, pleth: null },
+    beats: {
+      abp: {
+        source: 'abp',
+        sampleRate: fs,
+        method: 'zong-2003-ssf',
+        beats,
+        acceptedCount: beats.filter((b) => b.accepted).length,
+        rejectedCount: beats.filter((b) => !b.accepted).length,
+      },
+      pleth: null,
+    },
     respiration: { source: 'paw', sampleRate: fs, rateSource: 'measured', reason: null },
     cycles,
     indices: {
-      ppv: iv(11.8, '%'), spv: iv(8, 'mmHg'),
+      ppv: iv(11.8, '%'),
+      spv: iv(8, 'mmHg'),
       deltaPop: { ...iv(null, '%', 0), notComputableReason: 'no pleth channel' },
       perfusionIndex: { ...iv(null, '%', 0), notComputableReason: 'no pleth channel' },
-      heartRate: iv(75, '/min'), respiratoryRate: iv(15, '/min'), hrRrRatio: iv(5, '1'),
+      heartRate: iv(75, '/min'),
+      respiratoryRate: iv(15, '/min'),
+      hrRrRatio: iv(5, '1'),
     },
     verdict: 'questionable',
     indexVerdicts: {},
-    flags: [{ code: 'tidal-volume-unknown', severity: 'warning', direction: 'false-low', reason: 'Tidal volume not given: cannot check the 8 mL/kg PBW condition.' }],
-    arterialLine: { notchFraction: 0.9, dampingSuspected: false, underDampingSuspected: false, flushSuspected: false, flushTests: [], dampingEstimate: 'adequate', upstrokeSeconds: 0.12 },
+    flags: [
+      { code: 'tidal-volume-unknown', severity: 'warning', direction: 'false-low', reason: 'Tidal volume not given: cannot check the 8 mL/kg PBW condition.' },
+    ],
+    arterialLine: {
+      notchFraction: 0.9,
+      dampingSuspected: false,
+      underDampingSuspected: false,
+      flushSuspected: false,
+      flushTests: [],
+      dampingEstimate: 'adequate',
+      upstrokeSeconds: 0.12,
+    },
     cautions: ['Decision support for trained clinicians only: Ebbgate does not diagnose and does not order fluid.', 'Defer to local protocols.'],
-    bands: [{ id: 'ppv-grey-zone', index: 'ppv', lower: 9, upper: 13, unit: '%', label: 'Grey zone: inconclusive', source: 'Cannesson et al., Anesthesiology 2011 (from memory)' }],
+    bands: [
+      {
+        id: 'ppv-grey-zone',
+        index: 'ppv',
+        lower: 9,
+        upper: 13,
+        unit: '%',
+        label: 'Grey zone: inconclusive',
+        source: 'Cannesson et al., Anesthesiology 2011 (from memory)',
+      },
+    ],
     predictedBodyWeightKg: null,
     tidalVolumeMlPerKg: null,
     respiratoryMechanics: null,
-    selection: { cyclesTotal: cycles.length, cyclesDropped: cycles.filter((c) => !c.usable).length, droppedFraction: cycles.filter((c) => !c.usable).length / cycles.length, ppvAllCycles: 11.8, pulsePressureDifference: 0 },
+    selection: {
+      cyclesTotal: cycles.length,
+      cyclesDropped: cycles.filter((c) => !c.usable).length,
+      droppedFraction: cycles.filter((c) => !c.usable).length / cycles.length,
+      ppvAllCycles: 11.8,
+      pulsePressureDifference: 0,
+    },
   };
   return { waveform, analysis };
 }

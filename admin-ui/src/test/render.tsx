@@ -6,7 +6,12 @@ import { vi } from 'vitest';
 import { ToastProvider } from '@/components/ui/toast';
 import { AuthProvider } from '@/lib/auth';
 
-export interface FakeCall { method: string; url: URL; body: unknown; headers: Record<string, string> }
+export interface FakeCall {
+  method: string;
+  url: URL;
+  body: unknown;
+  headers: Record<string, string>;
+}
 type Handler = (call: FakeCall) => { status?: number; body?: unknown } | undefined;
 
 /**

@@ -39,7 +39,10 @@ export const DEFAULT_ENGINE: Engine = {
 /** Device facts from the profile that the engine needs as context; the batch's own context wins. */
 function profileContext(profile: MonitorProfileRow | null): AnalysisContext {
   if (!profile) return {};
-  const filtering = profile.channels.map((c) => c.builtInFiltering).filter(Boolean).join('; ');
+  const filtering = profile.channels
+    .map((c) => c.builtInFiltering)
+    .filter(Boolean)
+    .join('; ');
   return {
     ...(profile.defaultProbeSite ? { probeSite: profile.defaultProbeSite as AnalysisContext['probeSite'] } : {}),
     plethScaling: profile.plethScaling,
@@ -58,49 +61,68 @@ export async function analyseNextWindow(ctx: AppContext, engine: Engine, workerI
   // Cycles averaged and decision bands are site settings an admin changes at run time.
   const site = (await getSiteSettings(ctx)).analysis;
   // Retried on a deadlock or a Galera certification failure (claims racing through two nodes).
-  return transactionWithRetry(ctx.ds, async (m: EntityManager) => {
-    const w = await m
-      .getRepository(AnalysisWindowRow)
-      .createQueryBuilder('w')
-      .where("w.status = 'due'")
-      .andWhere('w.engine_version = :v', { v: engine.version })
-      .orderBy('w.id', 'ASC')
-      .limit(1)
-      .setLock('pessimistic_write')
-      .setOnLocked('skip_locked')
-      .getOne();
-    if (!w) return null;
-    const monitor = await m.findOneBy(MonitorRow, { id: w.monitorId });
-    const profile = monitor?.profileId ? await m.findOneBy(MonitorProfileRow, { id: monitor.profileId }) : null;
-    const { input, latestMessageId } = await assembleWindow(m, w.monitorId, w.windowStart, w.windowEnd);
-    input.context = { ...profileContext(profile), ...((await contextOfMessage(m, latestMessageId)) ?? {}) };
-    // Checklist items a person set on the bed (audited) travel as their own context source.
-    const bed = monitor?.bedId ? await m.findOneBy(BedRow, { id: monitor.bedId }) : null;
-    if (bed?.checklist) input.bedContext = bed.checklist;
-    const settings = { cyclesToAverage: site.cyclesToAverage, bands: site.bands };
-    let result: AnalysisResult;
-    try {
-      result = engine.analyse(input, settings);
-    } catch (err) {
-      // Unreadable input (no data, unknown unit): the window is closed as failed with the reason.
-      await m.update(AnalysisWindowRow, { id: w.id }, { status: 'failed', attempts: w.attempts + 1, claimedBy: workerId, lastError: String((err as Error).message).slice(0, 2000), doneAt: new Date() });
-      ctx.logger.warn({ windowId: w.id, monitorId: w.monitorId, err: (err as Error).message }, 'analysis window failed');
-      return { windowId: w.id, status: 'failed' as const, assessmentId: null };
-    }
-    // A tidal volume challenge this window completes is judged here and stored on its assessment.
-    const found = engine.analyseChallenge ? await findChallenge(m, w.monitorId, w.windowEnd, DEFAULT_SETTINGS, { profile: profileContext(profile), bed: input.bedContext }) : null;
-    let challenge = challengeColumns(null, null);
-    if (found && engine.analyseChallenge) {
+  return transactionWithRetry(
+    ctx.ds,
+    async (m: EntityManager) => {
+      const w = await m
+        .getRepository(AnalysisWindowRow)
+        .createQueryBuilder('w')
+        .where("w.status = 'due'")
+        .andWhere('w.engine_version = :v', { v: engine.version })
+        .orderBy('w.id', 'ASC')
+        .limit(1)
+        .setLock('pessimistic_write')
+        .setOnLocked('skip_locked')
+        .getOne();
+      if (!w) return null;
+      const monitor = await m.findOneBy(MonitorRow, { id: w.monitorId });
+      const profile = monitor?.profileId ? await m.findOneBy(MonitorProfileRow, { id: monitor.profileId }) : null;
+      const { input, latestMessageId } = await assembleWindow(m, w.monitorId, w.windowStart, w.windowEnd);
+      input.context = { ...profileContext(profile), ...((await contextOfMessage(m, latestMessageId)) ?? {}) };
+      // Checklist items a person set on the bed (audited) travel as their own context source.
+      const bed = monitor?.bedId ? await m.findOneBy(BedRow, { id: monitor.bedId }) : null;
+      if (bed?.checklist) input.bedContext = bed.checklist;
+      const settings = { cyclesToAverage: site.cyclesToAverage, bands: site.bands };
+      let result: AnalysisResult;
       try {
-        challenge = challengeColumns(found, engine.analyseChallenge(found.input, settings));
+        result = engine.analyse(input, settings);
       } catch (err) {
-        ctx.logger.warn({ windowId: w.id, monitorId: w.monitorId, err: (err as Error).message }, 'tidal volume challenge could not be read');
+        // Unreadable input (no data, unknown unit): the window is closed as failed with the reason.
+        await m.update(
+          AnalysisWindowRow,
+          { id: w.id },
+          { status: 'failed', attempts: w.attempts + 1, claimedBy: workerId, lastError: String((err as Error).message).slice(0, 2000), doneAt: new Date() },
+        );
+        ctx.logger.warn({ windowId: w.id, monitorId: w.monitorId, err: (err as Error).message }, 'analysis window failed');
+        return { windowId: w.id, status: 'failed' as const, assessmentId: null };
       }
-    }
-    const row = await storeAssessment(m, { monitorId: w.monitorId, bedId: monitor?.bedId ?? null, windowStart: w.windowStart, windowEnd: w.windowEnd }, result, challenge);
-    await m.update(AnalysisWindowRow, { id: w.id }, { status: 'done', attempts: w.attempts + 1, claimedBy: workerId, assessmentId: row.id, doneAt: new Date() });
-    return { windowId: w.id, status: 'done' as const, assessmentId: row.id };
-  }, { onRetry: (attempt, err) => ctx.logger.warn({ attempt, err: (err as Error).message }, 'analysis claim conflicted; retrying') });
+      // A tidal volume challenge this window completes is judged here and stored on its assessment.
+      const found = engine.analyseChallenge
+        ? await findChallenge(m, w.monitorId, w.windowEnd, DEFAULT_SETTINGS, { profile: profileContext(profile), bed: input.bedContext })
+        : null;
+      let challenge = challengeColumns(null, null);
+      if (found && engine.analyseChallenge) {
+        try {
+          challenge = challengeColumns(found, engine.analyseChallenge(found.input, settings));
+        } catch (err) {
+          ctx.logger.warn({ windowId: w.id, monitorId: w.monitorId, err: (err as Error).message }, 'tidal volume challenge could not be read');
+        }
+      }
+      const row = await storeAssessment(
+        m,
+        { monitorId: w.monitorId, bedId: monitor?.bedId ?? null, windowStart: w.windowStart, windowEnd: w.windowEnd },
+        result,
+        challenge,
+      );
+      await m.update(
+        AnalysisWindowRow,
+        { id: w.id },
+        { status: 'done', attempts: w.attempts + 1, claimedBy: workerId, assessmentId: row.id, doneAt: new Date() },
+      );
+      return { windowId: w.id, status: 'done' as const, assessmentId: row.id };
+    },
+    { onRetry: (attempt, err) => ctx.logger.warn({ attempt, err: (err as Error).message }, 'analysis claim conflicted; retrying') },
+  );
 }
 
 /** Background worker: drains due windows, then polls. Any number may run against one database. */
@@ -114,7 +136,11 @@ export class AnalysisWorker implements BackgroundService {
     private readonly ctx: AppContext,
     private readonly engine: Engine = DEFAULT_ENGINE,
   ) {
-    this.loop = new PollLoop(() => this.pass(), () => ctx.config.analysis.pollMs, (err) => ctx.logger.error({ err }, 'analysis worker error'));
+    this.loop = new PollLoop(
+      () => this.pass(),
+      () => ctx.config.analysis.pollMs,
+      (err) => ctx.logger.error({ err }, 'analysis worker error'),
+    );
   }
 
   async start(): Promise<void> {
@@ -141,7 +167,11 @@ export class AnalysisWorker implements BackgroundService {
  * Queues re-analysis of already analysed windows with `engineVersion` (a newer engine). The
  * earlier assessments stay; the new ones are added beside them.
  */
-export async function requestReanalysis(ctx: AppContext, q: { engineVersion: string; monitorId?: string; from?: Date; to?: Date }, m: EntityManager = ctx.ds.manager): Promise<number> {
+export async function requestReanalysis(
+  ctx: AppContext,
+  q: { engineVersion: string; monitorId?: string; from?: Date; to?: Date },
+  m: EntityManager = ctx.ds.manager,
+): Promise<number> {
   const where: string[] = ["status = 'done'", 'engine_version <> ?'];
   const params: unknown[] = [q.engineVersion, new Date(), q.engineVersion];
   const add = (clause: string, value: unknown) => {

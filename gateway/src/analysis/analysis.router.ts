@@ -15,7 +15,8 @@ export function analysisRouter(ctx: AppContext): Router {
     path: '/analysis/preview',
     permission: 'analysis.preview',
     tag: 'analysis',
-    summary: 'Test bench: upload a capture (JSON batch, CSV or HL7 file, field "file") and optionally a profileId; get the parse report and the full analysis. Nothing is stored.',
+    summary:
+      'Test bench: upload a capture (JSON batch, CSV or HL7 file, field "file") and optionally a profileId; get the parse report and the full analysis. Nothing is stored.',
     before: [upload.single('file')],
     bodyType: 'multipart/form-data',
     body: previewFieldsSchema,
@@ -30,7 +31,8 @@ export function analysisRouter(ctx: AppContext): Router {
     path: '/analysis/reanalyse',
     permission: 'analysis.reanalyse',
     tag: 'analysis',
-    summary: "Queue stored windows analysed by an older engine for analysis with this gateway's engine (optionally one monitor, a time range). Earlier assessments stay beside the new ones.",
+    summary:
+      "Queue stored windows analysed by an older engine for analysis with this gateway's engine (optionally one monitor, a time range). Earlier assessments stay beside the new ones.",
     body: reanalysisRequestSchema,
     response: reanalysisAnswerSchema,
     status: 202,

@@ -9,7 +9,12 @@ export async function storeAssessment(
   m: EntityManager,
   w: { monitorId: string; bedId: string | null; windowStart: Date; windowEnd: Date },
   result: AnalysisResult,
-  challenge: Pick<AssessmentRow, 'tidalVolumeChallenge' | 'challengeDeltaPpv' | 'challengeVerdict' | 'challengeStepAt'> = { tidalVolumeChallenge: null, challengeDeltaPpv: null, challengeVerdict: null, challengeStepAt: null },
+  challenge: Pick<AssessmentRow, 'tidalVolumeChallenge' | 'challengeDeltaPpv' | 'challengeVerdict' | 'challengeStepAt'> = {
+    tidalVolumeChallenge: null,
+    challengeDeltaPpv: null,
+    challengeVerdict: null,
+    challengeStepAt: null,
+  },
 ): Promise<AssessmentRow> {
   const v = (k: keyof AnalysisResult['indices']) => result.indices[k]?.value ?? null;
   const row = m.create(AssessmentRow, {

@@ -38,7 +38,10 @@ function quantity(codes: CodeMap, value: number, unit: string, display: string):
   return { value: Math.round(value * 10_000) / 10_000, unit: display, system: codes.ucumSystem, code: unit };
 }
 
-const local = (codes: CodeMap, c: { code: string; display: string }): CodeableConcept => ({ coding: [{ system: codes.localSystem, code: c.code, display: c.display }], text: c.display });
+const local = (codes: CodeMap, c: { code: string; display: string }): CodeableConcept => ({
+  coding: [{ system: codes.localSystem, code: c.code, display: c.display }],
+  text: c.display,
+});
 
 /** The delivery row name (delivery.index_name) of a challenge result, beside ppv, spv, deltaPop, perfusionIndex. */
 export const CHALLENGE_DELIVERY = 'tidalVolumeChallenge';
@@ -67,7 +70,10 @@ export function buildChallengeObservation(input: ChallengeObservationInput): Obs
     resourceType: 'Observation',
     identifier: [{ use: 'official', ...challengeIdentifier(codes, input.assessmentId) }],
     status: input.status,
-    category: [{ coding: codes.category.coding }, { coding: [{ system: codes.localSystem, code: codes.category.local.code, display: codes.category.local.display }] }],
+    category: [
+      { coding: codes.category.coding },
+      { coding: [{ system: codes.localSystem, code: codes.category.local.code, display: codes.category.local.display }] },
+    ],
     code: local(codes, LOCAL.code),
     subject: { reference: `Patient/${input.context.patientId}` },
     encounter: { reference: `Encounter/${input.context.encounterId}` },
@@ -77,10 +83,17 @@ export function buildChallengeObservation(input: ChallengeObservationInput): Obs
     // obs-6: a value or a dataAbsentReason, never both.
     ...(judged
       ? { valueQuantity: quantity(codes, t.deltaPpv as number, '%', 'percentage points') }
-      : { dataAbsentReason: { coding: [{ system: codes.dataAbsentReasonSystem, code: codes.dataAbsentReason.notValid.code, display: codes.dataAbsentReason.notValid.display }], text: codes.dataAbsentReason.notValid.display } }),
+      : {
+          dataAbsentReason: {
+            coding: [{ system: codes.dataAbsentReasonSystem, code: codes.dataAbsentReason.notValid.code, display: codes.dataAbsentReason.notValid.display }],
+            text: codes.dataAbsentReason.notValid.display,
+          },
+        }),
     interpretation: [{ coding: [{ system: codes.localSystem, code: v.code, display: v.display }], text: v.display }],
     note: [{ text: lines.join(' ') }, { text: `Cautions: ${t.cautions.join(' ')}` }],
-    method: { text: `Tidal volume challenge (Myatra et al., Crit Care Med 2017): PPV before and after raising tidal volume from about 6 to 8 mL/kg PBW; engine ${t.engineVersion}` },
+    method: {
+      text: `Tidal volume challenge (Myatra et al., Crit Care Med 2017): PPV before and after raising tidal volume from about 6 to 8 mL/kg PBW; engine ${t.engineVersion}`,
+    },
     component: comp,
   };
 }

@@ -77,7 +77,15 @@ export async function findChallenge(
 }
 
 /** Columns of the assessment row that carry a challenge result. */
-export function challengeColumns(found: ChallengeFound | null, result: TidalVolumeChallengeResult | null): Pick<AssessmentRow, 'tidalVolumeChallenge' | 'challengeDeltaPpv' | 'challengeVerdict' | 'challengeStepAt'> {
+export function challengeColumns(
+  found: ChallengeFound | null,
+  result: TidalVolumeChallengeResult | null,
+): Pick<AssessmentRow, 'tidalVolumeChallenge' | 'challengeDeltaPpv' | 'challengeVerdict' | 'challengeStepAt'> {
   if (!found || !result) return { tidalVolumeChallenge: null, challengeDeltaPpv: null, challengeVerdict: null, challengeStepAt: null };
-  return { tidalVolumeChallenge: result as unknown as object, challengeDeltaPpv: result.deltaPpv, challengeVerdict: result.verdict, challengeStepAt: found.stepAt };
+  return {
+    tidalVolumeChallenge: result as unknown as object,
+    challengeDeltaPpv: result.deltaPpv,
+    challengeVerdict: result.verdict,
+    challengeStepAt: found.stepAt,
+  };
 }

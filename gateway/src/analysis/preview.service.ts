@@ -1,5 +1,13 @@
 import type { AnalysisContext, PreviewResult, Waveform } from '@ebbgate/shared';
-import { analyseWindow, AnalysisInputError, CaptureParseError, parseCsvCapture, roleForCode, type AnalysisChannel, type AnalysisInput } from '@ebbgate/shared/analysis';
+import {
+  analyseWindow,
+  AnalysisInputError,
+  CaptureParseError,
+  parseCsvCapture,
+  roleForCode,
+  type AnalysisChannel,
+  type AnalysisInput,
+} from '@ebbgate/shared/analysis';
 import type { AppContext } from '../app-context';
 import { MonitorProfileRow } from '../devices/device.entities';
 import { toProfile } from '../devices/device-views';
@@ -41,8 +49,14 @@ function unprofiledChannels(batch: ReceivedBatch, warnings: string[]): { code: s
 }
 
 function toProblem(err: unknown): never {
-  if (err instanceof IngestRefusal) throw new HttpProblem(err.kind === 'invalid' ? 400 : 422, err.kind === 'invalid' ? 'Bad request' : 'Unprocessable content', err.reason, { errors: err.errors.length ? err.errors : undefined });
-  if (err instanceof CaptureParseError) throw new HttpProblem(400, 'Bad request', `The CSV capture cannot be read: ${err.message}`, { errors: [{ path: `line ${err.line}`, message: err.message }] });
+  if (err instanceof IngestRefusal)
+    throw new HttpProblem(err.kind === 'invalid' ? 400 : 422, err.kind === 'invalid' ? 'Bad request' : 'Unprocessable content', err.reason, {
+      errors: err.errors.length ? err.errors : undefined,
+    });
+  if (err instanceof CaptureParseError)
+    throw new HttpProblem(400, 'Bad request', `The CSV capture cannot be read: ${err.message}`, {
+      errors: [{ path: `line ${err.line}`, message: err.message }],
+    });
   if (err instanceof AnalysisInputError) throw unprocessable(`The capture cannot be analysed: ${err.message}`);
   throw err;
 }
@@ -72,14 +86,20 @@ export async function previewCapture(ctx: AppContext, file: { buffer: Buffer; or
       if (profile) {
         const transport = format === 'json' ? 'http' : 'mllp';
         if (!profile.transports.includes(transport)) warnings.push(`profile "${profile.name}" does not list the ${transport} transport`);
-        const mapped = mapChannels(batch, { id: 'preview', identifier: batch.monitorIdentifier, enabled: true, bedId: null, profile: { ...profile, transports: [transport] } }, transport);
+        const mapped = mapChannels(
+          batch,
+          { id: 'preview', identifier: batch.monitorIdentifier, enabled: true, bedId: null, profile: { ...profile, transports: [transport] } },
+          transport,
+        );
         chans = [];
         for (const c of mapped) {
           if (chans.some((x) => x.ch.role === c.role)) warnings.push(`a second ${c.role} channel (${c.code}) was skipped`);
           else chans.push({ code: c.code, ch: { role: c.role, sampleRate: c.sampleRate, unit: c.unit, samples: storedSamplesToFloat32(c.samples) } });
         }
       } else chans = unprofiledChannels(batch, warnings);
-      const profileCtx: AnalysisContext = profile ? { plethScaling: profile.plethScaling, ...(profile.defaultProbeSite ? { probeSite: profile.defaultProbeSite } : {}) } : {};
+      const profileCtx: AnalysisContext = profile
+        ? { plethScaling: profile.plethScaling, ...(profile.defaultProbeSite ? { probeSite: profile.defaultProbeSite } : {}) }
+        : {};
       input = { channels: chans.map((c) => c.ch), context: { ...profileCtx, ...(batch.context ?? {}) }, startTime: batch.startTime.toISOString() };
       report = chans.map((c) => ({ code: c.code, role: c.ch.role, unit: c.ch.unit, sampleRate: c.ch.sampleRate, samples: c.ch.samples.length }));
     }
@@ -88,9 +108,18 @@ export async function previewCapture(ctx: AppContext, file: { buffer: Buffer; or
     const analysis = analyseWindow(input, { cyclesToAverage: site.cyclesToAverage, bands: site.bands });
     const waveform: Waveform = {
       startTime: input.startTime ?? new Date(0).toISOString(),
-      channels: input.channels.map((c) => ({ role: c.role, unit: c.unit, sampleRate: c.sampleRate, samples: Array.from(c.samples, (v) => (Number.isFinite(v) ? v : null)) })),
+      channels: input.channels.map((c) => ({
+        role: c.role,
+        unit: c.unit,
+        sampleRate: c.sampleRate,
+        samples: Array.from(c.samples, (v) => (Number.isFinite(v) ? v : null)),
+      })),
     };
-    return { parseReport: { format, profileId: profile?.id ?? null, channels: report, warnings }, waveform, analysis: analysis as unknown as Record<string, unknown> };
+    return {
+      parseReport: { format, profileId: profile?.id ?? null, channels: report, warnings },
+      waveform,
+      analysis: analysis as unknown as Record<string, unknown>,
+    };
   } catch (err) {
     return toProblem(err);
   }

@@ -15,9 +15,21 @@ export async function queueReanalysis(
   by: ChangeBy,
 ): Promise<z.infer<typeof reanalysisAnswerSchema>> {
   return ctx.ds.transaction(async (m) => {
-    const q = { engineVersion: ENGINE_VERSION, monitorId: request.monitorId, from: request.from ? new Date(request.from) : undefined, to: request.to ? new Date(request.to) : undefined };
+    const q = {
+      engineVersion: ENGINE_VERSION,
+      monitorId: request.monitorId,
+      from: request.from ? new Date(request.from) : undefined,
+      to: request.to ? new Date(request.to) : undefined,
+    };
     const queued = await requestReanalysis(ctx, q, m);
-    await recordAudit(m, { principal: by.principal, action: 'analysis.reanalyse', entityType: 'analysis-window', entityId: request.monitorId ?? null, after: { ...request, engineVersion: ENGINE_VERSION, queued }, requestId: by.requestId });
+    await recordAudit(m, {
+      principal: by.principal,
+      action: 'analysis.reanalyse',
+      entityType: 'analysis-window',
+      entityId: request.monitorId ?? null,
+      after: { ...request, engineVersion: ENGINE_VERSION, queued },
+      requestId: by.requestId,
+    });
     return { engineVersion: ENGINE_VERSION, queued };
   });
 }

@@ -18,7 +18,14 @@ const SORTABLE: Record<string, string> = {
   perfusionIndex: 'a.perfusion_index',
   heartRate: 'a.heart_rate',
 };
-const INDEX_COLUMNS: Record<string, string> = { ppv: 'ppv', spv: 'spv', deltaPop: 'delta_pop', perfusionIndex: 'perfusion_index', heartRate: 'heart_rate', respiratoryRate: 'respiratory_rate' };
+const INDEX_COLUMNS: Record<string, string> = {
+  ppv: 'ppv',
+  spv: 'spv',
+  deltaPop: 'delta_pop',
+  perfusionIndex: 'perfusion_index',
+  heartRate: 'heart_rate',
+  respiratoryRate: 'respiratory_rate',
+};
 
 interface SummaryRaw {
   id: string;
@@ -115,8 +122,14 @@ export async function listAssessments(ds: DataSource, q: AssessmentQuery): Promi
   const total = await qb.getCount();
   const dir = q.order === 'asc' ? 'ASC' : 'DESC';
   qb.orderBy(sortColumn(SORTABLE, q.sort, 'a.window_start'), dir).addOrderBy('a.id', dir);
-  const rows = (await qb.offset((q.page - 1) * q.pageSize).limit(q.pageSize).getRawMany()) as SummaryRaw[];
-  const statuses = await deliveryStatuses(ds, rows.map((r) => r.id));
+  const rows = (await qb
+    .offset((q.page - 1) * q.pageSize)
+    .limit(q.pageSize)
+    .getRawMany()) as SummaryRaw[];
+  const statuses = await deliveryStatuses(
+    ds,
+    rows.map((r) => r.id),
+  );
   return { items: rows.map((r) => toSummary(r, statuses.get(r.id) ?? null)), page: q.page, pageSize: q.pageSize, total };
 }
 
@@ -128,15 +141,27 @@ export async function getAssessment(ds: DataSource, id: string, readBy: ChangeBy
     .addSelect('a.entered_in_error_reason', 'enteredInErrorReason')
     .addSelect('a.tidal_volume_challenge', 'tidalVolumeChallenge')
     .where('a.id = :id', { id })
-    .getRawOne()) as (SummaryRaw & { result: string; enteredInErrorBy: string | null; enteredInErrorReason: string | null; tidalVolumeChallenge: string | null }) | undefined;
+    .getRawOne()) as
+    (SummaryRaw & { result: string; enteredInErrorBy: string | null; enteredInErrorReason: string | null; tidalVolumeChallenge: string | null }) | undefined;
   if (!raw) throw notFound(`Assessment ${id}`);
   // Patient data: every read of an assessment's detail (waveform, result) is audited.
-  await recordAudit(ds.manager, { principal: readBy.principal, action: 'assessment.read', entityType: 'assessment', entityId: id, requestId: readBy.requestId });
+  await recordAudit(ds.manager, {
+    principal: readBy.principal,
+    action: 'assessment.read',
+    entityType: 'assessment',
+    entityId: id,
+    requestId: readBy.requestId,
+  });
   const statuses = await deliveryStatuses(ds, [id]);
   const { input } = await assembleWindow(ds, raw.monitorId, new Date(raw.windowStart), new Date(raw.windowEnd));
   const waveform: Waveform = {
     startTime: new Date(raw.windowStart).toISOString(),
-    channels: input.channels.map((c) => ({ role: c.role, unit: c.unit, sampleRate: c.sampleRate, samples: Array.from(c.samples, (v) => (Number.isFinite(v) ? v : null)) })),
+    channels: input.channels.map((c) => ({
+      role: c.role,
+      unit: c.unit,
+      sampleRate: c.sampleRate,
+      samples: Array.from(c.samples, (v) => (Number.isFinite(v) ? v : null)),
+    })),
   };
   const observations: Record<string, unknown>[] = [];
   for (const p of assessmentEvents(ds).observations) observations.push(...(await p(ds, id)));
@@ -165,7 +190,15 @@ export async function markInError(ds: DataSource, id: string, reason: string, by
     row.enteredInErrorBy = who;
     row.enteredInErrorReason = reason;
     await m.update(AssessmentRow, { id }, { enteredInErrorAt: row.enteredInErrorAt, enteredInErrorBy: who, enteredInErrorReason: reason });
-    await recordAudit(m, { principal: by.principal, action: 'assessment.mark-in-error', entityType: 'assessment', entityId: id, before: { enteredInError: false }, after: { enteredInError: true, reason }, requestId: by.requestId });
+    await recordAudit(m, {
+      principal: by.principal,
+      action: 'assessment.mark-in-error',
+      entityType: 'assessment',
+      entityId: id,
+      before: { enteredInError: false },
+      after: { enteredInError: true, reason },
+      requestId: by.requestId,
+    });
     for (const hook of assessmentEvents(ds).markedInError) await hook(m, row, reason);
   });
   return (await listAssessmentsById(ds, id))!;

@@ -23,9 +23,7 @@ function scrub(value: unknown): unknown {
   if (Array.isArray(value)) return value.map(scrub);
   if (value instanceof Date) return value.toISOString();
   if (typeof value === 'object') {
-    return Object.fromEntries(
-      Object.entries(value as Record<string, unknown>).map(([k, v]) => [k, SECRET_KEYS.has(k) ? '[redacted]' : scrub(v)]),
-    );
+    return Object.fromEntries(Object.entries(value as Record<string, unknown>).map(([k, v]) => [k, SECRET_KEYS.has(k) ? '[redacted]' : scrub(v)]));
   }
   return value;
 }
@@ -72,6 +70,9 @@ export async function listAudit(ds: DataSource, q: AuditQuery): Promise<Page<Aud
   if (q.from) qb.andWhere('a.at >= :from', { from: new Date(q.from) });
   if (q.to) qb.andWhere('a.at <= :to', { to: new Date(q.to) });
   qb.orderBy(sortColumn(SORTABLE, q.sort, 'a.at'), q.order === 'asc' ? 'ASC' : 'DESC').addOrderBy('a.id', q.order === 'asc' ? 'ASC' : 'DESC');
-  const [rows, total] = await qb.skip((q.page - 1) * q.pageSize).take(q.pageSize).getManyAndCount();
+  const [rows, total] = await qb
+    .skip((q.page - 1) * q.pageSize)
+    .take(q.pageSize)
+    .getManyAndCount();
   return { items: rows.map(toAuditEntry), page: q.page, pageSize: q.pageSize, total };
 }

@@ -33,7 +33,8 @@ export function authRouter(ctx: AppContext): Router {
     limit: ctx.config.auth.signInAttemptsPerMinute,
     standardHeaders: 'draft-7',
     legacyHeaders: false,
-    handler: (_req, _res, next) => next(new HttpProblem(429, 'Too many requests', 'Too many sign-in attempts from this address; wait a minute.', { headers: { 'Retry-After': '60' } })),
+    handler: (_req, _res, next) =>
+      next(new HttpProblem(429, 'Too many requests', 'Too many sign-in attempts from this address; wait a minute.', { headers: { 'Retry-After': '60' } })),
   });
 
   defineRoute(router, {

@@ -52,8 +52,17 @@ export async function signIn(ctx: AppContext, username: string, password: string
   const until = await blockedUntil(ctx.ds, username, source.ip);
   if (until) {
     const wait = Math.max(1, Math.ceil((until.getTime() - Date.now()) / 1000));
-    await recordAudit(ctx.ds.manager, { principal: undefined, action: 'auth.sign-in-throttled', entityType: 'user', entityId: null, after: { username, source: source.ip }, requestId });
-    throw new HttpProblem(429, 'Too many sign-in attempts', `Too many failed sign-ins for this account or from this address; try again in ${wait} s.`, { headers: { 'Retry-After': String(wait) } });
+    await recordAudit(ctx.ds.manager, {
+      principal: undefined,
+      action: 'auth.sign-in-throttled',
+      entityType: 'user',
+      entityId: null,
+      after: { username, source: source.ip },
+      requestId,
+    });
+    throw new HttpProblem(429, 'Too many sign-in attempts', `Too many failed sign-ins for this account or from this address; try again in ${wait} s.`, {
+      headers: { 'Retry-After': String(wait) },
+    });
   }
   const user = await ctx.ds.getRepository(UserRow).findOneBy({ username });
   const ok = await verifyPassword(password, user?.passwordHash ?? (await dummyHash()));
@@ -61,9 +70,19 @@ export async function signIn(ctx: AppContext, username: string, password: string
     await countFailure(ctx.ds, ctx.config.auth.throttle, username, source.ip);
     // The console shows the account's wait as `lockedUntil`; the count itself is atomic here too.
     // Run for unknown names as well (it then changes no row), so every failure costs the same queries.
-    await ctx.ds.query(`UPDATE app_user SET failed_attempts = failed_attempts + 1, locked_until = (SELECT blocked_until FROM sign_in_throttle WHERE scope = 'account' AND subject = ?) WHERE username = ?`, [accountSubject(username), username]);
+    await ctx.ds.query(
+      `UPDATE app_user SET failed_attempts = failed_attempts + 1, locked_until = (SELECT blocked_until FROM sign_in_throttle WHERE scope = 'account' AND subject = ?) WHERE username = ?`,
+      [accountSubject(username), username],
+    );
     const reason = !user ? 'unknown-user' : !ok ? 'wrong-password' : 'disabled';
-    await recordAudit(ctx.ds.manager, { principal: undefined, action: 'auth.sign-in-failed', entityType: 'user', entityId: user?.id ?? null, after: { username, reason, source: source.ip }, requestId });
+    await recordAudit(ctx.ds.manager, {
+      principal: undefined,
+      action: 'auth.sign-in-failed',
+      entityType: 'user',
+      entityId: user?.id ?? null,
+      after: { username, reason, source: source.ip },
+      requestId,
+    });
     throw invalidCredentials();
   }
   const now = new Date();
@@ -74,7 +93,14 @@ export async function signIn(ctx: AppContext, username: string, password: string
   await ctx.ds.transaction(async (m) => {
     await m.update(UserRow, user.id, { failedAttempts: 0, lockedUntil: null, lastSignInAt: now, ...(rehash ? { passwordHash: rehash } : {}) });
     await m.insert(UserSessionRow, { id: sessionId, userId: user.id, createdAt: now, expiresAt, revokedAt: null });
-    await recordAudit(m, { principal, action: 'auth.sign-in', entityType: 'user', entityId: user.id, after: { username: user.username, source: source.ip, sessionId, ...(rehash ? { passwordRehashed: true } : {}) }, requestId });
+    await recordAudit(m, {
+      principal,
+      action: 'auth.sign-in',
+      entityType: 'user',
+      entityId: user.id,
+      after: { username: user.username, source: source.ip, sessionId, ...(rehash ? { passwordRehashed: true } : {}) },
+      requestId,
+    });
   });
   await clearAccount(ctx.ds, username);
   return issue(ctx, user, sessionId, expiresAt);
@@ -88,9 +114,29 @@ export async function principalFromSession(ctx: AppContext, token: string): Prom
     .getRepository(UserSessionRow)
     .createQueryBuilder('s')
     .innerJoin(UserRow, 'u', 'u.id = s.user_id')
-    .select(['s.id AS sid', 's.created_at AS createdAt', 's.expires_at AS expiresAt', 's.revoked_at AS revokedAt', 'u.id AS userId', 'u.username AS username', 'u.display_name AS displayName', 'u.roles AS roles', 'u.disabled AS disabled'])
+    .select([
+      's.id AS sid',
+      's.created_at AS createdAt',
+      's.expires_at AS expiresAt',
+      's.revoked_at AS revokedAt',
+      'u.id AS userId',
+      'u.username AS username',
+      'u.display_name AS displayName',
+      'u.roles AS roles',
+      'u.disabled AS disabled',
+    ])
     .where('s.id = :sid AND s.user_id = :uid', { sid: claims.sid, uid: claims.sub })
-    .getRawOne<{ sid: string; createdAt: Date; expiresAt: Date; revokedAt: Date | null; userId: string; username: string; displayName: string; roles: string; disabled: number }>();
+    .getRawOne<{
+      sid: string;
+      createdAt: Date;
+      expiresAt: Date;
+      revokedAt: Date | null;
+      userId: string;
+      username: string;
+      displayName: string;
+      roles: string;
+      disabled: number;
+    }>();
   if (!row || row.revokedAt || Number(row.disabled)) return null;
   const now = Date.now();
   const absoluteEnd = new Date(row.createdAt).getTime() + ctx.config.auth.sessionAbsoluteMinutes * 60_000;
@@ -117,6 +163,13 @@ export async function currentSession(ctx: AppContext, principal: Extract<Princip
 export async function signOut(ctx: AppContext, principal: Extract<Principal, { kind: 'user' }>, requestId?: string): Promise<void> {
   await ctx.ds.transaction(async (m) => {
     await m.update(UserSessionRow, principal.sessionId, { revokedAt: new Date() });
-    await recordAudit(m, { principal, action: 'auth.sign-out', entityType: 'user', entityId: principal.userId, after: { username: principal.username, sessionId: principal.sessionId }, requestId });
+    await recordAudit(m, {
+      principal,
+      action: 'auth.sign-out',
+      entityType: 'user',
+      entityId: principal.userId,
+      after: { username: principal.username, sessionId: principal.sessionId },
+      requestId,
+    });
   });
 }

@@ -24,7 +24,14 @@ export async function issueDeviceKey(ctx: AppContext, monitorId: string, by: Cha
     const secret = randomBytes(32).toString('base64url');
     keyCache.clear();
     await m.insert(DeviceKeyRow, { id: keyId, monitorId, keyHash: sha256(secret), createdAt: now, revokedAt: null, lastUsedAt: null });
-    await recordAudit(m, { principal: by.principal, action: 'device-key.issue', entityType: 'monitor', entityId: monitorId, after: { keyId }, requestId: by.requestId });
+    await recordAudit(m, {
+      principal: by.principal,
+      action: 'device-key.issue',
+      entityType: 'monitor',
+      entityId: monitorId,
+      after: { keyId },
+      requestId: by.requestId,
+    });
     return { apiKey: `${PREFIX}_${keyId}_${secret}`, keyId, createdAt: now.toISOString() };
   });
 }
@@ -33,8 +40,20 @@ export async function revokeDeviceKeys(ctx: AppContext, monitorId: string, by: C
   return ctx.ds.transaction(async (m) => {
     const live = await m.find(DeviceKeyRow, { where: { monitorId, revokedAt: IsNull() } });
     if (!live.length) return 0;
-    await m.createQueryBuilder().update(DeviceKeyRow).set({ revokedAt: new Date() }).where('monitor_id = :monitorId AND revoked_at IS NULL', { monitorId }).execute();
-    await recordAudit(m, { principal: by.principal, action: 'device-key.revoke', entityType: 'monitor', entityId: monitorId, before: { keyIds: live.map((k) => k.id) }, requestId: by.requestId });
+    await m
+      .createQueryBuilder()
+      .update(DeviceKeyRow)
+      .set({ revokedAt: new Date() })
+      .where('monitor_id = :monitorId AND revoked_at IS NULL', { monitorId })
+      .execute();
+    await recordAudit(m, {
+      principal: by.principal,
+      action: 'device-key.revoke',
+      entityType: 'monitor',
+      entityId: monitorId,
+      before: { keyIds: live.map((k) => k.id) },
+      requestId: by.requestId,
+    });
     keyCache.clear();
     return live.length;
   });

@@ -37,12 +37,15 @@ export function boardRouter(ctx: AppContext): Router {
     path: '/board/beds/:bedId/trend.csv',
     permission: 'assessments.read',
     tag: 'board',
-    summary: "The same trend as CSV (one row per shown point)",
+    summary: 'The same trend as CSV (one row per shown point)',
     params: bedParams,
     query: trendQuerySchema,
     handler: async ({ params, query, res }) => {
       const trend = await getBedTrend(ctx, params.bedId, query);
-      res.type('text/csv').attachment(`trend-${trend.bed.name}-${trend.to.slice(0, 16).replace(/:/g, '')}.csv`).send(trendCsv(trend));
+      res
+        .type('text/csv')
+        .attachment(`trend-${trend.bed.name}-${trend.to.slice(0, 16).replace(/:/g, '')}.csv`)
+        .send(trendCsv(trend));
     },
   });
   defineRoute(router, {

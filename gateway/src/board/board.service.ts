@@ -31,9 +31,16 @@ export function mainFlag(flags: { code?: string; severity?: string; reason?: str
 }
 
 /** Worst state first: the on-call admin looks for what needs them. */
-export function bedState(input: { hasMonitor: boolean; quarantined: number; lastSeenAgeSeconds: number | null; waitingForPatient: boolean }): { state: BedDataState; reason: string } {
+export function bedState(input: { hasMonitor: boolean; quarantined: number; lastSeenAgeSeconds: number | null; waitingForPatient: boolean }): {
+  state: BedDataState;
+  reason: string;
+} {
   if (!input.hasMonitor) return { state: 'no-monitor', reason: 'No monitor is assigned to this bed.' };
-  if (input.quarantined > 0) return { state: 'quarantining', reason: `${input.quarantined} inbound message${input.quarantined === 1 ? '' : 's'} quarantined in the last ${QUARANTINE_MINUTES} minutes.` };
+  if (input.quarantined > 0)
+    return {
+      state: 'quarantining',
+      reason: `${input.quarantined} inbound message${input.quarantined === 1 ? '' : 's'} quarantined in the last ${QUARANTINE_MINUTES} minutes.`,
+    };
   if (input.lastSeenAgeSeconds === null) return { state: 'stale', reason: 'The monitor has never sent data.' };
   if (input.lastSeenAgeSeconds > STALE_AFTER_SECONDS) return { state: 'stale', reason: `Nothing received for ${Math.round(input.lastSeenAgeSeconds)} s.` };
   if (input.waitingForPatient) return { state: 'no-patient', reason: 'The EHR names no patient in this bed; results wait for context.' };
@@ -59,11 +66,17 @@ export async function getBoard(ctx: AppContext, query: BoardQuery, now = new Dat
        JOIN (SELECT bed_id, MAX(window_start) AS ws FROM assessment WHERE bed_id IS NOT NULL AND entered_in_error_at IS NULL GROUP BY bed_id) l
          ON l.bed_id = a.bed_id AND l.ws = a.window_start
        WHERE a.entered_in_error_at IS NULL`),
-    q(`SELECT bed_id, FLOOR(UNIX_TIMESTAMP(window_start) / ?) AS b,
+    q(
+      `SELECT bed_id, FLOOR(UNIX_TIMESTAMP(window_start) / ?) AS b,
               AVG(CASE WHEN verdict <> 'not-valid' THEN ppv END) AS ppv,
               MAX(CASE verdict WHEN 'not-valid' THEN 2 WHEN 'questionable' THEN 1 ELSE 0 END) AS worst
-       FROM assessment WHERE bed_id IS NOT NULL AND window_start >= ? AND entered_in_error_at IS NULL GROUP BY bed_id, b`, [TREND_BUCKET_MINUTES * 60, trendSince]),
-    q(`SELECT monitor_id, COUNT(*) AS c FROM inbound_message WHERE outcome = 'quarantined' AND handled_at IS NULL AND received_at >= ? AND monitor_id IS NOT NULL GROUP BY monitor_id`, [new Date(now.getTime() - QUARANTINE_MINUTES * 60_000)]),
+       FROM assessment WHERE bed_id IS NOT NULL AND window_start >= ? AND entered_in_error_at IS NULL GROUP BY bed_id, b`,
+      [TREND_BUCKET_MINUTES * 60, trendSince],
+    ),
+    q(
+      `SELECT monitor_id, COUNT(*) AS c FROM inbound_message WHERE outcome = 'quarantined' AND handled_at IS NULL AND received_at >= ? AND monitor_id IS NOT NULL GROUP BY monitor_id`,
+      [new Date(now.getTime() - QUARANTINE_MINUTES * 60_000)],
+    ),
   ]);
 
   const monitorByBed = new Map<string, Row>();
@@ -125,7 +138,11 @@ export async function getBoard(ctx: AppContext, query: BoardQuery, now = new Dat
       trend: buckets
         ? Array.from({ length: bucketCount }, (_, i) => {
             const r = buckets.get(firstBucket + i);
-            return { t: new Date((firstBucket + i) * bucketSeconds * 1000).toISOString(), ppv: r ? num(r.ppv) : null, verdict: r ? WORST[Number(r.worst)]! : null };
+            return {
+              t: new Date((firstBucket + i) * bucketSeconds * 1000).toISOString(),
+              ppv: r ? num(r.ppv) : null,
+              verdict: r ? WORST[Number(r.worst)]! : null,
+            };
           })
         : [],
     };

@@ -38,7 +38,16 @@ export function minMaxDownsample(points: TrendPoint[], fromMs: number, bucketMs:
     const low = Object.fromEntries(SERIES.map((s) => [s, extreme(s, Math.min)])) as Record<Series, number | null>;
     const high = Object.fromEntries(SERIES.map((s) => [s, extreme(s, Math.max)])) as Record<Series, number | null>;
     // The two points keep their source windows' times, in time order.
-    const [first, second] = Date.parse(lowSource.t) <= Date.parse(highSource.t) ? [[lowSource, low], [highSource, high]] as const : [[highSource, high], [lowSource, low]] as const;
+    const [first, second] =
+      Date.parse(lowSource.t) <= Date.parse(highSource.t)
+        ? ([
+            [lowSource, low],
+            [highSource, high],
+          ] as const)
+        : ([
+            [highSource, high],
+            [lowSource, low],
+          ] as const);
     const half = Math.ceil(group.length / 2);
     out.push({ t: first[0].t, assessmentId: first[0].assessmentId, verdict: worst, ...first[1], windows: half });
     out.push({ t: second[0].t, assessmentId: second[0].assessmentId, verdict: worst, ...second[1], windows: group.length - half });

@@ -83,7 +83,8 @@ export async function getBedTrend(ctx: AppContext, bedId: string, query: TrendQu
     const a = rows[i - 1]!;
     const b = rows[i]!;
     if (a.monitor_id !== b.monitor_id) events.push({ t: raw[i]!.t, kind: 'bed-transfer', label: 'Another monitor in this bed', assessmentId: String(b.id) });
-    else if (a.patient_ref && b.patient_ref && a.patient_ref !== b.patient_ref) events.push({ t: raw[i]!.t, kind: 'bed-transfer', label: 'Another patient in this bed', assessmentId: String(b.id) });
+    else if (a.patient_ref && b.patient_ref && a.patient_ref !== b.patient_ref)
+      events.push({ t: raw[i]!.t, kind: 'bed-transfer', label: 'Another patient in this bed', assessmentId: String(b.id) });
   }
   const monitorIds = [...new Set(rows.map((r) => String(r.monitor_id)))];
   if (monitorIds.length) {
@@ -137,8 +138,16 @@ async function challengeEvents(ctx: AppContext, bedId: string, from: Date, to: D
     }
     // The engine's judgement, stored on the assessment that completed the challenge.
     if (r.challenge_verdict) {
-      const delta = r.challenge_delta_ppv === null || r.challenge_delta_ppv === undefined ? '' : `, ΔPPV ${Number(r.challenge_delta_ppv) > 0 ? '+' : ''}${Number(r.challenge_delta_ppv).toFixed(1)} points`;
-      out.push({ t, kind: 'tidal-volume-challenge', label: `Tidal volume challenge judged: ${String(r.challenge_verdict).replace(/-/g, ' ')}${delta}`, assessmentId: String(r.id) });
+      const delta =
+        r.challenge_delta_ppv === null || r.challenge_delta_ppv === undefined
+          ? ''
+          : `, ΔPPV ${Number(r.challenge_delta_ppv) > 0 ? '+' : ''}${Number(r.challenge_delta_ppv).toFixed(1)} points`;
+      out.push({
+        t,
+        kind: 'tidal-volume-challenge',
+        label: `Tidal volume challenge judged: ${String(r.challenge_verdict).replace(/-/g, ' ')}${delta}`,
+        assessmentId: String(r.id),
+      });
     }
   }
   return out;
@@ -156,7 +165,13 @@ export function challengeSteps(events: TrendEvent[], maxHoldMs = 5 * 60_000): Tr
     const [a, b] = [Number(up[1]), Number(up[2])];
     const [c, d] = [Number(down[1]), Number(down[2])];
     const held = Date.parse(tv[i + 1]!.t) - Date.parse(tv[i]!.t);
-    if (b > a && c === b && d < c && held <= maxHoldMs) out.push({ t: tv[i]!.t, kind: 'tidal-volume-challenge', label: `Tidal volume raised ${a} → ${b} mL for ${Math.round(held / 1000)} s`, assessmentId: null });
+    if (b > a && c === b && d < c && held <= maxHoldMs)
+      out.push({
+        t: tv[i]!.t,
+        kind: 'tidal-volume-challenge',
+        label: `Tidal volume raised ${a} → ${b} mL for ${Math.round(held / 1000)} s`,
+        assessmentId: null,
+      });
   }
   return out;
 }
@@ -174,7 +189,12 @@ export async function latestFlushTest(ctx: AppContext, monitorId: string) {
   for (const r of rows) {
     const tests = parseJson<unknown[] | null>(r.ft, null);
     if (Array.isArray(tests) && tests.length > 0) {
-      return { assessmentId: String(r.id), windowEnd: new Date(r.window_end as Date).toISOString(), flushTest: tests[tests.length - 1] as Record<string, unknown>, dampingEstimate: parseJson<string | null>(r.de, null) };
+      return {
+        assessmentId: String(r.id),
+        windowEnd: new Date(r.window_end as Date).toISOString(),
+        flushTest: tests[tests.length - 1] as Record<string, unknown>,
+        dampingEstimate: parseJson<string | null>(r.de, null),
+      };
     }
   }
   return null;

@@ -64,10 +64,7 @@ export function deepMerge(base: Json, over: Json): Json {
   const out: Json = { ...base };
   for (const [k, v] of Object.entries(over)) {
     const b = out[k];
-    out[k] =
-      v && typeof v === 'object' && !Array.isArray(v) && b && typeof b === 'object' && !Array.isArray(b)
-        ? deepMerge(b as Json, v as Json)
-        : v;
+    out[k] = v && typeof v === 'object' && !Array.isArray(v) && b && typeof b === 'object' && !Array.isArray(b) ? deepMerge(b as Json, v as Json) : v;
   }
   return out;
 }

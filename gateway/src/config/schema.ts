@@ -36,7 +36,10 @@ export const configSchema = z.object({
     /** The runtime user: data privileges only (SELECT, INSERT, UPDATE, DELETE). */
     url: z.string().regex(/^(mysql|mariadb):\/\//, 'a mysql:// or mariadb:// URL'),
     /** The user that applies migrations (DDL); when null, migrations use `url`. */
-    migrationUrl: z.string().regex(/^(mysql|mariadb):\/\//, 'a mysql:// or mariadb:// URL').nullable(),
+    migrationUrl: z
+      .string()
+      .regex(/^(mysql|mariadb):\/\//, 'a mysql:// or mariadb:// URL')
+      .nullable(),
     poolSize: z.number().int().min(1).max(500),
     /** Requests waiting for a pooled connection beyond this fail at once instead of queueing without bound. */
     queueLimit: z.number().int().min(1).max(100_000),
@@ -45,9 +48,17 @@ export const configSchema = z.object({
   auth: z.object({
     jwtSecret: z.string().min(32, 'at least 32 characters'),
     /** Idle lifetime: a session not renewed within this ends. */
-    sessionMinutes: z.number().int().min(1).max(24 * 60),
+    sessionMinutes: z
+      .number()
+      .int()
+      .min(1)
+      .max(24 * 60),
     /** Absolute lifetime from sign-in: renewing never goes past it. */
-    sessionAbsoluteMinutes: z.number().int().min(1).max(7 * 24 * 60),
+    sessionAbsoluteMinutes: z
+      .number()
+      .int()
+      .min(1)
+      .max(7 * 24 * 60),
     signInAttemptsPerMinute: z.number().int().min(1),
     /**
      * Failed sign-ins per account (username as typed, known or not) and per source address: after
@@ -59,8 +70,16 @@ export const configSchema = z.object({
       sourceFreeFailures: z.number().int().min(1).max(100_000),
       baseDelaySeconds: z.number().int().min(1).max(3600),
       accountMaxDelaySeconds: z.number().int().min(1).max(3600),
-      sourceMaxDelaySeconds: z.number().int().min(1).max(24 * 3600),
-      forgetMinutes: z.number().int().min(1).max(7 * 24 * 60),
+      sourceMaxDelaySeconds: z
+        .number()
+        .int()
+        .min(1)
+        .max(24 * 3600),
+      forgetMinutes: z
+        .number()
+        .int()
+        .min(1)
+        .max(7 * 24 * 60),
     }),
   }),
   mllp: z.object({
@@ -68,7 +87,11 @@ export const configSchema = z.object({
     host: z.string(),
     port: z.number().int().min(0).max(65535),
     /** Largest HL7 message a plain-MLLP connection may send (bytes between the MLLP blocks). */
-    maxFrameBytes: z.number().int().min(1024).max(64 * 1024 * 1024),
+    maxFrameBytes: z
+      .number()
+      .int()
+      .min(1024)
+      .max(64 * 1024 * 1024),
     /** A connection with no traffic for this long is closed. */
     idleTimeoutSeconds: z.number().min(0.1).max(3600),
     /** A frame must be complete this long after its start block (slow-drip senders are closed). */
@@ -85,7 +108,11 @@ export const configSchema = z.object({
       enabled: z.boolean(),
       host: z.string(),
       port: z.number().int().min(0).max(65535),
-      maxFrameBytes: z.number().int().min(1024).max(64 * 1024 * 1024),
+      maxFrameBytes: z
+        .number()
+        .int()
+        .min(1024)
+        .max(64 * 1024 * 1024),
       certFile: z.string(),
       keyFile: z.string(),
       /** CA bundle client certificates must chain to. */
@@ -102,13 +129,20 @@ export const configSchema = z.object({
   workers: z.object({ enabled: z.boolean() }),
   ingest: z.object({
     /** Largest accepted batch body (HTTP) or HL7 message (MLLP), bytes; larger ones get 413 / AR. */
-    maxBatchBytes: z.number().int().min(1024).max(64 * 1024 * 1024),
+    maxBatchBytes: z
+      .number()
+      .int()
+      .min(1024)
+      .max(64 * 1024 * 1024),
     /** Analysis windows waiting beyond this make ingest answer 429 with Retry-After. */
     backlogLimit: z.number().int().min(1),
     retryAfterSeconds: z.number().int().min(1).max(3600),
     /** Waveform segments and inbound messages older than this are purged. */
     retentionDays: z.number().min(0.001).max(3650),
-    purgeIntervalMinutes: z.number().min(0.01).max(24 * 60),
+    purgeIntervalMinutes: z
+      .number()
+      .min(0.01)
+      .max(24 * 60),
     /** A jump forward bigger than this between batches restarts window planning at the new batch. */
     gapResetSeconds: z.number().positive().max(3600),
     /** Analysis windows waiting for one monitor beyond this make that monitor's batches wait (429/AR). */
@@ -118,7 +152,11 @@ export const configSchema = z.object({
     quarantineRetentionDays: z.number().min(0.0001).max(3650),
     /** Input from unauthenticated or unknown senders: what is kept, how often, how long. */
     strangers: z.object({
-      keepBytes: z.number().int().min(0).max(1024 * 1024),
+      keepBytes: z
+        .number()
+        .int()
+        .min(0)
+        .max(1024 * 1024),
       perSourcePerMinute: z.number().int().min(1),
       retentionDays: z.number().min(0.0001).max(3650),
     }),
@@ -137,7 +175,11 @@ export const configSchema = z.object({
     /** Run the analysis worker in this process (with workers.enabled); off for ingest-only nodes. */
     workerEnabled: z.boolean(),
     /** Upload limit of the test bench, bytes. */
-    previewMaxBytes: z.number().int().min(1024).max(64 * 1024 * 1024),
+    previewMaxBytes: z
+      .number()
+      .int()
+      .min(1024)
+      .max(64 * 1024 * 1024),
   }),
   delivery: deliveryConfigSchema,
 });

@@ -24,6 +24,36 @@ import { AlertIncidentRow, AlertMailRow, DeliveryAttemptRow, DeliveryRow, Destin
 import { Delivery1764800000001 } from './migrations/1764800000001-delivery';
 import { DeliveryReliability1765400000000 } from './migrations/1765400000000-delivery-reliability';
 
-export const ENTITIES = [UserRow, UserSessionRow, AuditEntryRow, MonitorProfileRow, BedRow, MonitorRow, DeviceKeyRow, AssessmentRow, InboundMessageRow, WaveformSegmentRow, AnalysisWindowRow, DestinationRow, DeliveryRow, DeliveryAttemptRow, AlertIncidentRow, AlertMailRow, SiteSettingRow, EdgeCredentialRow];
+export const ENTITIES = [
+  UserRow,
+  UserSessionRow,
+  AuditEntryRow,
+  MonitorProfileRow,
+  BedRow,
+  MonitorRow,
+  DeviceKeyRow,
+  AssessmentRow,
+  InboundMessageRow,
+  WaveformSegmentRow,
+  AnalysisWindowRow,
+  DestinationRow,
+  DeliveryRow,
+  DeliveryAttemptRow,
+  AlertIncidentRow,
+  AlertMailRow,
+  SiteSettingRow,
+  EdgeCredentialRow,
+];
 
-export const MIGRATIONS = [Foundation1764600000000, Assessments1764650000000, Ingest1764700000001, Delivery1764800000001, SiteSettings1764900000000, EngineTwo1765100000000, EdgeSecurity1765200000000, SignInThrottle1765300000000, DeliveryReliability1765400000000, RawEncoding1765500000000];
+export const MIGRATIONS = [
+  Foundation1764600000000,
+  Assessments1764650000000,
+  Ingest1764700000001,
+  Delivery1764800000001,
+  SiteSettings1764900000000,
+  EngineTwo1765100000000,
+  EdgeSecurity1765200000000,
+  SignInThrottle1765300000000,
+  DeliveryReliability1765400000000,
+  RawEncoding1765500000000,
+];

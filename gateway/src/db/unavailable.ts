@@ -4,7 +4,16 @@
  * it was lost, or the server has no connection slot left (ER_CON_COUNT_ERROR 1040). HTTP answers
  * these with 503 and Retry-After, so callers come back instead of treating them as a fault.
  */
-const CODES = new Set(['ECONNREFUSED', 'ECONNRESET', 'ETIMEDOUT', 'EHOSTUNREACH', 'PROTOCOL_CONNECTION_LOST', 'PROTOCOL_SEQUENCE_TIMEOUT', 'POOL_CLOSED', 'ER_CON_COUNT_ERROR']);
+const CODES = new Set([
+  'ECONNREFUSED',
+  'ECONNRESET',
+  'ETIMEDOUT',
+  'EHOSTUNREACH',
+  'PROTOCOL_CONNECTION_LOST',
+  'PROTOCOL_SEQUENCE_TIMEOUT',
+  'POOL_CLOSED',
+  'ER_CON_COUNT_ERROR',
+]);
 
 export function isDatabaseUnavailable(err: unknown): boolean {
   const e = err as { code?: unknown; errno?: unknown; message?: unknown; driverError?: unknown } | undefined;

@@ -69,8 +69,13 @@ export class AlertWatcher implements BackgroundService {
     const cfg = this.ctx.config.delivery.alerts;
     const destinations = await this.ctx.ds.getRepository(DestinationRow).find();
     const since = new Date(now.getTime() - cfg.failureWindowMinutes * 60_000);
-    const failedRows = (await this.ctx.ds.query(`SELECT destination_id AS d, COUNT(*) AS c FROM delivery WHERE status = 'failed' AND updated_at >= ? GROUP BY destination_id`, [since])) as { d: string; c: string | number }[];
-    const failedAmends = (await this.ctx.ds.query(`SELECT destination_id AS d, COUNT(*) AS c FROM delivery WHERE status = 'failed' AND kind = 'amend' GROUP BY destination_id`)) as { d: string; c: string | number }[];
+    const failedRows = (await this.ctx.ds.query(
+      `SELECT destination_id AS d, COUNT(*) AS c FROM delivery WHERE status = 'failed' AND updated_at >= ? GROUP BY destination_id`,
+      [since],
+    )) as { d: string; c: string | number }[];
+    const failedAmends = (await this.ctx.ds.query(
+      `SELECT destination_id AS d, COUNT(*) AS c FROM delivery WHERE status = 'failed' AND kind = 'amend' GROUP BY destination_id`,
+    )) as { d: string; c: string | number }[];
     for (const d of destinations) {
       const failed = Number(failedRows.find((r) => r.d === d.id)?.c ?? 0);
       const amends = Number(failedAmends.find((r) => r.d === d.id)?.c ?? 0);
@@ -100,10 +105,13 @@ export class AlertWatcher implements BackgroundService {
   }
 
   private async open(d: DestinationRow, c: Condition, now: Date): Promise<void> {
-    await this.ctx.ds.query(
-      `INSERT IGNORE INTO alert_incident (destination_id, kind, open_key, opened_at, detail) VALUES (?, ?, ?, ?, ?)`,
-      [d.id, c.kind, `${d.id}:${c.kind}`, now, c.detail],
-    );
+    await this.ctx.ds.query(`INSERT IGNORE INTO alert_incident (destination_id, kind, open_key, opened_at, detail) VALUES (?, ?, ?, ?, ?)`, [
+      d.id,
+      c.kind,
+      `${d.id}:${c.kind}`,
+      now,
+      c.detail,
+    ]);
   }
 
   private async clear(d: DestinationRow, kind: IncidentKind, now: Date): Promise<void> {
@@ -119,10 +127,20 @@ export class AlertWatcher implements BackgroundService {
     if (recipients.length === 0) return;
     await this.ctx.ds.transaction(async (m) => {
       const opened = (await m.query(`SELECT id FROM alert_incident WHERE opened_mail_at IS NULL FOR UPDATE`)) as { id: string | number }[];
-      const cleared = (await m.query(`SELECT id FROM alert_incident WHERE cleared_at IS NOT NULL AND cleared_mail_at IS NULL FOR UPDATE`)) as { id: string | number }[];
-      for (const [rows, event, column] of [[opened, 'opened', 'opened_mail_at'], [cleared, 'cleared', 'cleared_mail_at']] as const) {
+      const cleared = (await m.query(`SELECT id FROM alert_incident WHERE cleared_at IS NOT NULL AND cleared_mail_at IS NULL FOR UPDATE`)) as {
+        id: string | number;
+      }[];
+      for (const [rows, event, column] of [
+        [opened, 'opened', 'opened_mail_at'],
+        [cleared, 'cleared', 'cleared_mail_at'],
+      ] as const) {
         for (const r of rows) {
-          await m.query(`INSERT IGNORE INTO alert_mail (incident_id, event, message_id, status, tries, created_at) VALUES (?, ?, ?, 'pending', 0, ?)`, [r.id, event, this.messageId(String(r.id), event), now]);
+          await m.query(`INSERT IGNORE INTO alert_mail (incident_id, event, message_id, status, tries, created_at) VALUES (?, ?, ?, 'pending', 0, ?)`, [
+            r.id,
+            event,
+            this.messageId(String(r.id), event),
+            now,
+          ]);
           await m.query(`UPDATE alert_incident SET ${column} = ? WHERE id = ?`, [now, r.id]);
         }
       }
@@ -140,7 +158,9 @@ export class AlertWatcher implements BackgroundService {
     );
     const due = await this.ctx.ds.getRepository(AlertMailRow).find({ where: { claimId, status: 'pending' }, order: { id: 'ASC' } });
     if (!due.length) return;
-    const incidents = new Map((await this.ctx.ds.getRepository(AlertIncidentRow).findBy({ id: In(due.map((d) => d.incidentId)) })).map((i) => [String(i.id), i]));
+    const incidents = new Map(
+      (await this.ctx.ds.getRepository(AlertIncidentRow).findBy({ id: In(due.map((d) => d.incidentId)) })).map((i) => [String(i.id), i]),
+    );
     const names = new Map((await this.ctx.ds.getRepository(DestinationRow).find()).map((d) => [d.id, d.name]));
     for (const mail of due) {
       const i = incidents.get(String(mail.incidentId));
@@ -148,21 +168,45 @@ export class AlertWatcher implements BackgroundService {
       const { subject, text } = this.compose(i, mail.event === 'opened', names.get(i.destinationId) ?? i.destinationId);
       try {
         await this.mailer.send({ to: recipients, subject, text, messageId: mail.messageId });
-        const marked = (await this.ctx.ds.query(`UPDATE alert_mail SET status = 'sent', sent_at = ?, last_error = NULL WHERE id = ? AND claim_id = ?`, [new Date(), mail.id, claimId])) as { affectedRows?: number };
-        this.ctx.logger.warn({ incident: i.id, kind: i.kind, destination: i.destinationId, event: mail.event, messageId: mail.messageId, marked: !!marked.affectedRows }, 'alert mail sent');
+        const marked = (await this.ctx.ds.query(`UPDATE alert_mail SET status = 'sent', sent_at = ?, last_error = NULL WHERE id = ? AND claim_id = ?`, [
+          new Date(),
+          mail.id,
+          claimId,
+        ])) as { affectedRows?: number };
+        this.ctx.logger.warn(
+          { incident: i.id, kind: i.kind, destination: i.destinationId, event: mail.event, messageId: mail.messageId, marked: !!marked.affectedRows },
+          'alert mail sent',
+        );
       } catch (err) {
         // Not sent: due again after a short pause (the claim is released; tries counts the attempts).
-        await this.ctx.ds.query(`UPDATE alert_mail SET claim_id = NULL, claimed_until = ?, last_error = ? WHERE id = ? AND claim_id = ?`, [new Date(Date.now() + Math.min(60_000, 1000 * 2 ** Math.min(mail.tries, 6))), String((err as Error)?.message ?? err).slice(0, 2000), mail.id, claimId]);
+        await this.ctx.ds.query(`UPDATE alert_mail SET claim_id = NULL, claimed_until = ?, last_error = ? WHERE id = ? AND claim_id = ?`, [
+          new Date(Date.now() + Math.min(60_000, 1000 * 2 ** Math.min(mail.tries, 6))),
+          String((err as Error)?.message ?? err).slice(0, 2000),
+          mail.id,
+          claimId,
+        ]);
         this.ctx.logger.error({ err, incident: i.id }, 'alert mail failed');
       }
     }
   }
 
   compose(i: AlertIncidentRow, opening: boolean, name: string): { subject: string; text: string } {
-    const what = { down: 'is down', failures: 'has failed deliveries past the threshold', configuration: 'rejects the configured credentials', amendment: 'has an entered-in-error amendment that failed' }[i.kind];
-    const subject = opening ? `[Ebbgate] ${name} ${what}` : `[Ebbgate] Cleared: ${name} ${what.replace(/^is /, 'was ').replace(/^has /, 'had ').replace(/^rejects/, 'rejected')}`;
+    const what = {
+      down: 'is down',
+      failures: 'has failed deliveries past the threshold',
+      configuration: 'rejects the configured credentials',
+      amendment: 'has an entered-in-error amendment that failed',
+    }[i.kind];
+    const subject = opening
+      ? `[Ebbgate] ${name} ${what}`
+      : `[Ebbgate] Cleared: ${name} ${what
+          .replace(/^is /, 'was ')
+          .replace(/^has /, 'had ')
+          .replace(/^rejects/, 'rejected')}`;
     const text = [
-      opening ? `Incident #${i.id} opened at ${i.openedAt.toISOString()}.` : `Incident #${i.id} (opened ${i.openedAt.toISOString()}) cleared at ${i.clearedAt?.toISOString()}.`,
+      opening
+        ? `Incident #${i.id} opened at ${i.openedAt.toISOString()}.`
+        : `Incident #${i.id} (opened ${i.openedAt.toISOString()}) cleared at ${i.clearedAt?.toISOString()}.`,
       '',
       i.detail,
       '',

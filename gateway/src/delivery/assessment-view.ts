@@ -10,7 +10,10 @@ const RANK = ['failed', 'waiting-context', 'pending', 'delivered', 'withheld', '
 export async function assessmentDeliveryStatus(ds: DataSource, ids: string[]): Promise<Map<string, string>> {
   const out = new Map<string, string>();
   if (!ids.length) return out;
-  const rows = (await ds.query(`SELECT assessment_id AS a, status AS s FROM delivery WHERE assessment_id IN (?) AND kind = 'create' GROUP BY assessment_id, status`, [ids])) as { a: string; s: string }[];
+  const rows = (await ds.query(
+    `SELECT assessment_id AS a, status AS s FROM delivery WHERE assessment_id IN (?) AND kind = 'create' GROUP BY assessment_id, status`,
+    [ids],
+  )) as { a: string; s: string }[];
   for (const r of rows) {
     const cur = out.get(r.a);
     if (!cur || RANK.indexOf(r.s) < RANK.indexOf(cur)) out.set(r.a, r.s);

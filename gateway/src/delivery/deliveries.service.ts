@@ -16,14 +16,36 @@ const iso = (d: Date | null) => (d ? d.toISOString() : null);
 
 export function toDelivery(r: DeliveryRow): Delivery {
   return {
-    id: String(r.id), assessmentId: r.assessmentId, destinationId: r.destinationId, index: r.indexName as Delivery['index'], kind: r.kind,
-    status: r.status, identifier: r.identifier, serverId: r.serverId, patientRef: r.patientRef, patientName: r.patientName, patientMrn: r.patientMrn, tries: r.tries, attemptCount: r.attemptCount,
-    nextAttemptAt: r.nextAttemptAt.toISOString(), lastHttpStatus: r.lastHttpStatus, lastError: r.lastError, discardReason: r.discardReason,
-    createdAt: r.createdAt.toISOString(), updatedAt: r.updatedAt.toISOString(), deliveredAt: iso(r.deliveredAt),
+    id: String(r.id),
+    assessmentId: r.assessmentId,
+    destinationId: r.destinationId,
+    index: r.indexName as Delivery['index'],
+    kind: r.kind,
+    status: r.status,
+    identifier: r.identifier,
+    serverId: r.serverId,
+    patientRef: r.patientRef,
+    patientName: r.patientName,
+    patientMrn: r.patientMrn,
+    tries: r.tries,
+    attemptCount: r.attemptCount,
+    nextAttemptAt: r.nextAttemptAt.toISOString(),
+    lastHttpStatus: r.lastHttpStatus,
+    lastError: r.lastError,
+    discardReason: r.discardReason,
+    createdAt: r.createdAt.toISOString(),
+    updatedAt: r.updatedAt.toISOString(),
+    deliveredAt: iso(r.deliveredAt),
   };
 }
 
-const SORTABLE: Record<string, string> = { updatedAt: 'd.updated_at', createdAt: 'd.created_at', status: 'd.status', nextAttemptAt: 'd.next_attempt_at', id: 'd.id' };
+const SORTABLE: Record<string, string> = {
+  updatedAt: 'd.updated_at',
+  createdAt: 'd.created_at',
+  status: 'd.status',
+  nextAttemptAt: 'd.next_attempt_at',
+  id: 'd.id',
+};
 
 export async function listDeliveries(ds: DataSource, q: DeliveryQuery): Promise<Page<Delivery>> {
   const qb = ds.getRepository(DeliveryRow).createQueryBuilder('d');
@@ -36,7 +58,10 @@ export async function listDeliveries(ds: DataSource, q: DeliveryQuery): Promise<
   if (q.to) qb.andWhere('d.updated_at <= :to', { to: new Date(q.to) });
   const order = q.order === 'asc' ? 'ASC' : 'DESC';
   qb.orderBy(sortColumn(SORTABLE, q.sort, 'd.updated_at'), order).addOrderBy('d.id', order);
-  const [rows, total] = await qb.skip((q.page - 1) * q.pageSize).take(q.pageSize).getManyAndCount();
+  const [rows, total] = await qb
+    .skip((q.page - 1) * q.pageSize)
+    .take(q.pageSize)
+    .getManyAndCount();
   return { items: rows.map(toDelivery), page: q.page, pageSize: q.pageSize, total };
 }
 
@@ -47,7 +72,15 @@ export async function getDelivery(ds: DataSource, id: string): Promise<DeliveryD
   return {
     ...toDelivery(row),
     payload: row.payload ?? null,
-    attempts: attempts.map((a) => ({ at: a.at.toISOString(), durationMs: a.durationMs, httpStatus: a.httpStatus, outcome: a.outcome, detail: a.detail, response: a.response ?? null, mode: a.mode as 'single' })),
+    attempts: attempts.map((a) => ({
+      at: a.at.toISOString(),
+      durationMs: a.durationMs,
+      httpStatus: a.httpStatus,
+      outcome: a.outcome,
+      detail: a.detail,
+      response: a.response ?? null,
+      mode: a.mode as 'single',
+    })),
   };
 }
 
@@ -61,7 +94,12 @@ export async function requeue(ds: DataSource, ids: string[], mode: 'retry' | 're
   const allowed = mode === 'retry' ? ['failed', 'waiting-context', 'pending'] : ['failed', 'waiting-context', 'pending', 'delivered', 'discarded', 'withheld'];
   const result: DeliveryActionResult = { updated: [], skipped: [] };
   await ds.transaction(async (m) => {
-    const rows = await m.getRepository(DeliveryRow).createQueryBuilder('d').where({ id: In(ids) }).setLock('pessimistic_write').getMany();
+    const rows = await m
+      .getRepository(DeliveryRow)
+      .createQueryBuilder('d')
+      .where({ id: In(ids) })
+      .setLock('pessimistic_write')
+      .getMany();
     const byId = new Map(rows.map((r) => [String(r.id), r]));
     const now = new Date();
     for (const id of ids) {
@@ -79,12 +117,30 @@ export async function requeue(ds: DataSource, ids: string[], mode: 'retry' | 're
         continue;
       }
       const before = toDelivery(r);
-      await m.update(DeliveryRow, { id: r.id }, {
-        // claimId null: a worker still holding the row from before is fenced out (its answer is not applied).
-        status: 'pending', tries: 0, nextAttemptAt: now, updatedAt: now, discardReason: null, discardedBy: null, claimId: null,
-        ...(mode === 'replay' ? { payload: null } : {}),
+      await m.update(
+        DeliveryRow,
+        { id: r.id },
+        {
+          // claimId null: a worker still holding the row from before is fenced out (its answer is not applied).
+          status: 'pending',
+          tries: 0,
+          nextAttemptAt: now,
+          updatedAt: now,
+          discardReason: null,
+          discardedBy: null,
+          claimId: null,
+          ...(mode === 'replay' ? { payload: null } : {}),
+        },
+      );
+      await recordAudit(m, {
+        principal: act.principal,
+        action: `delivery.${mode}`,
+        entityType: 'delivery',
+        entityId: id,
+        before,
+        after: { status: 'pending', replay: mode === 'replay' },
+        requestId: act.requestId,
       });
-      await recordAudit(m, { principal: act.principal, action: `delivery.${mode}`, entityType: 'delivery', entityId: id, before, after: { status: 'pending', replay: mode === 'replay' }, requestId: act.requestId });
       result.updated.push(id);
     }
   });
@@ -107,14 +163,22 @@ async function refuseEnteredInError(ds: DataSource, ids: string[], mode: 'retry'
   await ds.transaction(async (m) => {
     for (const r of rows) {
       await recordAudit(m, {
-        principal: act.principal, action: `delivery.${mode}.refused`, entityType: 'delivery', entityId: String(r.id),
-        before: { status: r.status, assessmentId: r.assessmentId }, after: { refused: 'assessment entered in error', markedAt: new Date(r.markedAt).toISOString(), markedBy: r.markedBy },
+        principal: act.principal,
+        action: `delivery.${mode}.refused`,
+        entityType: 'delivery',
+        entityId: String(r.id),
+        before: { status: r.status, assessmentId: r.assessmentId },
+        after: { refused: 'assessment entered in error', markedAt: new Date(r.markedAt).toISOString(), markedBy: r.markedBy },
         requestId: act.requestId,
       });
     }
   });
-  const list = rows.map((r) => `delivery ${r.id} (assessment ${r.assessmentId}, marked ${new Date(r.markedAt).toISOString()}${r.markedBy ? ` by ${r.markedBy}` : ''})`).join('; ');
-  throw conflict(`Refused: ${rows.length === 1 ? 'this result belongs' : `${rows.length} of these results belong`} to an assessment marked entered in error, so ${mode === 'retry' ? 'retrying' : 'replaying'} it would send a value reviewers withdrew. Its entered-in-error amendment is sent instead. Nothing was requeued: ${list}.`);
+  const list = rows
+    .map((r) => `delivery ${r.id} (assessment ${r.assessmentId}, marked ${new Date(r.markedAt).toISOString()}${r.markedBy ? ` by ${r.markedBy}` : ''})`)
+    .join('; ');
+  throw conflict(
+    `Refused: ${rows.length === 1 ? 'this result belongs' : `${rows.length} of these results belong`} to an assessment marked entered in error, so ${mode === 'retry' ? 'retrying' : 'replaying'} it would send a value reviewers withdrew. Its entered-in-error amendment is sent instead. Nothing was requeued: ${list}.`,
+  );
 }
 
 export async function discardDelivery(ds: DataSource, id: string, reason: string, act: ChangeBy): Promise<Delivery> {
@@ -127,7 +191,15 @@ export async function discardDelivery(ds: DataSource, id: string, reason: string
     const now = new Date();
     Object.assign(r, { status: 'discarded', discardReason: reason, discardedBy: actorOf(act.principal).actorName, updatedAt: now });
     await m.save(r);
-    await recordAudit(m, { principal: act.principal, action: 'delivery.discard', entityType: 'delivery', entityId: id, before, after: { status: 'discarded', reason }, requestId: act.requestId });
+    await recordAudit(m, {
+      principal: act.principal,
+      action: 'delivery.discard',
+      entityType: 'delivery',
+      entityId: id,
+      before,
+      after: { status: 'discarded', reason },
+      requestId: act.requestId,
+    });
     return toDelivery(r);
   });
 }
@@ -138,12 +210,26 @@ export function destinationState(d: DestinationRow): Destination['state'] {
 
 export async function listDestinations(ds: DataSource): Promise<Destination[]> {
   const rows = await ds.getRepository(DestinationRow).find({ order: { name: 'ASC' } });
-  const counts = (await ds.query(`SELECT destination_id AS d, status AS s, COUNT(*) AS c FROM delivery WHERE status IN ('pending','waiting-context','failed') GROUP BY destination_id, status`)) as { d: string; s: string; c: string | number }[];
+  const counts = (await ds.query(
+    `SELECT destination_id AS d, status AS s, COUNT(*) AS c FROM delivery WHERE status IN ('pending','waiting-context','failed') GROUP BY destination_id, status`,
+  )) as { d: string; s: string; c: string | number }[];
   const count = (d: string, s: string) => Number(counts.find((x) => x.d === d && x.s === s)?.c ?? 0);
   return rows.map((d) => ({
-    id: d.id, name: d.name, kind: d.kind, state: destinationState(d), paused: d.paused, pausedBy: d.pausedBy, circuitState: d.circuitState,
-    consecutiveFailures: d.consecutiveFailures, downSince: iso(d.downSince), lastSuccessAt: iso(d.lastSuccessAt), lastError: d.lastError,
-    configurationError: d.configurationError, queueDepth: count(d.id, 'pending') + count(d.id, 'waiting-context'), waitingContext: count(d.id, 'waiting-context'), failed: count(d.id, 'failed'),
+    id: d.id,
+    name: d.name,
+    kind: d.kind,
+    state: destinationState(d),
+    paused: d.paused,
+    pausedBy: d.pausedBy,
+    circuitState: d.circuitState,
+    consecutiveFailures: d.consecutiveFailures,
+    downSince: iso(d.downSince),
+    lastSuccessAt: iso(d.lastSuccessAt),
+    lastError: d.lastError,
+    configurationError: d.configurationError,
+    queueDepth: count(d.id, 'pending') + count(d.id, 'waiting-context'),
+    waitingContext: count(d.id, 'waiting-context'),
+    failed: count(d.id, 'failed'),
   }));
 }
 
@@ -154,7 +240,15 @@ export async function setPaused(ds: DataSource, id: string, paused: boolean, act
     const before = { paused: d.paused };
     Object.assign(d, { paused, pausedAt: paused ? new Date() : null, pausedBy: paused ? actorOf(act.principal).actorName : null, updatedAt: new Date() });
     await m.save(d);
-    await recordAudit(m, { principal: act.principal, action: paused ? 'destination.pause' : 'destination.resume', entityType: 'destination', entityId: id, before, after: { paused }, requestId: act.requestId });
+    await recordAudit(m, {
+      principal: act.principal,
+      action: paused ? 'destination.pause' : 'destination.resume',
+      entityType: 'destination',
+      entityId: id,
+      before,
+      after: { paused },
+      requestId: act.requestId,
+    });
   });
   return (await listDestinations(ds)).find((d) => d.id === id)!;
 }

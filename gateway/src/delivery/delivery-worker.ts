@@ -37,7 +37,11 @@ export class DeliveryWorker implements BackgroundService {
     /** Told about every recorded pass (metrics). */
     private readonly onPass?: (destinationId: string, report: PassReport, facts: PassFacts) => void,
   ) {
-    this.loop = new PollLoop(async () => (await this.runOnce()) > 0, () => cfg.pollMs, (err) => logger.error({ err }, 'delivery pass failed'));
+    this.loop = new PollLoop(
+      async () => (await this.runOnce()) > 0,
+      () => cfg.pollMs,
+      (err) => logger.error({ err }, 'delivery pass failed'),
+    );
   }
 
   async start(): Promise<void> {
@@ -71,7 +75,10 @@ export class DeliveryWorker implements BackgroundService {
       handled += rows.length;
       if (claim.expired) this.logger.warn({ destination: d.id, rows: claim.expired }, 'claimed rows whose earlier claim had expired');
       // Renew the lease while the pass works, so a slow EHR does not let another process take the rows.
-      const renew = setInterval(() => void renewLease(this.ds, claim.id, leaseMs).catch((err) => this.logger.warn({ err }, 'lease renewal failed')), Math.max(50, leaseMs / 3));
+      const renew = setInterval(
+        () => void renewLease(this.ds, claim.id, leaseMs).catch((err) => this.logger.warn({ err }, 'lease renewal failed')),
+        Math.max(50, leaseMs / 3),
+      );
       let report: PassReport;
       try {
         report = await handler.process(rows);

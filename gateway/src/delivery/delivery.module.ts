@@ -42,16 +42,23 @@ export function buildDelivery(ctx: AppContext, metrics?: Metrics, codes: CodeMap
   const cfg = ctx.config.delivery;
   const specs = destinationSpecs(ctx);
   let synced: Promise<void> | undefined;
-  const ensureDestinations = () => (synced ??= syncDestinations(ctx.ds, specs).catch((err) => {
-    synced = undefined;
-    throw err;
-  }));
+  const ensureDestinations = () =>
+    (synced ??= syncDestinations(ctx.ds, specs).catch((err) => {
+      synced = undefined;
+      throw err;
+    }));
   const policy = async (): Promise<DeliveryPolicy> => (await getSiteSettings(ctx)).delivery;
 
   const events = assessmentEvents(ctx.ds);
   events.stored.push(async (m, a) => {
     await ensureDestinations();
-    await enqueueAssessment(m, a, specs.map((s) => s.id), codes, (await policy()).notValidPolicy);
+    await enqueueAssessment(
+      m,
+      a,
+      specs.map((s) => s.id),
+      codes,
+      (await policy()).notValidPolicy,
+    );
   });
   events.markedInError.push((m, a) => markAssessmentInError(m, a));
   events.deliveryStatus.push(assessmentDeliveryStatus);
@@ -61,19 +68,34 @@ export function buildDelivery(ctx: AppContext, metrics?: Metrics, codes: CodeMap
   const contexts = new PatientContextResolver(ehr, cfg.patientContext.cacheSeconds * 1000);
   // A bed changed (another location, or removed): its cached patient context no longer holds.
   bedReassigned.push((locations) => locations.forEach((l) => contexts.drop(l)));
-  const handlers = new Map<string, DestinationHandler>([[FHIR_DESTINATION_ID, new FhirDestination(ctx.ds, ehr, contexts, new DeviceSync(ehr, codes), codes, cfg, policy)]]);
+  const handlers = new Map<string, DestinationHandler>([
+    [FHIR_DESTINATION_ID, new FhirDestination(ctx.ds, ehr, contexts, new DeviceSync(ehr, codes), codes, cfg, policy)],
+  ]);
   if (cfg.hl7.enabled) handlers.set(HL7_DESTINATION_ID, new Hl7Destination(ctx.ds, contexts, ehr, codes, cfg, policy));
   const attempts = metrics?.counter('ebbgate_delivery_attempts_total', 'Delivery attempts by destination and outcome', ['destination', 'outcome']);
-  const expired = metrics?.counter('ebbgate_delivery_claims_expired_total', 'Outbox rows claimed again after an earlier claim ran out (a dead or overrunning worker)', ['destination']);
-  const refused = metrics?.counter('ebbgate_delivery_fencing_refusals_total', 'Results or sends refused because their claim no longer held the row', ['destination']);
-  metrics?.gauge('ebbgate_delivery_lag_seconds', 'Per destination: age of the oldest result not yet delivered, failed or set aside (0 when none)', ['destination'], async (g) => {
-    g.reset();
-    const rows = (await ctx.ds.query(`SELECT destination_id AS d, MIN(created_at) AS oldest FROM delivery WHERE status IN ('pending','waiting-context') GROUP BY destination_id`)) as { d: string; oldest: Date | string }[];
-    for (const s of specs) {
-      const r = rows.find((x) => x.d === s.id);
-      g.set({ destination: s.id }, r ? Math.max(0, (Date.now() - new Date(r.oldest).getTime()) / 1000) : 0);
-    }
-  });
+  const expired = metrics?.counter(
+    'ebbgate_delivery_claims_expired_total',
+    'Outbox rows claimed again after an earlier claim ran out (a dead or overrunning worker)',
+    ['destination'],
+  );
+  const refused = metrics?.counter('ebbgate_delivery_fencing_refusals_total', 'Results or sends refused because their claim no longer held the row', [
+    'destination',
+  ]);
+  metrics?.gauge(
+    'ebbgate_delivery_lag_seconds',
+    'Per destination: age of the oldest result not yet delivered, failed or set aside (0 when none)',
+    ['destination'],
+    async (g) => {
+      g.reset();
+      const rows = (await ctx.ds.query(
+        `SELECT destination_id AS d, MIN(created_at) AS oldest FROM delivery WHERE status IN ('pending','waiting-context') GROUP BY destination_id`,
+      )) as { d: string; oldest: Date | string }[];
+      for (const s of specs) {
+        const r = rows.find((x) => x.d === s.id);
+        g.set({ destination: s.id }, r ? Math.max(0, (Date.now() - new Date(r.oldest).getTime()) / 1000) : 0);
+      }
+    },
+  );
   const worker = new DeliveryWorker(ctx.ds, handlers, cfg, ctx.logger, (destination, report, facts) => {
     for (const r of report.results) attempts?.inc({ destination, outcome: r.outcome });
     if (facts.claimsExpired) expired?.inc({ destination }, facts.claimsExpired);
@@ -88,7 +110,10 @@ export function buildDelivery(ctx: AppContext, metrics?: Metrics, codes: CodeMap
       name: 'ehr',
       critical: false,
       check: async () => {
-        const res = await fetch(`${ctx.config.ehr.fhirBaseUrl.replace(/\/$/, '')}/metadata`, { signal: AbortSignal.timeout(2000), headers: { accept: 'application/fhir+json' } });
+        const res = await fetch(`${ctx.config.ehr.fhirBaseUrl.replace(/\/$/, '')}/metadata`, {
+          signal: AbortSignal.timeout(2000),
+          headers: { accept: 'application/fhir+json' },
+        });
         if (!res.ok) throw new Error(`the EHR answered ${res.status} for /metadata`);
       },
     },

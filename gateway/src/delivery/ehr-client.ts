@@ -58,7 +58,12 @@ export class TokenProvider {
       throw new TokenError({ kind: 'retryable', httpStatus: null, response: null, detail: `token endpoint unreachable: ${errorText(err)}` });
     }
     if (res.status >= 300 && res.status < 400) {
-      throw new TokenError({ kind: 'auth', httpStatus: res.status, response: null, detail: `token endpoint answered ${res.status} (a redirect, not followed: fix the token URL)` });
+      throw new TokenError({
+        kind: 'auth',
+        httpStatus: res.status,
+        response: null,
+        detail: `token endpoint answered ${res.status} (a redirect, not followed: fix the token URL)`,
+      });
     }
     const text = await res.text();
     const body = safeJson(text);
@@ -66,7 +71,13 @@ export class TokenProvider {
       const kind = res.status === 400 || res.status === 401 || res.status === 403 ? 'auth' : classifyHttpStatus(res.status);
       const detail = `token endpoint answered ${res.status}${body && typeof body === 'object' && 'error' in body ? ` (${String((body as { error: unknown }).error)})` : ''}`;
       if (kind === 'auth') throw new TokenError({ kind: 'auth', httpStatus: res.status, response: body, detail });
-      throw new TokenError({ kind: 'retryable', httpStatus: res.status, response: body, detail, retryAfterMs: parseRetryAfter(res.headers.get('retry-after')) });
+      throw new TokenError({
+        kind: 'retryable',
+        httpStatus: res.status,
+        response: body,
+        detail,
+        retryAfterMs: parseRetryAfter(res.headers.get('retry-after')),
+      });
     }
     const { access_token: value, expires_in: expiresIn } = (body ?? {}) as { access_token?: string; expires_in?: number };
     if (!value) throw new TokenError({ kind: 'auth', httpStatus: res.status, response: body, detail: 'token endpoint gave no access_token' });
@@ -99,7 +110,8 @@ export function outcomeOfError(err: unknown): SendOutcome {
     const kind = classifyHttpStatus(status);
     const detail = `the EHR answered ${status}`;
     if (kind === 'auth') return { kind, httpStatus: status, response: e.response.data, detail };
-    if (kind === 'retryable') return { kind, httpStatus: status, response: e.response.data, detail, retryAfterMs: parseRetryAfter(e.config?.headers?.get?.('retry-after')) };
+    if (kind === 'retryable')
+      return { kind, httpStatus: status, response: e.response.data, detail, retryAfterMs: parseRetryAfter(e.config?.headers?.get?.('retry-after')) };
     if (kind === 'delivered') return { kind, httpStatus: status, serverId: null, created: false, response: e.response.data };
     return { kind, httpStatus: status, response: e.response.data, detail };
   }
@@ -183,7 +195,12 @@ export class EhrClient {
   async updateObservation(resource: Observation & { id: string }): Promise<SendOutcome> {
     try {
       const res = await this.authed((headers, signal) =>
-        this.client.update({ resourceType: 'Observation', id: resource.id, body: resource as unknown as Record<string, unknown> & { resourceType: string }, options: { headers, signal } }),
+        this.client.update({
+          resourceType: 'Observation',
+          id: resource.id,
+          body: resource as unknown as Record<string, unknown> & { resourceType: string },
+          options: { headers, signal },
+        }),
       );
       const status = Client.httpFor(res).response?.status ?? null;
       return { kind: 'delivered', httpStatus: status, serverId: resource.id, created: false, response: null };

@@ -52,11 +52,14 @@ export function transactionBundle(codes: CodeMap, items: { resource: Observation
     type: 'transaction',
     entry: items.map((p) => ({
       resource: p.resource as unknown as Record<string, unknown>,
-      request: { method: 'POST', url: 'Observation', ifNoneExist: decodeURIComponent(ifNoneExistQuery({ system: codes.identifierSystems.observation, value: p.identifier })) },
+      request: {
+        method: 'POST',
+        url: 'Observation',
+        ifNoneExist: decodeURIComponent(ifNoneExistQuery({ system: codes.identifierSystems.observation, value: p.identifier })),
+      },
     })),
   };
 }
-
 
 export class FhirDestination {
   constructor(
@@ -84,7 +87,13 @@ export class FhirDestination {
         if (p) ready.push(p);
       } catch (err) {
         // The EHR could not be asked for context or the Device: a transient failure of the destination.
-        this.apply(report, row, { kind: 'retryable', httpStatus: null, response: null, detail: `preparing the message failed: ${errorText(err)}` }, 'single', performance.now() - started);
+        this.apply(
+          report,
+          row,
+          { kind: 'retryable', httpStatus: null, response: null, detail: `preparing the message failed: ${errorText(err)}` },
+          'single',
+          performance.now() - started,
+        );
       }
     }
     const creates = ready.filter((p) => p.row.kind === 'create');
@@ -117,8 +126,16 @@ export class FhirDestination {
 
   private waitForContext(report: PassReport, row: DeliveryRow, detail: string): void {
     report.results.push({
-      row, status: 'waiting-context', nextAttemptAt: new Date(Date.now() + this.cfg.patientContext.retrySeconds * 1000), countsAsTry: false,
-      httpStatus: null, outcome: 'waiting-context', detail, response: null, mode: 'single', durationMs: 0,
+      row,
+      status: 'waiting-context',
+      nextAttemptAt: new Date(Date.now() + this.cfg.patientContext.retrySeconds * 1000),
+      countsAsTry: false,
+      httpStatus: null,
+      outcome: 'waiting-context',
+      detail,
+      response: null,
+      mode: 'single',
+      durationMs: 0,
     });
   }
 
@@ -141,25 +158,67 @@ export class FhirDestination {
     const monitor = maps.monitor.get(a.monitorId);
     const profile = monitor?.profileId ? maps.profile.get(monitor.profileId) : undefined;
     const deviceId = monitor
-      ? await this.devices.ensure({ identifier: monitor.identifier, manufacturer: profile?.manufacturer ?? null, model: profile?.model ?? null, locationId: context.locationId })
+      ? await this.devices.ensure({
+          identifier: monitor.identifier,
+          manufacturer: profile?.manufacturer ?? null,
+          model: profile?.model ?? null,
+          locationId: context.locationId,
+        })
       : null;
     const built = buildRowObservation({
-      indexName: row.indexName, assessment: a, context, deviceId, status: this.current.observationStatus, notValidPolicy: this.current.notValidPolicy,
-      issued: new Date(), codes: this.codes,
+      indexName: row.indexName,
+      assessment: a,
+      context,
+      deviceId,
+      status: this.current.observationStatus,
+      notValidPolicy: this.current.notValidPolicy,
+      issued: new Date(),
+      codes: this.codes,
     });
     if (built.kind === 'withheld') {
-      report.results.push({ row, status: 'withheld', nextAttemptAt: new Date(), countsAsTry: false, httpStatus: null, outcome: 'withheld', detail: built.reason, response: null, mode: 'single', durationMs: 0 });
+      report.results.push({
+        row,
+        status: 'withheld',
+        nextAttemptAt: new Date(),
+        countsAsTry: false,
+        httpStatus: null,
+        outcome: 'withheld',
+        detail: built.reason,
+        response: null,
+        mode: 'single',
+        durationMs: 0,
+      });
       return null;
     }
-    return { row, payload: built.resource, patientRef: `Patient/${context.patientId}`, encounterRef: `Encounter/${context.encounterId}`, patientName: context.patientName, patientMrn: context.patientMrn };
+    return {
+      row,
+      payload: built.resource,
+      patientRef: `Patient/${context.patientId}`,
+      encounterRef: `Encounter/${context.encounterId}`,
+      patientName: context.patientName,
+      patientMrn: context.patientMrn,
+    };
   }
 
   private async prepareAmend(row: DeliveryRow, report: PassReport): Promise<Prepared | null> {
     if (row.payload) return { row, payload: row.payload as Observation, patientRef: row.patientRef };
-    const create = await this.ds.getRepository(DeliveryRow).findOneBy({ assessmentId: row.assessmentId, destinationId: row.destinationId, indexName: row.indexName, kind: 'create' });
+    const create = await this.ds
+      .getRepository(DeliveryRow)
+      .findOneBy({ assessmentId: row.assessmentId, destinationId: row.destinationId, indexName: row.indexName, kind: 'create' });
     const a = await this.ds.getRepository(AssessmentRow).findOneBy({ id: row.assessmentId });
     const settle = (status: 'pending' | 'discarded' | 'failed', outcome: string, detail: string, later = 5000) =>
-      report.results.push({ row, status, nextAttemptAt: new Date(Date.now() + later), countsAsTry: false, httpStatus: null, outcome, detail, response: null, mode: 'single', durationMs: 0 });
+      report.results.push({
+        row,
+        status,
+        nextAttemptAt: new Date(Date.now() + later),
+        countsAsTry: false,
+        httpStatus: null,
+        outcome,
+        detail,
+        response: null,
+        mode: 'single',
+        durationMs: 0,
+      });
     if (!create || !a) {
       settle('failed', 'original-not-found', 'the original delivery or its assessment is gone: nothing here says what to amend');
       return null;
@@ -185,13 +244,23 @@ export class FhirDestination {
     if (!serverId || !original) {
       if (create.status === 'delivered') {
         // Never discarded: the EHR accepted it, so a wrong value may stand there. An operator must act (alert).
-        settle('failed', 'original-not-found', `the EHR accepted the original but it cannot be found (no id in its answer, none by identifier ${identifier.value}): the value may still stand in the chart`);
+        settle(
+          'failed',
+          'original-not-found',
+          `the EHR accepted the original but it cannot be found (no id in its answer, none by identifier ${identifier.value}): the value may still stand in the chart`,
+        );
       } else {
         settle('discarded', 'nothing-to-amend', `never delivered, and the EHR has no Observation with identifier ${identifier.value}`);
       }
       return null;
     }
-    const payload = enteredInErrorAmendment(original, serverId, a.enteredInErrorBy ?? 'a reviewer', a.enteredInErrorReason ?? 'no reason given', a.enteredInErrorAt ?? new Date());
+    const payload = enteredInErrorAmendment(
+      original,
+      serverId,
+      a.enteredInErrorBy ?? 'a reviewer',
+      a.enteredInErrorReason ?? 'no reason given',
+      a.enteredInErrorAt ?? new Date(),
+    );
     return { row, payload, patientRef: create.patientRef };
   }
 
@@ -213,7 +282,10 @@ export class FhirDestination {
 
   /** FHIR R4 transaction: all or nothing. A 400/422 for the whole bundle is retried entry by entry to find the bad one. */
   private async sendBundle(items: Prepared[], report: PassReport): Promise<void> {
-    const bundle = transactionBundle(this.codes, items.map((p) => ({ resource: p.payload, identifier: p.row.identifier })));
+    const bundle = transactionBundle(
+      this.codes,
+      items.map((p) => ({ resource: p.payload, identifier: p.row.identifier })),
+    );
     const t0 = performance.now();
     const answer = await this.ehr.transaction(bundle);
     const ms = performance.now() - t0;
@@ -225,21 +297,45 @@ export class FhirDestination {
     items.forEach((p, i) => {
       const resp = answer.bundle.entry?.[i]?.response;
       const status = Number.parseInt(resp?.status ?? '', 10);
-      const serverId = parseResourceLocation(resp?.location, 'Observation')?.id ?? (typeof answer.bundle.entry?.[i]?.resource?.id === 'string' ? String(answer.bundle.entry[i]!.resource!.id) : null);
+      const serverId =
+        parseResourceLocation(resp?.location, 'Observation')?.id ??
+        (typeof answer.bundle.entry?.[i]?.resource?.id === 'string' ? String(answer.bundle.entry[i]!.resource!.id) : null);
       const outcome: SendOutcome =
         status >= 200 && status < 300
           ? { kind: 'delivered', httpStatus: status, serverId, created: status === 201, response: null }
-          : { kind: 'rejected', httpStatus: Number.isFinite(status) ? status : null, response: resp?.outcome ?? null, detail: `bundle entry answered ${resp?.status ?? 'nothing'}` };
+          : {
+              kind: 'rejected',
+              httpStatus: Number.isFinite(status) ? status : null,
+              response: resp?.outcome ?? null,
+              detail: `bundle entry answered ${resp?.status ?? 'nothing'}`,
+            };
       this.apply(report, p.row, outcome, 'bundle', ms / items.length, p);
     });
   }
 
   private apply(report: PassReport, row: DeliveryRow, o: SendOutcome, mode: 'single' | 'bundle', durationMs: number, p?: Prepared): void {
     const now = Date.now();
-    const base = { row, httpStatus: o.httpStatus, response: o.response, mode, durationMs, ...(p ? { payload: p.payload as object, patientRef: p.patientRef, encounterRef: p.encounterRef, patientName: p.patientName, patientMrn: p.patientMrn } : {}) };
+    const base = {
+      row,
+      httpStatus: o.httpStatus,
+      response: o.response,
+      mode,
+      durationMs,
+      ...(p
+        ? { payload: p.payload as object, patientRef: p.patientRef, encounterRef: p.encounterRef, patientName: p.patientName, patientMrn: p.patientMrn }
+        : {}),
+    };
     if (o.kind === 'delivered') {
       report.answered++;
-      report.results.push({ ...base, status: 'delivered', nextAttemptAt: new Date(now), countsAsTry: true, outcome: o.created ? 'created' : 'delivered', detail: o.created ? 'created' : 'accepted (already there or updated)', serverId: o.serverId ?? row.serverId });
+      report.results.push({
+        ...base,
+        status: 'delivered',
+        nextAttemptAt: new Date(now),
+        countsAsTry: true,
+        outcome: o.created ? 'created' : 'delivered',
+        detail: o.created ? 'created' : 'accepted (already there or updated)',
+        serverId: o.serverId ?? row.serverId,
+      });
       return;
     }
     const summary = outcomeSummary(o.response);
@@ -256,7 +352,11 @@ export class FhirDestination {
     const exhausted = tries >= this.cfg.retry.limit;
     const delay = Math.max(backoffDelayMs(tries, this.cfg.retry), o.kind === 'retryable' ? (o.retryAfterMs ?? 0) : 0);
     report.results.push({
-      ...base, status: exhausted ? 'failed' : 'pending', nextAttemptAt: new Date(now + delay), countsAsTry: true, outcome: o.kind,
+      ...base,
+      status: exhausted ? 'failed' : 'pending',
+      nextAttemptAt: new Date(now + delay),
+      countsAsTry: true,
+      outcome: o.kind,
       detail: exhausted ? `${detail} (gave up after ${tries} attempts)` : detail,
     });
   }

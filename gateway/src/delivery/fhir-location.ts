@@ -21,7 +21,10 @@ export function parseResourceLocation(location: string | null | undefined, resou
   } catch {
     return null;
   }
-  const parts = path.split('/').filter(Boolean).map((p) => decodeURIComponent(p));
+  const parts = path
+    .split('/')
+    .filter(Boolean)
+    .map((p) => decodeURIComponent(p));
   // The last occurrence of the type, so a base path that contains the type name cannot confuse it.
   const at = parts.lastIndexOf(resourceType);
   if (at < 0) return null;

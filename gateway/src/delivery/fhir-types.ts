@@ -82,5 +82,10 @@ export interface Bundle {
   resourceType: 'Bundle';
   type: string;
   total?: number;
-  entry?: { fullUrl?: string; resource?: Record<string, unknown>; request?: { method: string; url: string; ifNoneExist?: string }; response?: BundleEntryResponse }[];
+  entry?: {
+    fullUrl?: string;
+    resource?: Record<string, unknown>;
+    request?: { method: string; url: string; ifNoneExist?: string };
+    response?: BundleEntryResponse;
+  }[];
 }

@@ -57,34 +57,76 @@ export class Hl7Destination {
   async process(rows: DeliveryRow[]): Promise<PassReport> {
     const report: PassReport = { results: [], answered: 0, failed: 0, lastError: null, configurationError: null };
     const policy = await this.policy();
-    const assessments = new Map((await this.ds.getRepository(AssessmentRow).findBy({ id: In([...new Set(rows.map((r) => r.assessmentId))]) })).map((a) => [a.id, a]));
+    const assessments = new Map(
+      (await this.ds.getRepository(AssessmentRow).findBy({ id: In([...new Set(rows.map((r) => r.assessmentId))]) })).map((a) => [a.id, a]),
+    );
     for (const row of rows) {
       const t0 = performance.now();
       const base = { row, mode: 'mllp' as const, response: null, httpStatus: null };
       try {
         const a = assessments.get(row.assessmentId)!;
         const bed = a.bedId ? await this.ds.getRepository(BedRow).findOneBy({ id: a.bedId }) : null;
-        const answer = bed ? await this.contexts.resolveAt(bed.locationIdentifier, a.windowStart, a.windowEnd) : ({ kind: 'none', reason: 'the monitor was not at a bed during this window' } as const);
+        const answer = bed
+          ? await this.contexts.resolveAt(bed.locationIdentifier, a.windowStart, a.windowEnd)
+          : ({ kind: 'none', reason: 'the monitor was not at a bed during this window' } as const);
         if (!bed || answer.kind === 'none') {
-          report.results.push({ ...base, status: 'waiting-context', nextAttemptAt: new Date(Date.now() + this.cfg.patientContext.retrySeconds * 1000), countsAsTry: false, outcome: 'waiting-context', detail: `no patient context: ${answer.kind === 'none' ? answer.reason : 'no bed'}`, durationMs: 0 });
+          report.results.push({
+            ...base,
+            status: 'waiting-context',
+            nextAttemptAt: new Date(Date.now() + this.cfg.patientContext.retrySeconds * 1000),
+            countsAsTry: false,
+            outcome: 'waiting-context',
+            detail: `no patient context: ${answer.kind === 'none' ? answer.reason : 'no bed'}`,
+            durationMs: 0,
+          });
           continue;
         }
         const context = answer.context;
         let message = (row.payload as { message?: string } | null)?.message;
         if (!message) {
           const built = buildRowObservation({
-            indexName: row.indexName, assessment: a, context, deviceId: null, status: policy.observationStatus, notValidPolicy: policy.notValidPolicy, issued: new Date(), codes: this.codes,
+            indexName: row.indexName,
+            assessment: a,
+            context,
+            deviceId: null,
+            status: policy.observationStatus,
+            notValidPolicy: policy.notValidPolicy,
+            issued: new Date(),
+            codes: this.codes,
           });
           if (built.kind === 'withheld') {
-            report.results.push({ ...base, status: 'withheld', nextAttemptAt: new Date(), countsAsTry: false, outcome: 'withheld', detail: built.reason, durationMs: 0 });
+            report.results.push({
+              ...base,
+              status: 'withheld',
+              nextAttemptAt: new Date(),
+              countsAsTry: false,
+              outcome: 'withheld',
+              detail: built.reason,
+              durationMs: 0,
+            });
             continue;
           }
-          const obs = row.kind === 'amend' ? enteredInErrorAmendment(built.resource, row.identifier, a.enteredInErrorBy ?? 'a reviewer', a.enteredInErrorReason ?? '', a.enteredInErrorAt ?? new Date()) : built.resource;
+          const obs =
+            row.kind === 'amend'
+              ? enteredInErrorAmendment(
+                  built.resource,
+                  row.identifier,
+                  a.enteredInErrorBy ?? 'a reviewer',
+                  a.enteredInErrorReason ?? '',
+                  a.enteredInErrorAt ?? new Date(),
+                )
+              : built.resource;
           const mrn = context.patientMrn;
           const monitor = await this.ds.getRepository(MonitorRow).findOneBy({ id: a.monitorId });
           message = buildOru(this.codes, {
-            observation: obs, controlId: `${row.identifier}-${row.kind}`.slice(0, 199), mrn, locationIdentifier: bed.locationIdentifier,
-            sendingFacility: this.cfg.hl7.sendingFacility, receivingApplication: this.cfg.hl7.receivingApplication, monitorIdentifier: monitor?.identifier ?? null, at: new Date(),
+            observation: obs,
+            controlId: `${row.identifier}-${row.kind}`.slice(0, 199),
+            mrn,
+            locationIdentifier: bed.locationIdentifier,
+            sendingFacility: this.cfg.hl7.sendingFacility,
+            receivingApplication: this.cfg.hl7.receivingApplication,
+            monitorIdentifier: monitor?.identifier ?? null,
+            at: new Date(),
           });
         }
         // Fencing: HL7 v2 has no conditional create, so a claim that no longer holds the row must not send.
@@ -96,13 +138,31 @@ export class Hl7Destination {
         const code = ackCode(ack);
         report.answered++;
         const ok = code === 'AA' || code === 'CA';
-        report.results.push({ ...base, response: { ack }, payload: { message }, status: ok ? 'delivered' : 'failed', nextAttemptAt: new Date(), countsAsTry: true, outcome: ok ? 'delivered' : 'rejected', detail: `ACK ${code ?? '(unreadable)'}`, durationMs: performance.now() - t0 });
+        report.results.push({
+          ...base,
+          response: { ack },
+          payload: { message },
+          status: ok ? 'delivered' : 'failed',
+          nextAttemptAt: new Date(),
+          countsAsTry: true,
+          outcome: ok ? 'delivered' : 'rejected',
+          detail: `ACK ${code ?? '(unreadable)'}`,
+          durationMs: performance.now() - t0,
+        });
       } catch (err) {
         const tries = row.tries + 1;
         const exhausted = tries >= this.cfg.retry.limit;
         report.failed++;
         report.lastError = errorText(err);
-        report.results.push({ ...base, status: exhausted ? 'failed' : 'pending', nextAttemptAt: new Date(Date.now() + backoffDelayMs(tries, this.cfg.retry)), countsAsTry: true, outcome: 'retryable', detail: `MLLP: ${errorText(err)}`, durationMs: performance.now() - t0 });
+        report.results.push({
+          ...base,
+          status: exhausted ? 'failed' : 'pending',
+          nextAttemptAt: new Date(Date.now() + backoffDelayMs(tries, this.cfg.retry)),
+          countsAsTry: true,
+          outcome: 'retryable',
+          detail: `MLLP: ${errorText(err)}`,
+          durationMs: performance.now() - t0,
+        });
       }
     }
     return report;

@@ -101,7 +101,8 @@ function describeFlag(f: Flag): string {
 function interpretation(codes: CodeMap, verdict: Verdict): CodeableConcept[] {
   const v = codes.verdicts[verdict];
   const coding: Coding[] = [{ system: codes.localSystem, code: v.code, display: v.display }];
-  if (verdict === 'not-valid') coding.push({ system: codes.interpretationSystem, code: codes.notValidInterpretation.code, display: codes.notValidInterpretation.display });
+  if (verdict === 'not-valid')
+    coding.push({ system: codes.interpretationSystem, code: codes.notValidInterpretation.code, display: codes.notValidInterpretation.display });
   return [{ coding, text: v.display }];
 }
 
@@ -111,7 +112,10 @@ function notes(result: AnalysisResult, index: DeliveredIndex, verdict: Verdict, 
   if (iv.value === null && iv.notComputableReason) lines.push(`Not computable: ${iv.notComputableReason}.`);
   lines.push(flags.length ? `Quality flags: ${flags.map(describeFlag).join('; ')}.` : 'Quality flags: none.');
   const bands = result.bands.filter((b) => b.index === index);
-  if (bands.length) lines.push(`Decision bands shown with the value (never an order to treat): ${bands.map((b) => `${b.label} [${b.lower ?? '-∞'}–${b.upper ?? '∞'} ${b.unit}; ${b.source}]`).join('; ')}.`);
+  if (bands.length)
+    lines.push(
+      `Decision bands shown with the value (never an order to treat): ${bands.map((b) => `${b.label} [${b.lower ?? '-∞'}–${b.upper ?? '∞'} ${b.unit}; ${b.source}]`).join('; ')}.`,
+    );
   return [{ text: lines.join(' ') }, { text: `Cautions: ${result.cautions.join(' ')}` }];
 }
 
@@ -139,9 +143,7 @@ export function buildObservation(input: ObservationInput): BuildOutcome {
     issued: input.issued.toISOString(),
     ...(input.deviceId ? { device: { reference: `Device/${input.deviceId}` } } : {}),
     // obs-6: a value or a dataAbsentReason, never both.
-    ...(hasValue
-      ? { valueQuantity: quantity(codes, iv.value as number, entry.unit) }
-      : { dataAbsentReason: dataAbsent(codes, iv.value === null) }),
+    ...(hasValue ? { valueQuantity: quantity(codes, iv.value as number, entry.unit) } : { dataAbsentReason: dataAbsent(codes, iv.value === null) }),
     interpretation: interpretation(codes, verdict),
     note: notes(result, index, verdict, iv),
     method: { text: `${entry.method}; engine ${result.engineVersion}` },

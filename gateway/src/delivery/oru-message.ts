@@ -41,14 +41,58 @@ export function buildOru(codes: CodeMap, i: OruInput): string {
   const o = i.observation;
   const ident = o.identifier[0]?.value ?? i.controlId;
   const segs: string[] = [
-    ['MSH', '^~\\&', 'EBBGATE', esc(i.sendingFacility), esc(i.receivingApplication), esc(i.sendingFacility), ts(i.at), '', 'ORU^R01^ORU_R01', esc(i.controlId), 'P', '2.6', '', '', 'AL', 'NE', '', 'UNICODE UTF-8', '', '', 'IHE_PCD_001^IHE PCD^1.3.6.1.4.1.19376.1.6.1.1.1^ISO'].join('|'),
+    [
+      'MSH',
+      '^~\\&',
+      'EBBGATE',
+      esc(i.sendingFacility),
+      esc(i.receivingApplication),
+      esc(i.sendingFacility),
+      ts(i.at),
+      '',
+      'ORU^R01^ORU_R01',
+      esc(i.controlId),
+      'P',
+      '2.6',
+      '',
+      '',
+      'AL',
+      'NE',
+      '',
+      'UNICODE UTF-8',
+      '',
+      '',
+      'IHE_PCD_001^IHE PCD^1.3.6.1.4.1.19376.1.6.1.1.1^ISO',
+    ].join('|'),
     ['PID', '', '', i.mrn ? `${esc(i.mrn)}^^^${esc(i.sendingFacility)}^MR` : ''].join('|'),
     ['PV1', '', 'I', esc(i.locationIdentifier)].join('|'),
     ['OBR', '1', `${esc(ident)}^EBBGATE`, '', obx3(codes, o.code.coding ?? []), '', '', ts(o.effectivePeriod.start), ts(o.effectivePeriod.end)].join('|'),
   ];
   const unit = o.valueQuantity ? `${esc(o.valueQuantity.code ?? '')}^${esc(o.valueQuantity.unit ?? '')}^UCUM` : '';
   const eq = i.monitorIdentifier ? `${esc(i.monitorIdentifier)}^^${esc(i.monitorIdentifier)}^EUI-64` : '';
-  segs.push(['OBX', '1', 'NM', obx3(codes, o.code.coding ?? []), '1.0.0.1', o.valueQuantity ? String(o.valueQuantity.value) : '', unit, '', '', '', '', resultStatus(o), '', '', ts(o.effectivePeriod.end), '', '', 'ACALC^auto-calculation^MDC', eq].join('|'));
+  segs.push(
+    [
+      'OBX',
+      '1',
+      'NM',
+      obx3(codes, o.code.coding ?? []),
+      '1.0.0.1',
+      o.valueQuantity ? String(o.valueQuantity.value) : '',
+      unit,
+      '',
+      '',
+      '',
+      '',
+      resultStatus(o),
+      '',
+      '',
+      ts(o.effectivePeriod.end),
+      '',
+      '',
+      'ACALC^auto-calculation^MDC',
+      eq,
+    ].join('|'),
+  );
   (o.note ?? []).forEach((n, k) => segs.push(['NTE', String(k + 1), '', esc(n.text)].join('|')));
   return segs.join('\r') + '\r';
 }

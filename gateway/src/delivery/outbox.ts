@@ -48,7 +48,13 @@ export function withheldReason(result: AnalysisResult, index: (typeof DELIVERED_
 }
 
 /** Queues one row per index per destination for a newly stored assessment. */
-export async function enqueueAssessment(m: EntityManager, a: AssessmentRow, destinations: string[], codes: CodeMap, policy: DeliveryConfig['notValidPolicy']): Promise<void> {
+export async function enqueueAssessment(
+  m: EntityManager,
+  a: AssessmentRow,
+  destinations: string[],
+  codes: CodeMap,
+  policy: DeliveryConfig['notValidPolicy'],
+): Promise<void> {
   const result = a.result as AnalysisResult;
   const now = new Date();
   const rows: Partial<DeliveryRow>[] = [];
@@ -56,12 +62,25 @@ export async function enqueueAssessment(m: EntityManager, a: AssessmentRow, dest
     for (const index of DELIVERED_INDICES) {
       const withheld = withheldReason(result, index, policy);
       rows.push({
-        assessmentId: a.id, destinationId, indexName: index, kind: 'create',
+        assessmentId: a.id,
+        destinationId,
+        indexName: index,
+        kind: 'create',
         status: withheld ? 'withheld' : 'pending',
         identifier: observationIdentifier(codes, a.id, index).value,
-        payload: null, serverId: null, patientRef: null, tries: 0, attemptCount: 0,
-        nextAttemptAt: now, lastHttpStatus: null, lastError: withheld, discardReason: null, discardedBy: null,
-        createdAt: now, updatedAt: now, deliveredAt: null,
+        payload: null,
+        serverId: null,
+        patientRef: null,
+        tries: 0,
+        attemptCount: 0,
+        nextAttemptAt: now,
+        lastHttpStatus: null,
+        lastError: withheld,
+        discardReason: null,
+        discardedBy: null,
+        createdAt: now,
+        updatedAt: now,
+        deliveredAt: null,
       });
     }
     // A tidal volume challenge this assessment completed travels as one more Observation.
@@ -69,12 +88,25 @@ export async function enqueueAssessment(m: EntityManager, a: AssessmentRow, dest
     if (challenge) {
       const withheld = challengeWithheldReason(challenge, policy);
       rows.push({
-        assessmentId: a.id, destinationId, indexName: CHALLENGE_DELIVERY, kind: 'create',
+        assessmentId: a.id,
+        destinationId,
+        indexName: CHALLENGE_DELIVERY,
+        kind: 'create',
         status: withheld ? 'withheld' : 'pending',
         identifier: challengeIdentifier(codes, a.id).value,
-        payload: null, serverId: null, patientRef: null, tries: 0, attemptCount: 0,
-        nextAttemptAt: now, lastHttpStatus: null, lastError: withheld, discardReason: null, discardedBy: null,
-        createdAt: now, updatedAt: now, deliveredAt: null,
+        payload: null,
+        serverId: null,
+        patientRef: null,
+        tries: 0,
+        attemptCount: 0,
+        nextAttemptAt: now,
+        lastHttpStatus: null,
+        lastError: withheld,
+        discardReason: null,
+        discardedBy: null,
+        createdAt: now,
+        updatedAt: now,
+        deliveredAt: null,
       });
     }
   }
@@ -137,7 +169,10 @@ export async function claimDueFenced(ds: DataSource, destinationId: string, limi
 
 /** Renews the lease of the rows this claim still holds; returns how many it holds. */
 export async function renewLease(ds: DataSource, claimId: string, leaseMs: number): Promise<number> {
-  const res = (await ds.query(`UPDATE delivery SET next_attempt_at = ? WHERE claim_id = ? AND status IN ('pending','waiting-context')`, [new Date(Date.now() + leaseMs), claimId])) as { affectedRows?: number };
+  const res = (await ds.query(`UPDATE delivery SET next_attempt_at = ? WHERE claim_id = ? AND status IN ('pending','waiting-context')`, [
+    new Date(Date.now() + leaseMs),
+    claimId,
+  ])) as { affectedRows?: number };
   return res.affectedRows ?? 0;
 }
 
@@ -146,7 +181,11 @@ export async function renewLease(ds: DataSource, claimId: string, leaseMs: numbe
  * the row, and the lease is pushed forward so it cannot run out during the step.
  */
 export async function stillHeld(ds: DataSource, rowId: string, claimId: string, leaseMs: number): Promise<boolean> {
-  const res = (await ds.query(`UPDATE delivery SET next_attempt_at = ? WHERE id = ? AND claim_id = ? AND status IN ('pending','waiting-context')`, [new Date(Date.now() + leaseMs), rowId, claimId])) as { affectedRows?: number };
+  const res = (await ds.query(`UPDATE delivery SET next_attempt_at = ? WHERE id = ? AND claim_id = ? AND status IN ('pending','waiting-context')`, [
+    new Date(Date.now() + leaseMs),
+    rowId,
+    claimId,
+  ])) as { affectedRows?: number };
   return (res.affectedRows ?? 0) === 1;
 }
 
@@ -216,7 +255,9 @@ async function bulkUpdate(m: EntityManager, rows: AttemptResult[], at: Date, onl
   }
   // Which rows the claim still held (read under the same locks the UPDATE takes).
   const held = claim
-    ? ((await m.query(`SELECT id FROM delivery WHERE id IN (?) AND claim_id = ? FOR UPDATE`, [ids, claim])) as { id: string | number }[]).map((r) => String(r.id))
+    ? ((await m.query(`SELECT id FROM delivery WHERE id IN (?) AND claim_id = ? FOR UPDATE`, [ids, claim])) as { id: string | number }[]).map((r) =>
+        String(r.id),
+      )
     : ids.map(String);
   await m.query(`UPDATE delivery SET ${sets.join(', ')} ${where}`, p);
   return held;
@@ -235,8 +276,14 @@ export async function recordAttempts(ds: DataSource, results: AttemptResult[]): 
     await m.insert(
       DeliveryAttemptRow,
       results.map((r) => ({
-        deliveryId: r.row.id, at, durationMs: Math.round(r.durationMs), httpStatus: r.httpStatus, outcome: r.outcome,
-        detail: r.detail, response: (r.response ?? null) as object | null, mode: r.mode,
+        deliveryId: r.row.id,
+        at,
+        durationMs: Math.round(r.durationMs),
+        httpStatus: r.httpStatus,
+        outcome: r.outcome,
+        detail: r.detail,
+        response: (r.response ?? null) as object | null,
+        mode: r.mode,
       })),
     );
     const delivered = results.filter((r) => r.status === 'delivered');
@@ -281,7 +328,11 @@ export async function recordDestinationHealth(
       d.consecutiveFailures += pass.failed;
       d.downSince ??= now;
     }
-    if (pass.failed > 0 && d.circuitState !== 'open' && (d.circuitState === 'half-open' ? pass.answered === 0 : d.consecutiveFailures >= circuit.failureThreshold)) {
+    if (
+      pass.failed > 0 &&
+      d.circuitState !== 'open' &&
+      (d.circuitState === 'half-open' ? pass.answered === 0 : d.consecutiveFailures >= circuit.failureThreshold)
+    ) {
       d.circuitState = 'open';
       d.circuitOpenedAt = now;
     }
@@ -306,7 +357,11 @@ export async function markAssessmentInError(m: EntityManager, a: AssessmentRow):
   for (const r of rows) {
     if (r.status === 'delivered') await ensureAmendRow(m, r, now);
     else if (r.status === 'pending' || r.status === 'waiting-context' || r.status === 'failed') {
-      await m.update(DeliveryRow, { id: r.id }, { status: 'discarded', discardReason: 'entered in error before delivery', discardedBy: a.enteredInErrorBy, updatedAt: now });
+      await m.update(
+        DeliveryRow,
+        { id: r.id },
+        { status: 'discarded', discardReason: 'entered in error before delivery', discardedBy: a.enteredInErrorBy, updatedAt: now },
+      );
       if (r.attemptCount > 0 && r.status !== 'waiting-context') await ensureAmendRow(m, r, now);
     }
   }
@@ -315,7 +370,18 @@ export async function markAssessmentInError(m: EntityManager, a: AssessmentRow):
 /** Queues the amendment of a create row; one that was set aside earlier (nothing to amend then) is opened again. */
 export async function ensureAmendRow(m: EntityManager, create: DeliveryRow, now = new Date()): Promise<void> {
   const params = [
-    create.assessmentId, create.destinationId, create.indexName, create.identifier, create.serverId, create.patientRef, create.patientName ?? null, create.patientMrn ?? null, create.encounterRef ?? null, now, now, now,
+    create.assessmentId,
+    create.destinationId,
+    create.indexName,
+    create.identifier,
+    create.serverId,
+    create.patientRef,
+    create.patientName ?? null,
+    create.patientMrn ?? null,
+    create.encounterRef ?? null,
+    now,
+    now,
+    now,
   ];
   await m.query(
     `INSERT INTO delivery (assessment_id, destination_id, index_name, kind, status, identifier, payload, server_id, patient_ref, patient_name, patient_mrn, encounter_ref, tries, attempt_count, next_attempt_at, created_at, updated_at)

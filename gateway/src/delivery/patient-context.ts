@@ -71,7 +71,11 @@ export function staysAt(encounter: Obj, locationId: string): Stay[] | 'undated' 
   const end = time(period.end) ?? (status === 'finished' ? undefined : Number.POSITIVE_INFINITY);
   if (end === undefined) return [];
   const base = { encounterId: encounter.id, patientId: subject.slice('Patient/'.length), encounterStart: period.start! };
-  const entries = (Array.isArray(encounter.location) ? encounter.location : []) as { location?: { reference?: string }; period?: { start?: string; end?: string }; status?: string }[];
+  const entries = (Array.isArray(encounter.location) ? encounter.location : []) as {
+    location?: { reference?: string };
+    period?: { start?: string; end?: string };
+    status?: string;
+  }[];
   const here = entries.filter((l) => l.location?.reference === `Location/${locationId}` || l.location?.reference?.endsWith(`/Location/${locationId}`));
   if (!here.length) return [];
   const withPeriods = entries.some((l) => l.period?.start);
@@ -142,7 +146,11 @@ export class PatientContextResolver {
     // The whole window must lie in one stay: a window spanning a transfer belongs to nobody for sure.
     const covering = loc.stays.filter((s) => s.start <= t && tEnd <= s.end);
     const patients = new Set(covering.map((s) => s.patientId));
-    if (patients.size > 1) return { kind: 'none', reason: `ambiguous: ${patients.size} patients' encounters cover ${at.toISOString()} at ${locationIdentifier} (${covering.map((s) => `Encounter/${s.encounterId}`).join(', ')})` };
+    if (patients.size > 1)
+      return {
+        kind: 'none',
+        reason: `ambiguous: ${patients.size} patients' encounters cover ${at.toISOString()} at ${locationIdentifier} (${covering.map((s) => `Encounter/${s.encounterId}`).join(', ')})`,
+      };
     const stay = covering[0];
     if (!stay) {
       const refused = loc.undated.length ? `; encounters without period.start refused: ${loc.undated.map((e) => `Encounter/${e}`).join(', ')}` : '';
@@ -151,7 +159,14 @@ export class PatientContextResolver {
     const p = await this.patient(stay.patientId);
     return {
       kind: 'found',
-      context: { patientId: stay.patientId, encounterId: stay.encounterId, locationId: loc.locationId, encounterStart: stay.encounterStart, patientName: p.name, patientMrn: p.mrn },
+      context: {
+        patientId: stay.patientId,
+        encounterId: stay.encounterId,
+        locationId: loc.locationId,
+        encounterStart: stay.encounterStart,
+        patientName: p.name,
+        patientMrn: p.mrn,
+      },
     };
   }
 

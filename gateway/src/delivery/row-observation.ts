@@ -34,13 +34,29 @@ export function buildRowObservation(i: RowObservationInput): BuildOutcome {
     const withheld = challengeWithheldReason(challenge, i.notValidPolicy);
     if (withheld) return { kind: 'withheld', reason: withheld };
     const resource = buildChallengeObservation({
-      assessmentId: a.id, stepAt: new Date(a.challengeStepAt), windowEnd: a.windowEnd, challenge, context: i.context, deviceId: i.deviceId,
-      status: i.status, issued: i.issued, codes: i.codes,
+      assessmentId: a.id,
+      stepAt: new Date(a.challengeStepAt),
+      windowEnd: a.windowEnd,
+      challenge,
+      context: i.context,
+      deviceId: i.deviceId,
+      status: i.status,
+      issued: i.issued,
+      codes: i.codes,
     });
     return { kind: 'observation', resource };
   }
   return buildObservation({
-    assessmentId: a.id, index: i.indexName as DeliveredIndex, windowStart: a.windowStart, windowEnd: a.windowEnd, result: a.result as AnalysisResult,
-    context: i.context, deviceId: i.deviceId, status: i.status, notValidPolicy: i.notValidPolicy, issued: i.issued, codes: i.codes,
+    assessmentId: a.id,
+    index: i.indexName as DeliveredIndex,
+    windowStart: a.windowStart,
+    windowEnd: a.windowEnd,
+    result: a.result as AnalysisResult,
+    context: i.context,
+    deviceId: i.deviceId,
+    status: i.status,
+    notValidPolicy: i.notValidPolicy,
+    issued: i.issued,
+    codes: i.codes,
   });
 }

@@ -34,7 +34,5 @@ export function isOperationOutcome(x: unknown): x is OperationOutcome {
 /** One line from an OperationOutcome for lists and mail; the full resource is kept beside it. */
 export function outcomeSummary(x: unknown): string | undefined {
   if (!isOperationOutcome(x)) return undefined;
-  return x.issue
-    .map((i) => `${i.severity} ${i.code}${i.diagnostics ? `: ${i.diagnostics}` : i.details?.text ? `: ${i.details.text}` : ''}`)
-    .join('; ');
+  return x.issue.map((i) => `${i.severity} ${i.code}${i.diagnostics ? `: ${i.diagnostics}` : i.details?.text ? `: ${i.details.text}` : ''}`).join('; ');
 }

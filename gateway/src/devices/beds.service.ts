@@ -20,7 +20,13 @@ async function monitorsByBed(ds: DataSource, bedIds: string[]): Promise<Map<stri
   return new Map(rows.map((r) => [r.bedId as string, r.id]));
 }
 
-const BED_SORT: Record<string, string> = { name: 'b.name', unit: 'b.unit', locationIdentifier: 'b.location_identifier', createdAt: 'b.created_at', updatedAt: 'b.updated_at' };
+const BED_SORT: Record<string, string> = {
+  name: 'b.name',
+  unit: 'b.unit',
+  locationIdentifier: 'b.location_identifier',
+  createdAt: 'b.created_at',
+  updatedAt: 'b.updated_at',
+};
 
 export async function listBeds(ds: DataSource, q: BedQuery): Promise<Page<Bed>> {
   const qb = ds.getRepository(BedRow).createQueryBuilder('b');
@@ -28,7 +34,10 @@ export async function listBeds(ds: DataSource, q: BedQuery): Promise<Page<Bed>> 
   if (q.search) qb.andWhere('(b.name LIKE :s OR b.unit LIKE :s OR b.location_identifier LIKE :s)', { s: likePattern(q.search) });
   // Unsorted, beds come unit by unit, then by name.
   const [rows, total] = await orderAndPage(qb, q, BED_SORT, ['b.unit', 'b.name'], 'b.name').getManyAndCount();
-  const assigned = await monitorsByBed(ds, rows.map((r) => r.id));
+  const assigned = await monitorsByBed(
+    ds,
+    rows.map((r) => r.id),
+  );
   return { items: rows.map((r) => toBed(r, assigned.get(r.id) ?? null)), page: q.page, pageSize: q.pageSize, total };
 }
 
@@ -43,7 +52,15 @@ export async function createBed(ds: DataSource, input: BedInput & { id?: string 
   try {
     return await ds.transaction(async (m) => {
       const now = new Date();
-      const row = m.create(BedRow, { id: input.id ?? randomUUID(), name: input.name, unit: input.unit, locationIdentifier: input.locationIdentifier, checklist: input.checklist ?? null, createdAt: now, updatedAt: now });
+      const row = m.create(BedRow, {
+        id: input.id ?? randomUUID(),
+        name: input.name,
+        unit: input.unit,
+        locationIdentifier: input.locationIdentifier,
+        checklist: input.checklist ?? null,
+        createdAt: now,
+        updatedAt: now,
+      });
       await m.insert(BedRow, row);
       const out = toBed(row, null);
       await recordAudit(m, { principal: by.principal, action: 'bed.create', entityType: 'bed', entityId: row.id, after: out, requestId: by.requestId });
@@ -87,7 +104,14 @@ export async function deleteBed(ds: DataSource, id: string, by: ChangeBy): Promi
     // The monitor's bed_id is set to NULL by the foreign key; the audit entry says which one moved out.
     const monitor = await m.findOneBy(MonitorRow, { bedId: id });
     await m.delete(BedRow, { id });
-    await recordAudit(m, { principal: by.principal, action: 'bed.delete', entityType: 'bed', entityId: id, before: toBed(row, monitor?.id ?? null), requestId: by.requestId });
+    await recordAudit(m, {
+      principal: by.principal,
+      action: 'bed.delete',
+      entityType: 'bed',
+      entityId: id,
+      before: toBed(row, monitor?.id ?? null),
+      requestId: by.requestId,
+    });
     previousLocation = row.locationIdentifier;
   });
   forgetDevices();

@@ -30,7 +30,13 @@ export async function monitorForIngest(ds: DataSource, identifier: string): Prom
   let value: MonitorForIngest | null = null;
   if (monitor) {
     const profileRow = monitor.profileId ? await ds.getRepository(MonitorProfileRow).findOneBy({ id: monitor.profileId }) : null;
-    value = { id: monitor.id, identifier: monitor.identifier, enabled: monitor.enabled, bedId: monitor.bedId, profile: profileRow ? toProfile(profileRow) : null };
+    value = {
+      id: monitor.id,
+      identifier: monitor.identifier,
+      enabled: monitor.enabled,
+      bedId: monitor.bedId,
+      profile: profileRow ? toProfile(profileRow) : null,
+    };
   }
   if (byIdentifier.size > 20_000) byIdentifier.clear();
   byIdentifier.set(identifier, { value, until: Date.now() + TTL_MS });

@@ -32,7 +32,10 @@ export async function listMonitors(ds: DataSource, q: MonitorQuery): Promise<Pag
   if (q.enabled !== undefined) qb.andWhere('m.enabled = :enabled', { enabled: q.enabled });
   if (q.search) qb.andWhere('m.identifier LIKE :s', { s: likePattern(q.search) });
   const [rows, total] = await orderAndPage(qb, q, MONITOR_SORT, ['m.identifier'], 'm.identifier').getManyAndCount();
-  const keyed = await liveKeyMonitors(ds, rows.map((r) => r.id));
+  const keyed = await liveKeyMonitors(
+    ds,
+    rows.map((r) => r.id),
+  );
   return { items: rows.map((r) => toMonitor(r, keyed.has(r.id))), page: q.page, pageSize: q.pageSize, total };
 }
 
@@ -117,7 +120,14 @@ export async function deleteMonitor(ds: DataSource, id: string, by: ChangeBy): P
       const row = await m.findOneBy(MonitorRow, { id });
       if (!row) throw notFound(`Monitor ${id}`);
       await m.delete(MonitorRow, { id });
-      await recordAudit(m, { principal: by.principal, action: 'monitor.delete', entityType: 'monitor', entityId: id, before: toMonitor(row, false), requestId: by.requestId });
+      await recordAudit(m, {
+        principal: by.principal,
+        action: 'monitor.delete',
+        entityType: 'monitor',
+        entityId: id,
+        before: toMonitor(row, false),
+        requestId: by.requestId,
+      });
     });
   } catch (err) {
     if (isReferenced(err)) throw conflict('The monitor has stored assessments; disable it instead of deleting it.');

@@ -11,7 +11,13 @@ import { forgetDevices } from './device-cache';
 import { likePattern, orderAndPage } from './device-paging';
 import { toProfile } from './device-views';
 
-const PROFILE_SORT: Record<string, string> = { name: 'p.name', manufacturer: 'p.manufacturer', model: 'p.model', createdAt: 'p.created_at', updatedAt: 'p.updated_at' };
+const PROFILE_SORT: Record<string, string> = {
+  name: 'p.name',
+  manufacturer: 'p.manufacturer',
+  model: 'p.model',
+  createdAt: 'p.created_at',
+  updatedAt: 'p.updated_at',
+};
 
 export async function listProfiles(ds: DataSource, q: ProfileQuery): Promise<Page<MonitorProfile>> {
   const qb = ds.getRepository(MonitorProfileRow).createQueryBuilder('p');
@@ -57,7 +63,14 @@ export async function createProfile(ds: DataSource, input: MonitorProfileInput, 
       const row = m.create(MonitorProfileRow, { id: randomUUID(), ...fields(input), createdAt: now, updatedAt: now });
       await m.insert(MonitorProfileRow, row);
       const out = toProfile(row);
-      await recordAudit(m, { principal: by.principal, action: 'profile.create', entityType: 'monitor-profile', entityId: row.id, after: out, requestId: by.requestId });
+      await recordAudit(m, {
+        principal: by.principal,
+        action: 'profile.create',
+        entityType: 'monitor-profile',
+        entityId: row.id,
+        after: out,
+        requestId: by.requestId,
+      });
       return out;
     });
   } catch (err) {
@@ -75,7 +88,15 @@ export async function replaceProfile(ds: DataSource, id: string, input: MonitorP
       Object.assign(row, fields(input), { updatedAt: new Date() });
       await m.save(row);
       const after = toProfile(row);
-      await recordAudit(m, { principal: by.principal, action: 'profile.update', entityType: 'monitor-profile', entityId: id, before, after, requestId: by.requestId });
+      await recordAudit(m, {
+        principal: by.principal,
+        action: 'profile.update',
+        entityType: 'monitor-profile',
+        entityId: id,
+        before,
+        after,
+        requestId: by.requestId,
+      });
       return after;
     });
     forgetDevices();
@@ -98,7 +119,14 @@ export async function deleteProfile(ds: DataSource, id: string, by: ChangeBy): P
       if (isReferenced(err)) throw conflict('The profile is still referenced.');
       throw err;
     }
-    await recordAudit(m, { principal: by.principal, action: 'profile.delete', entityType: 'monitor-profile', entityId: id, before: toProfile(row), requestId: by.requestId });
+    await recordAudit(m, {
+      principal: by.principal,
+      action: 'profile.delete',
+      entityType: 'monitor-profile',
+      entityId: id,
+      before: toProfile(row),
+      requestId: by.requestId,
+    });
   });
   forgetDevices();
 }

@@ -92,7 +92,9 @@ export function createApp(ctx: AppContext, parts: AppParts): Express {
 function mountConsole(app: Express, dir: string): void {
   const index = path.join(dir, 'index.html');
   if (existsSync(index)) {
-    app.use(express.static(dir, { index: false, maxAge: '1h', setHeaders: (res, file) => file.endsWith('.html') && res.setHeader('Cache-Control', 'no-store') }));
+    app.use(
+      express.static(dir, { index: false, maxAge: '1h', setHeaders: (res, file) => file.endsWith('.html') && res.setHeader('Cache-Control', 'no-store') }),
+    );
     app.get(/^\/(?!api\/|healthz|readyz|metrics).*/, (_req, res) => res.sendFile(index));
     return;
   }

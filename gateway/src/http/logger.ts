@@ -46,9 +46,27 @@ export function scrubMessage(text: string): string {
 export function safeError(err: unknown, depth = 0): unknown {
   if (typeof err === 'string') return scrubMessage(err);
   if (!err || typeof err !== 'object') return err;
-  const e = err as { name?: unknown; constructor?: { name?: string }; message?: unknown; stack?: unknown; code?: unknown; errno?: unknown; sqlState?: unknown; status?: unknown; statusCode?: unknown; cause?: unknown; driverError?: unknown };
+  const e = err as {
+    name?: unknown;
+    constructor?: { name?: string };
+    message?: unknown;
+    stack?: unknown;
+    code?: unknown;
+    errno?: unknown;
+    sqlState?: unknown;
+    status?: unknown;
+    statusCode?: unknown;
+    cause?: unknown;
+    driverError?: unknown;
+  };
   const message = typeof e.message === 'string' ? scrubMessage(e.message) : undefined;
-  const frames = typeof e.stack === 'string' ? e.stack.split('\n').filter((l) => /^\s+at /.test(l)).slice(0, 12) : [];
+  const frames =
+    typeof e.stack === 'string'
+      ? e.stack
+          .split('\n')
+          .filter((l) => /^\s+at /.test(l))
+          .slice(0, 12)
+      : [];
   const type = typeof e.name === 'string' ? e.name : (e.constructor?.name ?? 'Error');
   const pick = (v: unknown) => (typeof v === 'string' || typeof v === 'number' ? (typeof v === 'string' ? v.slice(0, 64) : v) : undefined);
   const driver = e.driverError as { code?: unknown; errno?: unknown; sqlState?: unknown } | undefined;
@@ -68,7 +86,12 @@ export function safeError(err: unknown, depth = 0): unknown {
 
 /** JSON lines to stdout, or appended to `file` (npm start keeps the terminal for people). */
 export function createLogger(level: string, file?: string): Logger {
-  const options = { level, redact: { paths: REDACT_PATHS, censor: '[redacted]' }, base: { service: 'ebbgate-gateway' }, serializers: { err: safeError, error: safeError } };
+  const options = {
+    level,
+    redact: { paths: REDACT_PATHS, censor: '[redacted]' },
+    base: { service: 'ebbgate-gateway' },
+    serializers: { err: safeError, error: safeError },
+  };
   return file ? pino(options, pino.destination({ dest: file, mkdir: true, sync: false })) : pino(options);
 }
 

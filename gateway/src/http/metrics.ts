@@ -23,7 +23,15 @@ export function createMetrics() {
   const counter = (name: string, help: string, labelNames: string[] = []) => new Counter({ name, help, labelNames, registers: [registry] });
   /** A gauge read when scraped (collect sets its values, e.g. from the database). */
   const gauge = (name: string, help: string, labelNames: string[], collect: (g: Gauge) => Promise<void>) =>
-    new Gauge({ name, help, labelNames, registers: [registry], async collect() { await collect(this); } });
+    new Gauge({
+      name,
+      help,
+      labelNames,
+      registers: [registry],
+      async collect() {
+        await collect(this);
+      },
+    });
   return { registry, middleware, counter, gauge };
 }
 export type Metrics = ReturnType<typeof createMetrics>;

@@ -43,7 +43,9 @@ export function buildOpenApi(version: string) {
       parameters: parameters(spec),
       security: spec.permission === PUBLIC ? [] : spec.permission === 'ingest.write' ? [{ deviceKey: [] }] : [{ session: [] }],
       responses: {
-        [ok]: spec.response ? { description: 'Success', content: { 'application/json': { schema: schemaOf(spec.response, 'output') } } } : { description: 'Success' },
+        [ok]: spec.response
+          ? { description: 'Success', content: { 'application/json': { schema: schemaOf(spec.response, 'output') } } }
+          : { description: 'Success' },
         default: { description: 'Problem details (RFC 9457)', content: problem },
       },
     };

@@ -40,6 +40,10 @@ export function metricsGuard(token: string | null): RequestHandler {
     const presented = auth.startsWith('Bearer ') ? auth.slice(7).trim() : '';
     // Compare digests: equal length, constant time, whatever was presented.
     if (presented && timingSafeEqual(digest(presented), digest(token))) return next();
-    next(new HttpProblem(401, 'Not signed in', 'The metrics need the scrape token (Authorization: Bearer).', { headers: { 'WWW-Authenticate': 'Bearer realm="metrics"' } }));
+    next(
+      new HttpProblem(401, 'Not signed in', 'The metrics need the scrape token (Authorization: Bearer).', {
+        headers: { 'WWW-Authenticate': 'Bearer realm="metrics"' },
+      }),
+    );
   };
 }

@@ -27,8 +27,7 @@ export const unauthorized = (detail = 'Sign in first.') => new HttpProblem(401, 
 export const forbidden = (detail = 'Your roles do not allow this.') => new HttpProblem(403, 'Forbidden', detail);
 export const notFound = (what: string) => new HttpProblem(404, 'Not found', `${what} does not exist.`);
 export const conflict = (detail: string) => new HttpProblem(409, 'Conflict', detail);
-export const unprocessable = (detail: string, errors?: FieldError[]) =>
-  new HttpProblem(422, 'Unprocessable content', detail, { errors });
+export const unprocessable = (detail: string, errors?: FieldError[]) => new HttpProblem(422, 'Unprocessable content', detail, { errors });
 
 export function zodFieldErrors(err: ZodError, prefix = ''): FieldError[] {
   return err.issues.map((i) => ({
@@ -40,7 +39,10 @@ export function zodFieldErrors(err: ZodError, prefix = ''): FieldError[] {
 const TYPE_BASE = 'https://ebbgate.example/problems/';
 
 function slug(title: string): string {
-  return title.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-|-$/g, '');
+  return title
+    .toLowerCase()
+    .replace(/[^a-z0-9]+/g, '-')
+    .replace(/^-|-$/g, '');
 }
 
 function send(res: Parameters<ErrorRequestHandler>[2], problem: Problem, headers: Record<string, string> = {}) {
@@ -92,7 +94,13 @@ export function problemHandler(logger: Logger): ErrorRequestHandler {
     const e = err as { status?: number; statusCode?: number; type?: string; code?: string; message?: string };
     const status = e.status ?? e.statusCode;
     if (status === 413 || e.code === 'LIMIT_FILE_SIZE') {
-      return send(res, { type: TYPE_BASE + 'payload-too-large', title: 'Payload too large', status: 413, detail: 'The body is over the size limit.', instance });
+      return send(res, {
+        type: TYPE_BASE + 'payload-too-large',
+        title: 'Payload too large',
+        status: 413,
+        detail: 'The body is over the size limit.',
+        instance,
+      });
     }
     if (status === 400 && e.type === 'entity.parse.failed') {
       return send(res, { type: TYPE_BASE + 'bad-request', title: 'Bad request', status: 400, detail: `The body is not valid JSON: ${e.message}`, instance });
@@ -107,7 +115,13 @@ export function problemHandler(logger: Logger): ErrorRequestHandler {
       logger.warn({ err, reqId: req.id }, 'database unavailable; answered 503');
       return send(
         res,
-        { type: TYPE_BASE + 'service-unavailable', title: 'Service unavailable', status: 503, detail: 'The database cannot take this request right now; try again shortly.', instance },
+        {
+          type: TYPE_BASE + 'service-unavailable',
+          title: 'Service unavailable',
+          status: 503,
+          detail: 'The database cannot take this request right now; try again shortly.',
+          instance,
+        },
         { 'Retry-After': '5' },
       );
     }

@@ -16,11 +16,13 @@ function credentialOf(req: Request): string | undefined {
   return presented ? createHash('sha256').update(presented).digest('base64url').slice(0, 22) : undefined;
 }
 
-const tooMany = (what: string): Options['handler'] => (req, _res, next) => {
-  const reset = (req as Request & { rateLimit?: { resetTime?: Date } }).rateLimit?.resetTime;
-  const wait = reset ? Math.max(1, Math.ceil((reset.getTime() - Date.now()) / 1000)) : 60;
-  next(new HttpProblem(429, 'Too many requests', `Too many requests ${what}; wait ${wait} s.`, { headers: { 'Retry-After': String(wait) } }));
-};
+const tooMany =
+  (what: string): Options['handler'] =>
+  (req, _res, next) => {
+    const reset = (req as Request & { rateLimit?: { resetTime?: Date } }).rateLimit?.resetTime;
+    const wait = reset ? Math.max(1, Math.ceil((reset.getTime() - Date.now()) / 1000)) : 60;
+    next(new HttpProblem(429, 'Too many requests', `Too many requests ${what}; wait ${wait} s.`, { headers: { 'Retry-After': String(wait) } }));
+  };
 
 /**
  * Two limits, both before any route reads a body (in memory, per gateway process):

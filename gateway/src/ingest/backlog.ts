@@ -45,7 +45,9 @@ export class MonitorBacklog {
   async current(monitorId: string): Promise<number> {
     const hit = this.cache.get(monitorId);
     if (hit && Date.now() - hit.readAt < this.maxAgeMs) return hit.value;
-    const rows = (await this.ds.query("SELECT COUNT(*) AS n FROM analysis_window WHERE monitor_id = ? AND status = 'due'", [monitorId])) as { n: string | number }[];
+    const rows = (await this.ds.query("SELECT COUNT(*) AS n FROM analysis_window WHERE monitor_id = ? AND status = 'due'", [monitorId])) as {
+      n: string | number;
+    }[];
     const value = Number(rows[0]?.n ?? 0);
     if (this.cache.size > 50_000) this.cache.clear();
     this.cache.set(monitorId, { value, readAt: Date.now() });

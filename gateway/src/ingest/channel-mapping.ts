@@ -28,12 +28,20 @@ export function profileChannelFor(profile: MonitorProfile, code: string) {
  * Every problem is named (422 / quarantine) so an integrator can fix the profile and reprocess.
  */
 export function mapChannels(batch: ReceivedBatch, monitor: MonitorForIngest | null, transport: 'http' | 'mllp'): MappedChannel[] {
-  if (!monitor) throw new IngestRefusal('unmapped', `No monitor is registered with identifier ${batch.monitorIdentifier}.`, [{ path: 'monitorId', message: 'unknown monitor' }]);
+  if (!monitor)
+    throw new IngestRefusal('unmapped', `No monitor is registered with identifier ${batch.monitorIdentifier}.`, [
+      { path: 'monitorId', message: 'unknown monitor' },
+    ]);
   if (!monitor.enabled) throw new IngestRefusal('unmapped', `Monitor ${monitor.identifier} is disabled.`, [{ path: 'monitorId', message: 'monitor disabled' }]);
   const profile = monitor.profile;
-  if (!profile) throw new IngestRefusal('unmapped', `Monitor ${monitor.identifier} has no monitor profile, so its channel codes cannot be mapped.`, [{ path: 'monitorId', message: 'no profile assigned' }]);
+  if (!profile)
+    throw new IngestRefusal('unmapped', `Monitor ${monitor.identifier} has no monitor profile, so its channel codes cannot be mapped.`, [
+      { path: 'monitorId', message: 'no profile assigned' },
+    ]);
   if (!profile.transports.includes(transport)) {
-    throw new IngestRefusal('unmapped', `Profile "${profile.name}" does not list the ${transport} transport.`, [{ path: 'transport', message: `not in profile transports (${profile.transports.join(', ')})` }]);
+    throw new IngestRefusal('unmapped', `Profile "${profile.name}" does not list the ${transport} transport.`, [
+      { path: 'transport', message: `not in profile transports (${profile.transports.join(', ')})` },
+    ]);
   }
   const errors: { path: string; message: string }[] = [];
   const mapped: MappedChannel[] = [];
@@ -48,7 +56,16 @@ export function mapChannels(batch: ReceivedBatch, monitor: MonitorForIngest | nu
       continue;
     }
     const n = sampleCount(ch.samples);
-    mapped.push({ code: p.code, role: p.role, unit: p.unit, sampleRate: p.sampleRate, gain: p.gain, offset: p.offset, sampleCount: n, samples: toStoredSamples(ch.samples, p.gain, p.offset) });
+    mapped.push({
+      code: p.code,
+      role: p.role,
+      unit: p.unit,
+      sampleRate: p.sampleRate,
+      gain: p.gain,
+      offset: p.offset,
+      sampleCount: n,
+      samples: toStoredSamples(ch.samples, p.gain, p.offset),
+    });
   }
   if (errors.length) throw new IngestRefusal('unmapped', 'Some channels do not match the monitor profile.', errors);
   return mapped;

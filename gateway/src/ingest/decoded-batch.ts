@@ -51,7 +51,8 @@ export function fromIngestBatch(b: IngestBatch): ReceivedBatch {
     if (Array.isArray(c.samples)) samples = { kind: 'array', values: c.samples };
     else {
       const bytes = Buffer.from(c.samples.data, 'base64');
-      if (bytes.length === 0 || bytes.length % 4 !== 0) errors.push({ path: `channels.${i}.samples.data`, message: `decodes to ${bytes.length} bytes, not a whole number of 4-byte float32 samples` });
+      if (bytes.length === 0 || bytes.length % 4 !== 0)
+        errors.push({ path: `channels.${i}.samples.data`, message: `decodes to ${bytes.length} bytes, not a whole number of 4-byte float32 samples` });
       samples = { kind: 'float32le', bytes };
     }
     return { code: c.code, sampleRate: c.sampleRate, unit: c.unit, role: c.role, samples, path: `channels.${i}` };

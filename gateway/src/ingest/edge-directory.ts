@@ -66,7 +66,13 @@ export class EdgeDirectory {
 
   private async load(): Promise<Snapshot> {
     const rows = await this.ds.getRepository(EdgeCredentialRow).find();
-    const snap: Snapshot = { anySource: new net.BlockList(), sourcesByScope: new Map(), fingerprintsByScope: new Map(), subjectsByScope: new Map(), until: Date.now() + this.ttlMs };
+    const snap: Snapshot = {
+      anySource: new net.BlockList(),
+      sourcesByScope: new Map(),
+      fingerprintsByScope: new Map(),
+      subjectsByScope: new Map(),
+      until: Date.now() + this.ttlMs,
+    };
     for (const r of rows) {
       const k = key(r.scope, r.scopeId);
       if (r.kind === 'source') {
@@ -108,21 +114,33 @@ export class EdgeDirectory {
     const snap = await this.snapshot();
     const scopes = monitor ? [key('monitor', monitor.id), ...(monitor.profile ? [key('profile', monitor.profile.id)] : [])] : [];
     if (sender.kind === 'certificate') {
-      const ok = scopes.some((k) => snap.fingerprintsByScope.get(k)?.has(sender.fingerprint) || snap.subjectsByScope.get(k)?.has(sender.subject) || snap.subjectsByScope.get(k)?.has(sender.commonName));
+      const ok = scopes.some(
+        (k) =>
+          snap.fingerprintsByScope.get(k)?.has(sender.fingerprint) ||
+          snap.subjectsByScope.get(k)?.has(sender.subject) ||
+          snap.subjectsByScope.get(k)?.has(sender.commonName),
+      );
       if (!ok) {
-        throw new IngestRefusal('unauthorized', `The client certificate (${sender.commonName || sender.subject}, SHA-256 ${sender.fingerprint.slice(0, 16)}…) is not registered for monitor ${monitorIdentifier}.`, [
-          { path: 'OBX-18', message: 'not covered by the client certificate' },
-        ]);
+        throw new IngestRefusal(
+          'unauthorized',
+          `The client certificate (${sender.commonName || sender.subject}, SHA-256 ${sender.fingerprint.slice(0, 16)}…) is not registered for monitor ${monitorIdentifier}.`,
+          [{ path: 'OBX-18', message: 'not covered by the client certificate' }],
+        );
       }
       return;
     }
     if (sender.kind === 'source') {
       if (scopes.some((k) => snap.fingerprintsByScope.has(k) || snap.subjectsByScope.has(k))) {
-        throw new IngestRefusal('unauthorized', `Monitor ${monitorIdentifier} has a client certificate registered; it sends over MLLP/TLS only.`, [{ path: 'OBX-18', message: 'plain MLLP not accepted for this monitor' }]);
+        throw new IngestRefusal('unauthorized', `Monitor ${monitorIdentifier} has a client certificate registered; it sends over MLLP/TLS only.`, [
+          { path: 'OBX-18', message: 'plain MLLP not accepted for this monitor' },
+        ]);
       }
       const own = scopes.map((k) => snap.sourcesByScope.get(k)).filter((l): l is net.BlockList => Boolean(l));
       const allowed = own.length ? own.some((l) => matches(l, sender.address)) : matches(this.configured, sender.address);
-      if (!allowed) throw new IngestRefusal('unauthorized', `Source ${sender.address} is not allowed to send for monitor ${monitorIdentifier}.`, [{ path: 'OBX-18', message: 'source address not allowed' }]);
+      if (!allowed)
+        throw new IngestRefusal('unauthorized', `Source ${sender.address} is not allowed to send for monitor ${monitorIdentifier}.`, [
+          { path: 'OBX-18', message: 'source address not allowed' },
+        ]);
       return;
     }
     throw new IngestRefusal('unauthorized', 'The sender is not authenticated.', []);
@@ -130,7 +148,16 @@ export class EdgeDirectory {
 }
 
 function toCredential(r: EdgeCredentialRow): EdgeCredential {
-  return { id: r.id, scope: r.scope, scopeId: r.scopeId, kind: r.kind, value: r.value, note: r.note, createdAt: r.createdAt.toISOString(), createdBy: r.createdBy };
+  return {
+    id: r.id,
+    scope: r.scope,
+    scopeId: r.scopeId,
+    kind: r.kind,
+    value: r.value,
+    note: r.note,
+    createdAt: r.createdAt.toISOString(),
+    createdBy: r.createdBy,
+  };
 }
 
 async function assertScope(ds: DataSource, scope: EdgeCredentialScope, id: string): Promise<void> {
@@ -147,7 +174,10 @@ export async function listEdgeCredentials(ds: DataSource, scope: EdgeCredentialS
 function normaliseValue(input: NewEdgeCredential): string {
   if (input.kind === 'certificate-fingerprint') {
     const fp = normaliseFingerprint(input.value);
-    if (fp.length !== 64) throw badRequest('A certificate fingerprint is the SHA-256 of the certificate: 64 hex digits (colons allowed).', [{ path: 'value', message: 'not a SHA-256 fingerprint' }]);
+    if (fp.length !== 64)
+      throw badRequest('A certificate fingerprint is the SHA-256 of the certificate: 64 hex digits (colons allowed).', [
+        { path: 'value', message: 'not a SHA-256 fingerprint' },
+      ]);
     return fp;
   }
   if (input.kind === 'source') {
@@ -160,27 +190,65 @@ function normaliseValue(input: NewEdgeCredential): string {
   return input.value.trim();
 }
 
-export async function addEdgeCredential(ds: DataSource, dir: EdgeDirectory, scope: EdgeCredentialScope, scopeId: string, input: NewEdgeCredential, by: ChangeBy): Promise<EdgeCredential> {
+export async function addEdgeCredential(
+  ds: DataSource,
+  dir: EdgeDirectory,
+  scope: EdgeCredentialScope,
+  scopeId: string,
+  input: NewEdgeCredential,
+  by: ChangeBy,
+): Promise<EdgeCredential> {
   await assertScope(ds, scope, scopeId);
   const value = normaliseValue(input);
   const who = by.principal?.kind === 'user' ? by.principal.username : null;
   const out = await ds.transaction(async (m) => {
-    if (await m.existsBy(EdgeCredentialRow, { scope, scopeId, kind: input.kind, value })) throw conflict(`This ${input.kind} is already registered on the ${scope}.`);
-    const row = m.create(EdgeCredentialRow, { id: randomUUID(), scope, scopeId, kind: input.kind, value, note: input.note ?? null, createdAt: new Date(), createdBy: who });
+    if (await m.existsBy(EdgeCredentialRow, { scope, scopeId, kind: input.kind, value }))
+      throw conflict(`This ${input.kind} is already registered on the ${scope}.`);
+    const row = m.create(EdgeCredentialRow, {
+      id: randomUUID(),
+      scope,
+      scopeId,
+      kind: input.kind,
+      value,
+      note: input.note ?? null,
+      createdAt: new Date(),
+      createdBy: who,
+    });
     await m.insert(EdgeCredentialRow, row);
-    await recordAudit(m, { principal: by.principal, action: 'edge-credential.add', entityType: scope, entityId: scopeId, after: { kind: input.kind, value, note: input.note ?? null }, requestId: by.requestId });
+    await recordAudit(m, {
+      principal: by.principal,
+      action: 'edge-credential.add',
+      entityType: scope,
+      entityId: scopeId,
+      after: { kind: input.kind, value, note: input.note ?? null },
+      requestId: by.requestId,
+    });
     return toCredential(row);
   });
   dir.forget();
   return out;
 }
 
-export async function removeEdgeCredential(ds: DataSource, dir: EdgeDirectory, scope: EdgeCredentialScope, scopeId: string, credentialId: string, by: ChangeBy): Promise<void> {
+export async function removeEdgeCredential(
+  ds: DataSource,
+  dir: EdgeDirectory,
+  scope: EdgeCredentialScope,
+  scopeId: string,
+  credentialId: string,
+  by: ChangeBy,
+): Promise<void> {
   await ds.transaction(async (m) => {
     const row = await m.findOneBy(EdgeCredentialRow, { id: credentialId, scope, scopeId });
     if (!row) throw notFound(`Credential ${credentialId} on ${scope} ${scopeId}`);
     await m.delete(EdgeCredentialRow, { id: credentialId });
-    await recordAudit(m, { principal: by.principal, action: 'edge-credential.remove', entityType: scope, entityId: scopeId, before: { kind: row.kind, value: row.value, note: row.note }, requestId: by.requestId });
+    await recordAudit(m, {
+      principal: by.principal,
+      action: 'edge-credential.remove',
+      entityType: scope,
+      entityId: scopeId,
+      before: { kind: row.kind, value: row.value, note: row.note },
+      requestId: by.requestId,
+    });
   });
   dir.forget();
 }

@@ -39,8 +39,18 @@ export async function recordInbound(ds: DataSource | QueryRunner, r: InboundReco
   const sql = `INSERT INTO inbound_message (received_at, transport, outcome, reason, monitor_id, monitor_identifier, batch_id, size_bytes, raw, sender, source_address, stranger)
      VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`;
   const params = [
-    r.receivedAt, r.transport, r.outcome, r.reason?.slice(0, 60_000) ?? null, r.monitorId ?? null, r.monitorIdentifier?.slice(0, 64) ?? null, r.batchId?.slice(0, 128) ?? null, r.sizeBytes ?? r.raw.length, r.raw,
-    r.sender?.slice(0, 255) ?? null, r.sourceAddress?.slice(0, 64) ?? null, r.stranger ? 1 : 0,
+    r.receivedAt,
+    r.transport,
+    r.outcome,
+    r.reason?.slice(0, 60_000) ?? null,
+    r.monitorId ?? null,
+    r.monitorIdentifier?.slice(0, 64) ?? null,
+    r.batchId?.slice(0, 128) ?? null,
+    r.sizeBytes ?? r.raw.length,
+    r.raw,
+    r.sender?.slice(0, 255) ?? null,
+    r.sourceAddress?.slice(0, 64) ?? null,
+    r.stranger ? 1 : 0,
   ];
   let res: { insertId: number | string };
   if (r.raw.length > 65_536 && 'createQueryRunner' in ds) {
@@ -73,7 +83,8 @@ function contentHash(batch: ReceivedBatch, channels: MappedChannel[]): string {
  * halves what ingest sends to MariaDB and skips the string escaping (profiled hot spot).
  */
 function exec<T = unknown>(qr: QueryRunner, sql: string, params: unknown[]): Promise<T> {
-  const conn = (qr as unknown as { databaseConnection?: { execute?: (sql: string, params: unknown[], cb: (err: Error | null, result: T) => void) => void } }).databaseConnection;
+  const conn = (qr as unknown as { databaseConnection?: { execute?: (sql: string, params: unknown[], cb: (err: Error | null, result: T) => void) => void } })
+    .databaseConnection;
   if (!conn?.execute) return qr.query(sql, params) as Promise<T>;
   return new Promise<T>((resolve, reject) => conn.execute!(sql, params, (err, result) => (err ? reject(err) : resolve(result))));
 }
@@ -103,7 +114,8 @@ export function groupCommitterFor(ds: DataSource): GroupCommitter {
       windowMs: 2,
       maxGroup: 32,
       alone: storeBatchAlone,
-      inTransaction: (qr, req, settings) => storeInTransaction(qr, req, contentHash(req.batch, req.channels), `${req.monitor.id}|${req.batch.batchId}`, settings),
+      inTransaction: (qr, req, settings) =>
+        storeInTransaction(qr, req, contentHash(req.batch, req.channels), `${req.monitor.id}|${req.batch.batchId}`, settings),
     });
     committers.set(ds, g);
   }
@@ -137,7 +149,10 @@ export async function storeBatchAlone(ds: DataSource, req: StoreRequest, setting
 async function storeInTransaction(qr: QueryRunner, req: StoreRequest, hash: string, batchKey: string, settings: StreamSettings): Promise<StoredBatch> {
   const { batch, channels, monitor } = req;
   if (!channels.length) return storeWithoutWaveforms(qr, req, hash, batchKey);
-  const rows = (await exec(qr, 'SELECT received_until, next_window_start FROM monitor WHERE id = ? FOR UPDATE', [monitor.id])) as { received_until: Date | null; next_window_start: Date | null }[];
+  const rows = (await exec(qr, 'SELECT received_until, next_window_start FROM monitor WHERE id = ? FOR UPDATE', [monitor.id])) as {
+    received_until: Date | null;
+    next_window_start: Date | null;
+  }[];
   const prevEnd = ms(rows[0]?.received_until ?? null);
   let next = ms(rows[0]?.next_window_start ?? null);
   const startMs = batch.startTime.getTime();
@@ -166,7 +181,8 @@ async function storeInTransaction(qr: QueryRunner, req: StoreRequest, hash: stri
   const contextJson = batch.context ? JSON.stringify(batch.context) : null;
   let messageId: string;
   if (req.reprocessOf) {
-    await exec(qr,
+    await exec(
+      qr,
       `UPDATE inbound_message SET outcome = 'reprocessed', reason = NULL, monitor_id = ?, batch_id = ?, batch_key = ?, content_hash = ?, batch_start = ?, context = ?,
        continuity = ?, continuity_ms = ?, handled_at = ?, handled_by = ? WHERE id = ?`,
       [monitor.id, batch.batchId, batchKey, hash, batch.startTime, contextJson, continuity, continuityMs, new Date(), req.handledBy ?? null, req.reprocessOf],
@@ -174,11 +190,29 @@ async function storeInTransaction(qr: QueryRunner, req: StoreRequest, hash: stri
     messageId = req.reprocessOf;
   } else {
     const rawKept = compressRawBody(req.raw);
-    const res = (await exec(qr,
+    const res = (await exec(
+      qr,
       `INSERT INTO inbound_message (received_at, transport, outcome, monitor_id, monitor_identifier, batch_id, batch_key, content_hash, size_bytes, raw, raw_encoding, batch_start, context, continuity, continuity_ms, sender, source_address)
        VALUES (?, ?, 'accepted', ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
       // The samples are stored decoded below, so the raw body is kept compressed (ingest/raw-body.ts).
-      [req.receivedAt, req.transport, monitor.id, monitor.identifier, batch.batchId, batchKey, hash, req.raw.length, rawKept.bytes, rawKept.encoding, batch.startTime, contextJson, continuity, continuityMs, req.sender ?? null, req.sourceAddress ?? null],
+      [
+        req.receivedAt,
+        req.transport,
+        monitor.id,
+        monitor.identifier,
+        batch.batchId,
+        batchKey,
+        hash,
+        req.raw.length,
+        rawKept.bytes,
+        rawKept.encoding,
+        batch.startTime,
+        contextJson,
+        continuity,
+        continuityMs,
+        req.sender ?? null,
+        req.sourceAddress ?? null,
+      ],
     )) as { insertId: number | string };
     messageId = String(res.insertId);
   }
@@ -186,9 +220,23 @@ async function storeInTransaction(qr: QueryRunner, req: StoreRequest, hash: stri
   const values: unknown[] = [];
   for (const c of channels) {
     // Stored compacted (delta coding + DEFLATE, bit-exact; shared/codec); readers decode through storedSamplesToFloat32.
-    values.push(monitor.id, messageId, c.code, c.role, c.unit, c.sampleRate, batch.startTime, new Date(startMs + (c.sampleCount / c.sampleRate) * 1000), c.sampleCount, c.gain, c.offset, encodeSegment(c.samples));
+    values.push(
+      monitor.id,
+      messageId,
+      c.code,
+      c.role,
+      c.unit,
+      c.sampleRate,
+      batch.startTime,
+      new Date(startMs + (c.sampleCount / c.sampleRate) * 1000),
+      c.sampleCount,
+      c.gain,
+      c.offset,
+      encodeSegment(c.samples),
+    );
   }
-  await exec(qr,
+  await exec(
+    qr,
     `INSERT INTO waveform_segment (monitor_id, inbound_message_id, channel_code, role, unit, sample_rate, start_time, end_time, sample_count, gain, value_offset, samples)
      VALUES ${channels.map(() => '(?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)').join(', ')}`,
     values,
@@ -197,7 +245,8 @@ async function storeInTransaction(qr: QueryRunner, req: StoreRequest, hash: stri
     const now = new Date();
     const w: unknown[] = [];
     for (const s of starts) w.push(monitor.id, new Date(s), new Date(s + windowMs), ENGINE_VERSION, now);
-    await exec(qr,
+    await exec(
+      qr,
       `INSERT IGNORE INTO analysis_window (monitor_id, window_start, window_end, engine_version, status, attempts, created_at)
        VALUES ${starts.map(() => "(?, ?, ?, ?, 'due', 0, ?)").join(', ')}`,
       w,
@@ -230,7 +279,8 @@ class ConflictingStream extends Error {
  * second stream claiming the same monitor: it is refused and kept as `conflicting`, never merged.
  */
 async function refuseSecondStream(qr: QueryRunner, req: StoreRequest, overlapMs: number): Promise<void> {
-  const [last] = (await exec(qr,
+  const [last] = (await exec(
+    qr,
     "SELECT id, sender FROM inbound_message WHERE monitor_identifier = ? AND outcome IN ('accepted', 'reprocessed') AND batch_start IS NOT NULL ORDER BY received_at DESC, id DESC LIMIT 1",
     [req.monitor.identifier],
   )) as { id: string; sender: string | null }[];
@@ -244,26 +294,58 @@ async function refuseSecondStream(qr: QueryRunner, req: StoreRequest, overlapMs:
 
 async function keepConflicting(qr: QueryRunner, req: StoreRequest, err: ConflictingStream): Promise<never> {
   if (req.reprocessOf) {
-    await qr.query("UPDATE inbound_message SET outcome = 'conflicting', reason = ?, handled_at = ?, handled_by = ? WHERE id = ?", [err.reason, new Date(), req.handledBy ?? null, req.reprocessOf]);
+    await qr.query("UPDATE inbound_message SET outcome = 'conflicting', reason = ?, handled_at = ?, handled_by = ? WHERE id = ?", [
+      err.reason,
+      new Date(),
+      req.handledBy ?? null,
+      req.reprocessOf,
+    ]);
   } else {
-    await recordInbound(qr, { transport: req.transport, receivedAt: req.receivedAt, outcome: 'conflicting', reason: err.reason, raw: req.raw, monitorId: req.monitor.id, monitorIdentifier: req.monitor.identifier, batchId: req.batch.batchId, sender: req.sender, sourceAddress: req.sourceAddress });
+    await recordInbound(qr, {
+      transport: req.transport,
+      receivedAt: req.receivedAt,
+      outcome: 'conflicting',
+      reason: err.reason,
+      raw: req.raw,
+      monitorId: req.monitor.id,
+      monitorIdentifier: req.monitor.identifier,
+      batchId: req.batch.batchId,
+      sender: req.sender,
+      sourceAddress: req.sourceAddress,
+    });
   }
-  throw new IngestRefusal('conflicting', err.reason, [{ path: 'startTime', message: `overlaps data from another sender (inbound message ${err.otherMessageId})` }]);
+  throw new IngestRefusal('conflicting', err.reason, [
+    { path: 'startTime', message: `overlaps data from another sender (inbound message ${err.otherMessageId})` },
+  ]);
 }
 
 /** A message with numerics only (no waveform rows): kept and made idempotent, nothing to analyse. */
 async function storeWithoutWaveforms(qr: QueryRunner, req: StoreRequest, hash: string, batchKey: string): Promise<StoredBatch> {
   const reason = 'No waveform rows; the numerics are kept in the raw message.';
   if (req.reprocessOf) {
-    await qr.query("UPDATE inbound_message SET outcome = 'reprocessed', reason = ?, monitor_id = ?, batch_id = ?, batch_key = ?, content_hash = ?, handled_at = ?, handled_by = ? WHERE id = ?", [
-      reason, req.monitor.id, req.batch.batchId, batchKey, hash, new Date(), req.handledBy ?? null, req.reprocessOf,
-    ]);
+    await qr.query(
+      "UPDATE inbound_message SET outcome = 'reprocessed', reason = ?, monitor_id = ?, batch_id = ?, batch_key = ?, content_hash = ?, handled_at = ?, handled_by = ? WHERE id = ?",
+      [reason, req.monitor.id, req.batch.batchId, batchKey, hash, new Date(), req.handledBy ?? null, req.reprocessOf],
+    );
     return { outcome: 'accepted', inboundMessageId: req.reprocessOf, continuity: null, continuityMs: null, windowsPlanned: 0 };
   }
   const res = (await qr.query(
     `INSERT INTO inbound_message (received_at, transport, outcome, reason, monitor_id, monitor_identifier, batch_id, batch_key, content_hash, size_bytes, raw, sender, source_address)
      VALUES (?, ?, 'accepted', ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
-    [req.receivedAt, req.transport, reason, req.monitor.id, req.monitor.identifier, req.batch.batchId, batchKey, hash, req.raw.length, req.raw, req.sender ?? null, req.sourceAddress ?? null],
+    [
+      req.receivedAt,
+      req.transport,
+      reason,
+      req.monitor.id,
+      req.monitor.identifier,
+      req.batch.batchId,
+      batchKey,
+      hash,
+      req.raw.length,
+      req.raw,
+      req.sender ?? null,
+      req.sourceAddress ?? null,
+    ],
   )) as { insertId: number | string };
   await qr.query('UPDATE monitor SET last_seen_at = ? WHERE id = ?', [req.receivedAt, req.monitor.id]);
   return { outcome: 'accepted', inboundMessageId: String(res.insertId), continuity: null, continuityMs: null, windowsPlanned: 0 };
@@ -284,9 +366,26 @@ async function settleRepeat(qr: QueryRunner, req: StoreRequest, hash: string, ba
     ? `Repeat of inbound message ${orig.id} (same batch id and content); nothing stored again.`
     : `Batch id ${req.batch.batchId} was stored before (inbound message ${orig.id}) with other content.`;
   if (req.reprocessOf) {
-    await qr.query('UPDATE inbound_message SET outcome = ?, reason = ?, handled_at = ?, handled_by = ? WHERE id = ?', [outcome, reason, new Date(), req.handledBy ?? null, req.reprocessOf]);
+    await qr.query('UPDATE inbound_message SET outcome = ?, reason = ?, handled_at = ?, handled_by = ? WHERE id = ?', [
+      outcome,
+      reason,
+      new Date(),
+      req.handledBy ?? null,
+      req.reprocessOf,
+    ]);
   } else {
-    await recordInbound(qr, { transport: req.transport, receivedAt: req.receivedAt, outcome, reason, raw: req.raw, monitorId: req.monitor.id, monitorIdentifier: req.monitor.identifier, batchId: req.batch.batchId, sender: req.sender, sourceAddress: req.sourceAddress });
+    await recordInbound(qr, {
+      transport: req.transport,
+      receivedAt: req.receivedAt,
+      outcome,
+      reason,
+      raw: req.raw,
+      monitorId: req.monitor.id,
+      monitorIdentifier: req.monitor.identifier,
+      batchId: req.batch.batchId,
+      sender: req.sender,
+      sourceAddress: req.sourceAddress,
+    });
   }
   if (!same) throw new IngestRefusal('conflict', reason, [{ path: 'batchId', message: 'already used for other content' }]);
   return { outcome: 'duplicate', inboundMessageId: String(orig.id), continuity: orig.continuity, continuityMs: orig.continuity_ms, windowsPlanned: 0 };

@@ -1,5 +1,14 @@
 import { Router } from 'express';
-import { discardInboundSchema, idParam, inboundMessageDetailSchema, inboundMessageSchema, inboundQuerySchema, pageOf, reprocessResultSchema, type Transport } from '@ebbgate/shared';
+import {
+  discardInboundSchema,
+  idParam,
+  inboundMessageDetailSchema,
+  inboundMessageSchema,
+  inboundQuerySchema,
+  pageOf,
+  reprocessResultSchema,
+  type Transport,
+} from '@ebbgate/shared';
 import type { AppContext } from '../app-context';
 import { defineRoute } from '../http/route';
 import type { ReceivedBatch } from './decoded-batch';
@@ -7,7 +16,11 @@ import { discardInbound, getInbound, listInbound, reprocessInbound } from './inb
 import type { IngestService } from './ingest.service';
 
 /** The inbound log and its quarantine (outcome = quarantined). */
-export function inboundRouter(ctx: AppContext, service: IngestService, decoders: Record<Transport, (raw: Buffer) => ReceivedBatch | Promise<ReceivedBatch>>): Router {
+export function inboundRouter(
+  ctx: AppContext,
+  service: IngestService,
+  decoders: Record<Transport, (raw: Buffer) => ReceivedBatch | Promise<ReceivedBatch>>,
+): Router {
   const router = Router();
   const tag = 'ingest';
   defineRoute(router, {

@@ -37,7 +37,21 @@ export async function listInbound(ds: DataSource, q: InboundQuery): Promise<Page
   const qb = ds
     .getRepository(InboundMessageRow)
     .createQueryBuilder('m')
-    .select(['m.id', 'm.receivedAt', 'm.transport', 'm.outcome', 'm.reason', 'm.monitorIdentifier', 'm.batchId', 'm.sizeBytes', 'm.continuity', 'm.continuityMs', 'm.sender', 'm.sourceAddress', 'm.stranger']);
+    .select([
+      'm.id',
+      'm.receivedAt',
+      'm.transport',
+      'm.outcome',
+      'm.reason',
+      'm.monitorIdentifier',
+      'm.batchId',
+      'm.sizeBytes',
+      'm.continuity',
+      'm.continuityMs',
+      'm.sender',
+      'm.sourceAddress',
+      'm.stranger',
+    ]);
   if (q.transport) qb.andWhere('m.transport = :transport', { transport: q.transport });
   if (q.outcome) qb.andWhere('m.outcome = :outcome', { outcome: q.outcome });
   if (q.monitor) qb.andWhere('(m.monitor_identifier = :monitor OR m.monitor_id = :monitor)', { monitor: q.monitor });
@@ -46,7 +60,10 @@ export async function listInbound(ds: DataSource, q: InboundQuery): Promise<Page
   const col = sortColumn(SORTABLE, q.sort, 'received_at');
   const dir = q.order === 'asc' ? 'ASC' : 'DESC';
   qb.orderBy(`m.${col}`, dir).addOrderBy('m.id', dir);
-  const [rows, total] = await qb.skip((q.page - 1) * q.pageSize).take(q.pageSize).getManyAndCount();
+  const [rows, total] = await qb
+    .skip((q.page - 1) * q.pageSize)
+    .take(q.pageSize)
+    .getManyAndCount();
   return { items: rows.map(toInboundMessage), page: q.page, pageSize: q.pageSize, total };
 }
 
@@ -54,7 +71,13 @@ export async function getInbound(ds: DataSource, id: string, readBy: ChangeBy): 
   const r = await ds.getRepository(InboundMessageRow).findOneBy({ id });
   if (!r) throw notFound(`Inbound message ${id}`);
   // Patient data: every read of a raw inbound message is audited.
-  await recordAudit(ds.manager, { principal: readBy.principal, action: 'inbound.read-raw', entityType: 'inbound-message', entityId: id, requestId: readBy.requestId });
+  await recordAudit(ds.manager, {
+    principal: readBy.principal,
+    action: 'inbound.read-raw',
+    entityType: 'inbound-message',
+    entityId: id,
+    requestId: readBy.requestId,
+  });
   return {
     ...toInboundMessage(r),
     raw: rawBodyOf(r).subarray(0, RAW_SHOWN).toString('utf8'),
@@ -84,17 +107,30 @@ export async function reprocessInbound(
   let result: 'reprocessed' | 'duplicate' | 'quarantined' | 'conflicting';
   let reason: string | null = null;
   try {
-    const out = await service.reprocess(id, row.transport, rawBodyOf(row), decoders[row.transport], who(by.principal), { sender: row.sender, sourceAddress: row.sourceAddress, monitorId: row.monitorId });
+    const out = await service.reprocess(id, row.transport, rawBodyOf(row), decoders[row.transport], who(by.principal), {
+      sender: row.sender,
+      sourceAddress: row.sourceAddress,
+      monitorId: row.monitorId,
+    });
     result = out.stored!.outcome === 'accepted' ? 'reprocessed' : 'duplicate';
   } catch (err) {
     if (!(err instanceof IngestRefusal)) throw err;
     result = err.kind === 'conflict' ? 'duplicate' : err.kind === 'conflicting' ? 'conflicting' : 'quarantined';
     reason = err.describe();
-    if (err.kind !== 'conflict' && err.kind !== 'conflicting') await ds.query('UPDATE inbound_message SET reason = ? WHERE id = ?', [reason.slice(0, 60_000), id]);
+    if (err.kind !== 'conflict' && err.kind !== 'conflicting')
+      await ds.query('UPDATE inbound_message SET reason = ? WHERE id = ?', [reason.slice(0, 60_000), id]);
   }
   const after = (await ds.getRepository(InboundMessageRow).findOneByOrFail({ id })) as InboundMessageRow;
   await ds.transaction((m) =>
-    recordAudit(m, { principal: by.principal, action: 'inbound.reprocess', entityType: 'inbound-message', entityId: id, before: { outcome: row.outcome, reason: row.reason }, after: { outcome: after.outcome, reason: after.reason }, requestId: by.requestId }),
+    recordAudit(m, {
+      principal: by.principal,
+      action: 'inbound.reprocess',
+      entityType: 'inbound-message',
+      entityId: id,
+      before: { outcome: row.outcome, reason: row.reason },
+      after: { outcome: after.outcome, reason: after.reason },
+      requestId: by.requestId,
+    }),
   );
   return { message: toInboundMessage(after), result: after.outcome === 'rejected' ? ('rejected' as const) : result, reason: reason ?? after.reason };
 }
@@ -105,9 +141,21 @@ export async function discardInbound(ds: DataSource, id: string, reason: string,
     if (!row) throw notFound(`Inbound message ${id}`);
     if (row.outcome !== 'quarantined') throw conflict(`Inbound message ${id} is ${row.outcome}; only quarantined messages can be discarded.`);
     const before = { outcome: row.outcome, reason: row.reason };
-    await m.update(InboundMessageRow, { id }, { outcome: 'discarded', reason: `Discarded: ${reason} (was: ${row.reason ?? ''})`.slice(0, 60_000), handledAt: new Date(), handledBy: who(by.principal) });
+    await m.update(
+      InboundMessageRow,
+      { id },
+      { outcome: 'discarded', reason: `Discarded: ${reason} (was: ${row.reason ?? ''})`.slice(0, 60_000), handledAt: new Date(), handledBy: who(by.principal) },
+    );
     const after = (await m.findOneByOrFail(InboundMessageRow, { id })) as InboundMessageRow;
-    await recordAudit(m, { principal: by.principal, action: 'inbound.discard', entityType: 'inbound-message', entityId: id, before, after: { outcome: after.outcome, reason }, requestId: by.requestId });
+    await recordAudit(m, {
+      principal: by.principal,
+      action: 'inbound.discard',
+      entityType: 'inbound-message',
+      entityId: id,
+      before,
+      after: { outcome: after.outcome, reason },
+      requestId: by.requestId,
+    });
     return toInboundMessage(after);
   });
 }

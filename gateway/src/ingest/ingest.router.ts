@@ -50,7 +50,9 @@ export function toReceipt(outcome: IngestOutcome): IngestReceipt {
 
 /** The gateway's own trouble while ingesting (storage away): 503 with Retry-After, never a fault of the batch. */
 function unavailable(retryAfterSeconds: number): HttpProblem {
-  return new HttpProblem(503, 'Service unavailable', 'The gateway cannot store batches right now; keep this batch and send it again.', { headers: { 'Retry-After': String(retryAfterSeconds) } });
+  return new HttpProblem(503, 'Service unavailable', 'The gateway cannot store batches right now; keep this batch and send it again.', {
+    headers: { 'Retry-After': String(retryAfterSeconds) },
+  });
 }
 
 /**
@@ -117,7 +119,11 @@ function keepRefusedCallers(ctx: AppContext, service: IngestService): RequestHan
       : req.principal
         ? 'Sent by a signed-in person, not a monitor API key. Not processed.'
         : 'No monitor API key (Authorization: Bearer). Not processed.';
-    const answer = failure ?? (req.principal ? new HttpProblem(403, 'Forbidden', 'Your roles do not allow this: only a monitor API key may send batches.') : new HttpProblem(401, 'Not signed in', 'Send the monitor API key (Authorization: Bearer).'));
+    const answer =
+      failure ??
+      (req.principal
+        ? new HttpProblem(403, 'Forbidden', 'Your roles do not allow this: only a monitor API key may send batches.')
+        : new HttpProblem(401, 'Not signed in', 'Send the monitor API key (Authorization: Bearer).'));
     const keep = ctx.config.ingest.strangers.keepBytes;
     const chunks: Buffer[] = [];
     let kept = 0;
@@ -132,7 +138,14 @@ function keepRefusedCallers(ctx: AppContext, service: IngestService): RequestHan
       const declared = Number(req.headers['content-length']);
       res.setHeader('Connection', 'close');
       service
-        .keepStranger({ transport: 'http', receivedAt: new Date(), reason, raw: Buffer.concat(chunks, kept), sizeBytes: Number.isFinite(declared) && declared > seen ? declared : seen, sourceAddress: plainAddress(req.ip) })
+        .keepStranger({
+          transport: 'http',
+          receivedAt: new Date(),
+          reason,
+          raw: Buffer.concat(chunks, kept),
+          sizeBytes: Number.isFinite(declared) && declared > seen ? declared : seen,
+          sourceAddress: plainAddress(req.ip),
+        })
         .then(
           () => next(answer),
           (recordErr: unknown) => {
@@ -185,7 +198,9 @@ export function ingestRouter(ctx: AppContext, service: IngestService): Router {
           receivedAt: new Date(),
           decode: decodeJsonBatch,
           authenticatedMonitor: device ? { id: device.monitorId, identifier: device.monitorIdentifier } : undefined,
-          sender: device ? { kind: 'api-key', monitorId: device.monitorId, monitorIdentifier: device.monitorIdentifier, address: plainAddress(req.ip) } : undefined,
+          sender: device
+            ? { kind: 'api-key', monitorId: device.monitorId, monitorIdentifier: device.monitorIdentifier, address: plainAddress(req.ip) }
+            : undefined,
         });
       } catch (err) {
         ctx.logger.error({ err: (err as Error).name, code: (err as { code?: string }).code }, 'batch could not be stored; answered 503');

@@ -78,21 +78,35 @@ export class IngestService {
       }
       batch = await req.decode(req.raw);
       if (req.authenticatedMonitor && batch.monitorIdentifier !== req.authenticatedMonitor.identifier) {
-        throw new IngestRefusal('unmapped', `The batch names monitor ${batch.monitorIdentifier}, but the API key belongs to ${req.authenticatedMonitor.identifier}.`, [
-          { path: 'monitorId', message: 'does not match the API key' },
-        ]);
+        throw new IngestRefusal(
+          'unmapped',
+          `The batch names monitor ${batch.monitorIdentifier}, but the API key belongs to ${req.authenticatedMonitor.identifier}.`,
+          [{ path: 'monitorId', message: 'does not match the API key' }],
+        );
       }
       const monitor = await monitorForIngest(this.ctx.ds, batch.monitorIdentifier);
       await this.directory.checkCovers(req.sender, monitor, batch.monitorIdentifier);
       monitorId = monitor?.id ?? monitorId;
       if (monitor && (await this.monitorBacklog.current(monitor.id)) > ingest.monitorBacklogLimit) {
         this.counters.inc('monitor-backlog');
-        throw new IngestRefusal('backlog', `Monitor ${monitor.identifier} has over ${ingest.monitorBacklogLimit} analysis windows waiting; send this batch again later.`);
+        throw new IngestRefusal(
+          'backlog',
+          `Monitor ${monitor.identifier} has over ${ingest.monitorBacklogLimit} analysis windows waiting; send this batch again later.`,
+        );
       }
       const channels = mapChannels(batch, monitor, req.transport);
       const stored = await storeBatch(
         this.ctx.ds,
-        { transport: req.transport, receivedAt: req.receivedAt, raw: req.raw, monitor: monitor!, batch, channels, sender: senderLabel(req.sender), sourceAddress: req.sender?.address ?? null },
+        {
+          transport: req.transport,
+          receivedAt: req.receivedAt,
+          raw: req.raw,
+          monitor: monitor!,
+          batch,
+          channels,
+          sender: senderLabel(req.sender),
+          sourceAddress: req.sender?.address ?? null,
+        },
         await this.settings(),
       );
       return { stored: { ...stored, channels, batch }, inboundMessageId: stored.inboundMessageId };
@@ -100,7 +114,8 @@ export class IngestService {
       if (!(err instanceof IngestRefusal)) throw err;
       if (err.kind === 'conflict' || err.kind === 'conflicting') {
         if (err.kind === 'conflicting') this.counters.inc('conflicting-stream');
-        if (err.kind === 'conflicting') this.ctx.logger.warn({ monitor: batch?.monitorIdentifier, sender: senderLabel(req.sender) }, 'second stream for a monitor refused (conflicting)');
+        if (err.kind === 'conflicting')
+          this.ctx.logger.warn({ monitor: batch?.monitorIdentifier, sender: senderLabel(req.sender) }, 'second stream for a monitor refused (conflicting)');
         return { refusal: err, inboundMessageId: '' }; // already kept by storeBatch
       }
       const record: InboundRecord = {
@@ -154,18 +169,35 @@ export class IngestService {
     const channels = mapChannels(batch, monitor, transport);
     const stored = await storeBatch(
       this.ctx.ds,
-      { transport, receivedAt: new Date(), raw, monitor: monitor!, batch, channels, reprocessOf: messageId, handledBy, sender: original?.sender ?? null, sourceAddress: original?.sourceAddress ?? null },
+      {
+        transport,
+        receivedAt: new Date(),
+        raw,
+        monitor: monitor!,
+        batch,
+        channels,
+        reprocessOf: messageId,
+        handledBy,
+        sender: original?.sender ?? null,
+        sourceAddress: original?.sourceAddress ?? null,
+      },
       await this.settings(),
     );
     return { stored: { ...stored, channels, batch }, inboundMessageId: stored.inboundMessageId };
   }
 
-  private async checkReprocessIdentity(original: { sender: string | null; sourceAddress: string | null; monitorId: string | null } | undefined, monitor: Awaited<ReturnType<typeof monitorForIngest>>, identifier: string): Promise<void> {
+  private async checkReprocessIdentity(
+    original: { sender: string | null; sourceAddress: string | null; monitorId: string | null } | undefined,
+    monitor: Awaited<ReturnType<typeof monitorForIngest>>,
+    identifier: string,
+  ): Promise<void> {
     if (!original) return;
     const s = original.sender;
     if (s?.startsWith('api-key:')) {
       if (s.slice('api-key:'.length) !== identifier) {
-        throw new IngestRefusal('unauthorized', `The message came with the API key of monitor ${s.slice(8)}; it cannot be filed under monitor ${identifier}.`, [{ path: 'monitorId', message: 'not the monitor of the sending key' }]);
+        throw new IngestRefusal('unauthorized', `The message came with the API key of monitor ${s.slice(8)}; it cannot be filed under monitor ${identifier}.`, [
+          { path: 'monitorId', message: 'not the monitor of the sending key' },
+        ]);
       }
       return;
     }

@@ -38,10 +38,20 @@ export async function purgeExpired(ctx: AppContext, now = new Date()): Promise<P
   const { ingest } = ctx.config;
   const cutoff = before(now, ingest.retentionDays);
   const segments = await deleteInChunks(ctx, 'DELETE FROM waveform_segment WHERE start_time < ?', [cutoff]);
-  const inboundMessages = await deleteInChunks(ctx, "DELETE FROM inbound_message WHERE received_at < ? AND stranger = 0 AND outcome NOT IN ('quarantined', 'rejected', 'conflicting')", [cutoff]);
-  const rejected = await deleteInChunks(ctx, "DELETE FROM inbound_message WHERE received_at < ? AND stranger = 0 AND outcome IN ('rejected', 'conflicting')", [before(now, ingest.rejectedRetentionDays)]);
-  const quarantined = await deleteInChunks(ctx, "DELETE FROM inbound_message WHERE received_at < ? AND stranger = 0 AND outcome = 'quarantined'", [before(now, ingest.quarantineRetentionDays)]);
-  const strangers = await deleteInChunks(ctx, 'DELETE FROM inbound_message WHERE received_at < ? AND stranger = 1', [before(now, ingest.strangers.retentionDays)]);
+  const inboundMessages = await deleteInChunks(
+    ctx,
+    "DELETE FROM inbound_message WHERE received_at < ? AND stranger = 0 AND outcome NOT IN ('quarantined', 'rejected', 'conflicting')",
+    [cutoff],
+  );
+  const rejected = await deleteInChunks(ctx, "DELETE FROM inbound_message WHERE received_at < ? AND stranger = 0 AND outcome IN ('rejected', 'conflicting')", [
+    before(now, ingest.rejectedRetentionDays),
+  ]);
+  const quarantined = await deleteInChunks(ctx, "DELETE FROM inbound_message WHERE received_at < ? AND stranger = 0 AND outcome = 'quarantined'", [
+    before(now, ingest.quarantineRetentionDays),
+  ]);
+  const strangers = await deleteInChunks(ctx, 'DELETE FROM inbound_message WHERE received_at < ? AND stranger = 1', [
+    before(now, ingest.strangers.retentionDays),
+  ]);
   const windows = await deleteInChunks(ctx, "DELETE FROM analysis_window WHERE window_end < ? AND status <> 'due'", [cutoff]);
   return { segments, inboundMessages, windows, rejected, quarantined, strangers };
 }

@@ -18,7 +18,15 @@ export interface Mailer {
 export function createMailer(cfg: Config['mail']): Mailer {
   // The local catcher offers no usable STARTTLS (toolchain.md): plain SMTP on loopback only.
   const local = cfg.smtpHost === '127.0.0.1' || cfg.smtpHost === 'localhost';
-  const transport = nodemailer.createTransport({ host: cfg.smtpHost, port: cfg.smtpPort, secure: false, ignoreTLS: local, connectionTimeout: 5000, greetingTimeout: 5000, socketTimeout: 10_000 });
+  const transport = nodemailer.createTransport({
+    host: cfg.smtpHost,
+    port: cfg.smtpPort,
+    secure: false,
+    ignoreTLS: local,
+    connectionTimeout: 5000,
+    greetingTimeout: 5000,
+    socketTimeout: 10_000,
+  });
   return {
     async send(m) {
       await transport.sendMail({ from: cfg.from, to: m.to.join(', '), subject: m.subject, text: m.text, ...(m.messageId ? { messageId: m.messageId } : {}) });

@@ -49,7 +49,10 @@ export const OTHER_DEMO_PROFILES: MonitorProfileInput[] = [
     manufacturer: 'Corvane Instruments (invented)',
     model: 'Stretcherwatch (invented)',
     transports: ['http'],
-    channels: [ch('MDC_PRESS_BLD_ART_ABP', 'abp', 'arterial pressure'), { ...ch('CVN-PLETH', 'pleth', 'pleth, display-normalised'), builtInFiltering: 'display smoothing, 0.5–5 Hz' }],
+    channels: [
+      ch('MDC_PRESS_BLD_ART_ABP', 'abp', 'arterial pressure'),
+      { ...ch('CVN-PLETH', 'pleth', 'pleth, display-normalised'), builtInFiltering: 'display smoothing, 0.5–5 Hz' },
+    ],
     defaultProbeSite: 'finger',
     plethScaling: 'auto-scaled',
     notes: 'Pleth comes auto-scaled (no perfusion index); the adapter sends arterial pressure in mmHg.',
@@ -59,7 +62,11 @@ export const OTHER_DEMO_PROFILES: MonitorProfileInput[] = [
     manufacturer: 'Tessaly Medical (invented)',
     model: 'Quietdial (invented)',
     transports: ['mllp'],
-    channels: [ch('150036', 'abp', 'arterial pressure'), ch('150452', 'pleth', 'pleth'), { ...ch('TSL-PAW-COUNTS', 'paw', 'airway pressure in ADC counts'), gain: 0.02, offset: -10 }],
+    channels: [
+      ch('150036', 'abp', 'arterial pressure'),
+      ch('150452', 'pleth', 'pleth'),
+      { ...ch('TSL-PAW-COUNTS', 'paw', 'airway pressure in ADC counts'), gain: 0.02, offset: -10 },
+    ],
     defaultProbeSite: 'ear',
     plethScaling: 'raw',
     notes: 'Airway pressure arrives in ADC counts: physical cmH2O = 0.02 × counts − 10.',
@@ -107,7 +114,8 @@ export async function seedDemoDevices(ds: DataSource): Promise<SeededMonitor[]> 
   const beds = demoBeds();
   const slots: { bedId: string | null }[] = [];
   for (const b of beds) {
-    if (!(await ds.getRepository(BedRow).existsBy({ id: b.id }))) await createBed(ds, { id: b.id, name: b.name, unit: b.unit, locationIdentifier: b.locationIdentifier }, { principal: undefined });
+    if (!(await ds.getRepository(BedRow).existsBy({ id: b.id })))
+      await createBed(ds, { id: b.id, name: b.name, unit: b.unit, locationIdentifier: b.locationIdentifier }, { principal: undefined });
     slots.push({ bedId: b.id });
   }
   slots.push({ bedId: null }); // one monitor not yet placed in a bed
@@ -142,12 +150,18 @@ export async function upgradeDemoData(ds: DataSource): Promise<number> {
   let changed = 0;
   for (const [old, now] of Object.entries(RETIRED_PROFILE_NAMES)) {
     const model = [LARKSPUR_PROFILE, ...OTHER_DEMO_PROFILES].find((p) => p.name === now)!;
-    const r = (await ds.query('UPDATE monitor_profile SET name = ?, model = ?, manufacturer = ? WHERE name = ? AND NOT EXISTS (SELECT 1 FROM (SELECT id FROM monitor_profile WHERE name = ?) x)', [now, model.model, model.manufacturer, old, now])) as { affectedRows: number };
+    const r = (await ds.query(
+      'UPDATE monitor_profile SET name = ?, model = ?, manufacturer = ? WHERE name = ? AND NOT EXISTS (SELECT 1 FROM (SELECT id FROM monitor_profile WHERE name = ?) x)',
+      [now, model.model, model.manufacturer, old, now],
+    )) as { affectedRows: number };
     changed += r.affectedRows;
   }
   for (let n = 1; n <= 16; n++) {
     const old = `${RETIRED_MONITOR_PREFIX}${n.toString(16).toUpperCase().padStart(6, '0')}`;
-    const r = (await ds.query('UPDATE monitor SET identifier = ? WHERE identifier = ? AND NOT EXISTS (SELECT 1 FROM (SELECT id FROM monitor WHERE identifier = ?) x)', [demoMonitorIdentifier(n), old, demoMonitorIdentifier(n)])) as { affectedRows: number };
+    const r = (await ds.query(
+      'UPDATE monitor SET identifier = ? WHERE identifier = ? AND NOT EXISTS (SELECT 1 FROM (SELECT id FROM monitor WHERE identifier = ?) x)',
+      [demoMonitorIdentifier(n), old, demoMonitorIdentifier(n)],
+    )) as { affectedRows: number };
     changed += r.affectedRows;
   }
   return changed;

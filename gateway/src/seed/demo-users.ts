@@ -40,14 +40,33 @@ export async function seedDemoUsers(ds: DataSource, users = readDemoUsers()): Pr
   for (const u of users) {
     const existing = await ds.getRepository(UserRow).findOneBy({ username: u.username });
     if (existing) {
-      if (RETIRED_DISPLAY_NAMES[existing.displayName] === u.displayName) await ds.getRepository(UserRow).update({ id: existing.id }, { displayName: u.displayName });
+      if (RETIRED_DISPLAY_NAMES[existing.displayName] === u.displayName)
+        await ds.getRepository(UserRow).update({ id: existing.id }, { displayName: u.displayName });
       continue;
     }
     const now = new Date();
-    const row = { id: randomUUID(), username: u.username, displayName: u.displayName, passwordHash: await hashPassword(u.password), roles: u.roles, disabled: false, failedAttempts: 0, lockedUntil: null, lastSignInAt: null, passwordChangedAt: now, createdAt: now };
+    const row = {
+      id: randomUUID(),
+      username: u.username,
+      displayName: u.displayName,
+      passwordHash: await hashPassword(u.password),
+      roles: u.roles,
+      disabled: false,
+      failedAttempts: 0,
+      lockedUntil: null,
+      lastSignInAt: null,
+      passwordChangedAt: now,
+      createdAt: now,
+    };
     await ds.transaction(async (m) => {
       await m.insert(UserRow, row);
-      await recordAudit(m, { principal: undefined, action: 'user.create', entityType: 'user', entityId: row.id, after: { username: u.username, roles: u.roles, seeded: 'demo' } });
+      await recordAudit(m, {
+        principal: undefined,
+        action: 'user.create',
+        entityType: 'user',
+        entityId: row.id,
+        after: { username: u.username, roles: u.roles, seeded: 'demo' },
+      });
     });
     created++;
   }

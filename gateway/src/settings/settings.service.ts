@@ -11,9 +11,17 @@ const SECTIONS: Section[] = ['analysis', 'delivery', 'alerts'];
 export function defaultSiteSettings(ctx: AppContext): SiteSettings {
   const { analysis, delivery } = ctx.config;
   return {
-    analysis: { cyclesToAverage: analysis.cyclesPerWindow ?? DEFAULT_SETTINGS.cyclesToAverage, windowSeconds: analysis.windowSeconds, bands: DEFAULT_SETTINGS.bands },
+    analysis: {
+      cyclesToAverage: analysis.cyclesPerWindow ?? DEFAULT_SETTINGS.cyclesToAverage,
+      windowSeconds: analysis.windowSeconds,
+      bands: DEFAULT_SETTINGS.bands,
+    },
     delivery: { observationStatus: delivery.observationStatus, notValidPolicy: delivery.notValidPolicy },
-    alerts: { recipients: delivery.alerts.recipients, destinationDownMinutes: delivery.alerts.destinationDownMinutes, failureThreshold: delivery.alerts.failureThreshold },
+    alerts: {
+      recipients: delivery.alerts.recipients,
+      destinationDownMinutes: delivery.alerts.destinationDownMinutes,
+      failureThreshold: delivery.alerts.failureThreshold,
+    },
   };
 }
 
@@ -44,8 +52,21 @@ export async function putSiteSettings(ctx: AppContext, next: SiteSettings, by: C
   await ctx.ds.transaction(async (m) => {
     for (const section of SECTIONS) {
       if (JSON.stringify(before[section]) === JSON.stringify(next[section])) continue;
-      await m.save(SiteSettingRow, { section, value: next[section], updatedAt: new Date(), updatedBy: by.principal?.kind === 'user' ? by.principal.username : null });
-      await recordAudit(m, { principal: by.principal, action: 'settings.update', entityType: 'settings', entityId: section, before: before[section], after: next[section], requestId: by.requestId });
+      await m.save(SiteSettingRow, {
+        section,
+        value: next[section],
+        updatedAt: new Date(),
+        updatedBy: by.principal?.kind === 'user' ? by.principal.username : null,
+      });
+      await recordAudit(m, {
+        principal: by.principal,
+        action: 'settings.update',
+        entityType: 'settings',
+        entityId: section,
+        before: before[section],
+        after: next[section],
+        requestId: by.requestId,
+      });
     }
   });
   cache.delete(ctx);

@@ -22,13 +22,21 @@ export function toUser(row: UserRow): User {
   };
 }
 
-const SORTABLE: Record<string, string> = { username: 'u.username', displayName: 'u.display_name', createdAt: 'u.created_at', lastSignInAt: 'u.last_sign_in_at' };
+const SORTABLE: Record<string, string> = {
+  username: 'u.username',
+  displayName: 'u.display_name',
+  createdAt: 'u.created_at',
+  lastSignInAt: 'u.last_sign_in_at',
+};
 
 export async function listUsers(ds: DataSource, q: PageQuery & { search?: string }): Promise<Page<User>> {
   const qb = ds.getRepository(UserRow).createQueryBuilder('u');
   if (q.search) qb.where('(u.username LIKE :s OR u.display_name LIKE :s)', { s: `%${q.search}%` });
   qb.orderBy(sortColumn(SORTABLE, q.sort, 'u.username'), q.order === 'desc' && q.sort ? 'DESC' : 'ASC');
-  const [rows, total] = await qb.skip((q.page - 1) * q.pageSize).take(q.pageSize).getManyAndCount();
+  const [rows, total] = await qb
+    .skip((q.page - 1) * q.pageSize)
+    .take(q.pageSize)
+    .getManyAndCount();
   return { items: rows.map(toUser), page: q.page, pageSize: q.pageSize, total };
 }
 

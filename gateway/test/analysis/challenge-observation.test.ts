@@ -11,8 +11,15 @@ const judge = (kind: 'responder' | 'too-short') => {
 };
 const build = (kind: 'responder' | 'too-short') =>
   buildChallengeObservation({
-    assessmentId: 'a9', stepAt: new Date('2026-12-01T10:00:30Z'), windowEnd: new Date('2026-12-01T10:01:30Z'), challenge: judge(kind),
-    context: { patientId: 'p1', encounterId: 'e1', locationId: 'l1' }, deviceId: 'd1', status: 'preliminary', issued: new Date('2026-12-01T10:01:31Z'), codes,
+    assessmentId: 'a9',
+    stepAt: new Date('2026-12-01T10:00:30Z'),
+    windowEnd: new Date('2026-12-01T10:01:30Z'),
+    challenge: judge(kind),
+    context: { patientId: 'p1', encounterId: 'e1', locationId: 'l1' },
+    deviceId: 'd1',
+    status: 'preliminary',
+    issued: new Date('2026-12-01T10:01:31Z'),
+    codes,
   });
 
 describe('tidal volume challenge Observation (FHIR R4, local code urn:ebbgate:codes)', () => {
@@ -23,7 +30,13 @@ describe('tidal volume challenge Observation (FHIR R4, local code urn:ebbgate:co
     expect(o.valueQuantity!.value).toBeGreaterThanOrEqual(3.5);
     expect(o.dataAbsentReason).toBeUndefined();
     expect(o.interpretation![0]!.coding![0]!.code).toBe('tvc-positive');
-    expect(o.component!.map((c) => c.code.coding![0]!.code)).toEqual(['tvc-baseline-ppv', 'tvc-challenge-ppv', 'tvc-threshold', 'tvc-tidal-volume-low', 'tvc-tidal-volume-high']);
+    expect(o.component!.map((c) => c.code.coding![0]!.code)).toEqual([
+      'tvc-baseline-ppv',
+      'tvc-challenge-ppv',
+      'tvc-threshold',
+      'tvc-tidal-volume-low',
+      'tvc-tidal-volume-high',
+    ]);
     expect(o.note![0]!.text).toMatch(/Myatra/);
     expect(o.identifier[0]!.value).toBe('a9-tidal-volume-challenge');
   });

@@ -27,7 +27,11 @@ async function send(apiKey: string, monitorId: string, w: SyntheticWindow, start
   for (let t = 0; t + 10 <= total; t += 10) {
     const slice = { ...w, channels: w.channels.map((c) => ({ ...c, samples: c.samples.slice(t * fs, (t + 10) * fs) })) };
     const body = toIngestBatch(slice, { monitorId, batchId: `${tag}-${t}`, startTime: new Date(startMs + t * 1000).toISOString(), context });
-    const res = await request(gw.server).post('/api/v1/ingest/batches').set('Authorization', `Bearer ${apiKey}`).set('Content-Type', 'application/json').send(JSON.stringify(body));
+    const res = await request(gw.server)
+      .post('/api/v1/ingest/batches')
+      .set('Authorization', `Bearer ${apiKey}`)
+      .set('Content-Type', 'application/json')
+      .send(JSON.stringify(body));
     expect(res.status).toBe(202);
   }
 }
@@ -44,7 +48,11 @@ describe('engine 2.0 in the gateway', () => {
     expect((await integrator.patch(`/api/v1/beds/${bed.body.id}`, { checklist: { openChest: 'yes' } })).status).toBe(400);
     expect((await integrator.patch(`/api/v1/monitors/${m.monitorId}`, { bedId: bed.body.id })).status).toBe(200);
     const admin = await gw.signIn('admin');
-    const audit = (await admin.get('/api/v1/audit?action=bed.update')).body.items as { entityId: string; before: { checklist: unknown }; after: { checklist: unknown } }[];
+    const audit = (await admin.get('/api/v1/audit?action=bed.update')).body.items as {
+      entityId: string;
+      before: { checklist: unknown };
+      after: { checklist: unknown };
+    }[];
     const mine = audit.find((a) => a.entityId === bed.body.id);
     expect(mine).toBeDefined();
     expect(mine!.before.checklist).toBeNull();
@@ -53,7 +61,10 @@ describe('engine 2.0 in the gateway', () => {
     const w = generateWindow({ seed: 3, durationSeconds: 30, heartRate: 85, respiratoryRate: 15, ppv: 12 });
     await send(m.apiKey, 'A2B1C2D3E4F51001', w, T0, { ventilationMode: 'controlled', tidalVolumeMl: 600, patientHeightCm: 175, patientSex: 'male' }, 'bed');
     await drain();
-    const [row] = (await gw.ctx.ds.query('SELECT verdict, result FROM assessment WHERE monitor_id = ?', [m.monitorId])) as { verdict: string; result: string }[];
+    const [row] = (await gw.ctx.ds.query('SELECT verdict, result FROM assessment WHERE monitor_id = ?', [m.monitorId])) as {
+      verdict: string;
+      result: string;
+    }[];
     expect(row).toBeDefined();
     const flag = (JSON.parse(row!.result) as { flags: { code: string; contextSource?: string }[] }).flags.find((f) => f.code === 'open-chest');
     expect(flag).toMatchObject({ code: 'open-chest', contextSource: 'bed' });
@@ -67,13 +78,22 @@ describe('engine 2.0 in the gateway', () => {
     await send(m.apiKey, 'A2B1C2D3E4F51002', { channels: low!.channels, truth: low!.truth }, T0, low!.context, 'tvc-low');
     await send(m.apiKey, 'A2B1C2D3E4F51002', { channels: high!.channels, truth: high!.truth }, T0 + 30_000, high!.context, 'tvc-high');
     await drain();
-    const rows = (await gw.ctx.ds.query('SELECT id, window_end, tidal_volume_challenge, challenge_delta_ppv, challenge_verdict, challenge_step_at FROM assessment WHERE monitor_id = ? AND tidal_volume_challenge IS NOT NULL', [m.monitorId])) as Record<string, unknown>[];
+    const rows = (await gw.ctx.ds.query(
+      'SELECT id, window_end, tidal_volume_challenge, challenge_delta_ppv, challenge_verdict, challenge_step_at FROM assessment WHERE monitor_id = ? AND tidal_volume_challenge IS NOT NULL',
+      [m.monitorId],
+    )) as Record<string, unknown>[];
     expect(rows).toHaveLength(1);
     const r = rows[0]!;
     expect((r.challenge_step_at as Date).getTime()).toBe(T0 + 30_000);
     expect((r.window_end as Date).getTime()).toBeGreaterThanOrEqual(T0 + 90_000);
     expect(r.challenge_verdict).toBe('positive');
-    const tvc = JSON.parse(r.tidal_volume_challenge as string) as { deltaPpv: number; baselinePpv: number; challengePpv: number; threshold: number; thresholdSource: string };
+    const tvc = JSON.parse(r.tidal_volume_challenge as string) as {
+      deltaPpv: number;
+      baselinePpv: number;
+      challengePpv: number;
+      threshold: number;
+      thresholdSource: string;
+    };
     expect(tvc.deltaPpv).toBeCloseTo(r.challenge_delta_ppv as number, 9);
     expect(Math.abs(tvc.baselinePpv - (g.truth.baselinePpv as number))).toBeLessThanOrEqual(1);
     expect(Math.abs(tvc.challengePpv - (g.truth.challengePpv as number))).toBeLessThanOrEqual(1);

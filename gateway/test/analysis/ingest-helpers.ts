@@ -14,8 +14,17 @@ export async function sendRecording(gw: TestGateway, apiKey: string, monitorId: 
   const statuses: number[] = [];
   for (let t = 0; t + batchSeconds <= total; t += batchSeconds) {
     const slice = { ...whole, channels: whole.channels.map((c) => ({ ...c, samples: c.samples.slice(t * fs, (t + batchSeconds) * fs) })) };
-    const body = toIngestBatch(slice, { monitorId, batchId: `rec-${startMs}-${t}`, startTime: new Date(startMs + t * 1000).toISOString(), context: { ventilationMode: 'controlled', tidalVolumeMl: 500, patientHeightCm: 175, patientSex: 'male' } });
-    const res = await request(gw.server).post('/api/v1/ingest/batches').set('Authorization', `Bearer ${apiKey}`).set('Content-Type', 'application/json').send(JSON.stringify(body));
+    const body = toIngestBatch(slice, {
+      monitorId,
+      batchId: `rec-${startMs}-${t}`,
+      startTime: new Date(startMs + t * 1000).toISOString(),
+      context: { ventilationMode: 'controlled', tidalVolumeMl: 500, patientHeightCm: 175, patientSex: 'male' },
+    });
+    const res = await request(gw.server)
+      .post('/api/v1/ingest/batches')
+      .set('Authorization', `Bearer ${apiKey}`)
+      .set('Content-Type', 'application/json')
+      .send(JSON.stringify(body));
     statuses.push(res.status);
   }
   return { whole, statuses };

@@ -17,21 +17,29 @@ afterAll(async () => gw?.stop());
 
 const window = generateWindow({ seed: 11, durationSeconds: 30, heartRate: 72, respiratoryRate: 12, ppv: 15, channels: ['abp', 'paw'] });
 /** A multipart request with the signed-in client's cookies and CSRF header. */
-const multipart = (who: SignedInClient) => request(gw.server).post('/api/v1/analysis/preview').set('Cookie', who.cookies.join('; ')).set('X-CSRF-Token', who.csrfToken);
+const multipart = (who: SignedInClient) =>
+  request(gw.server).post('/api/v1/analysis/preview').set('Cookie', who.cookies.join('; ')).set('X-CSRF-Token', who.csrfToken);
 const upload = (content: string | Buffer, filename: string, fields: Record<string, string> = {}) => {
   const t = multipart(integrator);
   for (const [k, v] of Object.entries(fields)) t.field(k, v);
   return t.attach('file', Buffer.from(content), filename);
 };
 const counts = async () => {
-  const [r] = await gw.ctx.ds.query('SELECT (SELECT COUNT(*) FROM inbound_message) AS i, (SELECT COUNT(*) FROM waveform_segment) AS s, (SELECT COUNT(*) FROM assessment) AS a');
+  const [r] = await gw.ctx.ds.query(
+    'SELECT (SELECT COUNT(*) FROM inbound_message) AS i, (SELECT COUNT(*) FROM waveform_segment) AS s, (SELECT COUNT(*) FROM assessment) AS a',
+  );
   return r;
 };
 
 describe('POST /analysis/preview (test bench)', () => {
   it('analyses a JSON batch through a profile and stores nothing', async () => {
     const before = await counts();
-    const batch = toIngestBatch(window, { monitorId: 'BENCH', batchId: 'b', startTime: '2026-11-30T11:00:00.000Z', context: { ventilationMode: 'controlled', tidalVolumeMl: 520 } });
+    const batch = toIngestBatch(window, {
+      monitorId: 'BENCH',
+      batchId: 'b',
+      startTime: '2026-11-30T11:00:00.000Z',
+      context: { ventilationMode: 'controlled', tidalVolumeMl: 520 },
+    });
     const res = await upload(JSON.stringify(batch), 'capture.json', { profileId });
     expect(res.status).toBe(200);
     expect(res.body.parseReport).toMatchObject({ format: 'json', profileId, warnings: [] });
@@ -54,7 +62,12 @@ describe('POST /analysis/preview (test bench)', () => {
     expect(csv.status).toBe(200);
     expect(csv.body.parseReport.format).toBe('csv');
     expect(csv.body.parseReport.channels.map((c: { role: string }) => c.role)).toEqual(['abp', 'paw']);
-    const hl7 = buildPcd01({ controlId: 'bench-1', equipment: 'AA', start: new Date('2026-11-30T11:00:00Z'), waves: [{ code: '150036', refId: 'MDC_PRESS_BLD_ART_ABP', sampleRate: 125, samples: window.channels[0]!.samples }] });
+    const hl7 = buildPcd01({
+      controlId: 'bench-1',
+      equipment: 'AA',
+      start: new Date('2026-11-30T11:00:00Z'),
+      waves: [{ code: '150036', refId: 'MDC_PRESS_BLD_ART_ABP', sampleRate: 125, samples: window.channels[0]!.samples }],
+    });
     const res = await upload(hl7, 'capture.hl7');
     expect(res.status).toBe(200);
     expect(res.body.parseReport).toMatchObject({ format: 'hl7', channels: [{ code: '150036', role: 'abp', unit: 'mmHg', sampleRate: 125, samples: 3750 }] });

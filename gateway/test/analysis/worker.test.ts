@@ -70,14 +70,19 @@ describe('analysis scheduling', () => {
     const direct = analyseWindow(input, { cyclesToAverage: 3 });
     expect(direct.indices.ppv.value).toBe(result.indices.ppv.value);
     expect(direct.verdict).toBe(mine[0]!.verdict);
-    const windows = await gw.ctx.ds.query("SELECT status, assessment_id FROM analysis_window WHERE monitor_id = ?", [m.monitorId]);
+    const windows = await gw.ctx.ds.query('SELECT status, assessment_id FROM analysis_window WHERE monitor_id = ?', [m.monitorId]);
     expect(windows.every((w: { status: string; assessment_id: string }) => w.status === 'done' && w.assessment_id)).toBe(true);
   });
 
   it('closes a window as failed with the reason when the engine cannot read it', async () => {
     const m = await registerMonitor(integrator, 'A0B1C2D3E4F50003');
     await sendRecording(gw, m.apiKey, 'A0B1C2D3E4F50003', T0, spec);
-    const broken: Engine = { version: DEFAULT_ENGINE.version, analyse: () => { throw new Error('unit "furlong" is not understood'); } };
+    const broken: Engine = {
+      version: DEFAULT_ENGINE.version,
+      analyse: () => {
+        throw new Error('unit "furlong" is not understood');
+      },
+    };
     await drain(broken);
     const rows = await gw.ctx.ds.query('SELECT status, last_error FROM analysis_window WHERE monitor_id = ?', [m.monitorId]);
     expect(rows.map((r: { status: string }) => r.status)).toEqual(['failed', 'failed']);
@@ -94,8 +99,15 @@ describe('analysis scheduling', () => {
     // A worker of the old version does not take the newer version's windows.
     expect((await drain()).length).toBe(0);
     await drain(newer);
-    const rows = await gw.ctx.ds.query('SELECT engine_version, window_start FROM assessment WHERE monitor_id = ? ORDER BY engine_version, window_start', [m.monitorId]);
-    expect(rows.map((r: { engine_version: string }) => r.engine_version)).toEqual([DEFAULT_ENGINE.version, DEFAULT_ENGINE.version, '99.0.0-test', '99.0.0-test']);
+    const rows = await gw.ctx.ds.query('SELECT engine_version, window_start FROM assessment WHERE monitor_id = ? ORDER BY engine_version, window_start', [
+      m.monitorId,
+    ]);
+    expect(rows.map((r: { engine_version: string }) => r.engine_version)).toEqual([
+      DEFAULT_ENGINE.version,
+      DEFAULT_ENGINE.version,
+      '99.0.0-test',
+      '99.0.0-test',
+    ]);
   });
 
   it('an integrator queues re-analysis with the running engine through the API; audited, reviewers refused', async () => {

@@ -24,8 +24,23 @@ beforeAll(async () => {
   monitorB = b.monitorId;
   await integrator.patch(`/api/v1/monitors/${monitorA}`, { bedId }).expect(200);
   // Monitor A: a clean regular rhythm; monitor B: an irregular rhythm (flagged by the engine).
-  await sendRecording(gw, a.apiKey, 'ABCDEF0000000001', T0, { seed: 21, durationSeconds: 40, heartRate: 80, respiratoryRate: 15, ppv: 13, channels: ['abp', 'paw'] });
-  await sendRecording(gw, b.apiKey, 'ABCDEF0000000002', T0, { seed: 22, durationSeconds: 40, heartRate: 95, respiratoryRate: 15, ppv: 13, channels: ['abp', 'paw'], disturbances: [{ kind: 'irregular-rhythm', variability: 0.3 }] });
+  await sendRecording(gw, a.apiKey, 'ABCDEF0000000001', T0, {
+    seed: 21,
+    durationSeconds: 40,
+    heartRate: 80,
+    respiratoryRate: 15,
+    ppv: 13,
+    channels: ['abp', 'paw'],
+  });
+  await sendRecording(gw, b.apiKey, 'ABCDEF0000000002', T0, {
+    seed: 22,
+    durationSeconds: 40,
+    heartRate: 95,
+    respiratoryRate: 15,
+    ppv: 13,
+    channels: ['abp', 'paw'],
+    disturbances: [{ kind: 'irregular-rhythm', variability: 0.3 }],
+  });
   for (let i = 0; i < 20 && (await analyseNextWindow(gw.ctx, DEFAULT_ENGINE, 'test')); i++);
 });
 afterAll(async () => gw?.stop());
@@ -100,7 +115,11 @@ describe('POST /assessments/:id/mark-in-error', () => {
     expect(res.body.enteredInError).toBe(true);
     expect(seen).toEqual([`${item.id}:arterial line was flushed`]);
     const detail = (await reviewer.get(`/api/v1/assessments/${item.id}`)).body.assessment;
-    expect(detail).toMatchObject({ enteredInError: true, enteredInErrorBy: gw.demoUser('reviewer').username, enteredInErrorReason: 'arterial line was flushed' });
+    expect(detail).toMatchObject({
+      enteredInError: true,
+      enteredInErrorBy: gw.demoUser('reviewer').username,
+      enteredInErrorReason: 'arterial line was flushed',
+    });
     expect((await reviewer.post(`/api/v1/assessments/${item.id}/mark-in-error`, { reason: 'again please' })).status).toBe(409);
     expect((await reviewer.post(`/api/v1/assessments/${item.id}/mark-in-error`, {})).status).toBe(400);
     const audit = (await (await gw.signIn('admin')).get('/api/v1/audit?action=assessment.mark-in-error')).body.items;

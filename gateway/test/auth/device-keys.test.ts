@@ -16,7 +16,10 @@ describe('device API keys', () => {
     const a = await issueDeviceKey(gw.ctx, monitor.id, undefined);
     const b = await issueDeviceKey(gw.ctx, monitor.id, undefined);
     expect(a.apiKey).not.toEqual(b.apiKey);
-    const rows = (await gw.ctx.ds.query('SELECT key_hash, monitor_id, revoked_at FROM device_key WHERE monitor_id = ?', [monitor.id])) as { key_hash: string; revoked_at: Date | null }[];
+    const rows = (await gw.ctx.ds.query('SELECT key_hash, monitor_id, revoked_at FROM device_key WHERE monitor_id = ?', [monitor.id])) as {
+      key_hash: string;
+      revoked_at: Date | null;
+    }[];
     expect(rows).toHaveLength(2);
     for (const r of rows) expect(a.apiKey).not.toContain(r.key_hash);
     // Issuing a new key revokes the earlier one.
@@ -31,7 +34,9 @@ describe('device API keys', () => {
     await revokeDeviceKeys(gw.ctx, monitor.id, undefined);
     const revoked = await request(gw.server).get('/api/v1/users').set('Authorization', `Bearer ${apiKey}`);
     expect(revoked.status).toBe(401);
-    const forged = await request(gw.server).get('/api/v1/users').set('Authorization', `Bearer ${apiKey.slice(0, -4)}AAAA`);
+    const forged = await request(gw.server)
+      .get('/api/v1/users')
+      .set('Authorization', `Bearer ${apiKey.slice(0, -4)}AAAA`);
     expect(forged.status).toBe(401);
   });
 

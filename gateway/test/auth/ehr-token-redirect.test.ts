@@ -39,7 +39,13 @@ describe('EHR token request', () => {
     for (const status of [307, 302, 308]) {
       const s = await listen(() => ({ status, headers: { location: urlOf(thief, '/token') } }));
       try {
-        const tokens = new TokenProvider({ fhirBaseUrl: 'http://127.0.0.1:9/fhir', tokenUrl: urlOf(s, '/oauth/token'), clientId: 'ebbgate-gateway', clientSecret: 'the-client-secret-1', requestTimeoutMs: 3000 });
+        const tokens = new TokenProvider({
+          fhirBaseUrl: 'http://127.0.0.1:9/fhir',
+          tokenUrl: urlOf(s, '/oauth/token'),
+          clientId: 'ebbgate-gateway',
+          clientSecret: 'the-client-secret-1',
+          requestTimeoutMs: 3000,
+        });
         const err = await tokens.get().then(
           () => null,
           (e: unknown) => e,

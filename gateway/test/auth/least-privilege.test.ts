@@ -44,7 +44,9 @@ describe('database least privilege', () => {
     // The rows it may touch otherwise are still protected by the append-only triggers.
     expect((await refused('DELETE FROM audit_entry')).sqlMessage).toMatch(/append-only/);
     expect((await refused("UPDATE audit_entry SET action = 'forged'")).sqlMessage).toMatch(/append-only/);
-    const triggers = (await gw.ctx.ds.query("SELECT trigger_name AS t FROM information_schema.triggers WHERE event_object_table = 'audit_entry'")) as { t: string }[];
+    const triggers = (await gw.ctx.ds.query("SELECT trigger_name AS t FROM information_schema.triggers WHERE event_object_table = 'audit_entry'")) as {
+      t: string;
+    }[];
     expect(triggers.map((t) => t.t).sort()).toEqual(['audit_entry_no_delete', 'audit_entry_no_update']);
     const after = Number(((await gw.ctx.ds.query('SELECT COUNT(*) AS n FROM audit_entry')) as { n: number }[])[0]!.n);
     expect(after).toBeGreaterThanOrEqual(before);
@@ -75,7 +77,17 @@ describe('a gateway started as a user that can change the schema', () => {
     const warningsFor = async (url: string) => {
       const lines: string[] = [];
       const logger = pino({ level: 'warn' }, new Writable({ write: (c, _e, cb) => (lines.push(String(c)), cb()) }));
-      const config = loadConfig({ NODE_ENV: 'test' }, { database: { url, poolSize: 2 }, gateway: { port: 0, consoleDir: '/nonexistent' }, auth: { jwtSecret: 'y'.repeat(32) }, log: { level: 'warn' }, mllp: { enabled: false, port: 0 }, workers: { enabled: false } });
+      const config = loadConfig(
+        { NODE_ENV: 'test' },
+        {
+          database: { url, poolSize: 2 },
+          gateway: { port: 0, consoleDir: '/nonexistent' },
+          auth: { jwtSecret: 'y'.repeat(32) },
+          log: { level: 'warn' },
+          mllp: { enabled: false, port: 0 },
+          workers: { enabled: false },
+        },
+      );
       const started = await startGateway({ config, logger, services: false });
       await started.stop();
       return lines.map((l) => JSON.parse(l) as { msg: string; grants?: string[] }).filter((l) => l.msg.includes('DATABASE_MIGRATION_URL'));

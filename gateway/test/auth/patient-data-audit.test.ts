@@ -15,13 +15,23 @@ beforeAll(async () => {
   integrator = await gw.signIn('integrator');
   reviewer = await gw.signIn('reviewer');
   const m = await registerMonitor(integrator, 'ABCDEF0000000071');
-  await sendRecording(gw, m.apiKey, 'ABCDEF0000000071', T0, { seed: 71, durationSeconds: 40, heartRate: 80, respiratoryRate: 15, ppv: 12, channels: ['abp', 'paw'] });
+  await sendRecording(gw, m.apiKey, 'ABCDEF0000000071', T0, {
+    seed: 71,
+    durationSeconds: 40,
+    heartRate: 80,
+    respiratoryRate: 15,
+    ppv: 12,
+    channels: ['abp', 'paw'],
+  });
   for (let i = 0; i < 20 && (await analyseNextWindow(gw.ctx, DEFAULT_ENGINE, 'test')); i++);
 });
 afterAll(async () => gw?.stop());
 
 const reads = async (action: string, entityId: string) =>
-  (await gw.ctx.ds.query('SELECT actor_name AS actorName, request_id AS requestId FROM audit_entry WHERE action = ? AND entity_id = ?', [action, entityId])) as { actorName: string; requestId: string }[];
+  (await gw.ctx.ds.query('SELECT actor_name AS actorName, request_id AS requestId FROM audit_entry WHERE action = ? AND entity_id = ?', [
+    action,
+    entityId,
+  ])) as { actorName: string; requestId: string }[];
 
 describe('audit of patient-data reads', () => {
   it('records each read of an assessment detail', async () => {

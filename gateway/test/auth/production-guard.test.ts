@@ -18,7 +18,16 @@ afterAll(async () => db?.drop());
 
 describe('production guard', () => {
   it('refuses to start in production while a demo credential is unchanged', async () => {
-    const config = loadConfig({ NODE_ENV: 'production' }, { database: { url: db.url }, auth: { jwtSecret: randomBytes(32).toString('hex') }, gateway: { port: 0 }, log: { level: 'silent' }, ehr: { fhirBaseUrl: 'https://ehr.invalid/fhir', tokenUrl: 'https://ehr.invalid/oauth/token' } });
+    const config = loadConfig(
+      { NODE_ENV: 'production' },
+      {
+        database: { url: db.url },
+        auth: { jwtSecret: randomBytes(32).toString('hex') },
+        gateway: { port: 0 },
+        log: { level: 'silent' },
+        ehr: { fhirBaseUrl: 'https://ehr.invalid/fhir', tokenUrl: 'https://ehr.invalid/oauth/token' },
+      },
+    );
     await expect(startGateway({ config, services: false })).rejects.toThrow(StartupRefused);
     await expect(startGateway({ config, services: false })).rejects.toThrow(/ada\.admin/);
   });

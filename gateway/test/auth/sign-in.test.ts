@@ -9,7 +9,14 @@ beforeAll(async () => {
     auth: {
       sessionMinutes: 1,
       sessionAbsoluteMinutes: 30,
-      throttle: { accountFreeFailures: 3, sourceFreeFailures: 1000, baseDelaySeconds: 1, accountMaxDelaySeconds: 4, sourceMaxDelaySeconds: 900, forgetMinutes: 60 },
+      throttle: {
+        accountFreeFailures: 3,
+        sourceFreeFailures: 1000,
+        baseDelaySeconds: 1,
+        accountMaxDelaySeconds: 4,
+        sourceMaxDelaySeconds: 900,
+        forgetMinutes: 60,
+      },
     },
   });
 });
@@ -18,9 +25,20 @@ afterAll(async () => gw?.stop());
 const signInFrom = (source: string, username: string, password: string) =>
   request(gw.server).post('/api/v1/auth/sign-in').set('X-Forwarded-For', source).send({ username, password });
 const throttleRow = async (scope: 'account' | 'source', subject: string) =>
-  ((await gw.ctx.ds.query('SELECT failures, blocked_until AS blockedUntil, last_failure_at AS lastFailureAt FROM sign_in_throttle WHERE scope = ? AND subject = ?', [scope, subject])) as { failures: number; blockedUntil: Date | null; lastFailureAt: Date }[])[0];
+  (
+    (await gw.ctx.ds.query(
+      'SELECT failures, blocked_until AS blockedUntil, last_failure_at AS lastFailureAt FROM sign_in_throttle WHERE scope = ? AND subject = ?',
+      [scope, subject],
+    )) as { failures: number; blockedUntil: Date | null; lastFailureAt: Date }[]
+  )[0];
 const unblock = () => gw.ctx.ds.query('UPDATE sign_in_throttle SET blocked_until = NULL');
-const auditActions = async (action: string) => (await (await gw.signIn('admin')).get(`/api/v1/audit?action=${action}&pageSize=200`)).body.items as { action: string; entityId: string | null; actorName: string | null; after: Record<string, unknown> }[];
+const auditActions = async (action: string) =>
+  (await (await gw.signIn('admin')).get(`/api/v1/audit?action=${action}&pageSize=200`)).body.items as {
+    action: string;
+    entityId: string | null;
+    actorName: string | null;
+    after: Record<string, unknown>;
+  }[];
 
 describe('sign-in', () => {
   it('signs in each demo user with its roles and sets httpOnly SameSite session cookie', async () => {
@@ -46,10 +64,28 @@ describe('sign-in', () => {
 
   it('counts 30 parallel wrong passwords as 30 failures (atomic in SQL)', async () => {
     // Free failures above 30 so no guess is refused before it is checked: each one must be counted.
-    const gw3 = await startTestGateway({ auth: { throttle: { accountFreeFailures: 50, sourceFreeFailures: 1000, baseDelaySeconds: 1, accountMaxDelaySeconds: 60, sourceMaxDelaySeconds: 900, forgetMinutes: 60 } } });
+    const gw3 = await startTestGateway({
+      auth: {
+        throttle: {
+          accountFreeFailures: 50,
+          sourceFreeFailures: 1000,
+          baseDelaySeconds: 1,
+          accountMaxDelaySeconds: 60,
+          sourceMaxDelaySeconds: 900,
+          forgetMinutes: 60,
+        },
+      },
+    });
     try {
       const u = gw3.demoUser('reviewer').username;
-      const answers = await Promise.all(Array.from({ length: 30 }, (_, i) => request(gw3.server).post('/api/v1/auth/sign-in').set('X-Forwarded-For', `10.30.0.${i + 1}`).send({ username: u, password: `wrong-guess-${i}` })));
+      const answers = await Promise.all(
+        Array.from({ length: 30 }, (_, i) =>
+          request(gw3.server)
+            .post('/api/v1/auth/sign-in')
+            .set('X-Forwarded-For', `10.30.0.${i + 1}`)
+            .send({ username: u, password: `wrong-guess-${i}` }),
+        ),
+      );
       expect(answers.map((a) => a.status)).toEqual(Array(30).fill(401));
       const [row] = (await gw3.ctx.ds.query("SELECT failures FROM sign_in_throttle WHERE scope = 'account' AND subject = ?", [u])) as { failures: number }[];
       expect(row?.failures).toBe(30);
@@ -117,9 +153,21 @@ describe('sign-in', () => {
   });
 
   it('throttles a source that guesses across many accounts', async () => {
-    const gw2 = await startTestGateway({ auth: { throttle: { accountFreeFailures: 100, sourceFreeFailures: 4, baseDelaySeconds: 1, accountMaxDelaySeconds: 60, sourceMaxDelaySeconds: 900, forgetMinutes: 60 } } });
+    const gw2 = await startTestGateway({
+      auth: {
+        throttle: {
+          accountFreeFailures: 100,
+          sourceFreeFailures: 4,
+          baseDelaySeconds: 1,
+          accountMaxDelaySeconds: 60,
+          sourceMaxDelaySeconds: 900,
+          forgetMinutes: 60,
+        },
+      },
+    });
     try {
-      const from = (source: string, username: string) => request(gw2.server).post('/api/v1/auth/sign-in').set('X-Forwarded-For', source).send({ username, password: 'Spray-pass-2026' });
+      const from = (source: string, username: string) =>
+        request(gw2.server).post('/api/v1/auth/sign-in').set('X-Forwarded-For', source).send({ username, password: 'Spray-pass-2026' });
       for (let i = 0; i < 5; i++) expect((await from('10.60.0.9', `spray.${i}`)).status).toBe(401);
       expect((await from('10.60.0.9', 'spray.new')).status).toBe(429);
       const admin = gw2.demoUser('admin');
@@ -142,7 +190,9 @@ describe('sign-in', () => {
     // An older scrypt hash (RFC 7914, N = 2^14: below the sheet's 2^17), made here by node:crypto.
     const u = gw.demoUser('integrator');
     const salt = randomBytes(16);
-    const legacy = ['scrypt', 16384, 8, 1, salt.toString('base64url'), scryptSync(u.password, salt, 32, { N: 16384, r: 8, p: 1 }).toString('base64url')].join('$');
+    const legacy = ['scrypt', 16384, 8, 1, salt.toString('base64url'), scryptSync(u.password, salt, 32, { N: 16384, r: 8, p: 1 }).toString('base64url')].join(
+      '$',
+    );
     await gw.ctx.ds.query('UPDATE app_user SET password_hash = ? WHERE username = ?', [legacy, u.username]);
     expect((await signInFrom('10.70.0.1', u.username, u.password)).status).toBe(200);
     const rehashed = await hashOf(u.username);
@@ -159,7 +209,12 @@ describe('sign-in', () => {
     const client = await gw.signIn('reviewer');
     await client.post('/api/v1/auth/sign-out').expect(204);
     const admin = await gw.signIn('admin');
-    const items = (await admin.get('/api/v1/audit?action=auth.&pageSize=200')).body.items as { action: string; requestId: string | null; actorName: string | null; after: Record<string, unknown> }[];
+    const items = (await admin.get('/api/v1/audit?action=auth.&pageSize=200')).body.items as {
+      action: string;
+      requestId: string | null;
+      actorName: string | null;
+      after: Record<string, unknown>;
+    }[];
     const failed = items.find((e) => e.action === 'auth.sign-in-failed' && e.requestId === 'audit-check-1');
     expect(failed).toBeDefined();
     expect(failed!.after).toMatchObject({ username: 'rhea.reviewer', reason: 'wrong-password', source: '10.80.0.1' });

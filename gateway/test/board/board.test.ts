@@ -18,19 +18,44 @@ async function bed(name: string, unit: string) {
 async function monitor(bedId: string | null, lastSeenAgoMs: number | null) {
   const id = randomUUID();
   const identifier = `02${randomUUID().replace(/-/g, '').slice(0, 14).toUpperCase()}`;
-  await q('INSERT INTO monitor (id, identifier, profile_id, bed_id, enabled, last_seen_at, created_at, updated_at) VALUES (?, ?, NULL, ?, 1, ?, NOW(3), NOW(3))', [
-    id, identifier, bedId, lastSeenAgoMs === null ? null : new Date(Date.now() - lastSeenAgoMs),
-  ]);
+  await q(
+    'INSERT INTO monitor (id, identifier, profile_id, bed_id, enabled, last_seen_at, created_at, updated_at) VALUES (?, ?, NULL, ?, 1, ?, NOW(3), NOW(3))',
+    [id, identifier, bedId, lastSeenAgoMs === null ? null : new Date(Date.now() - lastSeenAgoMs)],
+  );
   return { id, identifier };
 }
-interface Win { verdict?: string; ppv?: number | null; hr?: number; flags?: { code: string; severity: string; reason: string }[]; patient?: string | null; name?: string; mrn?: string; monitorId: string }
+interface Win {
+  verdict?: string;
+  ppv?: number | null;
+  hr?: number;
+  flags?: { code: string; severity: string; reason: string }[];
+  patient?: string | null;
+  name?: string;
+  mrn?: string;
+  monitorId: string;
+}
 async function assessment(bedId: string, end: Date, w: Win) {
   const id = randomUUID();
   const flags = w.flags ?? [];
   await q(
     `INSERT INTO assessment (id, monitor_id, bed_id, patient_ref, patient_name, patient_mrn, window_start, window_end, engine_version, verdict, ppv, spv, delta_pop, heart_rate, respiratory_rate, flags, result, created_at)
      VALUES (?, ?, ?, ?, ?, ?, ?, ?, 'test', ?, ?, ?, NULL, ?, 14, ?, ?, NOW(3))`,
-    [id, w.monitorId, bedId, w.patient ?? null, w.name ?? null, w.mrn ?? null, new Date(end.getTime() - 10_000), end, w.verdict ?? 'valid', w.ppv ?? null, w.ppv === null || w.ppv === undefined ? null : w.ppv / 2, w.hr ?? 80, JSON.stringify(flags.map((f) => f.code)), JSON.stringify({ flags })],
+    [
+      id,
+      w.monitorId,
+      bedId,
+      w.patient ?? null,
+      w.name ?? null,
+      w.mrn ?? null,
+      new Date(end.getTime() - 10_000),
+      end,
+      w.verdict ?? 'valid',
+      w.ppv ?? null,
+      w.ppv === null || w.ppv === undefined ? null : w.ppv / 2,
+      w.hr ?? 80,
+      JSON.stringify(flags.map((f) => f.code)),
+      JSON.stringify({ flags }),
+    ],
   );
   return id;
 }
@@ -42,20 +67,34 @@ describe('beds board', () => {
     const m1 = await monitor(sending, 5_000);
     await assessment(sending, new Date(now - 60_000), { monitorId: m1.id, ppv: 20, patient: 'Patient/p1' });
     const latestId = await assessment(sending, new Date(now - 10_000), {
-      monitorId: m1.id, ppv: 12.5, verdict: 'questionable', patient: 'Patient/p1', name: 'Maren Quillfeather', mrn: 'HGH-400117',
-      flags: [{ code: 'gap', severity: 'info', reason: 'short gap' }, { code: 'irregular-rhythm', severity: 'critical', reason: 'Beat intervals vary too much' }, { code: 'noise-motion', severity: 'warning', reason: 'motion' }],
+      monitorId: m1.id,
+      ppv: 12.5,
+      verdict: 'questionable',
+      patient: 'Patient/p1',
+      name: 'Maren Quillfeather',
+      mrn: 'HGH-400117',
+      flags: [
+        { code: 'gap', severity: 'info', reason: 'short gap' },
+        { code: 'irregular-rhythm', severity: 'critical', reason: 'Beat intervals vary too much' },
+        { code: 'noise-motion', severity: 'warning', reason: 'motion' },
+      ],
     });
     const stale = await bed('T-02', 'Test ICU');
     await monitor(stale, 5 * 60_000);
     const empty = await bed('T-03', 'Test theatre');
     const quarantining = await bed('T-04', 'Test theatre');
     const m4 = await monitor(quarantining, 2_000);
-    await q(`INSERT INTO inbound_message (received_at, transport, outcome, monitor_id, size_bytes, raw) VALUES (NOW(3), 'http', 'quarantined', ?, 2, 'x')`, [m4.id]);
+    await q(`INSERT INTO inbound_message (received_at, transport, outcome, monitor_id, size_bytes, raw) VALUES (NOW(3), 'http', 'quarantined', ?, 2, 'x')`, [
+      m4.id,
+    ]);
     const noPatient = await bed('T-05', 'Test theatre');
     const m5 = await monitor(noPatient, 3_000);
     const waiting = await assessment(noPatient, new Date(now - 15_000), { monitorId: m5.id, ppv: 8 });
     await q(`INSERT IGNORE INTO destination (id, name, kind, updated_at) VALUES ('ehr', 'EHR', 'fhir', NOW(3))`);
-    await q(`INSERT INTO delivery (assessment_id, destination_id, index_name, kind, status, identifier, next_attempt_at, created_at, updated_at) VALUES (?, 'ehr', 'ppv', 'fhir', 'waiting-context', ?, NOW(3), NOW(3), NOW(3))`, [waiting, randomUUID()]);
+    await q(
+      `INSERT INTO delivery (assessment_id, destination_id, index_name, kind, status, identifier, next_attempt_at, created_at, updated_at) VALUES (?, 'ehr', 'ppv', 'fhir', 'waiting-context', ?, NOW(3), NOW(3), NOW(3))`,
+      [waiting, randomUUID()],
+    );
 
     const reviewer = await gw.signIn('reviewer');
     const res = await reviewer.get('/api/v1/board?pageSize=500').expect(200);
@@ -67,7 +106,13 @@ describe('beds board', () => {
     expect(byName['T-05'].state).toBe('no-patient');
     expect(res.body.counts).toEqual({ sending: 1, stale: 1, 'no-monitor': 1, quarantining: 1, 'no-patient': 1 });
     // The latest window, and its most severe flag (critical over warning over info) in words.
-    expect(byName['T-01'].latest).toMatchObject({ assessmentId: latestId, verdict: 'questionable', ppv: 12.5, flagCount: 3, mainFlag: { code: 'irregular-rhythm', reason: 'Beat intervals vary too much' } });
+    expect(byName['T-01'].latest).toMatchObject({
+      assessmentId: latestId,
+      verdict: 'questionable',
+      ppv: 12.5,
+      flagCount: 3,
+      mainFlag: { code: 'irregular-rhythm', reason: 'Beat intervals vary too much' },
+    });
     expect(byName['T-01'].latest.ageSeconds).toBeGreaterThanOrEqual(9);
     expect(byName['T-01']).toMatchObject({ patientRef: 'Patient/p1', patientName: 'Maren Quillfeather', patientMrn: 'HGH-400117' });
     // Found by patient name too.
@@ -99,7 +144,8 @@ describe('bed trend', () => {
     const ma = await monitor(b, 1000);
     const mb = await monitor(null, 1000);
     const base = Date.now() - 30 * 60_000;
-    for (let i = 0; i < 20; i++) await assessment(b, new Date(base + i * 10_000), { monitorId: i < 10 ? ma.id : mb.id, ppv: 10 + i, verdict: i === 3 ? 'not-valid' : 'valid' });
+    for (let i = 0; i < 20; i++)
+      await assessment(b, new Date(base + i * 10_000), { monitorId: i < 10 ? ma.id : mb.id, ppv: 10 + i, verdict: i === 3 ? 'not-valid' : 'valid' });
     const reviewer = await gw.signIn('reviewer');
     const res = await reviewer.get(`/api/v1/board/beds/${b}/trend?hours=1`).expect(200);
     expect(res.body.downsampled).toBe(false);
@@ -121,8 +167,14 @@ describe('bed trend', () => {
     // Seeded series (a slow sine plus a deterministic jitter); the truth is computed here, from the series.
     const values: { end: Date; ppv: number; verdict: string; hr: number }[] = [];
     let seed = 7;
-    const rand = () => ((seed = (seed * 1103515245 + 12345) % 2 ** 31) / 2 ** 31);
-    for (let i = 0; i < n; i++) values.push({ end: new Date(end - (n - i) * 10_000 + 10_500), ppv: Math.round((12 + 6 * Math.sin(i / 500) + rand() * 2) * 100) / 100, verdict: i === 9000 ? 'not-valid' : 'valid', hr: 70 + (i % 30) });
+    const rand = () => (seed = (seed * 1103515245 + 12345) % 2 ** 31) / 2 ** 31;
+    for (let i = 0; i < n; i++)
+      values.push({
+        end: new Date(end - (n - i) * 10_000 + 10_500),
+        ppv: Math.round((12 + 6 * Math.sin(i / 500) + rand() * 2) * 100) / 100,
+        verdict: i === 9000 ? 'not-valid' : 'valid',
+        hr: 70 + (i % 30),
+      });
     values[12345]!.ppv = 41.5; // a single peak
     for (let i = 0; i < n; i += 500) {
       const chunk = values.slice(i, i + 500);
@@ -158,18 +210,42 @@ describe('line checks and context on the trend', () => {
     const b = await bed('LC-01', 'Line unit');
     const m = await monitor(b, 1000);
     const t0 = Date.now() - 20 * 60_000;
-    const flush = { releaseTime: 4.2, naturalFrequencyHz: 18.5, dampingRatio: 0.42, amplitudeRatio: 0.23, oscillations: 3, region: 'optimal', regionText: 'optimal: natural frequency and damping ratio in the optimal region of the Gardner chart' };
+    const flush = {
+      releaseTime: 4.2,
+      naturalFrequencyHz: 18.5,
+      dampingRatio: 0.42,
+      amplitudeRatio: 0.23,
+      oscillations: 3,
+      region: 'optimal',
+      regionText: 'optimal: natural frequency and damping ratio in the optimal region of the Gardner chart',
+    };
     const older = { ...flush, naturalFrequencyHz: 9.1, dampingRatio: 0.2, region: 'under-damped', regionText: 'under-damped' };
     for (const [i, f] of [older, flush].entries()) {
       await q(
         `INSERT INTO assessment (id, monitor_id, bed_id, window_start, window_end, engine_version, verdict, flags, result, created_at) VALUES (?, ?, ?, ?, ?, 'test', 'questionable', '["arterial-flush"]', ?, NOW(3))`,
-        [randomUUID(), m.id, b, new Date(t0 + i * 60_000), new Date(t0 + i * 60_000 + 10_000), JSON.stringify({ flags: [], arterialLine: { flushTests: [f], dampingEstimate: 'adequate' } })],
+        [
+          randomUUID(),
+          m.id,
+          b,
+          new Date(t0 + i * 60_000),
+          new Date(t0 + i * 60_000 + 10_000),
+          JSON.stringify({ flags: [], arterialLine: { flushTests: [f], dampingEstimate: 'adequate' } }),
+        ],
       );
     }
     // Context as the monitor sent it: tidal volume 6 → 8 mL/kg for a minute and back (a challenge), then a vasopressor.
-    const ctxAt = [[0, { tidalVolumeMl: 420 }], [60, { tidalVolumeMl: 560 }], [120, { tidalVolumeMl: 420 }], [180, { tidalVolumeMl: 420, vasopressorRunning: false }], [240, { tidalVolumeMl: 420, vasopressorRunning: true }]] as const;
+    const ctxAt = [
+      [0, { tidalVolumeMl: 420 }],
+      [60, { tidalVolumeMl: 560 }],
+      [120, { tidalVolumeMl: 420 }],
+      [180, { tidalVolumeMl: 420, vasopressorRunning: false }],
+      [240, { tidalVolumeMl: 420, vasopressorRunning: true }],
+    ] as const;
     for (const [s, c] of ctxAt) {
-      await q(`INSERT INTO inbound_message (received_at, transport, outcome, monitor_id, size_bytes, raw, batch_start, context) VALUES (NOW(3), 'http', 'accepted', ?, 2, 'x', ?, ?)`, [m.id, new Date(t0 + s * 1000), JSON.stringify(c)]);
+      await q(
+        `INSERT INTO inbound_message (received_at, transport, outcome, monitor_id, size_bytes, raw, batch_start, context) VALUES (NOW(3), 'http', 'accepted', ?, 2, 'x', ?, ?)`,
+        [m.id, new Date(t0 + s * 1000), JSON.stringify(c)],
+      );
     }
     // The engine's judgement of the challenge, as the analysis worker stores it on the completing window.
     const judged = randomUUID();
@@ -185,13 +261,15 @@ describe('line checks and context on the trend', () => {
 
     const trend = await reviewer.get(`/api/v1/board/beds/${b}/trend?hours=1`).expect(200);
     const kinds = trend.body.events.map((e: { kind: string; label: string }) => `${e.kind}: ${e.label}`);
-    expect(kinds).toEqual(expect.arrayContaining([
-      'tidal-volume: Tidal volume 420 → 560 mL',
-      'tidal-volume: Tidal volume 560 → 420 mL',
-      'tidal-volume-challenge: Tidal volume raised 420 → 560 mL for 60 s',
-      'vasopressor: Vasopressor started',
-      'tidal-volume-challenge: Tidal volume challenge judged: positive, ΔPPV +4.4 points',
-    ]));
+    expect(kinds).toEqual(
+      expect.arrayContaining([
+        'tidal-volume: Tidal volume 420 → 560 mL',
+        'tidal-volume: Tidal volume 560 → 420 mL',
+        'tidal-volume-challenge: Tidal volume raised 420 → 560 mL for 60 s',
+        'vasopressor: Vasopressor started',
+        'tidal-volume-challenge: Tidal volume challenge judged: positive, ΔPPV +4.4 points',
+      ]),
+    );
     expect(trend.body.events.find((e: { label: string }) => e.label.includes('judged'))!.assessmentId).toBe(judged);
     expect(kinds.filter((k: string) => k.startsWith('flush-test'))).toHaveLength(2);
     expect(kinds.some((k: string) => k.includes('fn 18.5 Hz, ζ 0.42'))).toBe(true);

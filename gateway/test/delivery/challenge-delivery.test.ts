@@ -29,7 +29,14 @@ beforeAll(async () => {
     {
       ehr: { fhirBaseUrl: ehr.fhirBaseUrl, tokenUrl: ehr.tokenUrl },
       mail: { smtpPort: ehr.smtpPort },
-      delivery: { pollMs: 30, leaseSeconds: 5, requestTimeoutMs: 2000, bundleSize: 1, retry: { limit: 50, baseMs: 40, maxMs: 200 }, patientContext: { cacheSeconds: 60, retrySeconds: 0.3 } },
+      delivery: {
+        pollMs: 30,
+        leaseSeconds: 5,
+        requestTimeoutMs: 2000,
+        bundleSize: 1,
+        retry: { limit: 50, baseMs: 40, maxMs: 200 },
+        patientContext: { cacheSeconds: 60, retrySeconds: 0.3 },
+      },
     },
     { services: true },
   );
@@ -41,7 +48,11 @@ afterAll(async () => {
 });
 
 async function mockToken(): Promise<string> {
-  const res = await fetch(ehr.tokenUrl, { method: 'POST', headers: { 'content-type': 'application/x-www-form-urlencoded' }, body: 'grant_type=client_credentials&client_id=ebbgate-gateway&client_secret=mock-ehr-dev-secret' });
+  const res = await fetch(ehr.tokenUrl, {
+    method: 'POST',
+    headers: { 'content-type': 'application/x-www-form-urlencoded' },
+    body: 'grant_type=client_credentials&client_id=ebbgate-gateway&client_secret=mock-ehr-dev-secret',
+  });
   return ((await res.json()) as { access_token: string }).access_token;
 }
 
@@ -72,7 +83,12 @@ describe('tidal volume challenge delivered to the FHIR destination', () => {
     const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'ICU-01');
     const start = windowStart(2);
     const stepAt = new Date(start.getTime() - 30_000);
-    const a = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, start, undefined, true, { tidalVolumeChallenge: t as unknown as object, challengeDeltaPpv: t.deltaPpv, challengeVerdict: t.verdict, challengeStepAt: stepAt });
+    const a = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, start, undefined, true, {
+      tidalVolumeChallenge: t as unknown as object,
+      challengeDeltaPpv: t.deltaPpv,
+      challengeVerdict: t.verdict,
+      challengeStepAt: stepAt,
+    });
     const rows = await waitFor('all delivered', async () => {
       const r = await rowsOf(a.id);
       return r.length === 5 && r.every((x) => ['delivered', 'withheld'].includes(x.status)) ? r : undefined;
@@ -113,7 +129,9 @@ describe('tidal volume challenge delivered to the FHIR destination', () => {
 
     // A replay of the create (say, a crash after the send) stays one Observation by identifier.
     await gw.ctx.ds.getRepository(DeliveryRow).update({ id: challengeRow!.id }, { status: 'pending', nextAttemptAt: new Date(), claimId: null });
-    await waitFor('replayed create delivered', async () => ((await gw.ctx.ds.getRepository(DeliveryRow).findOneBy({ id: challengeRow!.id }))?.status === 'delivered' ? true : undefined));
+    await waitFor('replayed create delivered', async () =>
+      (await gw.ctx.ds.getRepository(DeliveryRow).findOneBy({ id: challengeRow!.id }))?.status === 'delivered' ? true : undefined,
+    );
     expect((await admin.observations()).byIdentifier[IDENT + challengeRow!.identifier]).toBe(1);
 
     // Mark in error: the challenge Observation is amended like the others.
@@ -137,8 +155,20 @@ describe('tidal volume challenge delivered to the FHIR destination', () => {
     const rows = await gw.ctx.ds.getRepository(DeliveryRow).findBy({ indexName: CHALLENGE_DELIVERY, kind: 'create' });
     expect(rows.length).toBeGreaterThan(0);
     const obs = rows[0]!.payload as Observation;
-    const msg = buildOru(defaultCodeMap(), { observation: obs, controlId: 'c1', mrn: 'HGH-400117', locationIdentifier: 'ICU-01', sendingFacility: 'HGH', receivingApplication: 'EHR', monitorIdentifier: null, at: new Date() });
-    const obx = msg.split('\r').find((s) => s.startsWith('OBX|'))!.split('|');
+    const msg = buildOru(defaultCodeMap(), {
+      observation: obs,
+      controlId: 'c1',
+      mrn: 'HGH-400117',
+      locationIdentifier: 'ICU-01',
+      sendingFacility: 'HGH',
+      receivingApplication: 'EHR',
+      monitorIdentifier: null,
+      at: new Date(),
+    });
+    const obx = msg
+      .split('\r')
+      .find((s) => s.startsWith('OBX|'))!
+      .split('|');
     // HL7 v2.6 OBX-3 observation identifier, OBX-5 value, OBX-6 units (code^text^UCUM).
     expect(obx[3]).toMatch(/^tidal-volume-challenge\^.+\^99EBG$/);
     expect(Number(obx[5])).toBeCloseTo(t.deltaPpv as number, 3);

@@ -22,11 +22,22 @@ beforeAll(async () => {
       ehr: { fhirBaseUrl: ehr.fhirBaseUrl, tokenUrl: ehr.tokenUrl },
       mail: { smtpPort: ehr.smtpPort },
       delivery: {
-        pollMs: 30, leaseSeconds: 5, requestTimeoutMs: 2000, bundleSize: 1,
+        pollMs: 30,
+        leaseSeconds: 5,
+        requestTimeoutMs: 2000,
+        bundleSize: 1,
         retry: { limit: 50, baseMs: 40, maxMs: 200 },
         circuit: { failureThreshold: 5, openSeconds: 0.3 },
         patientContext: { cacheSeconds: 60, retrySeconds: 0.3 },
-        alerts: { enabled: true, checkIntervalMs: 100, destinationDownMinutes: 0.01, failureThreshold: 1000, failureWindowMinutes: 60, recipients: ['icu-oncall@harrowmere.example'], consoleUrl: 'http://console.harrowmere.example' },
+        alerts: {
+          enabled: true,
+          checkIntervalMs: 100,
+          destinationDownMinutes: 0.01,
+          failureThreshold: 1000,
+          failureWindowMinutes: 60,
+          recipients: ['icu-oncall@harrowmere.example'],
+          consoleUrl: 'http://console.harrowmere.example',
+        },
       },
     },
     { services: true },
@@ -40,15 +51,22 @@ afterAll(async () => {
 
 /** A token from the mock's client-credentials endpoint, to read what the gateway wrote. */
 async function mockToken(): Promise<string> {
-  const res = await fetch(ehr.tokenUrl, { method: 'POST', headers: { 'content-type': 'application/x-www-form-urlencoded' }, body: 'grant_type=client_credentials&client_id=ebbgate-gateway&client_secret=mock-ehr-dev-secret' });
+  const res = await fetch(ehr.tokenUrl, {
+    method: 'POST',
+    headers: { 'content-type': 'application/x-www-form-urlencoded' },
+    body: 'grant_type=client_credentials&client_id=ebbgate-gateway&client_secret=mock-ehr-dev-secret',
+  });
   return ((await res.json()) as { access_token: string }).access_token;
 }
 
-const rowsOf = (assessmentIds: string[]) => gw.ctx.ds.getRepository(DeliveryRow).createQueryBuilder('d').where('d.assessment_id IN (:...ids)', { ids: assessmentIds }).getMany();
-const allSettled = (ids: string[], statuses = ['delivered', 'withheld']) => async () => {
-  const rows = await rowsOf(ids);
-  return rows.length > 0 && rows.every((r) => statuses.includes(r.status)) ? rows : undefined;
-};
+const rowsOf = (assessmentIds: string[]) =>
+  gw.ctx.ds.getRepository(DeliveryRow).createQueryBuilder('d').where('d.assessment_id IN (:...ids)', { ids: assessmentIds }).getMany();
+const allSettled =
+  (ids: string[], statuses = ['delivered', 'withheld']) =>
+  async () => {
+    const rows = await rowsOf(ids);
+    return rows.length > 0 && rows.every((r) => statuses.includes(r.status)) ? rows : undefined;
+  };
 
 describe('delivery to the mock EHR', () => {
   it('delivers one Observation per index per assessment, with subject, encounter and one Device per monitor', async () => {
@@ -71,7 +89,10 @@ describe('delivery to the mock EHR', () => {
 
   it('outage → backlog → recovery: every result delivered exactly once, one alert mail and one all-clear', async () => {
     const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'ICU-02');
-    await admin.faults([{ scope: 'Observation', errorRate: 1, statusCodes: [503, 502, 504], retryAfterSeconds: 0 }, { scope: 'all', timeoutRate: 0 }]);
+    await admin.faults([
+      { scope: 'Observation', errorRate: 1, statusCodes: [503, 502, 504], retryAfterSeconds: 0 },
+      { scope: 'all', timeoutRate: 0 },
+    ]);
     const a = [];
     for (let i = 0; i < 5; i++) a.push(await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, windowStart(i)));
     const down = await waitFor('destination down with an open circuit', async () => {
@@ -141,17 +162,41 @@ describe('delivery to the mock EHR', () => {
     await waitFor('waiting-context', allSettled([a.id], ['waiting-context']));
     const token = await mockToken();
     const post = (type: string, body: object) =>
-      fetch(`${ehr.fhirBaseUrl}/${type}`, { method: 'POST', headers: { authorization: `Bearer ${token}`, 'content-type': 'application/fhir+json' }, body: JSON.stringify(body) }).then((r) => r.json() as Promise<{ id: string }>);
-    const patient = await post('Patient', { resourceType: 'Patient', name: [{ family: 'Ashgrove', given: ['Wren'] }], gender: 'female', identifier: [{ type: { coding: [{ system: 'http://terminology.hl7.org/CodeSystem/v2-0203', code: 'MR' }] }, system: 'urn:ebbgate:demo:mrn', value: 'HGH-409901' }] });
+      fetch(`${ehr.fhirBaseUrl}/${type}`, {
+        method: 'POST',
+        headers: { authorization: `Bearer ${token}`, 'content-type': 'application/fhir+json' },
+        body: JSON.stringify(body),
+      }).then((r) => r.json() as Promise<{ id: string }>);
+    const patient = await post('Patient', {
+      resourceType: 'Patient',
+      name: [{ family: 'Ashgrove', given: ['Wren'] }],
+      gender: 'female',
+      identifier: [
+        { type: { coding: [{ system: 'http://terminology.hl7.org/CodeSystem/v2-0203', code: 'MR' }] }, system: 'urn:ebbgate:demo:mrn', value: 'HGH-409901' },
+      ],
+    });
     // An encounter without period.start says nothing about when the patient arrived: never used.
-    const undated = await post('Encounter', { resourceType: 'Encounter', status: 'in-progress', class: { system: 'http://terminology.hl7.org/CodeSystem/v3-ActCode', code: 'IMP' }, subject: { reference: `Patient/${patient.id}` }, location: [{ location: { reference: 'Location/icu-05' } }] });
+    const undated = await post('Encounter', {
+      resourceType: 'Encounter',
+      status: 'in-progress',
+      class: { system: 'http://terminology.hl7.org/CodeSystem/v3-ActCode', code: 'IMP' },
+      subject: { reference: `Patient/${patient.id}` },
+      location: [{ location: { reference: 'Location/icu-05' } }],
+    });
     const refused = await waitFor('the undated encounter refused by name', async () => {
       const r = (await rowsOf([a.id]))[0];
       return r?.status === 'waiting-context' && r.lastError?.includes(`Encounter/${undated.id}`) ? r : undefined;
     });
     expect(refused.lastError).toMatch(/without period\.start refused/);
     // Admitted (recorded as such) before the window began: filed to that patient, with name and MRN.
-    await post('Encounter', { resourceType: 'Encounter', status: 'in-progress', class: { system: 'http://terminology.hl7.org/CodeSystem/v3-ActCode', code: 'IMP' }, subject: { reference: `Patient/${patient.id}` }, period: { start: new Date(windowStart(0).getTime() - 60_000).toISOString() }, location: [{ location: { reference: 'Location/icu-05' } }] });
+    await post('Encounter', {
+      resourceType: 'Encounter',
+      status: 'in-progress',
+      class: { system: 'http://terminology.hl7.org/CodeSystem/v3-ActCode', code: 'IMP' },
+      subject: { reference: `Patient/${patient.id}` },
+      period: { start: new Date(windowStart(0).getTime() - 60_000).toISOString() },
+      location: [{ location: { reference: 'Location/icu-05' } }],
+    });
     const rows = await waitFor('delivered after admission', allSettled([a.id]));
     expect((rows[0]!.payload as { subject: { reference: string } }).subject.reference).toBe(`Patient/${patient.id}`);
     expect(rows[0]!.patientName).toBe('Wren Ashgrove');
@@ -213,7 +258,9 @@ describe('delivery to the mock EHR', () => {
   it('failures past the threshold mail the on-call list once; an operator discards a failed message with a reason (audited)', async () => {
     const adminUser = await gw.signIn('admin');
     const current = (await adminUser.get('/api/v1/settings')).body;
-    expect((await adminUser.put('/api/v1/settings', { ...current, alerts: { ...current.alerts, destinationDownMinutes: 1, failureThreshold: 3 } })).status).toBe(200);
+    expect(
+      (await adminUser.put('/api/v1/settings', { ...current, alerts: { ...current.alerts, destinationDownMinutes: 1, failureThreshold: 3 } })).status,
+    ).toBe(200);
     await new Promise((r) => setTimeout(r, 3_100)); // settings are re-read at most every 3 s
     await admin.faults([{ scope: 'Observation', errorRate: 1, statusCodes: [400] }]);
     const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'OR-02');

@@ -24,8 +24,13 @@ beforeAll(async () => {
       ehr: { fhirBaseUrl: ehr.fhirBaseUrl, tokenUrl: ehr.tokenUrl },
       mail: { smtpPort: ehr.smtpPort },
       delivery: {
-        bundleSize: 10, claimBatch: 16, concurrency: 4, leaseSeconds: 30, retry: { limit: 5, baseMs: 20, maxMs: 100 },
-        alerts: { enabled: false }, hl7: { enabled: true, host: '127.0.0.1', port: ehr.mllpPort, sendingFacility: 'HGH', receivingApplication: 'HGH-EHR' },
+        bundleSize: 10,
+        claimBatch: 16,
+        concurrency: 4,
+        leaseSeconds: 30,
+        retry: { limit: 5, baseMs: 20, maxMs: 100 },
+        alerts: { enabled: false },
+        hl7: { enabled: true, host: '127.0.0.1', port: ehr.mllpPort, sendingFacility: 'HGH', receivingApplication: 'HGH-EHR' },
       },
     },
     { services: false },
@@ -131,7 +136,13 @@ describe('delivery modes', () => {
     const hl7 = (await (await fetch(`${ehr.baseUrl}/_admin/hl7`)).json()) as { controlId: string; message: string }[];
     const wrong = hl7.filter((m) => amends.some((r) => r.destinationId === HL7_DESTINATION_ID && m.controlId === `${r.identifier}-amend`));
     expect(wrong).toHaveLength(4);
-    for (const m of wrong) expect(m.message.split('\r').find((x) => x.startsWith('OBX'))!.split('|')[11]).toBe('W');
+    for (const m of wrong)
+      expect(
+        m.message
+          .split('\r')
+          .find((x) => x.startsWith('OBX'))!
+          .split('|')[11],
+      ).toBe('W');
   });
 
   it('site settings chosen by an admin apply to the next results: withhold not-valid, send valid as final', async () => {
@@ -168,7 +179,11 @@ describe('delivery modes', () => {
     await admin.clearFaults();
     const fhir = (await rowsOf(a.map((x) => x.id))).filter((r) => r.destinationId === FHIR_DESTINATION_ID);
     expect(fhir.every((r) => r.status === 'delivered')).toBe(true);
-    const attempts = await gw.ctx.ds.getRepository(DeliveryAttemptRow).createQueryBuilder('t').where('t.delivery_id IN (:...ids)', { ids: fhir.map((r) => r.id) }).getMany();
+    const attempts = await gw.ctx.ds
+      .getRepository(DeliveryAttemptRow)
+      .createQueryBuilder('t')
+      .where('t.delivery_id IN (:...ids)', { ids: fhir.map((r) => r.id) })
+      .getMany();
     expect(attempts.some((t) => t.mode === 'single')).toBe(true); // the fallback after the rejected bundle
     const counts = await admin.observations();
     for (const r of fhir) expect(counts.byIdentifier[IDENT + r.identifier]).toBe(1);

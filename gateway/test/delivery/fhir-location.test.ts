@@ -20,9 +20,12 @@ describe('parseResourceLocation', () => {
     expect(parseResourceLocation(location, 'Observation')).toEqual(expected);
   });
 
-  it.each([[undefined], [''], ['Patient/abc'], ['Observation'], ['Observation/abc/extra/parts'], ['Observation/has space'], ['http://[bad']])('%s gives null (no guess)', (location) => {
-    expect(parseResourceLocation(location as string | undefined, 'Observation')).toBeNull();
-  });
+  it.each([[undefined], [''], ['Patient/abc'], ['Observation'], ['Observation/abc/extra/parts'], ['Observation/has space'], ['http://[bad']])(
+    '%s gives null (no guess)',
+    (location) => {
+      expect(parseResourceLocation(location as string | undefined, 'Observation')).toBeNull();
+    },
+  );
 
   it('the old split("/")[1] took the wrong part of an absolute Location (the regression this replaces)', () => {
     const absolute = 'http://ehr.harrowmere.example/fhir/Observation/abc-123/_history/1';

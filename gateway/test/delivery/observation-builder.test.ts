@@ -8,16 +8,36 @@ import { classifyHttpStatus, parseRetryAfter } from '../../src/delivery/send-out
 
 const codes = defaultCodeMap();
 const context = { ventilationMode: 'controlled' as const, tidalVolumeMl: 650, patientHeightCm: 175, patientSex: 'male' as const, plethScaling: 'raw' as const };
-const clean = analyzeWindow({ channels: generateWindow({ seed: 3, heartRate: 80, respiratoryRate: 15, ppv: 14, channels: ['abp', 'pleth', 'paw'], durationSeconds: 30 }).channels, context });
+const clean = analyzeWindow({
+  channels: generateWindow({ seed: 3, heartRate: 80, respiratoryRate: 15, ppv: 14, channels: ['abp', 'pleth', 'paw'], durationSeconds: 30 }).channels,
+  context,
+});
 const spontaneous = analyzeWindow({
-  channels: generateWindow({ seed: 4, heartRate: 80, respiratoryRate: 15, ppv: 14, channels: ['abp', 'pleth', 'paw'], durationSeconds: 30, disturbances: [{ kind: 'spontaneous-breaths', count: 4 }] }).channels,
+  channels: generateWindow({
+    seed: 4,
+    heartRate: 80,
+    respiratoryRate: 15,
+    ppv: 14,
+    channels: ['abp', 'pleth', 'paw'],
+    durationSeconds: 30,
+    disturbances: [{ kind: 'spontaneous-breaths', count: 4 }],
+  }).channels,
   context,
 });
 
 const base = (over: Partial<ObservationInput> = {}): ObservationInput => ({
-  assessmentId: 'a1', index: 'ppv', windowStart: new Date('2026-12-01T10:00:00Z'), windowEnd: new Date('2026-12-01T10:00:30Z'),
-  result: clean, context: { patientId: 'p1', encounterId: 'e1', locationId: 'l1' }, deviceId: 'd1', status: 'preliminary',
-  notValidPolicy: 'data-absent', issued: new Date('2026-12-01T10:00:31Z'), codes, ...over,
+  assessmentId: 'a1',
+  index: 'ppv',
+  windowStart: new Date('2026-12-01T10:00:00Z'),
+  windowEnd: new Date('2026-12-01T10:00:30Z'),
+  result: clean,
+  context: { patientId: 'p1', encounterId: 'e1', locationId: 'l1' },
+  deviceId: 'd1',
+  status: 'preliminary',
+  notValidPolicy: 'data-absent',
+  issued: new Date('2026-12-01T10:00:31Z'),
+  codes,
+  ...over,
 });
 const obsOf = (over: Partial<ObservationInput> = {}) => {
   const b = buildObservation(base(over));

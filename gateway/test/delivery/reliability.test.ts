@@ -27,7 +27,11 @@ let gw: TestGateway;
 let parts: DeliveryParts;
 
 const adminCall = async (method: string, path: string, body?: object) => {
-  const res = await fetch(`${ehr.baseUrl}/_admin${path}`, { method, headers: { 'content-type': 'application/json' }, body: body ? JSON.stringify(body) : undefined });
+  const res = await fetch(`${ehr.baseUrl}/_admin${path}`, {
+    method,
+    headers: { 'content-type': 'application/json' },
+    body: body ? JSON.stringify(body) : undefined,
+  });
   if (!res.ok) throw new Error(`${method} ${path}: ${res.status} ${await res.text()}`);
   return res.status === 204 ? undefined : res.json();
 };
@@ -39,10 +43,23 @@ beforeAll(async () => {
       ehr: { fhirBaseUrl: ehr.fhirBaseUrl, tokenUrl: ehr.tokenUrl },
       mail: { smtpPort: ehr.smtpPort },
       delivery: {
-        bundleSize: 1, claimBatch: 8, concurrency: 4, leaseSeconds: 1, requestTimeoutMs: 10_000, retry: { limit: 5, baseMs: 20, maxMs: 100 },
+        bundleSize: 1,
+        claimBatch: 8,
+        concurrency: 4,
+        leaseSeconds: 1,
+        requestTimeoutMs: 10_000,
+        retry: { limit: 5, baseMs: 20, maxMs: 100 },
         // Rows waiting for context are not looked at again within a test (drains end when nothing else is due).
         patientContext: { cacheSeconds: 600, retrySeconds: 60 },
-        alerts: { enabled: false, checkIntervalMs: 100, downMinutes: 10, failureThreshold: 1000, failureWindowMinutes: 60, recipients: ['icu-oncall@harrowmere.example'], consoleUrl: 'http://console.harrowmere.example' },
+        alerts: {
+          enabled: false,
+          checkIntervalMs: 100,
+          downMinutes: 10,
+          failureThreshold: 1000,
+          failureWindowMinutes: 60,
+          recipients: ['icu-oncall@harrowmere.example'],
+          consoleUrl: 'http://console.harrowmere.example',
+        },
         hl7: { enabled: true, host: '127.0.0.1', port: ehr.mllpPort, sendingFacility: 'HGH', receivingApplication: 'HGH-EHR' },
       },
     },
@@ -66,7 +83,13 @@ async function drain(...workers: DeliveryParts['worker'][]): Promise<void> {
 }
 
 const fhirRows = (ids: string[]) =>
-  gw.ctx.ds.getRepository(DeliveryRow).createQueryBuilder('d').where('d.assessment_id IN (:...ids)', { ids }).andWhere('d.destination_id = :d', { d: FHIR_DESTINATION_ID }).orderBy('d.id').getMany();
+  gw.ctx.ds
+    .getRepository(DeliveryRow)
+    .createQueryBuilder('d')
+    .where('d.assessment_id IN (:...ids)', { ids })
+    .andWhere('d.destination_id = :d', { d: FHIR_DESTINATION_ID })
+    .orderBy('d.id')
+    .getMany();
 const subjectOf = (r: DeliveryRow) => (r.payload as { subject?: { reference?: string } } | null)?.subject?.reference;
 const at = (iso: string, deltaMs: number) => new Date(Date.parse(iso) + deltaMs);
 
@@ -81,7 +104,10 @@ describe('the patient in force at the window time', () => {
 
     const discharge = (await adminCall('POST', '/adt/discharge', { location: 'ICU-02' })) as { at: string };
     await new Promise((r) => setTimeout(r, 20));
-    const admit = (await adminCall('POST', '/adt/admit', { location: 'ICU-02', patient: { mrn: 'HGH-409120', family: 'Thornquist', given: ['Ada'], sex: 'female', birthDate: '1961-04-02' } })) as { at: string; patientId: string };
+    const admit = (await adminCall('POST', '/adt/admit', {
+      location: 'ICU-02',
+      patient: { mrn: 'HGH-409120', family: 'Thornquist', given: ['Ada'], sex: 'female', birthDate: '1961-04-02' },
+    })) as { at: string; patientId: string };
 
     const before = await storeAssessment(gw.ctx.ds, m, at(discharge.at, -40_000)); // ends 10 s before the discharge
     const spanning = await storeAssessment(gw.ctx.ds, m, at(discharge.at, -10_000));
@@ -114,7 +140,9 @@ describe('the patient in force at the window time', () => {
     const na = await fhirRows([newBedAfter.id]);
     expect(ob.every((r) => r.status === 'delivered' && subjectOf(r) === 'Patient/patient-hgh-400388')).toBe(true);
     expect(oa.every((r) => r.status === 'waiting-context')).toBe(true);
-    expect(na.every((r) => r.status === 'delivered' && subjectOf(r) === 'Patient/patient-hgh-400388' && r.encounterRef === `Encounter/${move.encounterId}`)).toBe(true);
+    expect(
+      na.every((r) => r.status === 'delivered' && subjectOf(r) === 'Patient/patient-hgh-400388' && r.encounterRef === `Encounter/${move.encounterId}`),
+    ).toBe(true);
     // The window from before the patient came to ICU-05 still has nobody there.
     expect((await fhirRows([warm.id])).every((r) => r.status === 'waiting-context')).toBe(true);
   });
@@ -137,9 +165,17 @@ describe('amendments', () => {
     const amends = (await fhirRows([a.id])).filter((r) => r.kind === 'amend');
     expect(amends).toHaveLength(4);
     expect(amends.every((r) => r.status === 'delivered' && r.serverId)).toBe(true);
-    const token = await (await fetch(ehr.tokenUrl, { method: 'POST', headers: { 'content-type': 'application/x-www-form-urlencoded' }, body: 'grant_type=client_credentials&client_id=ebbgate-gateway&client_secret=mock-ehr-dev-secret' })).json() as { access_token: string };
+    const token = (await (
+      await fetch(ehr.tokenUrl, {
+        method: 'POST',
+        headers: { 'content-type': 'application/x-www-form-urlencoded' },
+        body: 'grant_type=client_credentials&client_id=ebbgate-gateway&client_secret=mock-ehr-dev-secret',
+      })
+    ).json()) as { access_token: string };
     for (const r of amends) {
-      const obs = (await (await fetch(`${ehr.fhirBaseUrl}/Observation/${r.serverId}`, { headers: { authorization: `Bearer ${token.access_token}` } })).json()) as { status: string; identifier: { value: string }[] };
+      const obs = (await (
+        await fetch(`${ehr.fhirBaseUrl}/Observation/${r.serverId}`, { headers: { authorization: `Bearer ${token.access_token}` } })
+      ).json()) as { status: string; identifier: { value: string }[] };
       expect(obs.status).toBe('entered-in-error');
       expect(obs.identifier.some((i) => i.value === r.identifier)).toBe(true);
     }
@@ -150,20 +186,28 @@ describe('amendments', () => {
     const a = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, windowStart(3));
     await drain(parts.worker);
     // As if the EHR's answer gave no id and the record was merged away at the EHR since.
-    await gw.ctx.ds.query(`UPDATE delivery SET server_id = NULL, identifier = CONCAT(identifier, '-merged') WHERE assessment_id = ? AND destination_id = ? AND index_name = 'ppv'`, [a.id, FHIR_DESTINATION_ID]);
+    await gw.ctx.ds.query(
+      `UPDATE delivery SET server_id = NULL, identifier = CONCAT(identifier, '-merged') WHERE assessment_id = ? AND destination_id = ? AND index_name = 'ppv'`,
+      [a.id, FHIR_DESTINATION_ID],
+    );
     await markInError(gw.ctx.ds, a, 'reviewer-test', 'wrong bed');
     await drain(parts.worker);
     const amend = (await fhirRows([a.id])).find((r) => r.kind === 'amend' && r.indexName === 'ppv')!;
     expect(amend.status).toBe('failed');
     expect(amend.lastError).toMatch(/cannot be found/);
-    const watcher = new AlertWatcher(gw.ctx, async () => ({ recipients: ['icu-oncall@harrowmere.example'], destinationDownMinutes: 10, failureThreshold: 1000 }) as never);
+    const watcher = new AlertWatcher(
+      gw.ctx,
+      async () => ({ recipients: ['icu-oncall@harrowmere.example'], destinationDownMinutes: 10, failureThreshold: 1000 }) as never,
+    );
     await watcher.start();
     try {
       await watcher.check();
     } finally {
       await watcher.stop();
     }
-    const incidents = (await gw.ctx.ds.query(`SELECT kind, open_key FROM alert_incident WHERE destination_id = ? AND kind = 'amendment'`, [FHIR_DESTINATION_ID])) as { kind: string; open_key: string | null }[];
+    const incidents = (await gw.ctx.ds.query(`SELECT kind, open_key FROM alert_incident WHERE destination_id = ? AND kind = 'amendment'`, [
+      FHIR_DESTINATION_ID,
+    ])) as { kind: string; open_key: string | null }[];
     expect(incidents).toEqual([{ kind: 'amendment', open_key: `${FHIR_DESTINATION_ID}:amendment` }]);
   });
 });
@@ -234,7 +278,18 @@ describe('HL7 v2 destination: lease renewal and fencing', () => {
     expect(report.fenced).toBe(stale.rows.length);
     expect(((await adminCall('GET', '/hl7')) as { controlId: string }[]).filter((m) => m.controlId.includes(a.id))).toEqual([]);
     // The fresh claim's own results are applied; a late result of the stale claim is refused.
-    const late = stale.rows.map((row) => ({ row, status: 'delivered' as const, nextAttemptAt: new Date(), countsAsTry: true, httpStatus: null, outcome: 'delivered', detail: 'late', response: null, mode: 'mllp' as const, durationMs: 1 }));
+    const late = stale.rows.map((row) => ({
+      row,
+      status: 'delivered' as const,
+      nextAttemptAt: new Date(),
+      countsAsTry: true,
+      httpStatus: null,
+      outcome: 'delivered',
+      detail: 'late',
+      response: null,
+      mode: 'mllp' as const,
+      durationMs: 1,
+    }));
     expect(await recordAttempts(gw.ctx.ds, late)).toBe(stale.rows.length);
     const rows = await gw.ctx.ds.getRepository(DeliveryRow).findBy({ assessmentId: a.id, destinationId: HL7_DESTINATION_ID });
     expect(rows.every((r) => r.status === 'pending' && r.claimId === fresh.id)).toBe(true);
@@ -244,7 +299,10 @@ describe('HL7 v2 destination: lease renewal and fencing', () => {
 describe('alert mail outbox', () => {
   it('a process that dies after claiming the mail leaves it due; another sends it once with a stable Message-ID', async () => {
     await adminCall('DELETE', '/mail');
-    const inserted = (await gw.ctx.ds.query(`INSERT INTO alert_incident (destination_id, kind, open_key, opened_at, detail) VALUES (?, 'down', ?, ?, 'test: down')`, [HL7_DESTINATION_ID, `${HL7_DESTINATION_ID}:down-test`, new Date()])) as { insertId: number | string };
+    const inserted = (await gw.ctx.ds.query(
+      `INSERT INTO alert_incident (destination_id, kind, open_key, opened_at, detail) VALUES (?, 'down', ?, ?, 'test: down')`,
+      [HL7_DESTINATION_ID, `${HL7_DESTINATION_ID}:down-test`, new Date()],
+    )) as { insertId: number | string };
     const incidentId = String(inserted.insertId);
     const settings = async () => ({ recipients: ['icu-oncall@harrowmere.example'], destinationDownMinutes: 10_000, failureThreshold: 100_000 }) as never;
     // The first process claims, then "dies" inside send (never returns).
@@ -252,7 +310,11 @@ describe('alert mail outbox', () => {
     const first = new AlertWatcher(gw.ctx, settings, () => dying);
     await first.start();
     void first.check();
-    const claimed = await waitFor('the mail claimed', async () => (await gw.ctx.ds.getRepository(AlertMailRow).findOneBy({ incidentId, event: 'opened' })) ?? undefined, 5000);
+    const claimed = await waitFor(
+      'the mail claimed',
+      async () => (await gw.ctx.ds.getRepository(AlertMailRow).findOneBy({ incidentId, event: 'opened' })) ?? undefined,
+      5000,
+    );
     await waitFor('claimed by the first', async () => !!(await gw.ctx.ds.getRepository(AlertMailRow).findOneBy({ id: claimed.id }))?.claimId, 5000);
     expect((await adminCall('GET', '/mail')) as unknown[]).toHaveLength(0);
     void first.stop(); // its send never returns: the process is gone
@@ -267,7 +329,8 @@ describe('alert mail outbox', () => {
       await second.stop();
     }
     // The catcher parses mail asynchronously: wait until it holds ours, then make sure it is one.
-    const mailOf = async () => ((await adminCall('GET', '/mail')) as { subject: string; messageId: string; text: string }[]).filter((x) => x.messageId === claimed.messageId);
+    const mailOf = async () =>
+      ((await adminCall('GET', '/mail')) as { subject: string; messageId: string; text: string }[]).filter((x) => x.messageId === claimed.messageId);
     const state = await gw.ctx.ds.getRepository(AlertMailRow).findOneBy({ id: claimed.id });
     expect(state?.lastError ?? null).toBeNull();
     expect(state?.status).toBe('sent');

@@ -31,19 +31,51 @@ export async function insertBedAndMonitor(ds: DataSource, locationIdentifier: st
   const tag = randomUUID().slice(0, 8);
   const bed: BedRow = { id: randomUUID(), name: `bed ${locationIdentifier} ${tag}`, unit: 'ICU', locationIdentifier, createdAt: now, updatedAt: now };
   await ds.getRepository(BedRow).insert(bed);
-  const monitor = { id: randomUUID(), identifier: `0123456789AB${tag.slice(0, 4).toUpperCase()}`, profileId: null, bedId: bed.id, enabled: true, lastSeenAt: null, dataRate: null, createdAt: now, updatedAt: now } as MonitorRow;
+  const monitor = {
+    id: randomUUID(),
+    identifier: `0123456789AB${tag.slice(0, 4).toUpperCase()}`,
+    profileId: null,
+    bedId: bed.id,
+    enabled: true,
+    lastSeenAt: null,
+    dataRate: null,
+    createdAt: now,
+    updatedAt: now,
+  } as MonitorRow;
   await ds.getRepository(MonitorRow).insert(monitor);
   return { bed, monitor };
 }
 
 /** Stores one assessment and runs the stored-hooks in the same transaction, as the analysis worker does. */
-export async function storeAssessment(ds: DataSource, at: { bedId: string | null; monitorId: string }, windowStart: Date, result: AnalysisResult = engineResult(), hooks = true, extra: Partial<AssessmentRow> = {}): Promise<AssessmentRow> {
+export async function storeAssessment(
+  ds: DataSource,
+  at: { bedId: string | null; monitorId: string },
+  windowStart: Date,
+  result: AnalysisResult = engineResult(),
+  hooks = true,
+  extra: Partial<AssessmentRow> = {},
+): Promise<AssessmentRow> {
   const row: AssessmentRow = {
-    id: randomUUID(), monitorId: at.monitorId, bedId: at.bedId, windowStart, windowEnd: new Date(windowStart.getTime() + 30_000),
-    engineVersion: result.engineVersion, verdict: result.verdict, ppv: result.indices.ppv.value, spv: result.indices.spv.value,
-    deltaPop: result.indices.deltaPop.value, perfusionIndex: result.indices.perfusionIndex.value, heartRate: result.indices.heartRate.value,
-    respiratoryRate: result.indices.respiratoryRate.value, flags: result.flags.map((f) => f.code), result: { ...result, startTime: windowStart.toISOString() },
-    enteredInErrorAt: null, enteredInErrorBy: null, enteredInErrorReason: null, createdAt: new Date(), ...extra,
+    id: randomUUID(),
+    monitorId: at.monitorId,
+    bedId: at.bedId,
+    windowStart,
+    windowEnd: new Date(windowStart.getTime() + 30_000),
+    engineVersion: result.engineVersion,
+    verdict: result.verdict,
+    ppv: result.indices.ppv.value,
+    spv: result.indices.spv.value,
+    deltaPop: result.indices.deltaPop.value,
+    perfusionIndex: result.indices.perfusionIndex.value,
+    heartRate: result.indices.heartRate.value,
+    respiratoryRate: result.indices.respiratoryRate.value,
+    flags: result.flags.map((f) => f.code),
+    result: { ...result, startTime: windowStart.toISOString() },
+    enteredInErrorAt: null,
+    enteredInErrorBy: null,
+    enteredInErrorReason: null,
+    createdAt: new Date(),
+    ...extra,
   } as AssessmentRow;
   await ds.transaction(async (m: EntityManager) => {
     await m.getRepository(AssessmentRow).insert(row);
@@ -95,7 +127,11 @@ export interface MockAdmin {
 
 export function mockAdmin(baseUrl: string): MockAdmin {
   const call = async (method: string, path: string, body?: object) => {
-    const res = await fetch(`${baseUrl}/_admin${path}`, { method, headers: { 'content-type': 'application/json' }, body: body ? JSON.stringify(body) : undefined });
+    const res = await fetch(`${baseUrl}/_admin${path}`, {
+      method,
+      headers: { 'content-type': 'application/json' },
+      body: body ? JSON.stringify(body) : undefined,
+    });
     if (!res.ok) throw new Error(`${method} ${path}: ${res.status} ${await res.text()}`);
     return res.status === 204 ? undefined : res.json();
   };

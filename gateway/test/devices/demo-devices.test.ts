@@ -17,7 +17,9 @@ describe('demo devices seed', () => {
     const first = await seedDemoDevices(gw.ctx.ds);
     const again = await seedDemoDevices(gw.ctx.ds);
     expect(again).toEqual(first);
-    const hospital = JSON.parse(readFileSync(path.join(repoRoot, 'config/demo/hospital.json'), 'utf8')) as { beds: { id: string; locationIdentifier: string }[] };
+    const hospital = JSON.parse(readFileSync(path.join(repoRoot, 'config/demo/hospital.json'), 'utf8')) as {
+      beds: { id: string; locationIdentifier: string }[];
+    };
     const integrator = await gw.signIn('integrator');
     const beds = (await integrator.get('/api/v1/beds?pageSize=500')).body.items as { id: string; locationIdentifier: string; monitorId: string | null }[];
     expect(beds.map((b) => b.id).sort()).toEqual(hospital.beds.map((b) => b.id).sort());

@@ -18,7 +18,12 @@ beforeAll(async () => {
 });
 afterAll(async () => gw?.stop());
 
-interface Paged<T> { items: T[]; page: number; pageSize: number; total: number }
+interface Paged<T> {
+  items: T[];
+  page: number;
+  pageSize: number;
+  total: number;
+}
 
 /** Reads pages 1..n of a list with the given query and checks each page's envelope. */
 async function walk<T>(path: string, query: string, pageSize: number): Promise<{ pages: Paged<T>[]; all: T[] }> {
@@ -134,7 +139,8 @@ describe('GET /beds (server paging)', () => {
     { name: 'PGB-2', unit: 'PGU-EAST', locationIdentifier: 'LOC-PGB-20' },
     { name: 'PGB-4', unit: 'PGU-WEST', locationIdentifier: 'LOC-PGB-40' },
   ];
-  const byUnitThenName = (a: { unit: string; name: string }, b: { unit: string; name: string }) => (a.unit === b.unit ? (a.name < b.name ? -1 : 1) : a.unit < b.unit ? -1 : 1);
+  const byUnitThenName = (a: { unit: string; name: string }, b: { unit: string; name: string }) =>
+    a.unit === b.unit ? (a.name < b.name ? -1 : 1) : a.unit < b.unit ? -1 : 1;
   let monitorOnBed4: string;
   beforeAll(async () => {
     const ids = new Map<string, string>();
@@ -147,12 +153,22 @@ describe('GET /beds (server paging)', () => {
     expect(natural.pages.map((p) => p.items.length)).toEqual([2, 2, 1]);
     expect(natural.all.map((b) => b.name)).toEqual([...beds].sort(byUnitThenName).map((b) => b.name));
     const byLocation = await walk<{ locationIdentifier: string }>('/api/v1/beds', 'search=PGB-&sort=locationIdentifier&order=desc', 3);
-    expect(byLocation.all.map((b) => b.locationIdentifier)).toEqual(beds.map((b) => b.locationIdentifier).sort().reverse());
+    expect(byLocation.all.map((b) => b.locationIdentifier)).toEqual(
+      beds
+        .map((b) => b.locationIdentifier)
+        .sort()
+        .reverse(),
+    );
   });
 
   it('filters by unit and searches name, unit and EHR location; each bed still names its monitor', async () => {
     const west = (await integrator.get('/api/v1/beds?unit=PGU-WEST&sort=name&order=asc')).body as Paged<{ name: string; monitorId: string | null }>;
-    expect(west.items.map((b) => b.name)).toEqual(beds.filter((b) => b.unit === 'PGU-WEST').map((b) => b.name).sort());
+    expect(west.items.map((b) => b.name)).toEqual(
+      beds
+        .filter((b) => b.unit === 'PGU-WEST')
+        .map((b) => b.name)
+        .sort(),
+    );
     expect(west.items.find((b) => b.name === 'PGB-4')?.monitorId).toBe(monitorOnBed4);
     expect(west.items.filter((b) => b.monitorId).length).toBe(1);
     const loc = (await integrator.get('/api/v1/beds?search=LOC-PGB-20')).body as Paged<{ name: string }>;
@@ -171,8 +187,14 @@ describe('the API description of the device lists', () => {
     expect(res.status).toBe(200);
     const paths = res.body.paths as Record<string, { get?: { parameters?: { name: string; in: string; schema?: { enum?: string[] } }[] } }>;
     const params = (p: string) => Object.entries(paths).find(([k]) => k.endsWith(p))?.[1].get?.parameters ?? [];
-    for (const [p, filters, sorts] of [['/profiles', ['search'], profileSortFields], ['/monitors', ['search', 'profileId', 'bedId', 'enabled'], monitorSortFields], ['/beds', ['search', 'unit'], bedSortFields]] as const) {
-      const names = params(p).filter((x) => x.in === 'query').map((x) => x.name);
+    for (const [p, filters, sorts] of [
+      ['/profiles', ['search'], profileSortFields],
+      ['/monitors', ['search', 'profileId', 'bedId', 'enabled'], monitorSortFields],
+      ['/beds', ['search', 'unit'], bedSortFields],
+    ] as const) {
+      const names = params(p)
+        .filter((x) => x.in === 'query')
+        .map((x) => x.name);
       expect(names).toEqual(expect.arrayContaining(['page', 'pageSize', 'sort', 'order', ...filters]));
       expect(params(p).find((x) => x.name === 'sort')?.schema?.enum).toEqual([...sorts]);
     }

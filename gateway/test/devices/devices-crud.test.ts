@@ -13,7 +13,8 @@ beforeAll(async () => {
 });
 afterAll(async () => gw?.stop());
 
-const auditOf = async (action: string) => (await admin.get(`/api/v1/audit?action=${action}`)).body.items as { entityId: string; before: unknown; after: unknown }[];
+const auditOf = async (action: string) =>
+  (await admin.get(`/api/v1/audit?action=${action}`)).body.items as { entityId: string; before: unknown; after: unknown }[];
 
 describe('monitor profiles', () => {
   it('creates, reads, replaces and deletes a profile, auditing each change', async () => {

@@ -70,7 +70,12 @@ describe('the permission check comes before the body', () => {
 
   it('answers a signed-in person without the permission with 403 before the body is sent', async () => {
     const reviewer = await gw.signIn('reviewer');
-    const status = await partialUpload('/api/v1/analysis/preview', { 'content-type': 'multipart/form-data; boundary=xyz', cookie: reviewer.cookies.join('; '), 'x-csrf-token': reviewer.csrfToken }, 8 * 1024 * 1024, 64 * 1024);
+    const status = await partialUpload(
+      '/api/v1/analysis/preview',
+      { 'content-type': 'multipart/form-data; boundary=xyz', cookie: reviewer.cookies.join('; '), 'x-csrf-token': reviewer.csrfToken },
+      8 * 1024 * 1024,
+      64 * 1024,
+    );
     expect(status).toBe(403);
   });
 
@@ -89,7 +94,11 @@ describe('slow senders', () => {
   });
 
   it('closes a request whose body drips in slower than the request timeout (2 s)', async () => {
-    const r = await drip('POST /api/v1/auth/sign-in HTTP/1.1\r\nHost: 127.0.0.1\r\nContent-Type: application/json\r\nContent-Length: 100000\r\n\r\n', 200, 8000);
+    const r = await drip(
+      'POST /api/v1/auth/sign-in HTTP/1.1\r\nHost: 127.0.0.1\r\nContent-Type: application/json\r\nContent-Length: 100000\r\n\r\n',
+      200,
+      8000,
+    );
     expect(r.closedAfterMs).not.toBeNull();
     expect(r.closedAfterMs!).toBeLessThan(7000);
   });
@@ -149,9 +158,16 @@ describe('operations endpoints', () => {
   it('stores a valid x-request-id and replaces an invalid one before logging or storing it', async () => {
     const cases = ['ok.id-1_A', 'x'.repeat(65), "a'; DROP TABLE audit_entry; --", 'multi\u00e9byte'];
     for (const [i, id] of cases.entries()) {
-      await request(gw.server).post('/api/v1/auth/sign-in').set('X-Forwarded-For', `10.98.0.${i}`).set('X-Request-Id', id).send({ username: `rid.probe.${i}`, password: 'Whatever-123' }).expect(401);
+      await request(gw.server)
+        .post('/api/v1/auth/sign-in')
+        .set('X-Forwarded-For', `10.98.0.${i}`)
+        .set('X-Request-Id', id)
+        .send({ username: `rid.probe.${i}`, password: 'Whatever-123' })
+        .expect(401);
     }
-    const rows = (await gw.ctx.ds.query("SELECT after, request_id AS requestId FROM audit_entry WHERE action = 'auth.sign-in-failed' AND after LIKE '%rid.probe.%' ORDER BY id")) as { after: string; requestId: string }[];
+    const rows = (await gw.ctx.ds.query(
+      "SELECT after, request_id AS requestId FROM audit_entry WHERE action = 'auth.sign-in-failed' AND after LIKE '%rid.probe.%' ORDER BY id",
+    )) as { after: string; requestId: string }[];
     expect(rows).toHaveLength(4);
     expect(rows[0]!.requestId).toBe('ok.id-1_A');
     for (const r of rows.slice(1)) expect(r.requestId).toMatch(/^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/);

@@ -20,7 +20,9 @@ describe('OpenAPI document', () => {
     expect(res.body.openapi).toBe('3.1.0');
     const result = await validate(structuredClone(res.body));
     expect(result.valid, JSON.stringify(result.valid ? [] : result.errors, null, 2).slice(0, 2000)).toBe(true);
-    const documented = Object.entries(res.body.paths as Record<string, Record<string, unknown>>).flatMap(([p, ops]) => Object.keys(ops).map((m) => `${m} ${p}`));
+    const documented = Object.entries(res.body.paths as Record<string, Record<string, unknown>>).flatMap(([p, ops]) =>
+      Object.keys(ops).map((m) => `${m} ${p}`),
+    );
     for (const r of ROUTES) expect(documented).toContain(`${r.method} /api/v1${r.path.replace(/:([A-Za-z0-9_]+)/g, '{$1}')}`);
     // Negative control: the validator does reject a document that breaks the schema.
     const broken = structuredClone(res.body);

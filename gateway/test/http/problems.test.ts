@@ -13,8 +13,25 @@ let app: Express;
 beforeAll(async () => {
   gw = await startTestGateway({ gateway: { jsonBodyLimit: '1kb' } });
   const boom = Router();
-  defineRoute(boom, { method: 'get', path: '/__test/boom', permission: 'public', tag: 'test', summary: 'throws', handler: () => { throw new Error('kaboom'); } });
-  defineRoute(boom, { method: 'post', path: '/__test/echo', permission: 'public', tag: 'test', summary: 'validates', body: z.object({ n: z.number().int(), name: z.string() }), handler: ({ body }) => body });
+  defineRoute(boom, {
+    method: 'get',
+    path: '/__test/boom',
+    permission: 'public',
+    tag: 'test',
+    summary: 'throws',
+    handler: () => {
+      throw new Error('kaboom');
+    },
+  });
+  defineRoute(boom, {
+    method: 'post',
+    path: '/__test/echo',
+    permission: 'public',
+    tag: 'test',
+    summary: 'validates',
+    body: z.object({ n: z.number().int(), name: z.string() }),
+    handler: ({ body }) => body,
+  });
   app = createApp(gw.ctx, { routers: [boom] });
 });
 afterAll(async () => gw?.stop());
@@ -43,7 +60,9 @@ describe('problem details', () => {
   });
   it('404 for an unknown route', async () => expectProblem(await request(app).get('/api/v1/no-such-thing'), 404));
   it('413 over the body size limit', async () => {
-    const res = await request(app).post('/api/v1/__test/echo').send({ n: 1, name: 'x'.repeat(5000) });
+    const res = await request(app)
+      .post('/api/v1/__test/echo')
+      .send({ n: 1, name: 'x'.repeat(5000) });
     expectProblem(res, 413);
   });
   it('415 for a body that is not JSON', async () => {

@@ -28,7 +28,8 @@ describe('sort keys', () => {
 
   it('answer 400 for an unknown key on every list route, including inherited object keys', async () => {
     for (const r of ROUTES.filter(takesSort)) {
-      const role = r.permission === PUBLIC ? 'admin' : ROLES.find((x) => (PERMISSIONS[r.permission as keyof typeof PERMISSIONS] as readonly string[]).includes(x));
+      const role =
+        r.permission === PUBLIC ? 'admin' : ROLES.find((x) => (PERMISSIONS[r.permission as keyof typeof PERMISSIONS] as readonly string[]).includes(x));
       if (!role) continue; // device-only list routes do not exist
       for (const key of ['no_such_column', 'constructor', '__proto__', 'toString', 'id; DROP TABLE app_user']) {
         const res = await clients[role].get(`/api/v1${r.path}?sort=${encodeURIComponent(key)}`);

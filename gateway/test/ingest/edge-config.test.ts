@@ -6,8 +6,12 @@ const base = { database: { url: 'mysql://u:p@127.0.0.1:1/x' }, auth: { jwtSecret
 describe('configuration of the edge', () => {
   it('refuses plain-HTTP EHR URLs in production, names each, and allows them in development', () => {
     expect(() => loadConfig({ NODE_ENV: 'production' }, base)).toThrow(ConfigError);
-    expect(() => loadConfig({ NODE_ENV: 'production' }, { ...base, ehr: { fhirBaseUrl: 'https://ehr.example/fhir' } })).toThrow(/ehr\.tokenUrl: must be an https:\/\/ URL in production/);
-    expect(loadConfig({ NODE_ENV: 'production' }, { ...base, ehr: { fhirBaseUrl: 'https://ehr.example/fhir', tokenUrl: 'https://ehr.example/token' } }).ehr.tokenUrl).toBe('https://ehr.example/token');
+    expect(() => loadConfig({ NODE_ENV: 'production' }, { ...base, ehr: { fhirBaseUrl: 'https://ehr.example/fhir' } })).toThrow(
+      /ehr\.tokenUrl: must be an https:\/\/ URL in production/,
+    );
+    expect(
+      loadConfig({ NODE_ENV: 'production' }, { ...base, ehr: { fhirBaseUrl: 'https://ehr.example/fhir', tokenUrl: 'https://ehr.example/token' } }).ehr.tokenUrl,
+    ).toBe('https://ehr.example/token');
     expect(loadConfig({ NODE_ENV: 'development' }, base).ehr.fhirBaseUrl).toMatch(/^http:/);
   });
 

@@ -30,7 +30,13 @@ afterAll(async () => {
 
 describe('MLLP backpressure', () => {
   it('stops reading from a connection while maxPendingFrames wait for their ACK, and resumes after', async () => {
-    const frame = (i: number) => Buffer.concat([Buffer.from([0x0b]), Buffer.from(`MSH|^~\\&|A|B|C|D|20261201||ORU^R01|bp-${i}|P|2.6\r`), Buffer.alloc(1_000_000, 0x41), Buffer.from([0x1c, 0x0d])]);
+    const frame = (i: number) =>
+      Buffer.concat([
+        Buffer.from([0x0b]),
+        Buffer.from(`MSH|^~\\&|A|B|C|D|20261201||ORU^R01|bp-${i}|P|2.6\r`),
+        Buffer.alloc(1_000_000, 0x41),
+        Buffer.from([0x1c, 0x0d]),
+      ]);
     const socket = net.connect({ host: '127.0.0.1', port: listener.port });
     await new Promise<void>((r) => socket.once('connect', () => r()));
     let answers = 0;

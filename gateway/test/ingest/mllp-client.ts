@@ -58,7 +58,10 @@ export class RawMllpPeer {
 
 /** MSA-1 and MSA-2 and the ERR-3 codes of an ACK. */
 export function readAck(ack: string) {
-  const segs = ack.split('\r').filter(Boolean).map((s) => s.split('|'));
+  const segs = ack
+    .split('\r')
+    .filter(Boolean)
+    .map((s) => s.split('|'));
   const msa = segs.find((s) => s[0] === 'MSA') ?? [];
   return { code: msa[1], controlId: msa[2], errors: segs.filter((s) => s[0] === 'ERR').map((s) => ({ location: s[2], code: s[3], text: s[8] })) };
 }

@@ -35,7 +35,9 @@ describe('MLLP listener', () => {
     peer.send(buildPcd01({ controlId: 'ok-1', equipment: '0123456789ABCD01', start, waves, heartRate: 75 }));
     const [ack] = await peer.answers(1);
     expect(readAck(ack!)).toMatchObject({ code: 'AA', controlId: 'ok-1', errors: [] });
-    const rows = (await gw.ctx.ds.query("SELECT s.role, s.sample_count, s.start_time FROM waveform_segment s JOIN inbound_message m ON m.id = s.inbound_message_id WHERE m.batch_id = 'ok-1' ORDER BY s.id")) as {
+    const rows = (await gw.ctx.ds.query(
+      "SELECT s.role, s.sample_count, s.start_time FROM waveform_segment s JOIN inbound_message m ON m.id = s.inbound_message_id WHERE m.batch_id = 'ok-1' ORDER BY s.id",
+    )) as {
       role: string;
       sample_count: number;
       start_time: Date;
@@ -78,7 +80,9 @@ describe('MLLP listener', () => {
     peer.send('PID|not a message');
     const [, notHl7] = await peer.answers(2);
     expect(readAck(notHl7!)).toMatchObject({ code: 'AR' });
-    peer.send(buildPcd01({ controlId: 'big-1', equipment: '0123456789ABCD01', start, waves: [{ ...waves[0]!, samples: new Float64Array(60_000).fill(100.123) }] }));
+    peer.send(
+      buildPcd01({ controlId: 'big-1', equipment: '0123456789ABCD01', start, waves: [{ ...waves[0]!, samples: new Float64Array(60_000).fill(100.123) }] }),
+    );
     const [, , big] = await peer.answers(3);
     expect(readAck(big!)).toMatchObject({ code: 'AR', controlId: 'big-1' });
     expect(readAck(big!).errors[0]!.text).toMatch(/over the limit/);
@@ -104,7 +108,9 @@ describe('MLLP listener', () => {
       ['AA', 'p-2'],
       ['AA', 'p-3'],
     ]);
-    const cont = (await integrator.get('/api/v1/inbound-messages?monitor=0123456789ABCD03&order=asc')).body.items.map((m: { continuity: string }) => m.continuity);
+    const cont = (await integrator.get('/api/v1/inbound-messages?monitor=0123456789ABCD03&order=asc')).body.items.map(
+      (m: { continuity: string }) => m.continuity,
+    );
     expect(cont).toEqual(['first', 'contiguous', 'contiguous']);
     peer.close();
   });
@@ -112,11 +118,23 @@ describe('MLLP listener', () => {
   it('reprocesses a quarantined HL7 message once the profile maps its code', async () => {
     const m = await registerMonitor(integrator, '0123456789ABCD04');
     const peer = await RawMllpPeer.connect(listener.port);
-    peer.send(buildPcd01({ controlId: 'rp-1', equipment: '0123456789ABCD04', start, waves: [{ code: '888888', refId: 'MDC_LOCAL_ART', sampleRate: 125, samples: waves[0]!.samples }] }));
+    peer.send(
+      buildPcd01({
+        controlId: 'rp-1',
+        equipment: '0123456789ABCD04',
+        start,
+        waves: [{ code: '888888', refId: 'MDC_LOCAL_ART', sampleRate: 125, samples: waves[0]!.samples }],
+      }),
+    );
     expect(readAck((await peer.answers(1))[0]!).code).toBe('AE');
     const [q] = (await integrator.get('/api/v1/inbound-messages?outcome=quarantined&monitor=0123456789ABCD04')).body.items;
     const p = corvaneProfile('Corvane BX-7 0123456789ABCD04');
-    await integrator.put(`/api/v1/profiles/${m.profileId}`, { ...p, channels: [...p.channels, { code: 'MDC_LOCAL_ART', role: 'abp', unit: 'mmHg', gain: 1, offset: 0, sampleRate: 125 }] }).expect(200);
+    await integrator
+      .put(`/api/v1/profiles/${m.profileId}`, {
+        ...p,
+        channels: [...p.channels, { code: 'MDC_LOCAL_ART', role: 'abp', unit: 'mmHg', gain: 1, offset: 0, sampleRate: 125 }],
+      })
+      .expect(200);
     const res = await integrator.post(`/api/v1/inbound-messages/${q.id}/reprocess`);
     expect(res.body.result).toBe('reprocessed');
     const segs = await gw.ctx.ds.query('SELECT channel_code FROM waveform_segment WHERE inbound_message_id = ?', [q.id]);

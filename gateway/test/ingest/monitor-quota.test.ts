@@ -10,7 +10,12 @@ beforeAll(async () => {
 });
 afterAll(async () => gw?.stop());
 
-const batch = (monitorId: string, id: string) => ({ monitorId, batchId: id, startTime: '2026-12-01T10:00:00.000Z', channels: [{ code: 'PAW-RAW', sampleRate: 125, samples: encodeSamplesFloat32(new Float32Array(250)) }] });
+const batch = (monitorId: string, id: string) => ({
+  monitorId,
+  batchId: id,
+  startTime: '2026-12-01T10:00:00.000Z',
+  channels: [{ code: 'PAW-RAW', sampleRate: 125, samples: encodeSamplesFloat32(new Float32Array(250)) }],
+});
 
 describe('per-monitor backlog quota', () => {
   it('makes only the monitor over its quota wait (429 with Retry-After); the others go on', async () => {
@@ -19,9 +24,17 @@ describe('per-monitor backlog quota', () => {
     const calm = await registerMonitor(integrator, '02EB6AFFFE00D002');
     // Four windows waiting for the flooded monitor: over its quota of 3, far under the global limit.
     for (let i = 0; i < 4; i++) {
-      await gw.ctx.ds.query("INSERT INTO analysis_window (monitor_id, window_start, window_end, engine_version, status, created_at) VALUES (?, ?, ?, 'x', 'due', ?)", [flooded.monitorId, new Date(Date.UTC(2026, 10, 1, 0, i)), new Date(Date.UTC(2026, 10, 1, 0, i, 30)), new Date()]);
+      await gw.ctx.ds.query(
+        "INSERT INTO analysis_window (monitor_id, window_start, window_end, engine_version, status, created_at) VALUES (?, ?, ?, 'x', 'due', ?)",
+        [flooded.monitorId, new Date(Date.UTC(2026, 10, 1, 0, i)), new Date(Date.UTC(2026, 10, 1, 0, i, 30)), new Date()],
+      );
     }
-    const post = (key: string, body: unknown) => request(gw.server).post('/api/v1/ingest/batches').set('Authorization', `Bearer ${key}`).set('Content-Type', 'application/json').send(JSON.stringify(body));
+    const post = (key: string, body: unknown) =>
+      request(gw.server)
+        .post('/api/v1/ingest/batches')
+        .set('Authorization', `Bearer ${key}`)
+        .set('Content-Type', 'application/json')
+        .send(JSON.stringify(body));
     const refused = await post(flooded.apiKey, batch('02EB6AFFFE00D001', 'q-1'));
     expect(refused.status).toBe(429);
     expect(refused.headers['retry-after']).toBe('2');

@@ -45,7 +45,8 @@ export function buildPcd01(o: Pcd01Options): string {
   ];
   let n = 2;
   if (o.heartRate !== undefined) segs.push(`OBX|${n++}|NM|147842^MDC_ECG_HEART_RATE^MDC|1.1.1.1|${o.heartRate}|264864^MDC_DIM_BEAT_PER_MIN^MDC|||||R|||${t}`);
-  if (o.setRespiratoryRate !== undefined) segs.push(`OBX|${n++}|NM|^MDC_VENT_RESP_RATE_SET^MDC|1.3.1.1|${o.setRespiratoryRate}|264928^MDC_DIM_RESP_PER_MIN^MDC|||||R|||${t}`);
+  if (o.setRespiratoryRate !== undefined)
+    segs.push(`OBX|${n++}|NM|^MDC_VENT_RESP_RATE_SET^MDC|1.3.1.1|${o.setRespiratoryRate}|264928^MDC_DIM_RESP_PER_MIN^MDC|||||R|||${t}`);
   if (o.tidalVolumeMl !== undefined) segs.push(`OBX|${n++}|NM|^MDC_VOL_AWAY_TIDAL_SET^MDC|1.3.1.2|${o.tidalVolumeMl}|263762^MDC_DIM_MILLI_L^MDC|||||R|||${t}`);
   o.waves.forEach((w, i) => {
     const sub = `1.2.${i + 1}.1`;

@@ -20,7 +20,15 @@ function refusalOf(text: string): IngestRefusal {
 
 describe('PCD-01 decoding (IHE PCD Technical Framework Vol. 2 rules)', () => {
   it('reads NA waveform rows with their sample-rate facet, OBX-18 monitor, OBX-14 time and vent numerics', () => {
-    const text = buildPcd01({ controlId: 'M1', equipment: '0123456789ABCDEF', start, waves: [wave], heartRate: 80, setRespiratoryRate: 14, tidalVolumeMl: 450 });
+    const text = buildPcd01({
+      controlId: 'M1',
+      equipment: '0123456789ABCDEF',
+      start,
+      waves: [wave],
+      heartRate: 80,
+      setRespiratoryRate: 14,
+      tidalVolumeMl: 450,
+    });
     const d = decodePcd01(Buffer.from(text));
     expect(d.header).toMatchObject({ controlId: 'M1', version: '2.6', messageType: 'ORU^R01', enhancedMode: false });
     expect(d.batch.monitorIdentifier).toBe('0123456789ABCDEF');
@@ -36,7 +44,9 @@ describe('PCD-01 decoding (IHE PCD Technical Framework Vol. 2 rules)', () => {
 
   it('reads the patient sex from PID-8 (HL7 table 0001: F, M) as analysis context', () => {
     const text = buildPcd01({ controlId: 'M9', equipment: 'AB', start, waves: [wave], tidalVolumeMl: 450 });
-    const withSex = (sex: string) => decodePcd01(Buffer.from(text.replace('PID|||HGH-400117^^^HGH^MR||Quillfeather^Maren', `PID|||HGH-400117^^^HGH^MR||Quillfeather^Maren||19610423|${sex}`))).batch.context;
+    const withSex = (sex: string) =>
+      decodePcd01(Buffer.from(text.replace('PID|||HGH-400117^^^HGH^MR||Quillfeather^Maren', `PID|||HGH-400117^^^HGH^MR||Quillfeather^Maren||19610423|${sex}`)))
+        .batch.context;
     expect(withSex('F')).toEqual({ patientSex: 'female', tidalVolumeMl: 450 });
     expect(withSex('M')).toMatchObject({ patientSex: 'male' });
     expect(withSex('U')).toEqual({ tidalVolumeMl: 450 });
@@ -48,7 +58,9 @@ describe('PCD-01 decoding (IHE PCD Technical Framework Vol. 2 rules)', () => {
   });
 
   it('honours the delimiters declared in MSH-1/MSH-2 and resolves escapes', () => {
-    const text = buildPcd01({ controlId: 'M3', equipment: 'AA', start, waves: [wave] }).replace(/\|/g, '#').replace(/\^/g, '$');
+    const text = buildPcd01({ controlId: 'M3', equipment: 'AA', start, waves: [wave] })
+      .replace(/\|/g, '#')
+      .replace(/\^/g, '$');
     const d = decodePcd01(Buffer.from(text.replace('MSH#$~\\&', 'MSH#$~\\&')));
     expect(d.batch.channels[0]!.sampleRate).toBe(125);
     const msg = parseHl7('MSH|^~\\&|A\r');
@@ -81,7 +93,9 @@ describe('ACK building (HL7 v2 MSA/ERR, table 0357)', () => {
     expect(ok.segments.map((s) => s.name)).toEqual(['MSH', 'MSA']);
     expect(ok.segments[1]!.fields.slice(1, 3)).toEqual(['CA', 'C-9']);
     expect(ok.segments[0]!.fields[9]).toBe('ACK^R01^ACK');
-    const refusal = new IngestRefusal('unmapped', 'Some channels do not match the monitor profile.', [{ path: 'OBX[7].code', message: 'code 1 is not in profile' }]);
+    const refusal = new IngestRefusal('unmapped', 'Some channels do not match the monitor profile.', [
+      { path: 'OBX[7].code', message: 'code 1 is not in profile' },
+    ]);
     const nak = parseHl7(buildAck(header, 'CE', refusal));
     const err = nak.segments[2]!;
     expect(err.name).toBe('ERR');

@@ -15,14 +15,26 @@ describe('retention purge', () => {
   it('deletes segments, messages and finished windows older than the retention, keeping quarantined messages', async () => {
     const integrator = await gw.signIn('integrator');
     const m = await registerMonitor(integrator, 'FEDC000000000001');
-    const post = (body: unknown) => request(gw.server).post('/api/v1/ingest/batches').set('Authorization', `Bearer ${m.apiKey}`).set('Content-Type', 'application/json').send(JSON.stringify(body));
-    const batch = (id: string, start: string) => ({ monitorId: 'FEDC000000000001', batchId: id, startTime: start, channels: [{ code: 'PAW-RAW', sampleRate: 125, samples: encodeSamplesFloat32(new Float32Array(1250)) }] });
+    const post = (body: unknown) =>
+      request(gw.server)
+        .post('/api/v1/ingest/batches')
+        .set('Authorization', `Bearer ${m.apiKey}`)
+        .set('Content-Type', 'application/json')
+        .send(JSON.stringify(body));
+    const batch = (id: string, start: string) => ({
+      monitorId: 'FEDC000000000001',
+      batchId: id,
+      startTime: start,
+      channels: [{ code: 'PAW-RAW', sampleRate: 125, samples: encodeSamplesFloat32(new Float32Array(1250)) }],
+    });
     await post(batch('old', '2026-11-20T00:00:00.000Z')).expect(202);
     await post('not json').expect(400);
     const now = new Date();
     await post(batch('new', new Date(now.getTime() - 60_000).toISOString())).expect(202);
     // Pretend the first two arrived ten days ago.
-    await gw.ctx.ds.query("UPDATE inbound_message SET received_at = ? WHERE batch_id = 'old' OR outcome = 'quarantined'", [new Date(now.getTime() - 10 * 86_400_000)]);
+    await gw.ctx.ds.query("UPDATE inbound_message SET received_at = ? WHERE batch_id = 'old' OR outcome = 'quarantined'", [
+      new Date(now.getTime() - 10 * 86_400_000),
+    ]);
     const counts = await purgeExpired(gw.ctx, now);
     expect(counts.segments).toBe(1);
     expect(counts.inboundMessages).toBe(1);
@@ -39,7 +51,14 @@ describe('retention purge', () => {
 describe('retention of refused input', () => {
   let gw2: TestGateway;
   beforeAll(async () => {
-    gw2 = await startTestGateway({ ingest: { retentionDays: 7, rejectedRetentionDays: 3, quarantineRetentionDays: 20, strangers: { keepBytes: 4096, perSourcePerMinute: 60, retentionDays: 1 } } });
+    gw2 = await startTestGateway({
+      ingest: {
+        retentionDays: 7,
+        rejectedRetentionDays: 3,
+        quarantineRetentionDays: 20,
+        strangers: { keepBytes: 4096, perSourcePerMinute: 60, retentionDays: 1 },
+      },
+    });
   });
   afterAll(async () => gw2?.stop());
 
@@ -59,7 +78,11 @@ describe('retention of refused input', () => {
       ['duplicate', 0, 8, false],
     ];
     for (const [outcome, stranger, age] of rows) {
-      await gw2.ctx.ds.query("INSERT INTO inbound_message (received_at, transport, outcome, size_bytes, raw, stranger) VALUES (?, 'http', ?, 1, 'x', ?)", [ago(age), outcome, stranger]);
+      await gw2.ctx.ds.query("INSERT INTO inbound_message (received_at, transport, outcome, size_bytes, raw, stranger) VALUES (?, 'http', ?, 1, 'x', ?)", [
+        ago(age),
+        outcome,
+        stranger,
+      ]);
     }
     const counts = await purgeExpired(gw2.ctx, now);
     expect(counts).toMatchObject({ strangers: 1, rejected: 2, quarantined: 1, inboundMessages: 1 });

@@ -30,7 +30,10 @@ describe('overview', () => {
     const res = await reviewer.get('/api/v1/overview').expect(200);
     expect(res.body.assessments).toMatchObject({ valid: 2, questionable: 1, notValid: 1 });
     expect(res.body.assessments.series).toHaveLength(60);
-    const total = res.body.assessments.series.reduce((a: number, b: { valid: number; questionable: number; notValid: number }) => a + b.valid + b.questionable + b.notValid, 0);
+    const total = res.body.assessments.series.reduce(
+      (a: number, b: { valid: number; questionable: number; notValid: number }) => a + b.valid + b.questionable + b.notValid,
+      0,
+    );
     expect(total).toBe(4);
     expect(res.body.monitors.total).toBe(1);
   });

@@ -16,13 +16,19 @@ describe('site settings', () => {
     expect(res.body.analysis.bands.length).toBeGreaterThan(0);
     for (const band of res.body.analysis.bands) expect(band.source.length).toBeGreaterThan(3);
     // Michard 2000: PPV 13 % threshold.
-    expect(res.body.analysis.bands.some((b: { index: string; lower: number; source: string }) => b.index === 'ppv' && b.lower === 13 && /Michard/.test(b.source))).toBe(true);
+    expect(
+      res.body.analysis.bands.some((b: { index: string; lower: number; source: string }) => b.index === 'ppv' && b.lower === 13 && /Michard/.test(b.source)),
+    ).toBe(true);
   });
 
   it('are changed by an admin only, validated, and audited per section', async () => {
     const admin = await gw.signIn('admin');
     const current = (await admin.get('/api/v1/settings')).body;
-    const next = { ...current, analysis: { ...current.analysis, cyclesToAverage: 5 }, alerts: { ...current.alerts, recipients: ['night-lead@harrowmere.example'] } };
+    const next = {
+      ...current,
+      analysis: { ...current.analysis, cyclesToAverage: 5 },
+      alerts: { ...current.alerts, recipients: ['night-lead@harrowmere.example'] },
+    };
     const saved = await admin.put('/api/v1/settings', next).expect(200);
     expect(saved.body.analysis.cyclesToAverage).toBe(5);
     const bad = await admin.put('/api/v1/settings', { ...next, alerts: { ...next.alerts, recipients: ['not an address'] } });

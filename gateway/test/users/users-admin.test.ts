@@ -9,11 +9,22 @@ beforeAll(async () => {
 });
 afterAll(async () => gw?.stop());
 
-const auditFor = async (entityId: string) => (await admin.get(`/api/v1/audit?entityType=user&entityId=${entityId}&order=asc`)).body.items as { action: string; before: unknown; after: Record<string, unknown>; actorName: string }[];
+const auditFor = async (entityId: string) =>
+  (await admin.get(`/api/v1/audit?entityType=user&entityId=${entityId}&order=asc`)).body.items as {
+    action: string;
+    before: unknown;
+    after: Record<string, unknown>;
+    actorName: string;
+  }[];
 
 describe('user administration', () => {
   it('creates a user who can sign in with the given roles, audited with the actor', async () => {
-    const res = await admin.post('/api/v1/users', { username: 'nia.nightshift', displayName: 'Nia (night shift)', password: 'Night-shift-2026', roles: ['operator', 'reviewer'] });
+    const res = await admin.post('/api/v1/users', {
+      username: 'nia.nightshift',
+      displayName: 'Nia (night shift)',
+      password: 'Night-shift-2026',
+      roles: ['operator', 'reviewer'],
+    });
     expect(res.status).toBe(201);
     expect(res.body.roles).toEqual(['operator', 'reviewer']);
     const nia = await gw.signIn({ username: 'nia.nightshift', password: 'Night-shift-2026' });
@@ -30,7 +41,12 @@ describe('user administration', () => {
   });
 
   it('refuses a duplicate username with 409', async () => {
-    const res = await admin.post('/api/v1/users', { username: gw.demoUser('operator').username, displayName: 'Dup', password: 'Another-pass-99', roles: ['operator'] });
+    const res = await admin.post('/api/v1/users', {
+      username: gw.demoUser('operator').username,
+      displayName: 'Dup',
+      password: 'Another-pass-99',
+      roles: ['operator'],
+    });
     expect(res.status).toBe(409);
   });
 
@@ -45,7 +61,13 @@ describe('user administration', () => {
     await admin.post(`/api/v1/users/${id}/password`, { password: 'Brand-new-pass-2' }).expect(204);
     await gw.signIn({ username: 'tom.temp', password: 'Brand-new-pass-2' });
     const audit = await auditFor(id);
-    expect(audit.map((a) => a.action).filter((a) => a.startsWith('user.'))).toEqual(['user.create', 'user.change-roles', 'user.disable', 'user.enable', 'user.reset-password']);
+    expect(audit.map((a) => a.action).filter((a) => a.startsWith('user.'))).toEqual([
+      'user.create',
+      'user.change-roles',
+      'user.disable',
+      'user.enable',
+      'user.reset-password',
+    ]);
     expect(audit.find((a) => a.action === 'user.change-roles')).toMatchObject({ before: { roles: ['reviewer'] }, after: { roles: ['integrator'] } });
   });
 
@@ -62,7 +84,10 @@ describe('user administration', () => {
     // Two admins demoting each other at once: exactly one of the two changes may succeed.
     const second = await admin.post('/api/v1/users', { username: 'sam.second', displayName: 'Sam', password: 'Second-admin-9', roles: ['admin'] });
     const sam = await gw.signIn({ username: 'sam.second', password: 'Second-admin-9' });
-    const both = await Promise.all([admin.patch(`/api/v1/users/${second.body.id}`, { roles: ['reviewer'] }), sam.patch(`/api/v1/users/${me}`, { roles: ['reviewer'] })]);
+    const both = await Promise.all([
+      admin.patch(`/api/v1/users/${second.body.id}`, { roles: ['reviewer'] }),
+      sam.patch(`/api/v1/users/${me}`, { roles: ['reviewer'] }),
+    ]);
     expect(both.map((r) => r.status).sort()).toEqual([200, 409]);
     const [{ m }] = (await gw.ctx.ds.query(`SELECT COUNT(*) AS m FROM app_user WHERE disabled = 0 AND roles LIKE '%"admin"%'`)) as { m: number }[];
     expect(Number(m)).toBe(1);

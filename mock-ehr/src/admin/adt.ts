@@ -45,7 +45,8 @@ export class Adt {
       const start = (e.period as { start?: string } | undefined)?.start;
       const loc = this.locationIdentifierOf(((e.location as LocationEntry[] | undefined) ?? [])[0]?.location.reference);
       const subject = (e.subject as { reference?: string } | undefined)?.reference;
-      if (e.status === 'in-progress' && start && loc && subject) this.occupancy.push({ locationIdentifier: loc, patientId: subject.slice('Patient/'.length), encounterId: e.id!, from: start, to: null });
+      if (e.status === 'in-progress' && start && loc && subject)
+        this.occupancy.push({ locationIdentifier: loc, patientId: subject.slice('Patient/'.length), encounterId: e.id!, from: start, to: null });
     }
   }
 
@@ -62,7 +63,9 @@ export class Adt {
     const enc = this.encounter(stay.encounterId);
     const t = at.toISOString();
     const entries = ((enc.location as LocationEntry[] | undefined) ?? []).map((l) =>
-      l.status === 'completed' ? l : { ...l, status: 'completed', period: { ...l.period, start: l.period?.start ?? (enc.period as { start: string }).start, end: t } },
+      l.status === 'completed'
+        ? l
+        : { ...l, status: 'completed', period: { ...l.period, start: l.period?.start ?? (enc.period as { start: string }).start, end: t } },
     );
     entries.push({ location: { reference: `Location/${to.id}`, display: String(to.name ?? toIdentifier) }, status: 'active', period: { start: t } });
     this.store.write({ ...enc, location: entries } as FhirResource & { id: string });
@@ -78,7 +81,9 @@ export class Adt {
     const enc = this.encounter(stay.encounterId);
     const t = at.toISOString();
     const entries = ((enc.location as LocationEntry[] | undefined) ?? []).map((l) =>
-      l.status === 'completed' ? l : { ...l, status: 'completed', period: { ...l.period, start: l.period?.start ?? (enc.period as { start: string }).start, end: t } },
+      l.status === 'completed'
+        ? l
+        : { ...l, status: 'completed', period: { ...l.period, start: l.period?.start ?? (enc.period as { start: string }).start, end: t } },
     );
     this.store.write({ ...enc, status: 'finished', period: { ...(enc.period as Obj), end: t }, location: entries } as FhirResource & { id: string });
     stay.to = t;
@@ -86,21 +91,39 @@ export class Adt {
   }
 
   /** A new patient (made up by the caller) is admitted to a free bed. */
-  admit(identifier: string, p: { mrn: string; family: string; given: string[]; sex: 'female' | 'male' | 'other' | 'unknown'; birthDate: string }, at = new Date()): AdtEvent {
+  admit(
+    identifier: string,
+    p: { mrn: string; family: string; given: string[]; sex: 'female' | 'male' | 'other' | 'unknown'; birthDate: string },
+    at = new Date(),
+  ): AdtEvent {
     if (this.current(identifier)) throw FhirError.of(409, 'conflict', `${identifier} is occupied`);
     const loc = this.location(identifier);
     const patientId = patientIdFor(p.mrn);
     const t = at.toISOString();
     this.store.write({
-      resourceType: 'Patient', id: patientId, active: true,
-      identifier: [{ use: 'usual', type: { coding: [{ system: 'http://terminology.hl7.org/CodeSystem/v2-0203', code: 'MR', display: 'Medical record number' }] }, system: MRN_SYSTEM, value: p.mrn }],
-      name: [{ use: 'official', family: p.family, given: p.given }], gender: p.sex, birthDate: p.birthDate,
+      resourceType: 'Patient',
+      id: patientId,
+      active: true,
+      identifier: [
+        {
+          use: 'usual',
+          type: { coding: [{ system: 'http://terminology.hl7.org/CodeSystem/v2-0203', code: 'MR', display: 'Medical record number' }] },
+          system: MRN_SYSTEM,
+          value: p.mrn,
+        },
+      ],
+      name: [{ use: 'official', family: p.family, given: p.given }],
+      gender: p.sex,
+      birthDate: p.birthDate,
     } as FhirResource & { id: string });
     const encounterId = `enc-${randomUUID().slice(0, 12)}`;
     this.store.write({
-      resourceType: 'Encounter', id: encounterId, status: 'in-progress',
+      resourceType: 'Encounter',
+      id: encounterId,
+      status: 'in-progress',
       class: { system: 'http://terminology.hl7.org/CodeSystem/v3-ActCode', code: 'IMP', display: 'inpatient encounter' },
-      subject: { reference: `Patient/${patientId}` }, period: { start: t },
+      subject: { reference: `Patient/${patientId}` },
+      period: { start: t },
       location: [{ location: { reference: `Location/${loc.id}`, display: String(loc.name ?? identifier) }, status: 'active', period: { start: t } }],
     } as FhirResource & { id: string });
     this.occupancy.push({ locationIdentifier: identifier, patientId, encounterId, from: t, to: null });

@@ -30,8 +30,11 @@ export interface AdminDeps {
 }
 
 const adtPatientSchema = z.object({
-  mrn: z.string().min(1).max(32), family: z.string().min(1).max(64), given: z.array(z.string().min(1).max(64)).min(1).max(3),
-  sex: z.enum(['female', 'male', 'other', 'unknown']), birthDate: z.string().regex(/^\d{4}-\d{2}-\d{2}$/),
+  mrn: z.string().min(1).max(32),
+  family: z.string().min(1).max(64),
+  given: z.array(z.string().min(1).max(64)).min(1).max(3),
+  sex: z.enum(['female', 'male', 'other', 'unknown']),
+  birthDate: z.string().regex(/^\d{4}-\d{2}-\d{2}$/),
 });
 
 function parseBody<T>(schema: z.ZodType<T>, req: Request, res: Response): T | undefined {
@@ -83,7 +86,13 @@ export function adminRouter(d: AdminDeps): express.Router {
   r.get('/_admin/hospital', (_req, res) => void res.json(d.hospital));
 
   r.get('/_admin/requests', (req, res) => {
-    const limit = z.coerce.number().int().min(1).max(1000).default(100).safeParse(req.query.limit ?? undefined);
+    const limit = z.coerce
+      .number()
+      .int()
+      .min(1)
+      .max(1000)
+      .default(100)
+      .safeParse(req.query.limit ?? undefined);
     if (!limit.success) return sendProblem(res, 400, 'Invalid limit', 'limit must be an integer from 1 to 1000');
     res.json(d.requests.last(limit.data));
   });

@@ -29,7 +29,11 @@ export type FaultDecision =
   | { kind: 'hang'; latencyMs: number }
   | { kind: 'drop'; latencyMs: number };
 
-interface LiveRule { rule: FaultRule; seen: number; injected: number }
+interface LiveRule {
+  rule: FaultRule;
+  seen: number;
+  injected: number;
+}
 
 /** Evenly spread trigger for a fraction: true on the requests where floor(n·rate) steps up. */
 function every(rate: number, n: number): boolean {

@@ -24,7 +24,8 @@ export function injectFaults(faults: FaultInjector): RequestHandler {
     const decision = faults.decide(faultScopes(req));
     const act = () => {
       switch (decision.kind) {
-        case 'none': return next();
+        case 'none':
+          return next();
         case 'drop':
           res.locals.fault = 'drop';
           return req.socket.destroy();
@@ -48,7 +49,10 @@ function answerError(req: Request, res: Response, status: number, retryAfterSeco
     return;
   }
   if (status === 401) res.set('WWW-Authenticate', 'Bearer realm="mock-ehr", error="invalid_token"');
-  res.status(status).type('application/fhir+json').send(JSON.stringify(operationOutcome([
-    { severity: 'error', code: ISSUE_FOR_STATUS[status] ?? 'exception', diagnostics: `injected fault: HTTP ${status}` },
-  ])));
+  res
+    .status(status)
+    .type('application/fhir+json')
+    .send(
+      JSON.stringify(operationOutcome([{ severity: 'error', code: ISSUE_FOR_STATUS[status] ?? 'exception', diagnostics: `injected fault: HTTP ${status}` }])),
+    );
 }

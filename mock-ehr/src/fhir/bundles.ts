@@ -31,4 +31,11 @@ export function versionedLocation(r: FhirResource): string {
   return `${r.resourceType}/${r.id}/_history/${r.meta?.versionId ?? '1'}`;
 }
 
-export const STATUS_TEXT: Record<number, string> = { 200: 'OK', 201: 'Created', 400: 'Bad Request', 404: 'Not Found', 412: 'Precondition Failed', 422: 'Unprocessable Entity' };
+export const STATUS_TEXT: Record<number, string> = {
+  200: 'OK',
+  201: 'Created',
+  400: 'Bad Request',
+  404: 'Not Found',
+  412: 'Precondition Failed',
+  422: 'Unprocessable Entity',
+};

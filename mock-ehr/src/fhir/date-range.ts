@@ -42,13 +42,21 @@ export type DatePrefix = 'eq' | 'ne' | 'gt' | 'lt' | 'ge' | 'le' | 'sa' | 'eb';
 /** Does the target interval satisfy `prefix search`? Semantics from the FHIR R4 search page, simplified to intervals. */
 export function matchesDate(prefix: DatePrefix, search: Interval, target: Interval): boolean {
   switch (prefix) {
-    case 'eq': return target.lo >= search.lo && target.hi <= search.hi;
-    case 'ne': return !(target.lo >= search.lo && target.hi <= search.hi);
-    case 'gt': return target.hi > search.hi;
-    case 'lt': return target.lo < search.lo;
-    case 'ge': return target.hi > search.lo;
-    case 'le': return target.lo < search.hi;
-    case 'sa': return target.lo >= search.hi;
-    case 'eb': return target.hi <= search.lo;
+    case 'eq':
+      return target.lo >= search.lo && target.hi <= search.hi;
+    case 'ne':
+      return !(target.lo >= search.lo && target.hi <= search.hi);
+    case 'gt':
+      return target.hi > search.hi;
+    case 'lt':
+      return target.lo < search.lo;
+    case 'ge':
+      return target.hi > search.lo;
+    case 'le':
+      return target.lo < search.hi;
+    case 'sa':
+      return target.lo >= search.hi;
+    case 'eb':
+      return target.hi <= search.lo;
   }
 }

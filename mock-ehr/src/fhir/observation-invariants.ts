@@ -15,7 +15,8 @@ export function checkObservationInvariants(obs: FhirResource, base = 'Observatio
   const issues: OutcomeIssue[] = [];
   if (obs.dataAbsentReason !== undefined && hasValueX(obs)) {
     issues.push({
-      severity: 'error', code: 'invariant',
+      severity: 'error',
+      code: 'invariant',
       diagnostics: 'obs-6: dataAbsentReason SHALL only be present if Observation.value[x] is not present',
       expression: [`${base}.dataAbsentReason`],
     });
@@ -26,8 +27,10 @@ export function checkObservationInvariants(obs: FhirResource, base = 'Observatio
     components.forEach((c, i) => {
       if (codings(c.code).some((cc) => rootCodings.some((rc) => sameCoding(cc, rc)))) {
         issues.push({
-          severity: 'error', code: 'invariant',
-          diagnostics: 'obs-7: if Observation.code is the same as an Observation.component.code then the value element associated with the code SHALL NOT be present',
+          severity: 'error',
+          code: 'invariant',
+          diagnostics:
+            'obs-7: if Observation.code is the same as an Observation.component.code then the value element associated with the code SHALL NOT be present',
           expression: [`${base}.component[${i}].code`],
         });
       }

@@ -3,9 +3,26 @@
 export type IssueSeverity = 'fatal' | 'error' | 'warning' | 'information';
 /** A subset of the FHIR R4 IssueType value set (http://hl7.org/fhir/issue-type). */
 export type IssueCode =
-  | 'invalid' | 'structure' | 'required' | 'value' | 'invariant' | 'security' | 'login' | 'forbidden'
-  | 'not-found' | 'not-supported' | 'duplicate' | 'multiple-matches' | 'conflict' | 'processing'
-  | 'exception' | 'timeout' | 'throttled' | 'transient' | 'too-costly' | 'informational';
+  | 'invalid'
+  | 'structure'
+  | 'required'
+  | 'value'
+  | 'invariant'
+  | 'security'
+  | 'login'
+  | 'forbidden'
+  | 'not-found'
+  | 'not-supported'
+  | 'duplicate'
+  | 'multiple-matches'
+  | 'conflict'
+  | 'processing'
+  | 'exception'
+  | 'timeout'
+  | 'throttled'
+  | 'transient'
+  | 'too-costly'
+  | 'informational';
 
 export interface OutcomeIssue {
   severity: IssueSeverity;

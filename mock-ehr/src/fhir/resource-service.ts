@@ -89,7 +89,8 @@ export class ResourceService {
     const resource = validateResource(body, type, opts.base);
     const target = matches[0];
     if (target) {
-      if (resource.id && resource.id !== target.id) throw FhirError.of(400, 'invalid', `the body's id "${resource.id}" differs from the matched ${type}/${String(target.id)}`);
+      if (resource.id && resource.id !== target.id)
+        throw FhirError.of(400, 'invalid', `the body's id "${resource.id}" differs from the matched ${type}/${String(target.id)}`);
       return { status: 200, resource: this.store.write({ ...resource, id: target.id! }) };
     }
     if (resource.id && !FHIR_ID.test(resource.id)) throw FhirError.of(400, 'invalid', `"${resource.id}" is not a valid FHIR id`);

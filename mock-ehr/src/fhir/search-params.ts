@@ -3,7 +3,10 @@ import type { FhirResource } from './resource-types.js';
 
 // Search parameters the mock supports, named as in the FHIR R4 search parameter registry.
 
-export interface Token { system?: string; code: string }
+export interface Token {
+  system?: string;
+  code: string;
+}
 export type ParamDef =
   | { kind: 'token'; values: (r: FhirResource) => Token[] }
   | { kind: 'reference'; target?: string; values: (r: FhirResource) => string[] }
@@ -14,11 +17,15 @@ type Obj = Record<string, unknown>;
 const arr = (v: unknown): Obj[] => (Array.isArray(v) ? (v as Obj[]) : v && typeof v === 'object' ? [v as Obj] : []);
 const str = (v: unknown): string | undefined => (typeof v === 'string' ? v : undefined);
 
-const identifiers = (r: FhirResource): Token[] =>
-  arr(r.identifier).flatMap((i) => (str(i.value) ? [{ system: str(i.system), code: i.value as string }] : []));
+const identifiers = (r: FhirResource): Token[] => arr(r.identifier).flatMap((i) => (str(i.value) ? [{ system: str(i.system), code: i.value as string }] : []));
 const codings = (cc: unknown): Token[] =>
-  arr(cc).flatMap((c) => arr(c.coding)).flatMap((c) => (str(c.code) ? [{ system: str(c.system), code: c.code as string }] : []));
-const codeValue = (field: string) => (r: FhirResource): Token[] => (str(r[field]) ? [{ code: r[field] as string }] : []);
+  arr(cc)
+    .flatMap((c) => arr(c.coding))
+    .flatMap((c) => (str(c.code) ? [{ system: str(c.system), code: c.code as string }] : []));
+const codeValue =
+  (field: string) =>
+  (r: FhirResource): Token[] =>
+    str(r[field]) ? [{ code: r[field] as string }] : [];
 const refs = (v: unknown): string[] => arr(v).flatMap((x) => (str(x.reference) ? [x.reference as string] : []));
 const refField = (field: string) => (r: FhirResource) => refs(r[field]);
 

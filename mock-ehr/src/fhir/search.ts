@@ -101,9 +101,7 @@ function matcher(def: ParamDef, modifier: string | undefined, value: string, raw
     }
     case 'string': {
       const v = value.toLowerCase();
-      return modifier === 'exact'
-        ? (r) => def.values(r).some((s) => s === value)
-        : (r) => def.values(r).some((s) => s.toLowerCase().startsWith(v));
+      return modifier === 'exact' ? (r) => def.values(r).some((s) => s === value) : (r) => def.values(r).some((s) => s.toLowerCase().startsWith(v));
     }
     case 'date': {
       const prefix = DATE_PREFIXES.has(value.slice(0, 2)) ? (value.slice(0, 2) as DatePrefix) : 'eq';
@@ -115,7 +113,10 @@ function matcher(def: ParamDef, modifier: string | undefined, value: string, raw
 }
 
 /** Token syntax: `code`, `system|code`, `|code` (no system), `system|` (any code in system). */
-interface TokenQuery { system?: string | null; code?: string }
+interface TokenQuery {
+  system?: string | null;
+  code?: string;
+}
 function parseToken(value: string): TokenQuery {
   const bar = value.indexOf('|');
   if (bar < 0) return { code: value };
@@ -130,7 +131,10 @@ function tokenMatches(want: TokenQuery, t: Token): boolean {
 }
 
 /** `Type/id`, a bare `id` or an absolute URL ending in `Type/id`. */
-interface RefQuery { type?: string; id: string }
+interface RefQuery {
+  type?: string;
+  id: string;
+}
 function normaliseReference(value: string, defaultType?: string): RefQuery {
   const parts = value.split('/').filter(Boolean);
   const hist = parts.indexOf('_history');

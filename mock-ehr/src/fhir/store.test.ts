@@ -5,7 +5,13 @@ import { ResourceStore } from './store.js';
 // The store's own contract (no outside reference: this is the mock's design): versions count up,
 // atomically() undoes every write on failure, and the identifier index follows writes and undos.
 
-const obs = (id: string, value: string) => ({ resourceType: 'Observation', id, identifier: [{ system: 'urn:t', value }], status: 'final', code: { text: 'x' } });
+const obs = (id: string, value: string) => ({
+  resourceType: 'Observation',
+  id,
+  identifier: [{ system: 'urn:t', value }],
+  status: 'final',
+  code: { text: 'x' },
+});
 
 describe('ResourceStore', () => {
   it('counts versions up and keeps the old ones readable', () => {

@@ -27,7 +27,10 @@ export class ResourceStore {
   }
 
   readVersion(type: string, id: string, versionId: string): FhirResource | undefined {
-    return this.byType.get(type)?.get(id)?.find((r) => r.meta?.versionId === versionId);
+    return this.byType
+      .get(type)
+      ?.get(id)
+      ?.find((r) => r.meta?.versionId === versionId);
   }
 
   /** Current versions of every resource of a type, in insertion order. */
@@ -47,9 +50,7 @@ export class ResourceStore {
     const previous = table.get(resource.id);
     this.remember(resource.resourceType, resource.id, previous);
     const versionId = String((previous?.length ?? 0) + 1);
-    const stored = deepFreeze(
-      structuredClone({ ...resource, meta: { ...resource.meta, versionId, lastUpdated: now.toISOString() } }),
-    );
+    const stored = deepFreeze(structuredClone({ ...resource, meta: { ...resource.meta, versionId, lastUpdated: now.toISOString() } }));
     if (previous) this.unindex(previous[previous.length - 1]!);
     table.set(resource.id, [...(previous ?? []), stored]);
     this.index(stored);

@@ -12,19 +12,35 @@ import type { ResourceStore } from './store.js';
 // order POST → PUT → GET inside one store journal that is rolled back on any failure.
 
 type Obj = Record<string, unknown>;
-interface Entry { index: number; method: string; url: string; type: string; resource?: Obj; fullUrl?: string; ifNoneExist?: string }
+interface Entry {
+  index: number;
+  method: string;
+  url: string;
+  type: string;
+  resource?: Obj;
+  fullUrl?: string;
+  ifNoneExist?: string;
+}
 interface Planned extends Entry {
   id?: string;
   existing?: FhirResource;
   /** An earlier entry of this Bundle with the same conditional create: this one answers its resource. */
   sameAsEarlier?: boolean;
 }
-interface EntryAnswer { status: number; resource?: FhirResource; outcome?: unknown }
+interface EntryAnswer {
+  status: number;
+  resource?: FhirResource;
+  outcome?: unknown;
+}
 
-export function processBundle(body: unknown, deps: { store: ResourceStore; service: ResourceService; fhirBase: string; minimal: boolean; quirks?: Quirks }): FhirResource {
+export function processBundle(
+  body: unknown,
+  deps: { store: ResourceStore; service: ResourceService; fhirBase: string; minimal: boolean; quirks?: Quirks },
+): FhirResource {
   const bundle = body as Obj | undefined;
   if (!bundle || bundle.resourceType !== 'Bundle') throw FhirError.of(400, 'invalid', 'POST to the base URL takes a Bundle', ['Bundle']);
-  if (bundle.type !== 'transaction' && bundle.type !== 'batch') throw FhirError.of(400, 'invalid', `Bundle.type must be transaction or batch, not ${String(bundle.type)}`, ['Bundle.type']);
+  if (bundle.type !== 'transaction' && bundle.type !== 'batch')
+    throw FhirError.of(400, 'invalid', `Bundle.type must be transaction or batch, not ${String(bundle.type)}`, ['Bundle.type']);
   const entries = readEntries(bundle);
   const answers = new Map<number, EntryAnswer>();
   if (bundle.type === 'transaction') {
@@ -66,13 +82,18 @@ function readEntries(bundle: Obj): Entry[] {
       throw FhirError.of(400, 'required', `${where}.request needs method and url`, [`${where}.request`]);
     }
     const method = req.method.toUpperCase();
-    if (!['POST', 'PUT', 'GET'].includes(method)) throw FhirError.of(400, 'not-supported', `${where}: method ${method} is not supported`, [`${where}.request.method`]);
+    if (!['POST', 'PUT', 'GET'].includes(method))
+      throw FhirError.of(400, 'not-supported', `${where}: method ${method} is not supported`, [`${where}.request.method`]);
     const url = req.url.replace(/^\//, '');
     const type = url.split(/[/?]/)[0]!;
     if (!isSupportedType(type)) throw FhirError.of(400, 'not-supported', `${where}: resource type ${type} is not supported`, [`${where}.request.url`]);
-    if (method !== 'GET' && (!x.resource || typeof x.resource !== 'object')) throw FhirError.of(400, 'required', `${where}.resource is required for ${method}`, [`${where}.resource`]);
+    if (method !== 'GET' && (!x.resource || typeof x.resource !== 'object'))
+      throw FhirError.of(400, 'required', `${where}.resource is required for ${method}`, [`${where}.resource`]);
     return {
-      index, method, url, type,
+      index,
+      method,
+      url,
+      type,
       resource: x.resource as Obj | undefined,
       fullUrl: typeof x.fullUrl === 'string' ? x.fullUrl : undefined,
       ifNoneExist: typeof req.ifNoneExist === 'string' ? req.ifNoneExist : undefined,
@@ -128,7 +149,12 @@ function rewriteReferences(planned: Planned[], store: ResourceStore): void {
       if (/^[A-Z][A-Za-z]+\?/.test(ref)) {
         const type = ref.slice(0, ref.indexOf('?'));
         const matches = findMatches(store, type, ref);
-        if (matches.length !== 1) throw FhirError.of(412, 'multiple-matches', `Bundle.entry[${e.index}]: conditional reference ${ref} matched ${matches.length} resources (needs exactly 1)`);
+        if (matches.length !== 1)
+          throw FhirError.of(
+            412,
+            'multiple-matches',
+            `Bundle.entry[${e.index}]: conditional reference ${ref} matched ${matches.length} resources (needs exactly 1)`,
+          );
         return `${type}/${matches[0]!.id}`;
       }
       return ref;
@@ -194,6 +220,8 @@ function locationOf(r: FhirResource, deps: { fhirBase: string; quirks?: Quirks }
 
 function prefixed(err: unknown, where: string): unknown {
   if (!(err instanceof FhirError)) return err;
-  return new FhirError(err.status, err.issues.map((i) => ({ ...i, diagnostics: i.diagnostics?.startsWith('Bundle.entry') ? i.diagnostics : `${where}: ${i.diagnostics ?? i.code}` })));
+  return new FhirError(
+    err.status,
+    err.issues.map((i) => ({ ...i, diagnostics: i.diagnostics?.startsWith('Bundle.entry') ? i.diagnostics : `${where}: ${i.diagnostics ?? i.code}` })),
+  );
 }
-

@@ -14,11 +14,15 @@ export function readMsh(message: string): MshView | undefined {
   if (!first.startsWith('MSH') || first.length < 8) return undefined;
   const fieldSep = first[3]!;
   const parts = first.split(fieldSep);
-  return { fieldSep, encoding: parts[1] ?? '^~\\&', field: (n) => (n === 1 ? fieldSep : parts[n - 1] ?? '') };
+  return { fieldSep, encoding: parts[1] ?? '^~\\&', field: (n) => (n === 1 ? fieldSep : (parts[n - 1] ?? '')) };
 }
 
 export type AckOutcome = 'accept' | 'error' | 'reject';
-export interface AckError { code: string; text: string; severity?: 'E' | 'W' | 'F' }
+export interface AckError {
+  code: string;
+  text: string;
+  severity?: 'E' | 'W' | 'F';
+}
 
 let sequence = 0;
 function controlId(): string {
@@ -42,10 +46,23 @@ export function buildAck(message: string, outcome: AckOutcome, error?: AckError)
   const code = (enhanced ? 'C' : 'A') + { accept: 'A', error: 'E', reject: 'R' }[outcome];
   const event = msh?.field(9).split('^')[1] ?? '';
   const header = [
-    'MSH', '^~\\&', msh?.field(5) ?? '', msh?.field(6) ?? '', msh?.field(3) ?? '', msh?.field(4) ?? '',
-    hl7Timestamp(), '', `ACK^${event}^ACK`, controlId(), msh?.field(11) || 'P', msh?.field(12) || '2.6',
+    'MSH',
+    '^~\\&',
+    msh?.field(5) ?? '',
+    msh?.field(6) ?? '',
+    msh?.field(3) ?? '',
+    msh?.field(4) ?? '',
+    hl7Timestamp(),
+    '',
+    `ACK^${event}^ACK`,
+    controlId(),
+    msh?.field(11) || 'P',
+    msh?.field(12) || '2.6',
   ].join('|');
   const segments = [header, ['MSA', code, msh?.field(10) ?? '', error ? safeText(error.text) : ''].join('|').replace(/\|+$/, '')];
-  if (error) segments.push(['ERR', '', '', `${error.code}^${error.code === '207' ? 'Application internal error' : safeText(error.text)}^HL70357`, error.severity ?? 'E'].join('|'));
+  if (error)
+    segments.push(
+      ['ERR', '', '', `${error.code}^${error.code === '207' ? 'Application internal error' : safeText(error.text)}^HL70357`, error.severity ?? 'E'].join('|'),
+    );
   return { ack: segments.join('\r'), code };
 }

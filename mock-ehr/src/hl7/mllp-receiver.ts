@@ -28,7 +28,9 @@ const tolerantParser = {
     try {
       const m = realParser.parse(s);
       if (s.startsWith('MSH') && m.header.fields.length >= 11) return m;
-    } catch { /* fall through to the stand-in */ }
+    } catch {
+      /* fall through to the stand-in */
+    }
     return realParser.parse(STAND_IN);
   },
 };
@@ -75,9 +77,14 @@ export class MllpReceiver {
       const { ack, code } = buildAck(message, error ? 'reject' : 'accept', error);
       const controlId = message.split(/\r|\n/)[0]?.split('|')[9] ?? '';
       this.keep({
-        id: this.nextId++, receivedAt: new Date().toISOString(), controlId,
-        messageType: message.split(/\r|\n/)[0]?.split('|')[8] ?? '', ackCode: code,
-        ...(error ? { error: `${error.code}: ${error.text}` } : {}), message, ack,
+        id: this.nextId++,
+        receivedAt: new Date().toISOString(),
+        controlId,
+        messageType: message.split(/\r|\n/)[0]?.split('|')[8] ?? '',
+        ackCode: code,
+        ...(error ? { error: `${error.code}: ${error.text}` } : {}),
+        message,
+        ack,
       });
       this.total++;
       this.byControlId.set(controlId, (this.byControlId.get(controlId) ?? 0) + 1);

@@ -12,7 +12,10 @@ export function checkOru(message: string): AckError | undefined {
   const [type, event] = msh.field(9).split('^');
   if (type !== 'ORU') return { code: '200', text: `message type ${type || '(none)'} is not accepted here (ORU only)` };
   if (event !== 'R01') return { code: '201', text: `event ${event || '(none)'} is not accepted here (R01 only)` };
-  const segments = message.split(/\r\n|\r|\n/).filter(Boolean).map((s) => s.slice(0, 3));
+  const segments = message
+    .split(/\r\n|\r|\n/)
+    .filter(Boolean)
+    .map((s) => s.slice(0, 3));
   if (!segments.includes('OBX')) return { code: '100', text: 'an ORU^R01 needs at least one OBX segment' };
   return undefined;
 }

@@ -68,6 +68,9 @@ function errorHandler(logger: MockEhrLogger): ErrorRequestHandler {
     }
     if (failure.status >= 400 && failure.status < 500) logger.warn(`mock EHR ${req.method} ${req.originalUrl} → ${failure.status}: ${failure.message}`);
     if (res.headersSent) return;
-    res.status(failure.status).type(FHIR_JSON).send(JSON.stringify(operationOutcome(failure.issues)));
+    res
+      .status(failure.status)
+      .type(FHIR_JSON)
+      .send(JSON.stringify(operationOutcome(failure.issues)));
   };
 }

@@ -7,13 +7,15 @@ export function escapeHtml(s: string): string {
 }
 
 export function mailPage(mails: CaughtMail[]): string {
-  const rows = [...mails].reverse().map((m) => `
+  const rows = [...mails].reverse().map(
+    (m) => `
     <article>
       <header><strong>${escapeHtml(m.subject || '(no subject)')}</strong>
         <small>#${m.id} · ${escapeHtml(m.date ?? m.receivedAt)}</small></header>
       <p class="meta">From ${escapeHtml(m.from)} · To ${escapeHtml(m.to.join(', '))}</p>
       <pre>${escapeHtml(m.text)}</pre>
-    </article>`);
+    </article>`,
+  );
   return `<!doctype html>
 <html lang="en"><head><meta charset="utf-8"><title>Mock EHR mail catcher</title>
 <meta http-equiv="refresh" content="10">

@@ -38,8 +38,10 @@ export const hospitalFileSchema = z
   .superRefine((file, ctx) => {
     const units = new Set(file.units.map((u) => u.code));
     file.beds.forEach((bed, i) => {
-      if (units.size > 0 && !units.has(bed.unit)) ctx.addIssue({ code: 'custom', path: ['beds', i, 'unit'], message: `unit ${bed.unit} is not listed in units` });
-      if (!!bed.patient !== !!bed.encounterId) ctx.addIssue({ code: 'custom', path: ['beds', i], message: 'patient and encounterId come together (a bed with a patient has an encounter)' });
+      if (units.size > 0 && !units.has(bed.unit))
+        ctx.addIssue({ code: 'custom', path: ['beds', i, 'unit'], message: `unit ${bed.unit} is not listed in units` });
+      if (!!bed.patient !== !!bed.encounterId)
+        ctx.addIssue({ code: 'custom', path: ['beds', i], message: 'patient and encounterId come together (a bed with a patient has an encounter)' });
     });
   });
 

@@ -14,7 +14,11 @@ export function seedResources(file: HospitalFile, now = new Date()): FhirResourc
   const out: FhirResource[] = [];
   for (const unit of file.units) {
     out.push({
-      resourceType: 'Location', id: `unit-${unit.code.toLowerCase()}`, status: 'active', mode: 'instance', name: unit.name,
+      resourceType: 'Location',
+      id: `unit-${unit.code.toLowerCase()}`,
+      status: 'active',
+      mode: 'instance',
+      name: unit.name,
       identifier: [{ system: LOCATION_SYSTEM, value: unit.code }],
       physicalType: { coding: [{ system: PHYSICAL_TYPE, code: 'wa', display: 'Ward' }] },
       description: file.hospital.name,
@@ -25,7 +29,11 @@ export function seedResources(file: HospitalFile, now = new Date()): FhirResourc
   const started = new Date(now.getTime() - 3 * 3600_000).toISOString();
   for (const bed of file.beds) {
     out.push({
-      resourceType: 'Location', id: bed.id, status: 'active', mode: 'instance', name: bed.name,
+      resourceType: 'Location',
+      id: bed.id,
+      status: 'active',
+      mode: 'instance',
+      name: bed.name,
       identifier: [{ system: LOCATION_SYSTEM, value: bed.locationIdentifier }],
       physicalType: { coding: [{ system: PHYSICAL_TYPE, code: 'bd', display: 'Bed' }] },
       ...(hasUnits.has(bed.unit) ? { partOf: { reference: `Location/unit-${bed.unit.toLowerCase()}` } } : {}),
@@ -34,18 +42,25 @@ export function seedResources(file: HospitalFile, now = new Date()): FhirResourc
     const p = bed.patient;
     const patientId = patientIdFor(p.mrn);
     out.push({
-      resourceType: 'Patient', id: patientId, active: true,
-      identifier: [{
-        use: 'usual',
-        type: { coding: [{ system: 'http://terminology.hl7.org/CodeSystem/v2-0203', code: 'MR', display: 'Medical record number' }] },
-        system: MRN_SYSTEM, value: p.mrn,
-      }],
+      resourceType: 'Patient',
+      id: patientId,
+      active: true,
+      identifier: [
+        {
+          use: 'usual',
+          type: { coding: [{ system: 'http://terminology.hl7.org/CodeSystem/v2-0203', code: 'MR', display: 'Medical record number' }] },
+          system: MRN_SYSTEM,
+          value: p.mrn,
+        },
+      ],
       name: [{ use: 'official', family: p.family, given: p.given }],
       gender: p.sex,
       birthDate: p.birthDate,
     });
     out.push({
-      resourceType: 'Encounter', id: bed.encounterId, status: 'in-progress',
+      resourceType: 'Encounter',
+      id: bed.encounterId,
+      status: 'in-progress',
       class: { system: 'http://terminology.hl7.org/CodeSystem/v3-ActCode', code: 'IMP', display: 'inpatient encounter' },
       subject: { reference: `Patient/${patientId}` },
       period: { start: started },

@@ -4,7 +4,14 @@ import { truthLastCleanCycles } from '../synthetic/test-support/grid-support';
 import { analyseWindow, findFlushTests } from './index';
 import type { AnalysisContext } from './types';
 
-const CONTEXT: AnalysisContext = { tidalVolumeMl: 600, patientHeightCm: 175, patientSex: 'male', ventilationMode: 'controlled', plethScaling: 'raw', probeSite: 'ear' };
+const CONTEXT: AnalysisContext = {
+  tidalVolumeMl: 600,
+  patientHeightCm: 175,
+  patientSex: 'male',
+  ventilationMode: 'controlled',
+  plethScaling: 'raw',
+  probeSite: 'ear',
+};
 
 /** Gardner 1981 (Anesthesiology 54:227): amplitude ratio of successive swings of an under-damped second-order system. */
 const gardnerAmplitudeRatio = (zeta: number): number => Math.exp((-Math.PI * zeta) / Math.sqrt(1 - zeta * zeta));
@@ -36,7 +43,10 @@ describe('fast-flush test: natural frequency and damping ratio (Gardner, Anesthe
     }
 
   it('an over-damped line (ζ 1.3 and 1.6) shows no ringing: over-damped, no ζ claimed', () => {
-    for (const [fn, zeta] of [[6, 1.3], [10, 1.6]]) {
+    for (const [fn, zeta] of [
+      [6, 1.3],
+      [10, 1.6],
+    ]) {
       const [t] = findFlushTests(flushOnSteadyLine(fn, zeta), 500);
       expect(t.region).toBe('over-damped');
       expect(t.dampingRatio).toBeNull();
@@ -51,7 +61,17 @@ describe('fast-flush test: natural frequency and damping ratio (Gardner, Anesthe
   });
 
   it('a flush inside a pulsatile window is found and measured on the window (fn 12 Hz, ζ 0.1 within 15 %)', () => {
-    const w = generateWindow({ seed: 41, heartRate: 80, respiratoryRate: 15, ppv: 12, sampleRate: 250, disturbances: [{ kind: 'flush', start: 20, duration: 1.5 }, { kind: 'catheter', naturalFrequencyHz: 12, dampingRatio: 0.1 }] });
+    const w = generateWindow({
+      seed: 41,
+      heartRate: 80,
+      respiratoryRate: 15,
+      ppv: 12,
+      sampleRate: 250,
+      disturbances: [
+        { kind: 'flush', start: 20, duration: 1.5 },
+        { kind: 'catheter', naturalFrequencyHz: 12, dampingRatio: 0.1 },
+      ],
+    });
     const r = analyseWindow({ channels: w.channels, context: CONTEXT });
     expect(r.arterialLine).not.toBeNull();
     const t = r.arterialLine!.flushTests[0];
@@ -73,7 +93,14 @@ describe('damping without a flush: detected from beat shape; direction per index
   for (const [fn, zeta] of CASES) {
     it(`fn ${fn} Hz, ζ ${zeta}: flagged, verdict not valid, stated directions agree with the model`, () => {
       for (const seed of [51, 52, 53]) {
-        const w = generateWindow({ seed, heartRate: 85, respiratoryRate: 15, ppv: 13, sampleRate: 250, disturbances: [{ kind: 'catheter', naturalFrequencyHz: fn, dampingRatio: zeta }] });
+        const w = generateWindow({
+          seed,
+          heartRate: 85,
+          respiratoryRate: 15,
+          ppv: 13,
+          sampleRate: 250,
+          disturbances: [{ kind: 'catheter', naturalFrequencyHz: fn, dampingRatio: zeta }],
+        });
         const r = analyseWindow({ channels: w.channels, context: CONTEXT });
         const flag = r.flags.find((f) => f.code === (zeta < 0.5 ? 'arterial-underdamped' : 'arterial-damped'));
         expect(flag, `seed ${seed}: ${r.flags.map((f) => f.code).join(', ')}`).toBeDefined();
@@ -95,8 +122,19 @@ describe('damping without a flush: detected from beat shape; direction per index
   }
 
   it('borderline lines (fn 8 Hz ζ 0.7, fn 10 Hz ζ 0.3, fn 15 Hz ζ 0.2): a damping flag, when raised, states directions the model agrees with', () => {
-    for (const [fn, zeta] of [[8, 0.7], [10, 0.3], [15, 0.2]]) {
-      const w = generateWindow({ seed: 70 + fn, heartRate: 85, respiratoryRate: 15, ppv: 13, sampleRate: 250, disturbances: [{ kind: 'catheter', naturalFrequencyHz: fn, dampingRatio: zeta }] });
+    for (const [fn, zeta] of [
+      [8, 0.7],
+      [10, 0.3],
+      [15, 0.2],
+    ]) {
+      const w = generateWindow({
+        seed: 70 + fn,
+        heartRate: 85,
+        respiratoryRate: 15,
+        ppv: 13,
+        sampleRate: 250,
+        disturbances: [{ kind: 'catheter', naturalFrequencyHz: fn, dampingRatio: zeta }],
+      });
       const r = analyseWindow({ channels: w.channels, context: CONTEXT });
       for (const flag of r.flags.filter((f) => f.code === 'arterial-damped' || f.code === 'arterial-underdamped')) {
         for (const index of ['ppv', 'spv'] as const) {
@@ -111,7 +149,14 @@ describe('damping without a flush: detected from beat shape; direction per index
   });
 
   it('a line with fn 25 Hz and ζ 0.3 reproduces the pulse: no damping flag', () => {
-    const w = generateWindow({ seed: 60, heartRate: 85, respiratoryRate: 15, ppv: 13, sampleRate: 250, disturbances: [{ kind: 'catheter', naturalFrequencyHz: 25, dampingRatio: 0.3 }] });
+    const w = generateWindow({
+      seed: 60,
+      heartRate: 85,
+      respiratoryRate: 15,
+      ppv: 13,
+      sampleRate: 250,
+      disturbances: [{ kind: 'catheter', naturalFrequencyHz: 25, dampingRatio: 0.3 }],
+    });
     const r = analyseWindow({ channels: w.channels, context: CONTEXT });
     expect(r.flags).toEqual([]);
     expect(r.verdict).toBe('valid');

@@ -67,7 +67,8 @@ export function checkArterialLine(ch: ConditionedChannel, series: BeatSeries, no
   // A slow upstroke: over 0.145 s, or over 0.12 s and a quarter of the beat interval at fast rates.
   const slow = rise !== null && (rise > 0.145 || (rise > 0.12 && interval !== null && rise > 0.25 * interval));
   const overByShape = !underByShape && notchFraction !== null && notchFraction < 0.3 && slow;
-  const dampingEstimate: DampingEstimate = notchFraction === null || rise === null ? 'unknown' : underByShape ? 'under-damped' : overByShape ? 'over-damped' : 'adequate';
+  const dampingEstimate: DampingEstimate =
+    notchFraction === null || rise === null ? 'unknown' : underByShape ? 'under-damped' : overByShape ? 'over-damped' : 'adequate';
   // Flush: a plateau above 250 mmHg lasting 0.3 s (runs measured during conditioning).
   const flushSuspected = ch.longestHighRun >= Math.round(0.3 * fs);
   const flushTests = flushSuspected || ch.longestHighRun >= Math.round(0.15 * fs) ? findFlushTests(ch.filled, fs) : [];
@@ -75,7 +76,9 @@ export function checkArterialLine(ch: ConditionedChannel, series: BeatSeries, no
   const last = measured.length ? measured[measured.length - 1] : null;
   // A measured flush test overrides the shape estimate (it is the direct test).
   const dampingSuspected = last ? last.region === 'over-damped' : dampingEstimate === 'over-damped';
-  const underDampingSuspected = last ? last.region === 'under-damped' || (last.region === 'unacceptable' && (last.dampingRatio ?? 1) < 0.5) : dampingEstimate === 'under-damped';
+  const underDampingSuspected = last
+    ? last.region === 'under-damped' || (last.region === 'unacceptable' && (last.dampingRatio ?? 1) < 0.5)
+    : dampingEstimate === 'under-damped';
   return { notchFraction, dampingSuspected, underDampingSuspected, flushSuspected, flushTests, dampingEstimate, upstrokeSeconds: rise };
 }
 
@@ -208,7 +211,15 @@ function measureRinging(x: Float64Array, fs: number, lastHigh: number, plateau: 
   const pts = ext.map((e) => refine(x, e.i, fs));
   const noRinging = (): FlushTestResult => {
     const region = gardnerRegion(null, null);
-    return { releaseTime: cross, naturalFrequencyHz: null, dampingRatio: null, amplitudeRatio: null, oscillations: 0, region, regionText: gardnerRegionText(region) };
+    return {
+      releaseTime: cross,
+      naturalFrequencyHz: null,
+      dampingRatio: null,
+      amplitudeRatio: null,
+      oscillations: 0,
+      region,
+      regionText: gardnerRegionText(region),
+    };
   };
   // The first extremum is the undershoot; it must lie below the resting level to be ringing.
   if (pts.length === 0 || pts[0].v > rest - h) return noRinging();

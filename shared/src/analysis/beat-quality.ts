@@ -66,7 +66,9 @@ function measure(ch: ConditionedChannel, lm: BeatLandmarks, source: BeatSource, 
     let negCount = 0;
     const raw = ch.filled;
     // A flush's square wave is not noise: beats reaching the flush level stay out of the estimate.
-    const inFlush = source === 'abp' && (y[p] > FLUSH_LEVEL_MMHG || (ch.highRuns.length > 0 && ch.highRuns.some((r) => f >= r.startSample - 0.3 * fs && f <= r.endSample + 1.5 * fs)));
+    const inFlush =
+      source === 'abp' &&
+      (y[p] > FLUSH_LEVEL_MMHG || (ch.highRuns.length > 0 && ch.highRuns.some((r) => f >= r.startSample - 0.3 * fs && f <= r.endSample + 1.5 * fs)));
     for (let i = f; i < end; i++) {
       s += y[i];
       const r = inFlush ? 0 : raw[i] - y[i];

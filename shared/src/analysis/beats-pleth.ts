@@ -50,7 +50,7 @@ export function detectPlethBeats(smooth: Float64Array, filled: Float64Array, fs:
           foot.push(f);
           peak.push(p);
           onset.push(start);
-          edge.push(f === 0 || lastPeak < 0 && f === fStart && fStart === 0 || i >= n ? 1 : 0);
+          edge.push(f === 0 || (lastPeak < 0 && f === fStart && fStart === 0) || i >= n ? 1 : 0);
           lastPeak = p;
         }
       }

@@ -13,7 +13,12 @@ import type { AnalysisInput } from './types';
 const segmentsOf = (g: SyntheticChallenge): AnalysisInput[] => g.segments.map((s) => ({ channels: s.channels, context: s.context }));
 
 describe('tidal volume challenge', () => {
-  for (const [kind, seed] of [['responder', 201], ['responder', 202], ['non-responder', 203], ['non-responder', 204]] as [ChallengeKind, number][]) {
+  for (const [kind, seed] of [
+    ['responder', 201],
+    ['responder', 202],
+    ['non-responder', 203],
+    ['non-responder', 204],
+  ] as [ChallengeKind, number][]) {
     it(`${kind} (seed ${seed}): baseline and challenge PPV within 1 point of the truth, verdict as the truth says`, () => {
       const g = generateChallenge({ seed, kind });
       const t = analyseTidalVolumeChallenge({ segments: segmentsOf(g) }).tidalVolumeChallenge;
@@ -34,7 +39,11 @@ describe('tidal volume challenge', () => {
     });
   }
 
-  for (const [kind, reason] of [['too-short', 'step-too-short'], ['too-small', 'step-too-small'], ['ectopy', 'irregular-rhythm']] as const) {
+  for (const [kind, reason] of [
+    ['too-short', 'step-too-short'],
+    ['too-small', 'step-too-small'],
+    ['ectopy', 'irregular-rhythm'],
+  ] as const) {
     it(`${kind} → cannot be judged, reason ${reason}`, () => {
       const g = generateChallenge({ seed: 210, kind });
       const t = analyseTidalVolumeChallenge({ segments: segmentsOf(g) }).tidalVolumeChallenge;
@@ -84,7 +93,12 @@ describe('tidal volume challenge', () => {
     const g = generateChallenge({ seed: 214, kind: 'responder' });
     const dir = mkdtempSync(join(tmpdir(), 'ebbgate-tvc-'));
     try {
-      const batches = g.segments.map((s, k) => toIngestBatch({ channels: s.channels, truth: s.truth }, { monitorId: '02-00-5e-ff-fe-00-00-01', batchId: `tvc-${k}`, startTime: new Date(Date.UTC(2026, 0, 1, 8, k)).toISOString(), context: s.context }));
+      const batches = g.segments.map((s, k) =>
+        toIngestBatch(
+          { channels: s.channels, truth: s.truth },
+          { monitorId: '02-00-5e-ff-fe-00-00-01', batchId: `tvc-${k}`, startTime: new Date(Date.UTC(2026, 0, 1, 8, k)).toISOString(), context: s.context },
+        ),
+      );
       const file = join(dir, 'challenge.json');
       writeFileSync(file, JSON.stringify(batches));
       const run = spawnSync(process.execPath, ['--import', 'tsx', 'shared/src/analysis/cli.ts', file], { encoding: 'utf8', timeout: 60_000 });

@@ -50,7 +50,8 @@ export function concatenateSegments(segments: AnalysisInput[]): AnalysisInput {
   const channels: AnalysisChannel[] = first.channels.map((c) => {
     const parts = segments.map((s) => {
       const m = s.channels.find((x) => x.role === c.role);
-      if (!m || m.sampleRate !== c.sampleRate || m.unit !== c.unit) throw new AnalysisInputError(`challenge segments differ in their ${c.role} channel (role, rate or unit)`);
+      if (!m || m.sampleRate !== c.sampleRate || m.unit !== c.unit)
+        throw new AnalysisInputError(`challenge segments differ in their ${c.role} channel (role, rate or unit)`);
       return m.samples;
     });
     const out = new Float64Array(parts.reduce((a, p) => a + p.length, 0));
@@ -155,7 +156,10 @@ export function evaluateTidalVolumeChallenge(
     challengePressureSwingCmH2O: null,
     baselineFlags: [],
     challengeFlags: [],
-    cautions: [...CAUTIONS, 'A tidal volume challenge is a bedside test with its own limits; the decision rests with the treating clinician and local protocol.'],
+    cautions: [
+      ...CAUTIONS,
+      'A tidal volume challenge is a bedside test with its own limits; the decision rests with the treating clinician and local protocol.',
+    ],
   };
   if (step < 0) {
     why('no-step');
@@ -206,7 +210,10 @@ export function evaluateTidalVolumeChallenge(
   const pb = base.baselinePressureSwingCmH2O;
   const pc = base.challengePressureSwingCmH2O;
   if (!fromPressure && pb !== null && pc !== null && pc < 1.1 * pb) why('airway-pressure-not-risen', `swing ${pb.toFixed(1)} → ${pc.toFixed(1)} cmH2O`);
-  for (const [side, r] of [['baseline', b], ['challenge', c]] as const) {
+  for (const [side, r] of [
+    ['baseline', b],
+    ['challenge', c],
+  ] as const) {
     const spoilers = r.flags.filter((f) => f.severity !== 'info' && !EXPECTED.includes(f.code));
     for (const f of spoilers) why(reasonFor(f.code, side), `${side}: ${f.code}`);
     if (r.indices.ppv.value === null) why(side === 'baseline' ? 'baseline-not-valid' : 'challenge-not-valid', r.indices.ppv.notComputableReason);

@@ -17,8 +17,23 @@ const CMH2O_PER_KPA = 10.19716;
 
 /** Target unit per role and the factors that convert accepted units into it. */
 const UNIT_TABLE: Record<Exclude<ChannelRole, 'pleth'>, { to: string; from: Record<string, number> }> = {
-  abp: { to: 'mmHg', from: { mmhg: 1, 'mm[hg]': 1, kpa: MMHG_PER_KPA, pa: MMHG_PER_KPA / 1000, cmh2o: MMHG_PER_KPA / CMH2O_PER_KPA, 'cm[h2o]': MMHG_PER_KPA / CMH2O_PER_KPA } },
-  paw: { to: 'cmH2O', from: { cmh2o: 1, 'cm[h2o]': 1, mbar: 1.019716, hpa: 1.019716, kpa: CMH2O_PER_KPA, pa: CMH2O_PER_KPA / 1000, mmhg: CMH2O_PER_KPA / MMHG_PER_KPA, 'mm[hg]': CMH2O_PER_KPA / MMHG_PER_KPA } },
+  abp: {
+    to: 'mmHg',
+    from: { mmhg: 1, 'mm[hg]': 1, kpa: MMHG_PER_KPA, pa: MMHG_PER_KPA / 1000, cmh2o: MMHG_PER_KPA / CMH2O_PER_KPA, 'cm[h2o]': MMHG_PER_KPA / CMH2O_PER_KPA },
+  },
+  paw: {
+    to: 'cmH2O',
+    from: {
+      cmh2o: 1,
+      'cm[h2o]': 1,
+      mbar: 1.019716,
+      hpa: 1.019716,
+      kpa: CMH2O_PER_KPA,
+      pa: CMH2O_PER_KPA / 1000,
+      mmhg: CMH2O_PER_KPA / MMHG_PER_KPA,
+      'mm[hg]': CMH2O_PER_KPA / MMHG_PER_KPA,
+    },
+  },
   // CO2 as a percentage is converted at 760 mmHg total pressure (common practice approximation).
   co2: { to: 'mmHg', from: { mmhg: 1, 'mm[hg]': 1, kpa: MMHG_PER_KPA, pa: MMHG_PER_KPA / 1000, '%': 7.6 } },
 };
@@ -181,13 +196,19 @@ export function conditionChannel(ch: AnalysisChannel, settings: AnalysisSettings
   // Scale for the flat-line tolerance from a subsample (converted), before the single full pass.
   const [p1, p99] = robustPercentiles(ch.samples, [1, 99]).map((v) => v * scale);
   const minFlat = pulsatile ? settings.minFlatLineSeconds : Math.max(settings.minFlatLineSeconds, 20);
-  const found = scan(ch.samples, scale, fs, {
-    minGap: Math.max(1, Math.round(settings.minGapSeconds * fs)),
-    flatTol: Math.max(settings.flatLineTolerance * Math.abs(p99 - p1), 1e-9),
-    minFlat: Math.round(minFlat * fs),
-    minClip: pulsatile ? Math.max(2, Math.round(settings.minClipSeconds * fs)) : n + 1,
-    highLevel: ch.role === 'abp' ? FLUSH_LEVEL_MMHG : Infinity,
-  }, filled);
+  const found = scan(
+    ch.samples,
+    scale,
+    fs,
+    {
+      minGap: Math.max(1, Math.round(settings.minGapSeconds * fs)),
+      flatTol: Math.max(settings.flatLineTolerance * Math.abs(p99 - p1), 1e-9),
+      minFlat: Math.round(minFlat * fs),
+      minClip: pulsatile ? Math.max(2, Math.round(settings.minClipSeconds * fs)) : n + 1,
+      highLevel: ch.role === 'abp' ? FLUSH_LEVEL_MMHG : Infinity,
+    },
+    filled,
+  );
   const { gaps, flatLines, clipping } = found;
   const gapCount = gaps.reduce((s, g) => s + g.endSample - g.startSample, 0);
   const hasSignal = gapCount < n;

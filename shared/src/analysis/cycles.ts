@@ -85,7 +85,11 @@ export function breathsInferred(beats: Beat[], fs: number, n: number, setRate: n
   const pts = beats.filter((b) => b.accepted).map((b) => ({ t: b.peakTime, v: (b.pp ?? b.amplitude) as number }));
   if (pts.length < 6) return { source: 'inferred', fs, onsets: [], efforts: [], reason: 'too few accepted beats to find the respiratory phase' };
   // Normal equations for [1, cos, sin].
-  const m = [[0, 0, 0], [0, 0, 0], [0, 0, 0]];
+  const m = [
+    [0, 0, 0],
+    [0, 0, 0],
+    [0, 0, 0],
+  ];
   const r = [0, 0, 0];
   for (const { t, v } of pts) {
     const f = [1, Math.cos(w * t), Math.sin(w * t)];

@@ -12,19 +12,36 @@ const BASES: [number, number, number][] = [
   [60, 12, 6],
   [130, 25, 15],
 ];
-const CONTEXT: AnalysisContext = { tidalVolumeMl: 600, patientHeightCm: 175, patientSex: 'male', ventilationMode: 'controlled', plethScaling: 'raw', probeSite: 'ear' };
+const CONTEXT: AnalysisContext = {
+  tidalVolumeMl: 600,
+  patientHeightCm: 175,
+  patientSex: 'male',
+  ventilationMode: 'controlled',
+  plethScaling: 'raw',
+  probeSite: 'ear',
+};
 
 const CASES: { name: string; disturbances: Disturbance[]; flag: FlagCode; source: string }[] = [
   // Noise: Sun 2006 mean-negative-slope rule and template correlation (Li & Clifford 2012).
   { name: 'heavy noise', disturbances: [{ kind: 'noise', level: 0.15 }], flag: 'noise-motion', source: 'common practice; Sun 2006 noise rule' },
   { name: 'motion artefact', disturbances: [{ kind: 'motion', start: 25, duration: 6, amplitude: 0.5 }], flag: 'noise-motion', source: 'common practice' },
   { name: 'ectopic beats', disturbances: [{ kind: 'ectopic', count: 3 }], flag: 'ectopic-beats', source: 'Ann Intensive Care 2021 checklist: arrhythmia' },
-  { name: 'AF-like rhythm', disturbances: [{ kind: 'irregular-rhythm', variability: 0.3 }], flag: 'irregular-rhythm', source: 'Ann Intensive Care 2016: arrhythmia gives false positives' },
+  {
+    name: 'AF-like rhythm',
+    disturbances: [{ kind: 'irregular-rhythm', variability: 0.3 }],
+    flag: 'irregular-rhythm',
+    source: 'Ann Intensive Care 2016: arrhythmia gives false positives',
+  },
   { name: 'clipping', disturbances: [{ kind: 'clipping', level: 0.85 }], flag: 'clipping', source: 'common practice' },
   { name: 'over-damped line', disturbances: [{ kind: 'damping', cutoffHz: 2 }], flag: 'arterial-damped', source: 'Gardner, Anesthesiology 1981' },
   { name: 'flat line', disturbances: [{ kind: 'flat-line', start: 20, duration: 6 }], flag: 'flat-line', source: 'common practice' },
   { name: 'gap', disturbances: [{ kind: 'gap', start: 30, duration: 3 }], flag: 'gap', source: 'common practice' },
-  { name: 'spontaneous breaths', disturbances: [{ kind: 'spontaneous-breaths', count: 3 }], flag: 'spontaneous-breathing', source: 'Ann Intensive Care 2021 checklist' },
+  {
+    name: 'spontaneous breaths',
+    disturbances: [{ kind: 'spontaneous-breaths', count: 3 }],
+    flag: 'spontaneous-breathing',
+    source: 'Ann Intensive Care 2021 checklist',
+  },
   { name: 'fast flush', disturbances: [{ kind: 'flush', start: 40, duration: 2 }], flag: 'arterial-flush', source: 'Gardner 1981; common practice' },
 ];
 
@@ -45,9 +62,16 @@ describe('disturbed synthetic windows raise the right flag', () => {
   }
 
   it('the direction of error is given where the literature says (Ann Intensive Care 2016, doi 10.1186/s13613-016-0216-7)', () => {
-    const spont = analyseWindow({ channels: generateWindow({ seed: 1, heartRate: 80, respiratoryRate: 15, ppv: 10, disturbances: [{ kind: 'spontaneous-breaths', count: 3 }] }).channels, context: CONTEXT });
+    const spont = analyseWindow({
+      channels: generateWindow({ seed: 1, heartRate: 80, respiratoryRate: 15, ppv: 10, disturbances: [{ kind: 'spontaneous-breaths', count: 3 }] }).channels,
+      context: CONTEXT,
+    });
     expect(spont.flags.find((f) => f.code === 'spontaneous-breathing')?.direction).toBe('false-high');
-    const af = analyseWindow({ channels: generateWindow({ seed: 2, heartRate: 80, respiratoryRate: 15, ppv: 10, disturbances: [{ kind: 'irregular-rhythm', variability: 0.3 }] }).channels, context: CONTEXT });
+    const af = analyseWindow({
+      channels: generateWindow({ seed: 2, heartRate: 80, respiratoryRate: 15, ppv: 10, disturbances: [{ kind: 'irregular-rhythm', variability: 0.3 }] })
+        .channels,
+      context: CONTEXT,
+    });
     expect(af.flags.find((f) => f.code === 'irregular-rhythm')?.direction).toBe('false-high');
     const slow = analyseWindow({ channels: generateWindow({ seed: 3, heartRate: 55, respiratoryRate: 20, ppv: 10 }).channels, context: CONTEXT });
     expect(slow.flags.find((f) => f.code === 'low-hr-rr-ratio')?.direction).toBe('false-low');
@@ -55,7 +79,13 @@ describe('disturbed synthetic windows raise the right flag', () => {
 
   it('baseline wander is tolerated: no flag and PPV within ±1 point (PP = SBP − DBP of each beat cancels slow drift)', () => {
     for (const [hr, rr, ppv] of BASES) {
-      const w = generateWindow({ seed: hr * rr, heartRate: hr, respiratoryRate: rr, ppv, disturbances: [{ kind: 'baseline-wander', amplitude: 0.3, frequencyHz: 0.05 }] });
+      const w = generateWindow({
+        seed: hr * rr,
+        heartRate: hr,
+        respiratoryRate: rr,
+        ppv,
+        disturbances: [{ kind: 'baseline-wander', amplitude: 0.3, frequencyHz: 0.05 }],
+      });
       const r = analyseWindow({ channels: w.channels, context: CONTEXT });
       expect(r.flags).toEqual([]);
       expect(Math.abs((r.indices.ppv.value as number) - (truthOverUsedCycles(r, w.truth, 'ppv') as number))).toBeLessThanOrEqual(1);

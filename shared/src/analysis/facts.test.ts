@@ -5,7 +5,14 @@ import type { AnalysisContext } from './types';
 
 // Facts of the trade, checked as behaviour; each test names its published source or says
 // "common practice".
-const CONTEXT: AnalysisContext = { tidalVolumeMl: 600, patientHeightCm: 175, patientSex: 'male', ventilationMode: 'controlled', plethScaling: 'raw', probeSite: 'ear' };
+const CONTEXT: AnalysisContext = {
+  tidalVolumeMl: 600,
+  patientHeightCm: 175,
+  patientSex: 'male',
+  ventilationMode: 'controlled',
+  plethScaling: 'raw',
+  probeSite: 'ear',
+};
 const window = (channels: ('abp' | 'pleth' | 'paw' | 'co2')[] = ['abp', 'pleth', 'paw'], seed = 11) =>
   generateWindow({ seed, heartRate: 84, respiratoryRate: 14, ppv: 12, channels }).channels;
 
@@ -70,7 +77,14 @@ describe('facts of the trade', () => {
   });
 
   it('a pleth with a 4 s dropout fails the PPG window rules (Orphanidou et al., IEEE JBHI 2015)', () => {
-    const w = generateWindow({ seed: 16, heartRate: 84, respiratoryRate: 14, ppv: 12, channels: ['abp', 'pleth', 'paw'], disturbances: [{ kind: 'gap', start: 20, duration: 4, roles: ['pleth'] }] });
+    const w = generateWindow({
+      seed: 16,
+      heartRate: 84,
+      respiratoryRate: 14,
+      ppv: 12,
+      channels: ['abp', 'pleth', 'paw'],
+      disturbances: [{ kind: 'gap', start: 20, duration: 4, roles: ['pleth'] }],
+    });
     const r = analyseWindow({ channels: w.channels, context: CONTEXT });
     expect(r.flags.find((f) => f.code === 'pleth-quality-low')?.reason).toMatch(/3 s/);
     expect(r.verdict).toBe('valid'); // the arterial PPV is not affected by a pleth dropout
@@ -113,7 +127,14 @@ describe('facts of the trade', () => {
     expect(ENGINE_VERSION).toMatch(/^\d+\.\d+\.\d+$/);
     expect(r.cautions).toEqual([...CAUTIONS]);
     const text = r.cautions.join(' ');
-    for (const needle of ['does not diagnose', 'does not order fluid', 'not hypotensive', 'airway obstruction', 'not valid, with the reason', 'local protocols']) {
+    for (const needle of [
+      'does not diagnose',
+      'does not order fluid',
+      'not hypotensive',
+      'airway obstruction',
+      'not valid, with the reason',
+      'local protocols',
+    ]) {
       expect(text).toContain(needle);
     }
     const grey = r.bands.find((b) => b.id === 'ppv-grey-zone');
@@ -151,7 +172,14 @@ describe('result contract', () => {
   });
 
   it('is plain JSON: survives a round trip unchanged, with no NaN anywhere', () => {
-    const w = generateWindow({ seed: 9, heartRate: 90, respiratoryRate: 16, ppv: 14, channels: ['abp', 'pleth', 'paw'], disturbances: [{ kind: 'gap', start: 10, duration: 2 }] });
+    const w = generateWindow({
+      seed: 9,
+      heartRate: 90,
+      respiratoryRate: 16,
+      ppv: 14,
+      channels: ['abp', 'pleth', 'paw'],
+      disturbances: [{ kind: 'gap', start: 10, duration: 2 }],
+    });
     const r = analyseWindow({ channels: w.channels, context: CONTEXT, startTime: '2026-12-01T08:00:00Z' });
     const text = JSON.stringify(r);
     expect(text).not.toMatch(/NaN|Infinity/);
@@ -166,7 +194,17 @@ describe('result contract', () => {
   });
 
   it('every rejected beat and every unusable cycle carries a reason code', () => {
-    const w = generateWindow({ seed: 12, heartRate: 95, respiratoryRate: 18, ppv: 15, channels: ['abp', 'paw'], disturbances: [{ kind: 'ectopic', count: 2 }, { kind: 'motion', start: 30, duration: 5, amplitude: 0.5 }] });
+    const w = generateWindow({
+      seed: 12,
+      heartRate: 95,
+      respiratoryRate: 18,
+      ppv: 15,
+      channels: ['abp', 'paw'],
+      disturbances: [
+        { kind: 'ectopic', count: 2 },
+        { kind: 'motion', start: 30, duration: 5, amplitude: 0.5 },
+      ],
+    });
     const r = analyseWindow({ channels: w.channels, context: CONTEXT });
     for (const b of r.beats.abp!.beats) expect(b.accepted).toBe(b.rejectReasons.length === 0);
     for (const c of r.cycles) expect(c.usable).toBe(c.rejectReasons.length === 0);

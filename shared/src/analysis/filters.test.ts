@@ -15,9 +15,7 @@ interface FilterCase {
   filtfilt: number[];
   sosfiltfilt: number[];
 }
-const fixture = JSON.parse(
-  readFileSync(new URL('../../../tests/reference/fixtures/scipy-filters.json', import.meta.url), 'utf8'),
-) as { cases: FilterCase[] };
+const fixture = JSON.parse(readFileSync(new URL('../../../tests/reference/fixtures/scipy-filters.json', import.meta.url), 'utf8')) as { cases: FilterCase[] };
 
 function maxAbsDiff(a: ArrayLike<number>, b: ArrayLike<number>): number {
   let m = 0;

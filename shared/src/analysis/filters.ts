@@ -264,9 +264,19 @@ export function filtfilt(b: number[], a: number[], x: ArrayLike<number>): Float6
   if (x.length <= edge) throw new RangeError(`filtfilt needs more than ${edge} samples, got ${x.length}`);
   const ext = oddExtend(x, edge);
   const zi = lfilterZi(b, a);
-  const fwd = lfilter(b, a, ext, zi.map((v) => v * ext[0]));
+  const fwd = lfilter(
+    b,
+    a,
+    ext,
+    zi.map((v) => v * ext[0]),
+  );
   fwd.reverse();
-  const back = lfilter(b, a, fwd, zi.map((v) => v * fwd[0]));
+  const back = lfilter(
+    b,
+    a,
+    fwd,
+    zi.map((v) => v * fwd[0]),
+  );
   back.reverse();
   return back.slice(edge, edge + x.length);
 }

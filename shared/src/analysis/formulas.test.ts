@@ -7,7 +7,9 @@ import { percentVariation } from './signal-utils';
 
 const require = createRequire(import.meta.url);
 // Independent reference for unit conversion: the UCUM library of the US National Library of Medicine.
-const ucum = (require('@lhncbc/ucum-lhc') as { UcumLhcUtils: { getInstance(): { convertUnitTo(from: string, v: number, to: string): { toVal: number } } } }).UcumLhcUtils.getInstance();
+const ucum = (
+  require('@lhncbc/ucum-lhc') as { UcumLhcUtils: { getInstance(): { convertUnitTo(from: string, v: number, to: string): { toVal: number } } } }
+).UcumLhcUtils.getInstance();
 
 describe('published formulas, worked examples', () => {
   it('PPV: PPmax 50, PPmin 40 mmHg gives 22.2 % (Michard et al., Am J Respir Crit Care Med 2000)', () => {

@@ -13,7 +13,14 @@ import type { AnalysisContext } from './types';
 const HR = [50, 65, 80, 95, 110, 125, 140];
 const RR = [8, 12, 16, 20, 25, 30];
 const PPV = [3, 8, 13, 18, 25];
-const CONTEXT: AnalysisContext = { tidalVolumeMl: 600, patientHeightCm: 175, patientSex: 'male', ventilationMode: 'controlled', plethScaling: 'raw', probeSite: 'ear' };
+const CONTEXT: AnalysisContext = {
+  tidalVolumeMl: 600,
+  patientHeightCm: 175,
+  patientSex: 'male',
+  ventilationMode: 'controlled',
+  plethScaling: 'raw',
+  probeSite: 'ear',
+};
 
 interface Row {
   hr: number;
@@ -41,7 +48,11 @@ for (const hr of HR)
       const pleth = seed % 3 === 0;
       const w = generateWindow({ seed, heartRate: hr, respiratoryRate: rr, ppv, channels: pleth ? ['abp', 'pleth', 'paw'] : ['abp', 'paw'] });
       const r = analyseWindow({ channels: w.channels, context: CONTEXT });
-      const m = matchBeats(r.beats.abp?.beats.map((b) => b.peakTime) ?? [], w.truth.beats.abp.map((b) => b.peakTime), 60);
+      const m = matchBeats(
+        r.beats.abp?.beats.map((b) => b.peakTime) ?? [],
+        w.truth.beats.abp.map((b) => b.peakTime),
+        60,
+      );
       rows.push({
         hr,
         rr,
@@ -50,7 +61,14 @@ for (const hr of HR)
         tp: m.truePositives,
         fn: m.falseNegatives,
         fp: m.falsePositives,
-        plethMatch: pleth ? matchBeats(r.beats.pleth?.beats.map((b) => b.peakTime) ?? [], w.truth.beats.pleth.map((b) => b.peakTime), 60, 0.06) : null,
+        plethMatch: pleth
+          ? matchBeats(
+              r.beats.pleth?.beats.map((b) => b.peakTime) ?? [],
+              w.truth.beats.pleth.map((b) => b.peakTime),
+              60,
+              0.06,
+            )
+          : null,
         engine: r.indices.ppv.value,
         truth: truthLastCleanCycles(w.truth, 'ppv'),
         deltaPop: r.indices.deltaPop.value,
@@ -80,7 +98,7 @@ describe('synthetic grid HR 50–140, RR 8–30, PPV 3–25 % (known by construc
     expect(tp / (tp + fp)).toBeGreaterThanOrEqual(0.995);
   });
 
-  it('clean windows with HR/RR ≥ 4.5: PPV within ±1 percentage point of the generator\'s last three clean cycles (Michard 2000 formula)', () => {
+  it("clean windows with HR/RR ≥ 4.5: PPV within ±1 percentage point of the generator's last three clean cycles (Michard 2000 formula)", () => {
     // Below ~4.5 beats per breath the last three clean cycles put in need not be consecutive, while
     // the engine averages consecutive cycles only; those windows are excluded here.
     const valid = rows.filter((r) => r.hr / r.rr >= 4.5);
@@ -200,7 +218,10 @@ describe('sampled grid over pulse pressure, diastolic, catheter, ventilation mod
   it('ventilation mode unknown or absent is never valid (flag ventilation-unconfirmed)', () => {
     for (const d of drawn.filter((x) => x.mode !== 'controlled')) {
       expect(d.engine.verdict, d.label).not.toBe('valid');
-      expect(d.engine.flags.map((f) => f.code), d.label).toContain('ventilation-unconfirmed');
+      expect(
+        d.engine.flags.map((f) => f.code),
+        d.label,
+      ).toContain('ventilation-unconfirmed');
     }
   });
 
@@ -219,7 +240,10 @@ describe('sampled grid over pulse pressure, diastolic, catheter, ventilation mod
       expect(c, d.label).not.toBeNull();
       expect(c, d.label).toBeDefined();
       expect(Math.abs((c as number) / d.compliance - 1), d.label).toBeLessThanOrEqual(0.05);
-      expect(d.engine.flags.some((f) => f.code === 'compliance-low'), d.label).toBe((c as number) <= 30);
+      expect(
+        d.engine.flags.some((f) => f.code === 'compliance-low'),
+        d.label,
+      ).toBe((c as number) <= 30);
     }
   });
 

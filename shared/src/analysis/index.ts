@@ -32,7 +32,16 @@ export { percentVariation } from './signal-utils';
 export { dampingCoefficient, findFlushTests, gardnerRegion, gardnerRegionText } from './arterial-line';
 export { SIGNAL_LOSS_PULSE_MMHG } from './signal-loss';
 export { formatSummary } from './summary';
-export { DEFAULT_CODE_ROLES, roleForCode, batchToAnalysisInput, parseBatchJson, parseCsvCapture, readCapture, readChallengeCapture, CaptureParseError } from './input';
+export {
+  DEFAULT_CODE_ROLES,
+  roleForCode,
+  batchToAnalysisInput,
+  parseBatchJson,
+  parseCsvCapture,
+  readCapture,
+  readChallengeCapture,
+  CaptureParseError,
+} from './input';
 
 function beatsFor(ch: ConditionedChannel | undefined, settings: AnalysisSettings): QualifiedBeats | null {
   if (!ch || !ch.hasSignal || ch.filled.length < 2 * ch.fs) return null;

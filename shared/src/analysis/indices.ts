@@ -1,7 +1,18 @@
 import { hasArtefact, hasHardArtefact } from './beat-quality';
 import type { BreathBoundaries } from './cycles';
 import { finiteOrNull, mean, median, percentVariation } from './signal-utils';
-import type { AnalysisContext, AnalysisSettings, Beat, BeatSeries, CycleRejectReason, IndexValue, Indices, RespiratoryCycle, SampleSpan, SelectionReport } from './types';
+import type {
+  AnalysisContext,
+  AnalysisSettings,
+  Beat,
+  BeatSeries,
+  CycleRejectReason,
+  IndexValue,
+  Indices,
+  RespiratoryCycle,
+  SampleSpan,
+  SelectionReport,
+} from './types';
 
 const MIN_BEATS_PER_CYCLE = (s: AnalysisSettings): number => Math.ceil(s.minHrRrRatio + 1e-9);
 
@@ -78,7 +89,8 @@ export function buildCycles(
     const deltaPop = plethOk ? percentVariation(pop) : null; // Cannesson 2005
     const primaryValue = abp ? ppv : deltaPop;
     const measurable = primary ? primaryIdx.filter((k) => !hasArtefact(primary.beats[k])) : [];
-    const variationAllBeats = primary && measurable.length >= minBeats ? percentVariation(measurable.map((k) => (abp ? abp.beats[k].pp : primary.beats[k].amplitude) as number)) : null;
+    const variationAllBeats =
+      primary && measurable.length >= minBeats ? percentVariation(measurable.map((k) => (abp ? abp.beats[k].pp : primary.beats[k].amplitude) as number)) : null;
     if (primaryValue !== null && (primaryValue < 0 || primaryValue > settings.plausibleMaxPercent)) reasons.push('value-implausible');
     cycles.push({
       n: j,
@@ -143,19 +155,41 @@ export function computeIndices(
   context: AnalysisContext,
 ): Indices {
   const noCycles = cycles.length === 0 ? (bounds?.reason ?? 'no respiratory cycles found') : 'no usable respiratory cycle in the window';
-  const ppv = abp ? fromCycles(used.map((c) => c.ppv), '%', noCycles) : notComputable('%', 'no arterial pressure channel');
-  const spv = abp ? fromCycles(used.map((c) => c.spv), 'mm[Hg]', noCycles) : notComputable('mm[Hg]', 'no arterial pressure channel');
-  const deltaPop = pleth ? fromCycles(used.map((c) => c.deltaPop), '%', noCycles) : notComputable('%', 'no pleth channel');
+  const ppv = abp
+    ? fromCycles(
+        used.map((c) => c.ppv),
+        '%',
+        noCycles,
+      )
+    : notComputable('%', 'no arterial pressure channel');
+  const spv = abp
+    ? fromCycles(
+        used.map((c) => c.spv),
+        'mm[Hg]',
+        noCycles,
+      )
+    : notComputable('mm[Hg]', 'no arterial pressure channel');
+  const deltaPop = pleth
+    ? fromCycles(
+        used.map((c) => c.deltaPop),
+        '%',
+        noCycles,
+      )
+    : notComputable('%', 'no pleth channel');
   let perfusionIndex: IndexValue;
   if (!pleth) perfusionIndex = notComputable('%', 'no pleth channel');
-  else if (context.plethScaling === 'auto-scaled') perfusionIndex = notComputable('%', 'pleth is auto-scaled by the monitor: its DC level is lost, so AC/DC cannot be formed');
+  else if (context.plethScaling === 'auto-scaled')
+    perfusionIndex = notComputable('%', 'pleth is auto-scaled by the monitor: its DC level is lost, so AC/DC cannot be formed');
   else if (context.plethScaling !== 'raw') perfusionIndex = notComputable('%', 'pleth scaling not declared: PI needs a raw pleth with its DC level');
   else {
     // Perfusion index = 100 × AC / DC of the raw PPG (common practice).
     const ok = pleth.beats.filter((b) => b.accepted);
     const ac = mean(ok.map((b) => b.amplitude as number));
     const dc = mean(ok.map((b) => b.dc as number));
-    perfusionIndex = ok.length && dc > 0 ? { value: (100 * ac) / dc, unit: '%', spread: null, cyclesUsed: 0 } : notComputable('%', 'no accepted pleth beat or non-positive DC level');
+    perfusionIndex =
+      ok.length && dc > 0
+        ? { value: (100 * ac) / dc, unit: '%', spread: null, cyclesUsed: 0 }
+        : notComputable('%', 'no accepted pleth beat or non-positive DC level');
   }
   const primary = abp ?? pleth;
   const ibis = primary ? primary.beats.filter((b) => b.accepted && b.ibi !== null).map((b) => b.ibi as number) : [];
@@ -189,7 +223,8 @@ export function selectionReport(cycles: RespiratoryCycle[], abp: BeatSeries | nu
   const all = cycles.map((c) => c.variationAllBeats).filter((v): v is number => v !== null);
   let pulsePressureDifference: number | null = null;
   if (abp) {
-    const pp = (cs: RespiratoryCycle[]): number[] => cs.flatMap((c) => c.abpBeatIndices.filter((k) => !hasHardArtefact(abp.beats[k])).map((k) => abp.beats[k].pp as number));
+    const pp = (cs: RespiratoryCycle[]): number[] =>
+      cs.flatMap((c) => c.abpBeatIndices.filter((k) => !hasHardArtefact(abp.beats[k])).map((k) => abp.beats[k].pp as number));
     const kept = pp(cycles.filter((c) => c.usable));
     const out = pp(dropped.filter((c) => !c.rejectReasons.some((r) => FLAGGED_ELSEWHERE.includes(r))));
     if (kept.length && out.length) pulsePressureDifference = mean(kept) - mean(out);

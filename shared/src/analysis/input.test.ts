@@ -9,7 +9,15 @@ import { generateWindow, toCsvCapture, toIngestBatch } from '../synthetic/index'
 import { analyseWindow } from './index';
 import { batchToAnalysisInput, CaptureParseError, DEFAULT_CODE_ROLES, parseBatchJson, parseCsvCapture, roleForCode } from './input';
 
-const w = generateWindow({ seed: 31, heartRate: 88, respiratoryRate: 15, ppv: 13, channels: ['abp', 'paw'], durationSeconds: 30, disturbances: [{ kind: 'gap', start: 5, duration: 0.5 }] });
+const w = generateWindow({
+  seed: 31,
+  heartRate: 88,
+  respiratoryRate: 15,
+  ppv: 13,
+  channels: ['abp', 'paw'],
+  durationSeconds: 30,
+  disturbances: [{ kind: 'gap', start: 5, duration: 0.5 }],
+});
 
 describe('capture input', () => {
   it('maps the MDC codes of the ingest contract to roles (IEEE 11073: 150036 arterial, 150452 pleth)', () => {

@@ -63,7 +63,11 @@ export function batchToAnalysisInput(
 function lineCol(text: string, pos: number): { line: number; column: number } {
   let line = 1;
   let last = -1;
-  for (let i = 0; i < Math.min(pos, text.length); i++) if (text.charCodeAt(i) === 10) { line++; last = i; }
+  for (let i = 0; i < Math.min(pos, text.length); i++)
+    if (text.charCodeAt(i) === 10) {
+      line++;
+      last = i;
+    }
   return { line, column: pos - last };
 }
 
@@ -146,7 +150,8 @@ export function parseCsvCapture(text: string): AnalysisInput {
   if (!(first > 0)) throw new CaptureParseError('time column must increase', 3, 1);
   for (let r = 1; r < n; r++) {
     const d = times[r] - times[r - 1];
-    if (Math.abs(d - first) > 0.01 * first) throw new CaptureParseError(`time step ${d} s differs from the first step ${first} s (irregular sampling)`, r + 2, 1);
+    if (Math.abs(d - first) > 0.01 * first)
+      throw new CaptureParseError(`time step ${d} s differs from the first step ${first} s (irregular sampling)`, r + 2, 1);
   }
   const step = (times[n - 1] - times[0]) / (n - 1);
   const fs = Math.round((1 / step) * 1e6) / 1e6;
@@ -155,7 +160,10 @@ export function parseCsvCapture(text: string): AnalysisInput {
 
 /** A batch with context changes inside it (a whole tidal volume challenge in one capture). */
 const challengeBatchSchema = ingestBatchSchema.extend({
-  contextChanges: z.array(z.object({ atSeconds: z.number().min(0).max(86_400), context: analysisContextSchema })).min(1).max(16),
+  contextChanges: z
+    .array(z.object({ atSeconds: z.number().min(0).max(86_400), context: analysisContextSchema }))
+    .min(1)
+    .max(16),
 });
 
 function parseJson(text: string): unknown {

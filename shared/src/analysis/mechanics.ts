@@ -10,7 +10,11 @@ import type { AnalysisContext, RespiratoryMechanics } from './types';
  * end-inspiratory pause (pressure within 0.5 cmH2O for at least 0.12 s after the peak, before the
  * expiratory fall) when there is one; otherwise the peak stands in and says so.
  */
-export function respiratoryMechanics(paw: ConditionedChannel | undefined, bounds: BreathBoundaries | null, context: AnalysisContext): RespiratoryMechanics | null {
+export function respiratoryMechanics(
+  paw: ConditionedChannel | undefined,
+  bounds: BreathBoundaries | null,
+  context: AnalysisContext,
+): RespiratoryMechanics | null {
   const vt = context.tidalVolumeMl;
   const given = context.complianceMlPerCmH2O;
   const none: RespiratoryMechanics = {

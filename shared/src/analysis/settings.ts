@@ -111,6 +111,7 @@ export function resolveSettings(partial: Partial<AnalysisSettings> = {}): Analys
     throw new RangeError(`setting cyclesToAverage must be an integer 1–20, got ${s.cyclesToAverage}`);
   }
   if (!(s.minTemplateCorrelation > -1 && s.minTemplateCorrelation < 1)) throw new RangeError('setting minTemplateCorrelation must lie in (−1, 1)');
-  if (!(s.plethBandpassHz[0] > 0 && s.plethBandpassHz[1] > s.plethBandpassHz[0])) throw new RangeError('setting plethBandpassHz must be [low, high] with 0 < low < high');
+  if (!(s.plethBandpassHz[0] > 0 && s.plethBandpassHz[1] > s.plethBandpassHz[0]))
+    throw new RangeError('setting plethBandpassHz must be [low, high] with 0 < low < high');
   return s;
 }

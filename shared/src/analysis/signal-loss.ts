@@ -45,7 +45,7 @@ export function findSignalLoss(y: Float64Array, fs: number, minSeconds: number):
   }
   const spans: SampleSpan[] = [];
   const minBlocks = Math.ceil((minSeconds * fs) / block);
-  for (let k = 0; k < nb; ) {
+  for (let k = 0; k < nb;) {
     if (!quiet[k]) {
       k++;
       continue;

@@ -78,7 +78,11 @@ export function finiteOrNull(v: number | null | undefined): number | null {
 export function argMax(x: ArrayLike<number>, a: number, b: number): number {
   let best = a;
   let bv = -Infinity;
-  for (let i = a; i < b; i++) if (x[i] > bv) { bv = x[i]; best = i; }
+  for (let i = a; i < b; i++)
+    if (x[i] > bv) {
+      bv = x[i];
+      best = i;
+    }
   return best;
 }
 
@@ -86,7 +90,11 @@ export function argMax(x: ArrayLike<number>, a: number, b: number): number {
 export function argMin(x: ArrayLike<number>, a: number, b: number): number {
   let best = a;
   let bv = Infinity;
-  for (let i = a; i < b; i++) if (x[i] < bv) { bv = x[i]; best = i; }
+  for (let i = a; i < b; i++)
+    if (x[i] < bv) {
+      bv = x[i];
+      best = i;
+    }
   return best;
 }
 

@@ -1,7 +1,9 @@
 import type { AnalysisResult, IndexValue, TidalVolumeChallengeResult } from './types';
 
 const fmt = (v: IndexValue, digits = 1): string =>
-  v.value === null ? `not computable (${v.notComputableReason ?? 'no value'})` : `${v.value.toFixed(digits)} ${v.unit}${v.spread !== null ? ` (spread ${v.spread.toFixed(digits)}, ${v.cyclesUsed} cycles)` : ''}`;
+  v.value === null
+    ? `not computable (${v.notComputableReason ?? 'no value'})`
+    : `${v.value.toFixed(digits)} ${v.unit}${v.spread !== null ? ` (spread ${v.spread.toFixed(digits)}, ${v.cyclesUsed} cycles)` : ''}`;
 
 /** Plain-text summary of a result for a terminal (the CLI's --pretty). */
 export function formatSummary(r: AnalysisResult): string {
@@ -24,15 +26,31 @@ export function formatSummary(r: AnalysisResult): string {
   out.push(`Cycles (${r.respiration.source ?? 'none'}): ${r.cycles.length} found, ${usable} usable, ${r.cycles.filter((c) => c.usedInWindow).length} averaged`);
   const m = r.respiratoryMechanics;
   if (m) {
-    const c = m.complianceMlPerCmH2O !== null ? `${m.complianceMlPerCmH2O.toFixed(1)} mL/cmH2O (${m.complianceSource === 'context' ? 'as given' : m.plateauSource === 'end-inspiratory-pause' ? 'plateau from a pause' : 'estimated from the peak, a lower bound'})` : 'not computable';
-    out.push(`Mechanics: compliance ${c}; driving pressure ${m.drivingPressureCmH2O !== null ? `${m.drivingPressureCmH2O.toFixed(1)} cmH2O` : '—'}; PEEP ${m.peepCmH2O?.toFixed(1) ?? '—'}`);
+    const c =
+      m.complianceMlPerCmH2O !== null
+        ? `${m.complianceMlPerCmH2O.toFixed(1)} mL/cmH2O (${m.complianceSource === 'context' ? 'as given' : m.plateauSource === 'end-inspiratory-pause' ? 'plateau from a pause' : 'estimated from the peak, a lower bound'})`
+        : 'not computable';
+    out.push(
+      `Mechanics: compliance ${c}; driving pressure ${m.drivingPressureCmH2O !== null ? `${m.drivingPressureCmH2O.toFixed(1)} cmH2O` : '—'}; PEEP ${m.peepCmH2O?.toFixed(1) ?? '—'}`,
+    );
   }
   for (const t of r.arterialLine?.flushTests ?? []) {
-    out.push(`Flush test at ${t.releaseTime.toFixed(1)} s: fn ${t.naturalFrequencyHz?.toFixed(1) ?? '—'} Hz, damping ratio ${t.dampingRatio?.toFixed(2) ?? '—'}; ${t.regionText}`);
+    out.push(
+      `Flush test at ${t.releaseTime.toFixed(1)} s: fn ${t.naturalFrequencyHz?.toFixed(1) ?? '—'} Hz, damping ratio ${t.dampingRatio?.toFixed(2) ?? '—'}; ${t.regionText}`,
+    );
   }
   if (r.flags.length) {
     out.push('Flags:');
-    for (const f of r.flags) out.push(`  [${f.severity}] ${f.code}${f.source ? ` on ${f.source}` : ''}${f.direction ? ` (likely ${f.direction})` : ''}${f.directionByIndex ? ` [${Object.entries(f.directionByIndex).map(([k, v]) => `${k} ${v}`).join(', ')}]` : ''}: ${f.reason}`);
+    for (const f of r.flags)
+      out.push(
+        `  [${f.severity}] ${f.code}${f.source ? ` on ${f.source}` : ''}${f.direction ? ` (likely ${f.direction})` : ''}${
+          f.directionByIndex
+            ? ` [${Object.entries(f.directionByIndex)
+                .map(([k, v]) => `${k} ${v}`)
+                .join(', ')}]`
+            : ''
+        }: ${f.reason}`,
+      );
   }
   out.push('Bands (context only, never an order to treat):');
   for (const b of r.bands) out.push(`  ${b.index} ${b.lower ?? '−∞'}–${b.upper ?? '∞'} ${b.unit}: ${b.label} [${b.source}]`);

@@ -32,14 +32,7 @@ export interface AnalysisInput {
 }
 
 /** Which index a decision band or a per-index verdict belongs to. */
-export type IndexName =
-  | 'ppv'
-  | 'spv'
-  | 'deltaPop'
-  | 'perfusionIndex'
-  | 'heartRate'
-  | 'respiratoryRate'
-  | 'hrRrRatio';
+export type IndexName = 'ppv' | 'spv' | 'deltaPop' | 'perfusionIndex' | 'heartRate' | 'respiratoryRate' | 'hrRrRatio';
 
 /** A decision band: a range of an index with the published source that proposed it. */
 export interface DecisionBand {

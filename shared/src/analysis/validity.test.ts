@@ -7,7 +7,15 @@ import type { AnalysisContext, RespiratoryCycle } from './types';
 
 // Each "what was seen" of the Engine 2.0 issue, reproduced on signals whose truth comes from the
 // generator (its own beats and cycles), never from the cycles the engine chose.
-const CONTEXT: AnalysisContext = { tidalVolumeMl: 600, patientHeightCm: 175, patientSex: 'male', ventilationMode: 'controlled', plethScaling: 'raw', probeSite: 'ear', setRespiratoryRate: 15 };
+const CONTEXT: AnalysisContext = {
+  tidalVolumeMl: 600,
+  patientHeightCm: 175,
+  patientSex: 'male',
+  ventilationMode: 'controlled',
+  plethScaling: 'raw',
+  probeSite: 'ear',
+  setRespiratoryRate: 15,
+};
 const codes = (r: ReturnType<typeof analyseWindow>): string[] => r.flags.map((f) => f.code);
 
 describe('ventilation not confirmed is never valid (Michard, Anesthesiology 2005: controlled ventilation is the first condition)', () => {
@@ -82,7 +90,13 @@ describe('selection without bias: narrow pulse pressure (truth over the last thr
   it('kept against dropped cycles: a systematic difference is measured with its sign (constructed cycles)', () => {
     const cyc = (usable: boolean, v: number, reasons: RespiratoryCycle['rejectReasons'] = []): RespiratoryCycle =>
       ({ usable, variationAllBeats: v, rejectReasons: usable ? [] : reasons }) as unknown as RespiratoryCycle;
-    const k = keptVersusDropped([cyc(true, 10), cyc(true, 11), cyc(false, 16, ['rejected-beat']), cyc(false, 18, ['rejected-beat']), cyc(false, 40, ['ectopic-beat'])]);
+    const k = keptVersusDropped([
+      cyc(true, 10),
+      cyc(true, 11),
+      cyc(false, 16, ['rejected-beat']),
+      cyc(false, 18, ['rejected-beat']),
+      cyc(false, 40, ['ectopic-beat']),
+    ]);
     expect(k.kept).toBeCloseTo(10.5, 9);
     // The ectopic cycle has a flag of its own and stays out of the comparison.
     expect(k.dropped).toBeCloseTo(17, 9);
@@ -92,7 +106,16 @@ describe('selection without bias: narrow pulse pressure (truth over the last thr
 
 describe('signal loss with noise (slope sum detector threshold floor)', () => {
   it(`a line that goes flat with 0.3 mmHg of noise: no beats in the noise, signal-loss flagged (pulse under ${SIGNAL_LOSS_PULSE_MMHG} mmHg)`, () => {
-    const w = generateWindow({ seed: 121, heartRate: 80, respiratoryRate: 15, ppv: 12, disturbances: [{ kind: 'flat-line', start: 20, duration: 40 }, { kind: 'noise', level: 0.3 / 45, roles: ['abp'] }] });
+    const w = generateWindow({
+      seed: 121,
+      heartRate: 80,
+      respiratoryRate: 15,
+      ppv: 12,
+      disturbances: [
+        { kind: 'flat-line', start: 20, duration: 40 },
+        { kind: 'noise', level: 0.3 / 45, roles: ['abp'] },
+      ],
+    });
     const r = analyseWindow({ channels: w.channels, context: CONTEXT });
     const inNoise = r.beats.abp!.beats.filter((b) => b.footTime > 21);
     expect(inNoise).toEqual([]);
@@ -101,7 +124,16 @@ describe('signal loss with noise (slope sum detector threshold floor)', () => {
   });
 
   it('a whole window of noise on a lost line: no beats at all', () => {
-    const w = generateWindow({ seed: 122, heartRate: 80, respiratoryRate: 15, ppv: 12, disturbances: [{ kind: 'flat-line', start: 0, duration: 60, value: 12 }, { kind: 'noise', level: 0.5 / 45, roles: ['abp'] }] });
+    const w = generateWindow({
+      seed: 122,
+      heartRate: 80,
+      respiratoryRate: 15,
+      ppv: 12,
+      disturbances: [
+        { kind: 'flat-line', start: 0, duration: 60, value: 12 },
+        { kind: 'noise', level: 0.5 / 45, roles: ['abp'] },
+      ],
+    });
     const r = analyseWindow({ channels: w.channels, context: CONTEXT });
     expect(r.beats.abp === null || r.beats.abp.beats.length === 0).toBe(true);
     expect(r.indices.ppv.value).toBeNull();
@@ -146,9 +178,24 @@ describe('checklist context: each a flag with its source and direction', () => {
 });
 
 describe('respiratory-system compliance Vt / (plateau − PEEP) and driving pressure (common practice)', () => {
-  for (const [c, pause] of [[15, 0.3], [25, 0.3], [45, 0.3], [60, 0.3], [25, 0], [45, 0]] as const) {
+  for (const [c, pause] of [
+    [15, 0.3],
+    [25, 0.3],
+    [45, 0.3],
+    [60, 0.3],
+    [25, 0],
+    [45, 0],
+  ] as const) {
     it(`compliance ${c} mL/cmH2O, ${pause ? 'end-inspiratory pause' : 'no pause'}: value, plateau source, low-compliance flag at ≤ 30 (Monnet et al., Crit Care Med 2012, from memory)`, () => {
-      const w = generateWindow({ seed: 140 + c, heartRate: 85, respiratoryRate: 15, ppv: 12, tidalVolumeMl: 500, complianceMlPerCmH2O: c, inspiratoryPauseSeconds: pause });
+      const w = generateWindow({
+        seed: 140 + c,
+        heartRate: 85,
+        respiratoryRate: 15,
+        ppv: 12,
+        tidalVolumeMl: 500,
+        complianceMlPerCmH2O: c,
+        inspiratoryPauseSeconds: pause,
+      });
       const r = analyseWindow({ channels: w.channels, context: { ...CONTEXT, tidalVolumeMl: 500 } });
       const m = r.respiratoryMechanics;
       expect(m).not.toBeNull();

@@ -96,7 +96,9 @@ describe('segment reader', () => {
 
   it('refuses more segments or fields than its caps, naming the cap', () => {
     expect(() => parseHl7(msg(10), { maxSegments: 5, maxFieldsPerSegment: 50 })).toThrow(expect.objectContaining({ limit: 'maxSegments=5' }));
-    expect(() => parseHl7(`MSH|^~\\&|${'|'.repeat(60)}`, { maxSegments: 5, maxFieldsPerSegment: 50 })).toThrow(expect.objectContaining({ limit: 'maxFieldsPerSegment=50' }));
+    expect(() => parseHl7(`MSH|^~\\&|${'|'.repeat(60)}`, { maxSegments: 5, maxFieldsPerSegment: 50 })).toThrow(
+      expect.objectContaining({ limit: 'maxFieldsPerSegment=50' }),
+    );
     expect(parseHl7(msg(4), { maxSegments: 5, maxFieldsPerSegment: 50 }).segments).toHaveLength(5);
   });
 
@@ -113,10 +115,14 @@ describe('segment reader', () => {
     const text = msg(60_000);
     let turns = 0;
     const ticker = setInterval(() => turns++, 0);
-    const parsed = await parseHl7Async(text, { maxSegments: 100_000, maxFieldsPerSegment: 50 }, (() => {
-      let n = 0;
-      return () => (++n % 10 === 0 ? new Promise<void>((r) => setImmediate(r)) : undefined);
-    })());
+    const parsed = await parseHl7Async(
+      text,
+      { maxSegments: 100_000, maxFieldsPerSegment: 50 },
+      (() => {
+        let n = 0;
+        return () => (++n % 10 === 0 ? new Promise<void>((r) => setImmediate(r)) : undefined);
+      })(),
+    );
     clearInterval(ticker);
     expect(parsed.segments).toHaveLength(60_001);
     expect(parsed.segments.map((s) => s.fields[1])).toEqual(parseHl7(text, { maxSegments: 100_000, maxFieldsPerSegment: 50 }).segments.map((s) => s.fields[1]));

@@ -116,7 +116,12 @@ export class SegmentCursor {
       }
       const parts = line.split(field, limits.maxFieldsPerSegment + 2);
       if (parts.length > limits.maxFieldsPerSegment + 1) {
-        throw new Hl7ParseError(`Segment ${index} has more than ${limits.maxFieldsPerSegment} fields.`, 102, `${index}`, `maxFieldsPerSegment=${limits.maxFieldsPerSegment}`);
+        throw new Hl7ParseError(
+          `Segment ${index} has more than ${limits.maxFieldsPerSegment} fields.`,
+          102,
+          `${index}`,
+          `maxFieldsPerSegment=${limits.maxFieldsPerSegment}`,
+        );
       }
       const name = parts[0] as string;
       if (!/^[A-Z][A-Z0-9]{2}$/.test(name)) throw new Hl7ParseError(`Segment ${index} has no valid segment name ("${name.slice(0, 10)}").`, 100, `${index}`);

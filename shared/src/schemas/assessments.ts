@@ -47,9 +47,7 @@ export type AssessmentQuery = z.infer<typeof assessmentQuerySchema>;
 /** Samples for plotting; time of sample i = startTime + i / sampleRate (the AnalysisResult time base). */
 export const waveformSchema = z.object({
   startTime: z.string(),
-  channels: z.array(
-    z.object({ role: channelRoleSchema, unit: z.string(), sampleRate: z.number(), samples: z.array(z.number().nullable()) }),
-  ),
+  channels: z.array(z.object({ role: channelRoleSchema, unit: z.string(), sampleRate: z.number(), samples: z.array(z.number().nullable()) })),
 });
 export type Waveform = z.infer<typeof waveformSchema>;
 

@@ -13,7 +13,11 @@ export const profileChannelSchema = z.object({
   role: channelRoleSchema,
   /** Physical unit after scaling, e.g. `mmHg`, `cmH2O`, `1` for pleth. */
   unit: z.string().min(1).max(32),
-  gain: z.number().finite().refine((g) => g !== 0, 'gain must not be 0').default(1),
+  gain: z
+    .number()
+    .finite()
+    .refine((g) => g !== 0, 'gain must not be 0')
+    .default(1),
   offset: z.number().finite().default(0),
   /** Samples per second the monitor sends for this channel. */
   sampleRate: z.number().positive().max(2000),
@@ -141,7 +145,6 @@ export const bedSchema = bedInputSchema.extend({
   updatedAt: z.string(),
 });
 export type Bed = z.infer<typeof bedSchema>;
-
 
 export const bedSortFields = ['name', 'unit', 'locationIdentifier', 'createdAt', 'updatedAt'] as const;
 export const bedQuerySchema = pageQuerySchema.extend({

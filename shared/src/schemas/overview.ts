@@ -28,7 +28,9 @@ export const overviewSchema = z.object({
     delivered: z.number().int(),
     series: z.array(bucket(['delivered', 'failed'])),
   }),
-  destinations: z.array(z.object({ id: z.string(), name: z.string(), state: z.enum(['up', 'paused', 'circuit-open', 'down', 'misconfigured']), downSince: z.string().nullable() })),
+  destinations: z.array(
+    z.object({ id: z.string(), name: z.string(), state: z.enum(['up', 'paused', 'circuit-open', 'down', 'misconfigured']), downSince: z.string().nullable() }),
+  ),
   monitors: z.object({ total: z.number().int(), live: z.number().int() }),
 });
 export type Overview = z.infer<typeof overviewSchema>;

@@ -5,7 +5,11 @@ export const indexNameSchema = z.enum(['ppv', 'spv', 'deltaPop', 'perfusionIndex
 /** A decision band always carries where it comes from; it is context, never an order to treat. */
 export const decisionBandSchema = z
   .object({
-    id: z.string().min(1).max(64).regex(/^[a-z0-9-]+$/, 'lower-case letters, digits and dashes'),
+    id: z
+      .string()
+      .min(1)
+      .max(64)
+      .regex(/^[a-z0-9-]+$/, 'lower-case letters, digits and dashes'),
     index: indexNameSchema,
     lower: z.number().nullable(),
     upper: z.number().nullable(),

@@ -82,7 +82,7 @@ export function breathPhase(starts: number[], t: number): number {
   if (j < 0 || j + 1 >= starts.length) {
     const period = starts[1] - starts[0];
     const base = j < 0 ? starts[0] : starts[starts.length - 1];
-    return (((t - base) / period) % 1 + 1) % 1;
+    return ((((t - base) / period) % 1) + 1) % 1;
   }
   return (t - starts[j]) / (starts[j + 1] - starts[j]);
 }

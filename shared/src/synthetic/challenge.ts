@@ -70,7 +70,18 @@ export function generateChallenge(spec: ChallengeSpec): SyntheticChallenge {
   const c = spec.complianceMlPerCmH2O ?? 45;
   const common: AnalysisContext = { ventilationMode: 'controlled', setRespiratoryRate: rr, patientHeightCm: height, patientSex: sex, plethScaling: 'raw' };
   const make = (seed: number, ppv: number, vt: number, seconds: number, disturbances: Disturbance[]): ChallengeSegment => {
-    const w = generateWindow({ seed, heartRate: hr, respiratoryRate: rr, ppv, durationSeconds: seconds, sampleRate: spec.sampleRate, channels: ['abp', 'paw'], tidalVolumeMl: vt, complianceMlPerCmH2O: c, disturbances });
+    const w = generateWindow({
+      seed,
+      heartRate: hr,
+      respiratoryRate: rr,
+      ppv,
+      durationSeconds: seconds,
+      sampleRate: spec.sampleRate,
+      channels: ['abp', 'paw'],
+      tidalVolumeMl: vt,
+      complianceMlPerCmH2O: c,
+      disturbances,
+    });
     return { channels: w.channels, context: { ...common, tidalVolumeMl: vt }, truth: w.truth, durationSeconds: seconds };
   };
   const before = make(spec.seed, p0, low, spec.baselineSeconds ?? 60, []);

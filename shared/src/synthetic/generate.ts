@@ -138,7 +138,8 @@ export function generateWindow(spec: SyntheticSpec): SyntheticWindow {
       co2[i] = capnogram(u, ti, spec.etco2 ?? 38);
       for (const e of efforts) {
         const v = t - e;
-        if (v >= 0 && v < 0.35) paw[i] -= 3 * Math.sin((Math.PI * v) / 0.35); // trigger dip below PEEP
+        if (v >= 0 && v < 0.35)
+          paw[i] -= 3 * Math.sin((Math.PI * v) / 0.35); // trigger dip below PEEP
         else if (v >= 0.35 && v < 1.2) paw[i] += 7 * Math.sin((Math.PI * (v - 0.35)) / 0.85); // supported breath
       }
     }

@@ -28,10 +28,7 @@ export const SYNTHETIC_CHANNEL_CODES = {
  * Wraps a synthetic window as an ingest batch (float32 base64 samples, NaN gaps kept as NaN).
  * The role is set explicitly on every channel so no code map is needed to read it back.
  */
-export function toIngestBatch(
-  window: SyntheticWindow,
-  ids: { monitorId: string; batchId: string; startTime: string; context?: AnalysisContext },
-): IngestBatch {
+export function toIngestBatch(window: SyntheticWindow, ids: { monitorId: string; batchId: string; startTime: string; context?: AnalysisContext }): IngestBatch {
   return {
     monitorId: ids.monitorId,
     batchId: ids.batchId,

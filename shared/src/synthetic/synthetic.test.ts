@@ -4,8 +4,22 @@ import { createPrng, generateWindow, toCsvCapture, toIngestBatch } from './index
 
 describe('synthetic generator', () => {
   it('is deterministic: the same seed gives the same samples bit for bit', () => {
-    const a = generateWindow({ seed: 4, heartRate: 75, respiratoryRate: 14, ppv: 10, channels: ['abp', 'pleth', 'paw', 'co2'], disturbances: [{ kind: 'noise', level: 0.05 }] });
-    const b = generateWindow({ seed: 4, heartRate: 75, respiratoryRate: 14, ppv: 10, channels: ['abp', 'pleth', 'paw', 'co2'], disturbances: [{ kind: 'noise', level: 0.05 }] });
+    const a = generateWindow({
+      seed: 4,
+      heartRate: 75,
+      respiratoryRate: 14,
+      ppv: 10,
+      channels: ['abp', 'pleth', 'paw', 'co2'],
+      disturbances: [{ kind: 'noise', level: 0.05 }],
+    });
+    const b = generateWindow({
+      seed: 4,
+      heartRate: 75,
+      respiratoryRate: 14,
+      ppv: 10,
+      channels: ['abp', 'pleth', 'paw', 'co2'],
+      disturbances: [{ kind: 'noise', level: 0.05 }],
+    });
     for (let c = 0; c < a.channels.length; c++) expect(Buffer.from(a.channels[c].samples.buffer).equals(Buffer.from(b.channels[c].samples.buffer))).toBe(true);
     const c2 = generateWindow({ seed: 5, heartRate: 75, respiratoryRate: 14, ppv: 10, disturbances: [{ kind: 'noise', level: 0.05 }] });
     expect(c2.channels[0].samples[100]).not.toBe(a.channels[0].samples[100]);
@@ -27,7 +41,7 @@ describe('synthetic generator', () => {
     const x = w.channels[0].samples;
     for (const b of w.truth.beats.abp.slice(1, -1)) {
       const a = Math.round(b.footTime * 1000);
-      const e = Math.round((b.footTime + 60 / 90 * 0.9) * 1000);
+      const e = Math.round((b.footTime + (60 / 90) * 0.9) * 1000);
       let mx = -Infinity;
       for (let i = a; i < e; i++) mx = Math.max(mx, x[i]);
       expect(mx).toBeCloseTo(b.sbp, 1);
@@ -61,7 +75,15 @@ describe('synthetic generator', () => {
   });
 
   it('gaps are NaN and auto-scaling removes the DC level', () => {
-    const w = generateWindow({ seed: 12, heartRate: 80, respiratoryRate: 15, ppv: 10, channels: ['abp', 'pleth'], plethScaling: 'auto-scaled', disturbances: [{ kind: 'gap', start: 10, duration: 1 }] });
+    const w = generateWindow({
+      seed: 12,
+      heartRate: 80,
+      respiratoryRate: 15,
+      ppv: 10,
+      channels: ['abp', 'pleth'],
+      plethScaling: 'auto-scaled',
+      disturbances: [{ kind: 'gap', start: 10, duration: 1 }],
+    });
     expect(Number.isNaN(w.channels[0].samples[1312])).toBe(true);
     const pleth = w.channels[1].samples.filter((v) => !Number.isNaN(v));
     expect(Math.min(...pleth)).toBeCloseTo(0, 6);

@@ -9,7 +9,11 @@ import { createIngestClient, type SenderEvent } from './index';
 import { SampleBatcher } from './sample-batcher';
 
 // A bare node:http server on 127.0.0.1 stands in for the gateway; each test scripts its answers.
-interface Seen { at: number; auth: string | undefined; batch: IngestBatch }
+interface Seen {
+  at: number;
+  auth: string | undefined;
+  batch: IngestBatch;
+}
 type Answer = { status: number; headers?: Record<string, string>; body?: unknown };
 
 async function fakeGateway(answer: (batch: IngestBatch, n: number) => Answer, port = 0) {
@@ -42,9 +46,20 @@ afterEach(async () => {
 });
 
 function batches(monitorId: string, count: number): IngestBatch[] {
-  const b = new SampleBatcher({ monitorId, channels: [{ code: 'MDC_PRESS_BLD_ART_ABP', sampleRate: 125, unit: 'mmHg' }], batchSeconds: 1, startTime: new Date('2026-12-01T10:00:00Z') });
+  const b = new SampleBatcher({
+    monitorId,
+    channels: [{ code: 'MDC_PRESS_BLD_ART_ABP', sampleRate: 125, unit: 'mmHg' }],
+    batchSeconds: 1,
+    startTime: new Date('2026-12-01T10:00:00Z'),
+  });
   const out: IngestBatch[] = [];
-  for (let k = 0; k < count; k++) out.push(...b.push('MDC_PRESS_BLD_ART_ABP', Array.from({ length: 125 }, (_, i) => 80 + Math.sin(i / 10) * 20 + k)));
+  for (let k = 0; k < count; k++)
+    out.push(
+      ...b.push(
+        'MDC_PRESS_BLD_ART_ABP',
+        Array.from({ length: 125 }, (_, i) => 80 + Math.sin(i / 10) * 20 + k),
+      ),
+    );
   return out;
 }
 
@@ -69,7 +84,9 @@ describe('adapter client over HTTP (bare node:http server as the gateway)', () =
   });
 
   it('honours Retry-After (delay-seconds, RFC 9110 §10.2.3) on 503 and 429 before trying again', async () => {
-    const gw = await fakeGateway((_b, n) => (n === 1 ? { status: 503, headers: { 'retry-after': '1' } } : n === 2 ? { status: 429, headers: { 'retry-after': '1' } } : { status: 202 }));
+    const gw = await fakeGateway((_b, n) =>
+      n === 1 ? { status: 503, headers: { 'retry-after': '1' } } : n === 2 ? { status: 429, headers: { 'retry-after': '1' } } : { status: 202 },
+    );
     const events: SenderEvent[] = [];
     const client = await createIngestClient({ gatewayUrl: gw.url, apiKeys: () => 'k', spoolDir: await tempDir(), retry: fast, onEvent: (e) => events.push(e) });
     await client.send(batches('EUI-2', 1)[0]);
@@ -105,10 +122,22 @@ describe('adapter client over HTTP (bare node:http server as the gateway)', () =
 
   it('reports 409 and 422 as permanent failures, keeps them in rejected/ with the answer, and goes on', async () => {
     const problem = { type: 'about:blank', title: 'Batch id reused with other content', status: 409 };
-    const gw = await fakeGateway((_b, n) => (n === 1 ? { status: 409, body: problem } : n === 2 ? { status: 422, body: { title: 'Invalid batch', status: 422, errors: [{ path: 'channels.0.sampleRate', message: 'too high' }] } } : { status: 202 }));
+    const gw = await fakeGateway((_b, n) =>
+      n === 1
+        ? { status: 409, body: problem }
+        : n === 2
+          ? { status: 422, body: { title: 'Invalid batch', status: 422, errors: [{ path: 'channels.0.sampleRate', message: 'too high' }] } }
+          : { status: 202 },
+    );
     const spoolDir = await tempDir();
     const rejected: Extract<SenderEvent, { kind: 'rejected' }>[] = [];
-    const client = await createIngestClient({ gatewayUrl: gw.url, apiKeys: () => 'k', spoolDir, retry: fast, onEvent: (e) => e.kind === 'rejected' && rejected.push(e) });
+    const client = await createIngestClient({
+      gatewayUrl: gw.url,
+      apiKeys: () => 'k',
+      spoolDir,
+      retry: fast,
+      onEvent: (e) => e.kind === 'rejected' && rejected.push(e),
+    });
     for (const b of batches('EUI-4', 3)) await client.send(b);
     await client.drain(5000);
     await client.close();

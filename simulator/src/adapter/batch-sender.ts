@@ -178,7 +178,15 @@ export class BatchSender {
         for (const x of q) await this.persist(x);
         this.counts.retries++;
         const delayMs = nextDelay(this.policy, e.attempts, outcome.retryAfterMs, this.opts.random);
-        this.opts.onEvent?.({ kind: 'retrying', ...ids, attempt: e.attempts, delayMs, reason: outcome.reason, status: outcome.status, retryAfterMs: outcome.retryAfterMs });
+        this.opts.onEvent?.({
+          kind: 'retrying',
+          ...ids,
+          attempt: e.attempts,
+          delayMs,
+          reason: outcome.reason,
+          status: outcome.status,
+          retryAfterMs: outcome.retryAfterMs,
+        });
         await this.sleep(delayMs);
       }
       if (this.pending() === 0) this.wakeDrainers();

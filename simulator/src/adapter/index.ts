@@ -27,5 +27,8 @@ export interface IngestClientOptions extends Omit<BatchSenderOptions, 'transport
 export function createIngestClient(opts: IngestClientOptions): Promise<BatchSender> {
   const keys = opts.apiKeys;
   const apiKey = typeof keys === 'function' ? keys : (id: string) => keys[id];
-  return BatchSender.open({ ...opts, transport: httpTransport({ gatewayUrl: opts.gatewayUrl, apiKey, timeoutMs: opts.timeoutMs, maxSockets: opts.maxSockets }) });
+  return BatchSender.open({
+    ...opts,
+    transport: httpTransport({ gatewayUrl: opts.gatewayUrl, apiKey, timeoutMs: opts.timeoutMs, maxSockets: opts.maxSockets }),
+  });
 }

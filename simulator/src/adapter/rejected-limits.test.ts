@@ -12,7 +12,12 @@ function scripted(outcome: (batch: IngestBatch, n: number) => SendOutcome): Batc
   return { name: 'scripted', sent, send: async (b) => (sent.push(b.batchId), outcome(b, sent.length)) };
 }
 
-const batch = (k: number): IngestBatch => ({ monitorId: '02EB6AFFFE0000A1', batchId: `b-${k}`, startTime: new Date(Date.UTC(2026, 11, 1, 10, 0, k)).toISOString(), channels: [{ code: 'X', sampleRate: 1, samples: [1] }] });
+const batch = (k: number): IngestBatch => ({
+  monitorId: '02EB6AFFFE0000A1',
+  batchId: `b-${k}`,
+  startTime: new Date(Date.UTC(2026, 11, 1, 10, 0, k)).toISOString(),
+  channels: [{ code: 'X', sampleRate: 1, samples: [1] }],
+});
 
 const dirs: string[] = [];
 afterEach(async () => {
@@ -23,7 +28,8 @@ async function tempDir() {
   dirs.push(d);
   return d;
 }
-const rejectedFiles = async (dir: string) => (await readdir(path.join(dir, encodeURIComponent('02EB6AFFFE0000A1'), 'rejected'))).filter((n) => /^\d+\.json$/.test(n)).sort();
+const rejectedFiles = async (dir: string) =>
+  (await readdir(path.join(dir, encodeURIComponent('02EB6AFFFE0000A1'), 'rejected'))).filter((n) => /^\d+\.json$/.test(n)).sort();
 
 describe('refused batches in the adapter spool', () => {
   it('keeps at most maxPerMonitor refused batches (oldest go first) and counts what it dropped', async () => {

@@ -29,6 +29,8 @@ describe('sample batcher', () => {
   });
 
   it('refuses a batch length that is not a whole number of samples', () => {
-    expect(() => new SampleBatcher({ monitorId: 'M', channels: [{ code: 'X', sampleRate: 62.5 }], batchSeconds: 1, startTime: new Date() })).toThrow(RangeError);
+    expect(() => new SampleBatcher({ monitorId: 'M', channels: [{ code: 'X', sampleRate: 62.5 }], batchSeconds: 1, startTime: new Date() })).toThrow(
+      RangeError,
+    );
   });
 });

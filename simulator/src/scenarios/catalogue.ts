@@ -9,7 +9,15 @@ import type { Scenario, ScenarioId } from './types';
  */
 const controlled = (rate: number, tidalVolumeMlPerKg: number) => ({ mode: 'controlled' as const, rate, tidalVolumeMlPerKg, peep: 5, peakPressure: 22 });
 const standardChannels = ['abp', 'pleth', 'paw'] as const;
-const cleanFlags = ['irregular-rhythm', 'spontaneous-breathing', 'tidal-volume-low', 'tidal-volume-unknown', 'noise-motion', 'arterial-damped', 'low-hr-rr-ratio'] as const;
+const cleanFlags = [
+  'irregular-rhythm',
+  'spontaneous-breathing',
+  'tidal-volume-low',
+  'tidal-volume-unknown',
+  'noise-motion',
+  'arterial-damped',
+  'low-hr-rr-ratio',
+] as const;
 
 export const SCENARIOS: Record<ScenarioId, Scenario> = {
   'fluid-responsive': {
@@ -20,7 +28,14 @@ export const SCENARIOS: Record<ScenarioId, Scenario> = {
     ventilator: controlled(14, 8.5),
     channels: [...standardChannels, 'co2'],
     disturbancesPerMinute: [],
-    expect: { outcome: 'assessed', verdict: 'valid', flags: [], absentFlags: [...cleanFlags], ppvRecovered: true, reading: 'PPV well above 13 %, every validity condition met.' },
+    expect: {
+      outcome: 'assessed',
+      verdict: 'valid',
+      flags: [],
+      absentFlags: [...cleanFlags],
+      ppvRecovered: true,
+      reading: 'PPV well above 13 %, every validity condition met.',
+    },
   },
   'not-responsive': {
     id: 'not-responsive',
@@ -30,7 +45,14 @@ export const SCENARIOS: Record<ScenarioId, Scenario> = {
     ventilator: controlled(14, 8),
     channels: [...standardChannels],
     disturbancesPerMinute: [],
-    expect: { outcome: 'assessed', verdict: 'valid', flags: [], absentFlags: [...cleanFlags], ppvRecovered: true, reading: 'PPV below the grey zone, valid conditions.' },
+    expect: {
+      outcome: 'assessed',
+      verdict: 'valid',
+      flags: [],
+      absentFlags: [...cleanFlags],
+      ppvRecovered: true,
+      reading: 'PPV below the grey zone, valid conditions.',
+    },
   },
   'atrial-fibrillation': {
     id: 'atrial-fibrillation',
@@ -40,7 +62,15 @@ export const SCENARIOS: Record<ScenarioId, Scenario> = {
     ventilator: controlled(16, 8),
     channels: [...standardChannels],
     disturbancesPerMinute: [{ kind: 'irregular-rhythm', variability: 0.3 }],
-    expect: { outcome: 'assessed', verdict: 'not-valid', flags: ['irregular-rhythm'], flagDirections: { 'irregular-rhythm': 'false-high' }, absentFlags: ['spontaneous-breathing'], ppvRecovered: false, reading: 'Arrhythmia gives false-high variation: not valid.' },
+    expect: {
+      outcome: 'assessed',
+      verdict: 'not-valid',
+      flags: ['irregular-rhythm'],
+      flagDirections: { 'irregular-rhythm': 'false-high' },
+      absentFlags: ['spontaneous-breathing'],
+      ppvRecovered: false,
+      reading: 'Arrhythmia gives false-high variation: not valid.',
+    },
   },
   'spontaneous-breathing': {
     id: 'spontaneous-breathing',
@@ -50,7 +80,15 @@ export const SCENARIOS: Record<ScenarioId, Scenario> = {
     ventilator: controlled(14, 8),
     channels: [...standardChannels],
     disturbancesPerMinute: [{ kind: 'spontaneous-breaths', count: 4 }],
-    expect: { outcome: 'assessed', verdict: 'not-valid', flags: ['spontaneous-breathing'], flagDirections: { 'spontaneous-breathing': 'false-high' }, absentFlags: ['irregular-rhythm'], ppvRecovered: false, reading: 'Patient effort gives false-high variation: not valid.' },
+    expect: {
+      outcome: 'assessed',
+      verdict: 'not-valid',
+      flags: ['spontaneous-breathing'],
+      flagDirections: { 'spontaneous-breathing': 'false-high' },
+      absentFlags: ['irregular-rhythm'],
+      ppvRecovered: false,
+      reading: 'Patient effort gives false-high variation: not valid.',
+    },
   },
   'motion-artefact': {
     id: 'motion-artefact',
@@ -63,7 +101,14 @@ export const SCENARIOS: Record<ScenarioId, Scenario> = {
       { kind: 'motion', start: 4, duration: 14, amplitude: 0.4 },
       { kind: 'motion', start: 34, duration: 14, amplitude: 0.4 },
     ],
-    expect: { outcome: 'assessed', verdict: 'questionable', flags: ['noise-motion'], absentFlags: ['irregular-rhythm'], ppvRecovered: false, reading: 'Beats lost to artefact: the value is questionable.' },
+    expect: {
+      outcome: 'assessed',
+      verdict: 'questionable',
+      flags: ['noise-motion'],
+      absentFlags: ['irregular-rhythm'],
+      ppvRecovered: false,
+      reading: 'Beats lost to artefact: the value is questionable.',
+    },
   },
   'damped-arterial-line': {
     id: 'damped-arterial-line',
@@ -73,7 +118,15 @@ export const SCENARIOS: Record<ScenarioId, Scenario> = {
     ventilator: controlled(14, 8),
     channels: [...standardChannels],
     disturbancesPerMinute: [{ kind: 'damping', cutoffHz: 3 }],
-    expect: { outcome: 'assessed', verdict: 'questionable', flags: ['arterial-damped'], flagDirections: { 'arterial-damped': 'unknown' }, absentFlags: ['irregular-rhythm', 'spontaneous-breathing'], ppvRecovered: false, reading: 'Damped line understates systolic pressure and SPV; the direction of the PPV error is not known: questionable.' },
+    expect: {
+      outcome: 'assessed',
+      verdict: 'questionable',
+      flags: ['arterial-damped'],
+      flagDirections: { 'arterial-damped': 'unknown' },
+      absentFlags: ['irregular-rhythm', 'spontaneous-breathing'],
+      ppvRecovered: false,
+      reading: 'Damped line understates systolic pressure and SPV; the direction of the PPV error is not known: questionable.',
+    },
   },
   'vasopressor-finger-probe': {
     id: 'vasopressor-finger-probe',
@@ -105,7 +158,15 @@ export const SCENARIOS: Record<ScenarioId, Scenario> = {
     ventilator: controlled(22, 5),
     channels: [...standardChannels],
     disturbancesPerMinute: [],
-    expect: { outcome: 'assessed', verdict: 'not-valid', flags: ['tidal-volume-low'], flagDirections: { 'tidal-volume-low': 'false-low' }, absentFlags: ['irregular-rhythm', 'spontaneous-breathing'], ppvRecovered: true, reading: 'Tidal volume < 8 mL/kg PBW gives false-low variation: not valid.' },
+    expect: {
+      outcome: 'assessed',
+      verdict: 'not-valid',
+      flags: ['tidal-volume-low'],
+      flagDirections: { 'tidal-volume-low': 'false-low' },
+      absentFlags: ['irregular-rhythm', 'spontaneous-breathing'],
+      ppvRecovered: true,
+      reading: 'Tidal volume < 8 mL/kg PBW gives false-low variation: not valid.',
+    },
   },
   'unmapped-channel': {
     id: 'unmapped-channel',
@@ -116,7 +177,13 @@ export const SCENARIOS: Record<ScenarioId, Scenario> = {
     channels: [...standardChannels],
     unmappedChannel: { code: 'EBB_RESP_IMPEDANCE', sampleRate: 50, unit: 'Ohm' },
     disturbancesPerMinute: [],
-    expect: { outcome: 'quarantined', flags: [], absentFlags: [], ppvRecovered: false, reading: 'The gateway refuses each batch into the inbound quarantine, naming the unmapped code.' },
+    expect: {
+      outcome: 'quarantined',
+      flags: [],
+      absentFlags: [],
+      ppvRecovered: false,
+      reading: 'The gateway refuses each batch into the inbound quarantine, naming the unmapped code.',
+    },
   },
   // Tidal volume challenge (Myatra et al., Crit Care Med 2017, from memory): at 6 mL/kg PBW the
   // window PPV is not valid (tidal volume too low); raising it to 8 mL/kg for a minute and reading
@@ -130,7 +197,13 @@ export const SCENARIOS: Record<ScenarioId, Scenario> = {
     channels: ['abp', 'paw'],
     disturbancesPerMinute: [],
     tidalVolumeChallenge: { kind: 'responder', baselineSeconds: 120, challengeSeconds: 60 },
-    expect: { outcome: 'assessed', flags: [], absentFlags: ['irregular-rhythm', 'spontaneous-breathing'], ppvRecovered: false, reading: 'PPV rises by 3.5 points or more when the tidal volume goes to 8 mL/kg: challenge positive.' },
+    expect: {
+      outcome: 'assessed',
+      flags: [],
+      absentFlags: ['irregular-rhythm', 'spontaneous-breathing'],
+      ppvRecovered: false,
+      reading: 'PPV rises by 3.5 points or more when the tidal volume goes to 8 mL/kg: challenge positive.',
+    },
   },
   'tidal-volume-challenge-non-responder': {
     id: 'tidal-volume-challenge-non-responder',
@@ -141,7 +214,13 @@ export const SCENARIOS: Record<ScenarioId, Scenario> = {
     channels: ['abp', 'paw'],
     disturbancesPerMinute: [],
     tidalVolumeChallenge: { kind: 'non-responder', baselineSeconds: 120, challengeSeconds: 60 },
-    expect: { outcome: 'assessed', flags: [], absentFlags: ['irregular-rhythm', 'spontaneous-breathing'], ppvRecovered: false, reading: 'PPV rises by less than 3.5 points at 8 mL/kg: challenge negative.' },
+    expect: {
+      outcome: 'assessed',
+      flags: [],
+      absentFlags: ['irregular-rhythm', 'spontaneous-breathing'],
+      ppvRecovered: false,
+      reading: 'PPV rises by less than 3.5 points at 8 mL/kg: challenge negative.',
+    },
   },
 };
 
@@ -163,5 +242,6 @@ export const EHR_OUTAGE = {
   // to find the bad one, so the first refusal may land on a Bundle and the next on a single post.
   refusalRules: [{ scope: 'Observation', errorRate: 1, statusCodes: [422], remaining: 3 }],
   outageRules: [{ scope: 'all', errorRate: 1, statusCodes: [503], retryAfterSeconds: 5 }],
-  expect: 'one delivery failed with the EHR OperationOutcome; others pending and retried, delivered once the faults are cleared; an alert mail when the destination counts as down',
+  expect:
+    'one delivery failed with the EHR OperationOutcome; others pending and retried, delivered once the faults are cleared; an alert mail when the destination counts as down',
 } as const;

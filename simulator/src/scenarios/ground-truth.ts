@@ -17,7 +17,12 @@ export interface WindowCheck {
  * and must not be there, the per-index verdicts, and (for clean scenarios) each used cycle's PPV
  * against the truth cycle it corresponds to (matched by start time within 0.5 s).
  */
-export function checkWindow(result: Pick<AnalysisResult, 'verdict' | 'flags' | 'indexVerdicts' | 'cycles' | 'indices'>, expect: ScenarioExpectation, truth: TruthCycle[], windowOffset: number): WindowCheck {
+export function checkWindow(
+  result: Pick<AnalysisResult, 'verdict' | 'flags' | 'indexVerdicts' | 'cycles' | 'indices'>,
+  expect: ScenarioExpectation,
+  truth: TruthCycle[],
+  windowOffset: number,
+): WindowCheck {
   const problems: string[] = [];
   const codes = new Set(result.flags.map((f) => f.code));
   if (expect.verdict && result.verdict !== expect.verdict) problems.push(`verdict ${result.verdict}, expected ${expect.verdict}`);
@@ -38,7 +43,8 @@ export function checkWindow(result: Pick<AnalysisResult, 'verdict' | 'flags' | '
       const t = truth.find((x) => Math.abs(x.startTime - (windowOffset + c.startTime)) < 0.5);
       if (!t || t.ppv === null) continue;
       cycles.push({ engine: c.ppv!, truth: t.ppv });
-      if (Math.abs(c.ppv! - t.ppv) > PPV_TOLERANCE_POINTS) problems.push(`cycle at ${(windowOffset + c.startTime).toFixed(1)} s: PPV ${c.ppv!.toFixed(2)} vs truth ${t.ppv.toFixed(2)}`);
+      if (Math.abs(c.ppv! - t.ppv) > PPV_TOLERANCE_POINTS)
+        problems.push(`cycle at ${(windowOffset + c.startTime).toFixed(1)} s: PPV ${c.ppv!.toFixed(2)} vs truth ${t.ppv.toFixed(2)}`);
     }
     if (cycles.length === 0) problems.push('no used cycle matched a truth cycle');
   }

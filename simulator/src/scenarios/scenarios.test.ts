@@ -36,7 +36,13 @@ describe('scenario truth is what the shared generator puts in', () => {
   });
 
   it('repeats timed disturbances every minute and scales counted ones', () => {
-    const d = expandDisturbances([{ kind: 'motion', start: 4, duration: 10, amplitude: 1 }, { kind: 'spontaneous-breaths', count: 4 }], 180);
+    const d = expandDisturbances(
+      [
+        { kind: 'motion', start: 4, duration: 10, amplitude: 1 },
+        { kind: 'spontaneous-breaths', count: 4 },
+      ],
+      180,
+    );
     expect(d.filter((x) => x.kind === 'motion').map((x) => (x as { start: number }).start)).toEqual([4, 64, 124]);
     expect(d.find((x) => x.kind === 'spontaneous-breaths')).toEqual({ kind: 'spontaneous-breaths', count: 12 });
   });
@@ -55,7 +61,10 @@ describe('the engine recovers each scenario (analyzeWindow on 30-s windows of th
     const truth = stream.truthCycles(0, 70);
     for (const start of [0, 20, 40]) {
       const a = start * 125;
-      const r = analyzeWindow({ channels: chunk.channels.map((c) => ({ role: c.role, sampleRate: 125, unit: c.unit, samples: c.samples.subarray(a, a + 30 * 125) })), context: scenarioContext(s) });
+      const r = analyzeWindow({
+        channels: chunk.channels.map((c) => ({ role: c.role, sampleRate: 125, unit: c.unit, samples: c.samples.subarray(a, a + 30 * 125) })),
+        context: scenarioContext(s),
+      });
       const check = checkWindow(r, s.expect, truth, start);
       expect(check.problems, `${id} window at ${start} s`).toEqual([]);
     }
@@ -140,7 +149,10 @@ describe('tidal volume challenge scenarios (stream cut from generateChallenge, j
           const all = part.map((ch) => ch.channels.find((x) => x.role === role)!);
           const samples = new Float64Array(all.reduce((n, x) => n + x.samples.length, 0));
           let at = 0;
-          for (const x of all) (samples.set(x.samples, at), (at += x.samples.length));
+          for (const x of all) {
+            samples.set(x.samples, at);
+            at += x.samples.length;
+          }
           return { role, sampleRate: 125, unit: all[0]!.unit, samples };
         }),
       };

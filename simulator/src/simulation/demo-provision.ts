@@ -41,7 +41,10 @@ export async function provisionDemoMonitors(gatewayUrl: string, creds: { usernam
     let bedId: string | null = null;
     if (m.bedId) {
       const hb = hospital.beds.find((b) => b.id === m.bedId);
-      if (hb) bedId = beds.find((b) => b.locationIdentifier === hb.locationIdentifier)?.id ?? (await must('POST', '/beds', { name: hb.name, unit: hb.unit, locationIdentifier: hb.locationIdentifier })).id;
+      if (hb)
+        bedId =
+          beds.find((b) => b.locationIdentifier === hb.locationIdentifier)?.id ??
+          (await must('POST', '/beds', { name: hb.name, unit: hb.unit, locationIdentifier: hb.locationIdentifier })).id;
     }
     const existing = (await listAll<{ id: string; identifier: string }>(api, '/monitors', { search: m.identifier })).find((x) => x.identifier === m.identifier);
     const monitorId = existing

@@ -33,7 +33,11 @@ export class MonitorFeed {
   constructor(private readonly opts: MonitorFeedOptions) {
     const codes = channelCodesFor(opts.transport);
     this.codes = codes;
-    const channels: BatcherChannel[] = opts.scenario.channels.map((role) => ({ code: codes[role], sampleRate: 125, unit: role === 'pleth' ? '1' : role === 'paw' ? 'cmH2O' : 'mmHg' }));
+    const channels: BatcherChannel[] = opts.scenario.channels.map((role) => ({
+      code: codes[role],
+      sampleRate: 125,
+      unit: role === 'pleth' ? '1' : role === 'paw' ? 'cmH2O' : 'mmHg',
+    }));
     const extra = opts.scenario.unmappedChannel;
     if (extra) channels.push({ code: extra.code, sampleRate: extra.sampleRate, unit: extra.unit });
     this.batcher = new SampleBatcher({

@@ -4,9 +4,16 @@ import { DEMO_MONITOR_PROFILE } from '../scenarios/monitor-models';
 
 /** A signed-in console session (cookie + CSRF header), as api-plan.md describes. */
 export async function signIn(gatewayUrl: string, username: string, password: string) {
-  const res = await fetch(new URL('/api/v1/auth/sign-in', gatewayUrl), { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ username, password }) });
+  const res = await fetch(new URL('/api/v1/auth/sign-in', gatewayUrl), {
+    method: 'POST',
+    headers: { 'content-type': 'application/json' },
+    body: JSON.stringify({ username, password }),
+  });
   if (res.status !== 200) throw new Error(`sign-in of ${username} failed: ${res.status} ${await res.text()}`);
-  const cookies = res.headers.getSetCookie().map((c) => c.split(';')[0]).join('; ');
+  const cookies = res.headers
+    .getSetCookie()
+    .map((c) => c.split(';')[0])
+    .join('; ');
   const { csrfToken } = (await res.json()) as { csrfToken: string };
   return async (method: string, p: string, body?: unknown) => {
     const r = await fetch(new URL(`/api/v1${p}`, gatewayUrl), {
@@ -52,7 +59,11 @@ export const loadMonitorId = (i: number) => `0EBB${i.toString(16).toUpperCase().
  * Registers the demo monitor profile (once) and N monitors with fresh API keys, through the
  * gateway's own API as an integrator would; returns identifier → key.
  */
-export async function provisionMonitors(gatewayUrl: string, creds: { username: string; password: string }, identifiers: string[]): Promise<Record<string, string>> {
+export async function provisionMonitors(
+  gatewayUrl: string,
+  creds: { username: string; password: string },
+  identifiers: string[],
+): Promise<Record<string, string>> {
   const api = await signIn(gatewayUrl, creds.username, creds.password);
   const profiles = await listAll<{ id: string; name: string }>(api, '/profiles', { search: DEMO_MONITOR_PROFILE.name });
   let profile = profiles.find((p) => p.name === DEMO_MONITOR_PROFILE.name);

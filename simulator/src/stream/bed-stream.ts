@@ -164,8 +164,15 @@ export class BedStream {
     const s = this.opts.scenario;
     const c = s.tidalVolumeChallenge!;
     const g = generateChallenge({
-      seed: this.opts.seed + this.generated, kind: c.kind, heartRate: s.patient.heartRate, respiratoryRate: s.ventilator.rate,
-      baselineSeconds: c.baselineSeconds, challengeSeconds: c.challengeSeconds, sampleRate: this.sampleRate, patientHeightCm: s.patient.heightCm, patientSex: s.patient.sex,
+      seed: this.opts.seed + this.generated,
+      kind: c.kind,
+      heartRate: s.patient.heartRate,
+      respiratoryRate: s.ventilator.rate,
+      baselineSeconds: c.baselineSeconds,
+      challengeSeconds: c.challengeSeconds,
+      sampleRate: this.sampleRate,
+      patientHeightCm: s.patient.heightCm,
+      patientSex: s.patient.sex,
     });
     this.generated++;
     const startTime = this.nextStart / this.sampleRate;

@@ -36,7 +36,12 @@ export function packageOf(specifier: string): string | null {
 
 function undeclaredImports(workspace: string): string[] {
   const pkg = JSON.parse(readFileSync(path.join(repoRoot, workspace, 'package.json'), 'utf8')) as Record<string, Record<string, string> | undefined>;
-  const declared = new Set([...Object.keys(pkg.dependencies ?? {}), ...Object.keys(pkg.devDependencies ?? {}), ...Object.keys(pkg.peerDependencies ?? {}), ...ROOT_TOOLS]);
+  const declared = new Set([
+    ...Object.keys(pkg.dependencies ?? {}),
+    ...Object.keys(pkg.devDependencies ?? {}),
+    ...Object.keys(pkg.peerDependencies ?? {}),
+    ...ROOT_TOOLS,
+  ]);
   const missing = new Set<string>();
   for (const file of sourceFiles(path.join(repoRoot, workspace))) {
     const text = readFileSync(file, 'utf8');

@@ -124,7 +124,15 @@ describe.skipIf(!available)('Galera cluster behind HAProxy, two gateways', () =>
     const spoolDir = path.join(dir, 'spool');
     let demo: RunningDemo | undefined;
     try {
-      demo = runDemoScenario({ gatewayUrl: stack.url, mockEhrUrl: stack.mockEhrUrl, monitors, spoolDir, backfillSeconds: 30, ehrOutage: false, log: (m) => log.push(m) });
+      demo = runDemoScenario({
+        gatewayUrl: stack.url,
+        mockEhrUrl: stack.mockEhrUrl,
+        monitors,
+        spoolDir,
+        backfillSeconds: 30,
+        ehrOutage: false,
+        log: (m) => log.push(m),
+      });
       await demo.ready;
       await sleep(15_000);
 
@@ -136,7 +144,11 @@ describe.skipIf(!available)('Galera cluster behind HAProxy, two gateways', () =>
       process.kill(gatewayPid!, 'SIGKILL');
       await until('the cluster to drop the killed node', async () => (await stack.galera.nodes[1]!.status()).wsrep_cluster_size === '2', 60_000);
       // The launcher restarts the gateway (as systemd's Restart=always would).
-      await until('the gateway to come back', async () => gateway.pid() !== undefined && gateway.pid() !== gatewayPid && (await fetch(`${stack.gatewayUrls[0]}/healthz`)).ok, 90_000);
+      await until(
+        'the gateway to come back',
+        async () => gateway.pid() !== undefined && gateway.pid() !== gatewayPid && (await fetch(`${stack.gatewayUrls[0]}/healthz`)).ok,
+        90_000,
+      );
       await sleep(10_000);
       await writer!.start(); // rejoins by state transfer
       expect((await stack.galera.nodes[1]!.status()).wsrep_cluster_size).toBe('3');
@@ -149,9 +161,17 @@ describe.skipIf(!available)('Galera cluster behind HAProxy, two gateways', () =>
     }
 
     const count = async (sql: string) => Number(((await admin.query(sql)) as { n: number | string }[])[0]?.n);
-    await until('analysis and delivery queues to drain', async () => (await count("SELECT COUNT(*) AS n FROM analysis_window WHERE status = 'due'")) === 0 && (await count("SELECT COUNT(*) AS n FROM delivery WHERE status = 'pending'")) === 0, 180_000);
+    await until(
+      'analysis and delivery queues to drain',
+      async () =>
+        (await count("SELECT COUNT(*) AS n FROM analysis_window WHERE status = 'due'")) === 0 &&
+        (await count("SELECT COUNT(*) AS n FROM delivery WHERE status = 'pending'")) === 0,
+      180_000,
+    );
     // Results held for want of a patient (the demo has a bed change with a gap between encounters) stay visible with their reason.
-    expect(await count("SELECT COUNT(*) AS n FROM delivery WHERE status = 'waiting-context' AND (last_error IS NULL OR last_error NOT LIKE 'no patient context%')")).toBe(0);
+    expect(
+      await count("SELECT COUNT(*) AS n FROM delivery WHERE status = 'waiting-context' AND (last_error IS NULL OR last_error NOT LIKE 'no patient context%')"),
+    ).toBe(0);
 
     // Batches: stored once (by batch id and by content), and none missing between the first and the last.
     const accepted = (await admin.query(
@@ -183,7 +203,11 @@ describe.skipIf(!available)('Galera cluster behind HAProxy, two gateways', () =>
     expect(await count("SELECT COUNT(*) AS n FROM analysis_window WHERE status = 'done' AND assessment_id IS NULL")).toBe(0);
 
     // Observations: each delivered one is in the mock EHR exactly once, and the EHR holds no duplicate.
-    const ehr = (await (await fetch(`${stack.mockEhrUrl}/_admin/observations`)).json()) as { total: number; duplicated: string[]; byIdentifier: Record<string, number> };
+    const ehr = (await (await fetch(`${stack.mockEhrUrl}/_admin/observations`)).json()) as {
+      total: number;
+      duplicated: string[];
+      byIdentifier: Record<string, number>;
+    };
     expect(ehr.total).toBeGreaterThan(0);
     expect(ehr.duplicated).toEqual([]);
     const delivered = (await admin.query("SELECT identifier FROM delivery WHERE status = 'delivered' AND kind = 'create'")) as { identifier: string }[];

@@ -39,13 +39,21 @@ describe('ingest group commit', () => {
       const identifier = `02EB6D00000000${i.toString(16).toUpperCase().padStart(2, '0')}`;
       monitors.push({ identifier, ...(await registerMonitor(integrator, identifier)) });
     }
-    const send = (apiKey: string, body: unknown) => request(gw.server).post('/api/v1/ingest/batches').set('Authorization', `Bearer ${apiKey}`).set('Content-Type', 'application/json').send(JSON.stringify(body));
+    const send = (apiKey: string, body: unknown) =>
+      request(gw.server)
+        .post('/api/v1/ingest/batches')
+        .set('Authorization', `Bearer ${apiKey}`)
+        .set('Content-Type', 'application/json')
+        .send(JSON.stringify(body));
     // One batch stored first; its id is reused below with other content (must be refused, 409).
     const first = monitors[0]!;
     expect((await send(first.apiKey, batchOf(first.identifier, 'gc-0', T0))).status).toBe(202);
 
     const stats0 = { ...groupCommitterFor(gw.ctx.ds).stats };
-    const sends = monitors.flatMap((m, i) => [send(m.apiKey, batchOf(m.identifier, `gc-${i}-a`, T0 + 5000)), send(m.apiKey, batchOf(m.identifier, `gc-${i}-b`, T0 + 10_000))]);
+    const sends = monitors.flatMap((m, i) => [
+      send(m.apiKey, batchOf(m.identifier, `gc-${i}-a`, T0 + 5000)),
+      send(m.apiKey, batchOf(m.identifier, `gc-${i}-b`, T0 + 10_000)),
+    ]);
     const bad = send(first.apiKey, batchOf(first.identifier, 'gc-0', T0, 9));
     const answers = await Promise.all([...sends, bad]);
     expect(answers.slice(0, -1).map((r) => r.status)).toEqual(Array(16).fill(202));

@@ -77,9 +77,12 @@ beforeAll(async () => {
   ehr = await startMockEhr({ httpPort: 0, smtpPort: 0, mllpPort: 0 });
   db = await createTestDatabase();
   configFile = path.join(mkdtempSync(path.join(tmpdir(), 'ebbgate-crash-')), 'config.json');
-  writeFileSync(configFile, JSON.stringify({
-    delivery: { pollMs: 50, claimBatch: 8, concurrency: 2, leaseSeconds: 2, retry: { limit: 50, baseMs: 50, maxMs: 500 }, alerts: { enabled: false } },
-  }));
+  writeFileSync(
+    configFile,
+    JSON.stringify({
+      delivery: { pollMs: 50, claimBatch: 8, concurrency: 2, leaseSeconds: 2, retry: { limit: 50, baseMs: 50, maxMs: 500 }, alerts: { enabled: false } },
+    }),
+  );
   ds = await createDataSource(db.url, 4).initialize();
   await migrate(ds);
   await syncDestinations(ds, [{ id: FHIR_DESTINATION_ID, name: 'EHR (FHIR R4)', kind: 'fhir' }]);

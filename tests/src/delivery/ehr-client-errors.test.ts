@@ -10,11 +10,19 @@ import type { Observation } from '@ebbgate/gateway/delivery/fhir-types';
 
 const BASE = 'http://ehr.test:8080';
 const settings = { fhirBaseUrl: `${BASE}/fhir`, tokenUrl: `${BASE}/oauth/token`, clientId: 'ebbgate-gateway', clientSecret: 's3cret', requestTimeoutMs: 300 };
-const obs = { resourceType: 'Observation', status: 'preliminary', code: { text: 'PPV' }, identifier: [{ system: 'urn:ebbgate:observation', value: 'a-ppv' }] } as unknown as Observation;
+const obs = {
+  resourceType: 'Observation',
+  status: 'preliminary',
+  code: { text: 'PPV' },
+  identifier: [{ system: 'urn:ebbgate:observation', value: 'a-ppv' }],
+} as unknown as Observation;
 const outcome = (code: string, diagnostics: string) => ({ resourceType: 'OperationOutcome', issue: [{ severity: 'error', code, diagnostics }] });
 
 function token(times = 1, value = 'tok-1') {
-  return nock(BASE).post('/oauth/token', (body) => body.grant_type === 'client_credentials' && body.client_id === 'ebbgate-gateway' && body.client_secret === 's3cret').times(times).reply(200, { access_token: value, token_type: 'Bearer', expires_in: 300 });
+  return nock(BASE)
+    .post('/oauth/token', (body) => body.grant_type === 'client_credentials' && body.client_id === 'ebbgate-gateway' && body.client_secret === 's3cret')
+    .times(times)
+    .reply(200, { access_token: value, token_type: 'Bearer', expires_in: 300 });
 }
 
 beforeAll(() => nock.disableNetConnect());
@@ -25,7 +33,8 @@ describe('EHR client error paths (nock)', () => {
   it('conditional create sends If-None-Exist and the bearer token; 201 is a new resource', async () => {
     token();
     const scope = nock(BASE, { reqheaders: { authorization: 'Bearer tok-1', 'if-none-exist': 'identifier=urn%3Aebbgate%3Aobservation%7Ca-ppv' } })
-      .post('/fhir/Observation').reply(201, { ...obs, id: 'o1' });
+      .post('/fhir/Observation')
+      .reply(201, { ...obs, id: 'o1' });
     const r = await new EhrClient(settings).createObservation(obs, 'identifier=urn%3Aebbgate%3Aobservation%7Ca-ppv');
     expect(r).toMatchObject({ kind: 'delivered', httpStatus: 201, serverId: 'o1', created: true });
     expect(scope.isDone()).toBe(true);
@@ -33,7 +42,9 @@ describe('EHR client error paths (nock)', () => {
 
   it('200 on conditional create (already there) is delivered, not created', async () => {
     token();
-    nock(BASE).post('/fhir/Observation').reply(200, { ...obs, id: 'o1' });
+    nock(BASE)
+      .post('/fhir/Observation')
+      .reply(200, { ...obs, id: 'o1' });
     expect(await new EhrClient(settings).createObservation(obs, 'identifier=x')).toMatchObject({ kind: 'delivered', httpStatus: 200, created: false });
   });
 
@@ -56,8 +67,12 @@ describe('EHR client error paths (nock)', () => {
   it('401 renews the token once and repeats the call', async () => {
     token(1, 'old');
     token(1, 'new');
-    nock(BASE, { reqheaders: { authorization: 'Bearer old' } }).post('/fhir/Observation').reply(401, outcome('login', 'expired'));
-    nock(BASE, { reqheaders: { authorization: 'Bearer new' } }).post('/fhir/Observation').reply(201, { ...obs, id: 'o2' });
+    nock(BASE, { reqheaders: { authorization: 'Bearer old' } })
+      .post('/fhir/Observation')
+      .reply(401, outcome('login', 'expired'));
+    nock(BASE, { reqheaders: { authorization: 'Bearer new' } })
+      .post('/fhir/Observation')
+      .reply(201, { ...obs, id: 'o2' });
     expect(await new EhrClient(settings).createObservation(obs, 'identifier=x')).toMatchObject({ kind: 'delivered', serverId: 'o2' });
   });
 

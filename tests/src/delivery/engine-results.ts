@@ -7,7 +7,10 @@ import { generateWindow, type SyntheticSpec } from '@ebbgate/shared/synthetic';
 
 export const START = '2026-12-01T10:00:00.000Z';
 
-export function engineResult(spec: Partial<SyntheticSpec> & { seed: number }, context: AnalysisContext = { ventilationMode: 'controlled', tidalVolumeMl: 650, patientHeightCm: 175, patientSex: 'male', plethScaling: 'raw' }): AnalysisResult {
+export function engineResult(
+  spec: Partial<SyntheticSpec> & { seed: number },
+  context: AnalysisContext = { ventilationMode: 'controlled', tidalVolumeMl: 650, patientHeightCm: 175, patientSex: 'male', plethScaling: 'raw' },
+): AnalysisResult {
   const w = generateWindow({ heartRate: 80, respiratoryRate: 15, ppv: 14, channels: ['abp', 'pleth', 'paw'], durationSeconds: 30, ...spec });
   return analyzeWindow({ channels: w.channels, startTime: START, context });
 }

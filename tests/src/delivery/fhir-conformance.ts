@@ -53,7 +53,9 @@ export function failedInvariants(resource: object): string[] {
     .map(([k]) => k);
 }
 
-const ucum = require('@lhncbc/ucum-lhc') as { UcumLhcUtils: { getInstance(): { validateUnitString(u: string, suggest?: boolean): { status: string; msg: string[] } } } };
+const ucum = require('@lhncbc/ucum-lhc') as {
+  UcumLhcUtils: { getInstance(): { validateUnitString(u: string, suggest?: boolean): { status: string; msg: string[] } } };
+};
 
 export function ucumStatus(code: string): string {
   return ucum.UcumLhcUtils.getInstance().validateUnitString(code, false).status;

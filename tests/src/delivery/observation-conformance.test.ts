@@ -15,10 +15,17 @@ function observationsFor(policy: 'withhold' | 'data-absent'): { name: string; ob
   for (const s of scenarios()) {
     for (const index of DELIVERED_INDICES) {
       const input: ObservationInput = {
-        assessmentId: '6f1c2d0e-0000-4000-8000-00000000000' + out.length % 10, index,
-        windowStart: new Date('2026-12-01T10:00:00Z'), windowEnd: new Date('2026-12-01T10:00:30Z'),
-        result: s.result, context, deviceId: 'dev-1', status: 'preliminary', notValidPolicy: policy,
-        issued: new Date('2026-12-01T10:00:31Z'), codes,
+        assessmentId: '6f1c2d0e-0000-4000-8000-00000000000' + (out.length % 10),
+        index,
+        windowStart: new Date('2026-12-01T10:00:00Z'),
+        windowEnd: new Date('2026-12-01T10:00:30Z'),
+        result: s.result,
+        context,
+        deviceId: 'dev-1',
+        status: 'preliminary',
+        notValidPolicy: policy,
+        issued: new Date('2026-12-01T10:00:31Z'),
+        codes,
       };
       const built = buildObservation(input);
       if (built.kind === 'observation') out.push({ name: `${s.name} / ${index}`, obs: built.resource });
@@ -71,7 +78,10 @@ describe('the other resources posted conform to FHIR R4 (JSON schema)', () => {
   });
 
   it('the transaction Bundle of conditional creates', () => {
-    const b = transactionBundle(codes, all.slice(0, 5).map((o) => ({ resource: o.obs, identifier: o.obs.identifier[0]!.value! })));
+    const b = transactionBundle(
+      codes,
+      all.slice(0, 5).map((o) => ({ resource: o.obs, identifier: o.obs.identifier[0]!.value! })),
+    );
     expect(b.entry).toHaveLength(5);
     expect(r4SchemaErrors(b)).toEqual([]);
     expect(b.entry![0]!.request!.ifNoneExist).toBe(`identifier=urn:ebbgate:observation|${all[0]!.obs.identifier[0]!.value}`);

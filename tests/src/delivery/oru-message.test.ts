@@ -17,15 +17,33 @@ const [clean, spontaneous] = scenarios();
 
 function observation(result = clean!.result, index: 'ppv' | 'perfusionIndex' = 'ppv'): Observation {
   const b = buildObservation({
-    assessmentId: 'a7', index, windowStart: new Date('2026-12-01T10:00:00Z'), windowEnd: new Date('2026-12-01T10:00:30Z'), result,
-    context: { patientId: 'p', encounterId: 'e', locationId: 'icu-01' }, deviceId: null, status: 'final', notValidPolicy: 'data-absent', issued: new Date(), codes,
+    assessmentId: 'a7',
+    index,
+    windowStart: new Date('2026-12-01T10:00:00Z'),
+    windowEnd: new Date('2026-12-01T10:00:30Z'),
+    result,
+    context: { patientId: 'p', encounterId: 'e', locationId: 'icu-01' },
+    deviceId: null,
+    status: 'final',
+    notValidPolicy: 'data-absent',
+    issued: new Date(),
+    codes,
   });
   if (b.kind !== 'observation') throw new Error('withheld');
   return b.resource;
 }
 
 const oru = (o: Observation) =>
-  buildOru(codes, { observation: o, controlId: 'a7-ppv-create', mrn: 'HGH-400117', locationIdentifier: 'ICU-01', sendingFacility: 'HGH', receivingApplication: 'HGH-EHR', monitorIdentifier: '0123456789ABCDEF', at: new Date('2026-12-01T10:00:31Z') });
+  buildOru(codes, {
+    observation: o,
+    controlId: 'a7-ppv-create',
+    mrn: 'HGH-400117',
+    locationIdentifier: 'ICU-01',
+    sendingFacility: 'HGH',
+    receivingApplication: 'HGH-EHR',
+    monitorIdentifier: '0123456789ABCDEF',
+    at: new Date('2026-12-01T10:00:31Z'),
+  });
 
 describe('ORU^R01 (IHE PCD-01 style)', () => {
   it('has the header, patient, order and observation segments in order', () => {
@@ -37,7 +55,12 @@ describe('ORU^R01 (IHE PCD-01 style)', () => {
     expect(m.get('MSH.12').toString()).toBe('2.6');
     expect(m.get('MSH.21.1').toString()).toBe('IHE_PCD_001'); // standards.md: PCD-01 profile id
     expect(m.get('PID.3.1').toString()).toBe('HGH-400117');
-    expect(text.split('\r').filter(Boolean).map((s) => s.slice(0, 3))).toEqual(['MSH', 'PID', 'PV1', 'OBR', 'OBX', 'NTE', 'NTE']);
+    expect(
+      text
+        .split('\r')
+        .filter(Boolean)
+        .map((s) => s.slice(0, 3)),
+    ).toEqual(['MSH', 'PID', 'PV1', 'OBR', 'OBX', 'NTE', 'NTE']);
   });
 
   it('OBX carries the value, UCUM unit, computed-value marker, equipment and status', () => {

@@ -1,14 +1,25 @@
 /** Direct API calls for arranging end-to-end scenarios (what the browser then shows is the test). */
 import { demoUser, type Role } from './browser';
 
-export interface ApiSession { csrf: string; cookie: string; call<T>(method: string, path: string, body?: unknown): Promise<{ status: number; body: T }> }
+export interface ApiSession {
+  csrf: string;
+  cookie: string;
+  call<T>(method: string, path: string, body?: unknown): Promise<{ status: number; body: T }>;
+}
 
 export async function apiSignIn(gatewayUrl: string, role: Role): Promise<ApiSession> {
   const user = demoUser(role);
-  const res = await fetch(`${gatewayUrl}/api/v1/auth/sign-in`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ username: user.username, password: user.password }) });
+  const res = await fetch(`${gatewayUrl}/api/v1/auth/sign-in`, {
+    method: 'POST',
+    headers: { 'content-type': 'application/json' },
+    body: JSON.stringify({ username: user.username, password: user.password }),
+  });
   if (res.status !== 200) throw new Error(`sign-in as ${role}: HTTP ${res.status} ${await res.text()}`);
   const session = (await res.json()) as { csrfToken: string };
-  const cookie = res.headers.getSetCookie().map((c) => c.split(';')[0]).join('; ');
+  const cookie = res.headers
+    .getSetCookie()
+    .map((c) => c.split(';')[0])
+    .join('; ');
   return {
     csrf: session.csrfToken,
     cookie,

@@ -11,7 +11,12 @@ const require = createRequire(import.meta.url);
 const AXE_SOURCE = readFileSync(require.resolve('axe-core/axe.min.js'), 'utf8');
 export const WCAG_21_AA = ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa'];
 
-export interface AxeViolation { id: string; impact: string | null; help: string; nodes: string[] }
+export interface AxeViolation {
+  id: string;
+  impact: string | null;
+  help: string;
+  nodes: string[];
+}
 
 export async function axeViolations(page: Page): Promise<AxeViolation[]> {
   // Evaluated through the DevTools protocol, so the console's CSP (script-src 'self') stays as it is.
@@ -20,5 +25,10 @@ export async function axeViolations(page: Page): Promise<AxeViolation[]> {
   const result = (await page.evaluate(
     `window.axe.run(document, { runOnly: { type: 'tag', values: ${JSON.stringify(WCAG_21_AA)} }, resultTypes: ['violations'] })`,
   )) as { violations: { id: string; impact: string | null; help: string; nodes: { target: string[]; failureSummary?: string }[] }[] };
-  return result.violations.map((v) => ({ id: v.id, impact: v.impact, help: v.help, nodes: v.nodes.slice(0, 5).map((n) => `${n.target.join(' ')}${n.failureSummary ? ` — ${n.failureSummary.split('\n').slice(1, 2).join(' ').trim()}` : ''}`) }));
+  return result.violations.map((v) => ({
+    id: v.id,
+    impact: v.impact,
+    help: v.help,
+    nodes: v.nodes.slice(0, 5).map((n) => `${n.target.join(' ')}${n.failureSummary ? ` — ${n.failureSummary.split('\n').slice(1, 2).join(' ').trim()}` : ''}`),
+  }));
 }

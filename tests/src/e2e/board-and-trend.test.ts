@@ -24,23 +24,44 @@ const CONTEXT: AnalysisContext = { ventilationMode: 'controlled', setRespiratory
 async function send(which: 'a' | 'b', window: SyntheticWindow, startTime: Date, context: AnalysisContext = CONTEXT) {
   const b = beds[which];
   const batch = toIngestBatch(window, { monitorId: b.identifier, batchId: randomUUID(), startTime: startTime.toISOString(), context });
-  const res = await fetch(`${stack.gatewayUrl}/api/v1/ingest/batches`, { method: 'POST', headers: { authorization: `Bearer ${b.apiKey}`, 'content-type': 'application/json' }, body: JSON.stringify(batch) });
+  const res = await fetch(`${stack.gatewayUrl}/api/v1/ingest/batches`, {
+    method: 'POST',
+    headers: { authorization: `Bearer ${b.apiKey}`, 'content-type': 'application/json' },
+    body: JSON.stringify(batch),
+  });
   expect(res.status).toBe(202);
 }
 const challenge = generateChallenge({ seed: 5, kind: 'responder', patientHeightCm: 175, patientSex: 'male' });
-const steady = (seed: number, seconds = 30) => generateWindow({ seed, durationSeconds: seconds, heartRate: 80, respiratoryRate: 16, ppv: 14, channels: ['abp', 'pleth', 'paw'] });
+const steady = (seed: number, seconds = 30) =>
+  generateWindow({ seed, durationSeconds: seconds, heartRate: 80, respiratoryRate: 16, ppv: 14, channels: ['abp', 'pleth', 'paw'] });
 
 beforeAll(async () => {
   stack = await startStack();
   browser = await openBrowser();
   integrator = await apiSignIn(stack.gatewayUrl, 'integrator');
   const profile = await integrator.call<{ id: string }>('POST', '/profiles', {
-    name: `E2E board monitor ${suffix}`, manufacturer: 'Tidewell Instruments (invented)', model: 'Gullwing (invented)', transports: ['http'],
-    channels: (['abp', 'pleth', 'paw'] as const).map((role) => ({ code: SYNTHETIC_CHANNEL_CODES[role], label: role, role, unit: role === 'abp' ? 'mmHg' : role === 'paw' ? 'cmH2O' : '1', gain: 1, offset: 0, sampleRate: 125 })),
-    defaultProbeSite: null, plethScaling: 'raw', notes: null,
+    name: `E2E board monitor ${suffix}`,
+    manufacturer: 'Tidewell Instruments (invented)',
+    model: 'Gullwing (invented)',
+    transports: ['http'],
+    channels: (['abp', 'pleth', 'paw'] as const).map((role) => ({
+      code: SYNTHETIC_CHANNEL_CODES[role],
+      label: role,
+      role,
+      unit: role === 'abp' ? 'mmHg' : role === 'paw' ? 'cmH2O' : '1',
+      gain: 1,
+      offset: 0,
+      sampleRate: 125,
+    })),
+    defaultProbeSite: null,
+    plethScaling: 'raw',
+    notes: null,
   });
   expect(profile.status).toBe(201);
-  for (const [k, n] of [['a', 1], ['b', 2]] as const) {
+  for (const [k, n] of [
+    ['a', 1],
+    ['b', 2],
+  ] as const) {
     const name = `E2E bed ${suffix}-${n}`;
     const bed = await integrator.call<{ id: string }>('POST', '/beds', { name, unit: 'E2E unit', locationIdentifier: `E2E-${suffix}-${n}` });
     expect(bed.status).toBe(201);
@@ -54,10 +75,14 @@ beforeAll(async () => {
   const t0 = new Date(Date.now() - 65_000);
   for (const k of ['a', 'b'] as const) await send(k, steady(k === 'a' ? 11 : 12, 60), t0);
   const reviewer = await apiSignIn(stack.gatewayUrl, 'reviewer');
-  await eventually(async () => {
-    const board = await reviewer.call<{ items: { bedId: string; latest: unknown }[] }>('GET', '/board?unit=E2E%20unit');
-    return board.body.items.length === 2 && board.body.items.every((t) => t.latest) ? true : undefined;
-  }, 'a window on both beds', 90);
+  await eventually(
+    async () => {
+      const board = await reviewer.call<{ items: { bedId: string; latest: unknown }[] }>('GET', '/board?unit=E2E%20unit');
+      return board.body.items.length === 2 && board.body.items.every((t) => t.latest) ? true : undefined;
+    },
+    'a window on both beds',
+    90,
+  );
 }, 180_000);
 afterAll(async () => {
   await browser?.close();
@@ -110,14 +135,19 @@ describe('beds board', () => {
     await send('a', steady(13, 30), new Date(t), { ...CONTEXT, ...challenge.segments[0]!.context });
     t += 30_000;
     let seed = 100;
-    await eventually(async () => {
-      // Bed A's monitor goes on sending, 5 s at a time, contiguous with what it sent before.
-      await send('a', steady(seed++, 5), new Date(t), { ...CONTEXT, ...challenge.segments[0]!.context });
-      t += 5_000;
-      await page.reload();
-      await tileB.waitFor();
-      return (await tileB.getAttribute('data-state')) === 'stale' ? true : undefined;
-    }, 'bed B stale', 40, 3000);
+    await eventually(
+      async () => {
+        // Bed A's monitor goes on sending, 5 s at a time, contiguous with what it sent before.
+        await send('a', steady(seed++, 5), new Date(t), { ...CONTEXT, ...challenge.segments[0]!.context });
+        t += 5_000;
+        await page.reload();
+        await tileB.waitFor();
+        return (await tileB.getAttribute('data-state')) === 'stale' ? true : undefined;
+      },
+      'bed B stale',
+      40,
+      3000,
+    );
     expect(await tileA.getAttribute('data-state')).toBe('no-patient');
     expect(await tileB.getByText(/Nothing received for \d+ s/).count()).toBe(1);
     await page.getByLabel('Data state', { exact: true }).selectOption('stale');
@@ -133,10 +163,15 @@ describe('beds board', () => {
   it('marks the tidal volume challenge on the bed trend, keeps a table of the same values, and a point opens its assessment', async () => {
     const { page } = browser;
     const reviewer = await apiSignIn(stack.gatewayUrl, 'reviewer');
-    await eventually(async () => {
-      const tr = await reviewer.call<{ events: { kind: string; label: string }[] }>('GET', `/board/beds/${beds.a.id}/trend?hours=1`);
-      return tr.body.events.some((e) => e.kind === 'tidal-volume-challenge' && e.label.includes('judged')) ? true : undefined;
-    }, 'the challenge on the trend', 60, 2000);
+    await eventually(
+      async () => {
+        const tr = await reviewer.call<{ events: { kind: string; label: string }[] }>('GET', `/board/beds/${beds.a.id}/trend?hours=1`);
+        return tr.body.events.some((e) => e.kind === 'tidal-volume-challenge' && e.label.includes('judged')) ? true : undefined;
+      },
+      'the challenge on the trend',
+      60,
+      2000,
+    );
     await page.goto(`${stack.gatewayUrl}/board/beds/${beds.a.id}?hours=1`);
     await page.getByRole('heading', { level: 1, name: `Trend · ${beds.a.name}` }).waitFor();
     const challenges = page.getByRole('list', { name: 'Tidal volume challenges in the span' });
@@ -189,14 +224,32 @@ describe('beds board', () => {
     for (let i = 0; i < n; i++) {
       const ws = new Date(end - (n - i) * 10_000);
       const ppv = 12 + 5 * Math.sin(i / 400);
-      rows.push([randomUUID(), monitor!.id, bed!.id, ws, new Date(ws.getTime() + 10_000), 'seed-48h', i % 97 === 0 ? 'not-valid' : i % 13 === 0 ? 'questionable' : 'valid', ppv, ppv * 0.6, ppv * 1.1, 70 + (i % 20), 16]);
+      rows.push([
+        randomUUID(),
+        monitor!.id,
+        bed!.id,
+        ws,
+        new Date(ws.getTime() + 10_000),
+        'seed-48h',
+        i % 97 === 0 ? 'not-valid' : i % 13 === 0 ? 'questionable' : 'valid',
+        ppv,
+        ppv * 0.6,
+        ppv * 1.1,
+        70 + (i % 20),
+        16,
+      ]);
     }
     for (let i = 0; i < rows.length; i += 1000) {
       const chunk = rows.slice(i, i + 1000);
-      await ds.query(`INSERT INTO assessment (id, monitor_id, bed_id, window_start, window_end, engine_version, verdict, ppv, spv, delta_pop, heart_rate, respiratory_rate, flags, result, created_at) VALUES ${chunk.map(() => "(?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, '[]', '{}', NOW(3))").join(',')}`, chunk.flat());
+      await ds.query(
+        `INSERT INTO assessment (id, monitor_id, bed_id, window_start, window_end, engine_version, verdict, ppv, spv, delta_pop, heart_rate, respiratory_rate, flags, result, created_at) VALUES ${chunk.map(() => "(?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, '[]', '{}', NOW(3))").join(',')}`,
+        chunk.flat(),
+      );
     }
     const apiStarted = Date.now();
-    const api = await (await apiSignIn(stack.gatewayUrl, 'reviewer')).call<{ points: unknown[]; downsampled: boolean }>('GET', `/board/beds/${beds.b.id}/trend?hours=48`);
+    const api = await (
+      await apiSignIn(stack.gatewayUrl, 'reviewer')
+    ).call<{ points: unknown[]; downsampled: boolean }>('GET', `/board/beds/${beds.b.id}/trend?hours=48`);
     const apiMs = Date.now() - apiStarted;
     expect(api.body.downsampled).toBe(true);
     const started = Date.now();
@@ -204,7 +257,9 @@ describe('beds board', () => {
     await page.getByTestId('trend-chart').locator('canvas').waitFor();
     await page.getByRole('region', { name: 'Trend values as a table' }).getByRole('row').nth(1).waitFor();
     const ms = Date.now() - started;
-    console.log(`e2e: 48-h trend (${n} windows → ${api.body.points.length} points): API ${apiMs} ms, shown in Chromium in ${ms} ms (figures, not bounds; see npm run bench:trend)`);
+    console.log(
+      `e2e: 48-h trend (${n} windows → ${api.body.points.length} points): API ${apiMs} ms, shown in Chromium in ${ms} ms (figures, not bounds; see npm run bench:trend)`,
+    );
     expect(await page.getByText(/shown as minimum and maximum per \d+ min/).count()).toBe(1);
     await expectNoAxeViolations('48-h trend');
     await screenshot(page, 'trend-48h');
@@ -228,7 +283,10 @@ describe('beds board', () => {
     await page.getByRole('heading', { level: 1, name: 'Reanalyse' }).waitFor();
     await expectNoAxeViolations('reanalyse');
     await page.getByRole('button', { name: 'Queue reanalysis' }).click();
-    await page.getByRole('status').filter({ hasText: /1 window queued for engine/ }).waitFor();
+    await page
+      .getByRole('status')
+      .filter({ hasText: /1 window queued for engine/ })
+      .waitFor();
     const table = page.getByRole('region', { name: 'Results side by side' });
     await table.getByRole('link', { name: /Assessment by engine 0\.9\.0-e2e/ }).waitFor();
     // The running engine's result arrives as the worker reaches the queued window.

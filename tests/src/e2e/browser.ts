@@ -11,7 +11,12 @@ import { launchBrowser, SCREENSHOT_DIR } from '../support/browser';
 export const repoRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../../..');
 
 export type Role = 'admin' | 'integrator' | 'reviewer' | 'operator';
-interface DemoUser { username: string; password: string; roles: Role[]; displayName?: string }
+interface DemoUser {
+  username: string;
+  password: string;
+  roles: Role[];
+  displayName?: string;
+}
 
 /** The demo account that holds exactly this role (the file is the one source of the credentials). */
 export function demoUser(role: Role): DemoUser {
@@ -22,7 +27,11 @@ export function demoUser(role: Role): DemoUser {
   return user;
 }
 
-export interface Browser { context: BrowserContext; page: Page; close(): Promise<void> }
+export interface Browser {
+  context: BrowserContext;
+  page: Page;
+  close(): Promise<void>;
+}
 
 /** A fresh Chromium profile per call (the shared launcher), laptop-sized viewport. */
 export async function openBrowser(): Promise<Browser> {
@@ -35,7 +44,9 @@ export async function openBrowser(): Promise<Browser> {
 export function collectPageErrors(page: Page): string[] {
   const errors: string[] = [];
   page.on('pageerror', (e) => errors.push(`pageerror: ${e.message}`));
-  page.on('console', (m) => { if (m.type() === 'error' && !/status of 4\d\d/.test(m.text())) errors.push(`console: ${m.text()}`); });
+  page.on('console', (m) => {
+    if (m.type() === 'error' && !/status of 4\d\d/.test(m.text())) errors.push(`console: ${m.text()}`);
+  });
   return errors;
 }
 

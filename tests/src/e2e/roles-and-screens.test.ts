@@ -38,10 +38,22 @@ const SCREENS: Record<string, { path: string; heading: string }> = {
 };
 
 const EXPECTED = {
-  admin: { sees: ['Beds board', 'Overview', 'Assessments', 'Monitors', 'Deliveries', 'Users & roles', 'Audit log', 'Settings'], not: ['Test bench', 'Inbound & quarantine'] },
-  integrator: { sees: ['Beds board', 'Overview', 'Assessments', 'Monitors', 'Monitor profiles', 'Beds', 'Test bench', 'Reanalyse', 'Inbound & quarantine', 'Settings'], not: ['Users & roles', 'Audit log', 'Deliveries'] },
-  reviewer: { sees: ['Beds board', 'Overview', 'Assessments', 'Deliveries', 'Settings'], not: ['Users & roles', 'Test bench', 'Monitors', 'Inbound & quarantine', 'Reanalyse'] },
-  operator: { sees: ['Beds board', 'Overview', 'Assessments', 'Deliveries', 'Inbound & quarantine', 'Settings'], not: ['Users & roles', 'Test bench', 'Monitors', 'Audit log', 'Reanalyse'] },
+  admin: {
+    sees: ['Beds board', 'Overview', 'Assessments', 'Monitors', 'Deliveries', 'Users & roles', 'Audit log', 'Settings'],
+    not: ['Test bench', 'Inbound & quarantine'],
+  },
+  integrator: {
+    sees: ['Beds board', 'Overview', 'Assessments', 'Monitors', 'Monitor profiles', 'Beds', 'Test bench', 'Reanalyse', 'Inbound & quarantine', 'Settings'],
+    not: ['Users & roles', 'Audit log', 'Deliveries'],
+  },
+  reviewer: {
+    sees: ['Beds board', 'Overview', 'Assessments', 'Deliveries', 'Settings'],
+    not: ['Users & roles', 'Test bench', 'Monitors', 'Inbound & quarantine', 'Reanalyse'],
+  },
+  operator: {
+    sees: ['Beds board', 'Overview', 'Assessments', 'Deliveries', 'Inbound & quarantine', 'Settings'],
+    not: ['Users & roles', 'Test bench', 'Monitors', 'Audit log', 'Reanalyse'],
+  },
 } as const;
 
 describe('console by role', () => {
@@ -78,7 +90,12 @@ describe('console by role', () => {
         await page.goto(stack.gatewayUrl + screen.path);
         await page.getByRole('heading', { level: 1, name: screen.heading }).waitFor();
         // Designed states only: wait until the loading indicator has given way to content.
-        await page.locator('[role="status"]').filter({ hasText: /^Loading/ }).first().waitFor({ state: 'detached', timeout: 15_000 }).catch(() => {});
+        await page
+          .locator('[role="status"]')
+          .filter({ hasText: /^Loading/ })
+          .first()
+          .waitFor({ state: 'detached', timeout: 15_000 })
+          .catch(() => {});
         // WCAG 2.0/2.1 A and AA rules of axe-core on every screen the role can open: none may fail.
         const violations = await axeViolations(page);
         expect(violations, `${role} ${screen.path}: ${JSON.stringify(violations, null, 1)}`).toEqual([]);
@@ -94,7 +111,7 @@ describe('console by role', () => {
       if (role === 'admin') {
         await page.goto(`${stack.gatewayUrl}/users`);
         await page.getByRole('cell', { name: user.username, exact: true }).waitFor();
-                await page.getByRole('button', { name: 'New user' }).click();
+        await page.getByRole('button', { name: 'New user' }).click();
         await page.getByRole('button', { name: 'Create user' }).click();
         expect(await page.getByRole('dialog').getByRole('alert').count()).toBeGreaterThan(0);
         await screenshot(page, 'admin-users-new-invalid');

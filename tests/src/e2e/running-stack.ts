@@ -5,7 +5,11 @@
  */
 import { startStack } from '../support/stack';
 
-export interface Stack { gatewayUrl: string; mockEhrUrl: string; stop(): Promise<void> }
+export interface Stack {
+  gatewayUrl: string;
+  mockEhrUrl: string;
+  stop(): Promise<void>;
+}
 
 export async function startE2eStack(): Promise<Stack> {
   const gatewayUrl = process.env.EBBGATE_E2E_GATEWAY_URL;

@@ -33,12 +33,29 @@ afterAll(async () => {
 
 /** 60 s of arterial pressure, pleth and airway pressure with a known PPV (synthetic generator). */
 function syntheticWindow(seed: number) {
-  return generateWindow({ seed, durationSeconds: 60, heartRate: 80, respiratoryRate: 14, ppv: 15, channels: ['abp', 'pleth', 'paw'], disturbances: [{ kind: 'ectopic', count: 2 }] });
+  return generateWindow({
+    seed,
+    durationSeconds: 60,
+    heartRate: 80,
+    respiratoryRate: 14,
+    ppv: 15,
+    channels: ['abp', 'pleth', 'paw'],
+    disturbances: [{ kind: 'ectopic', count: 2 }],
+  });
 }
 
 async function ingest(batchId: string, startTime: string, seed: number) {
-  const batch = toIngestBatch(syntheticWindow(seed), { monitorId: monitorIdentifier, batchId, startTime, context: { ventilationMode: 'controlled', tidalVolumeMl: 520, patientHeightCm: 175, patientSex: 'male' } });
-  return fetch(`${stack.gatewayUrl}/api/v1/ingest/batches`, { method: 'POST', headers: { authorization: `Bearer ${apiKey}`, 'content-type': 'application/json' }, body: JSON.stringify(batch) });
+  const batch = toIngestBatch(syntheticWindow(seed), {
+    monitorId: monitorIdentifier,
+    batchId,
+    startTime,
+    context: { ventilationMode: 'controlled', tidalVolumeMl: 520, patientHeightCm: 175, patientSex: 'male' },
+  });
+  return fetch(`${stack.gatewayUrl}/api/v1/ingest/batches`, {
+    method: 'POST',
+    headers: { authorization: `Bearer ${apiKey}`, 'content-type': 'application/json' },
+    body: JSON.stringify(batch),
+  });
 }
 
 describe('integrator maps a new monitor', () => {
@@ -116,7 +133,9 @@ describe('test bench', () => {
     await page.getByRole('button', { name: 'Analyse capture' }).click();
     const res = await answer;
     expect(res.status()).toBe(200);
-    const preview = (await res.json()) as { analysis: { beats: Record<string, { beats: { accepted: boolean; rejectReasons: string[] }[] } | null>; cycles: { usable: boolean }[] } };
+    const preview = (await res.json()) as {
+      analysis: { beats: Record<string, { beats: { accepted: boolean; rejectReasons: string[] }[] } | null>; cycles: { usable: boolean }[] };
+    };
     await page.getByRole('table', { name: 'Indices' }).waitFor();
     await page.getByRole('button', { name: 'Whole window' }).click();
     const beats = Object.values(preview.analysis.beats).flatMap((s) => s?.beats ?? []);
@@ -142,16 +161,24 @@ describe('operator replays a failed delivery', () => {
     const { page, context } = browser;
     expect(stack.mockEhrUrl, 'needs the mock EHR admin URL').not.toBe('');
     // The mock EHR refuses every Observation (422 is not retried automatically).
-    const faults = await fetch(`${stack.mockEhrUrl}/_admin/faults`, { method: 'PUT', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ rules: [{ scope: 'Observation', errorRate: 1, statusCodes: [422] }] }) });
+    const faults = await fetch(`${stack.mockEhrUrl}/_admin/faults`, {
+      method: 'PUT',
+      headers: { 'content-type': 'application/json' },
+      body: JSON.stringify({ rules: [{ scope: 'Observation', errorRate: 1, statusCodes: [422] }] }),
+    });
     expect(faults.ok).toBe(true);
     try {
       const res = await ingest(`e2e-${suffix}-2`, new Date(Date.now() - 60_000).toISOString(), 12);
       expect([200, 202]).toContain(res.status);
       const operator = await apiSignIn(stack.gatewayUrl, 'operator');
-      await eventually(async () => {
-        const r = await operator.call<{ total: number }>('GET', '/deliveries?status=failed&pageSize=5');
-        return r.status === 200 && r.body.total > 0 ? r.body.total : undefined;
-      }, 'a failed delivery', 90);
+      await eventually(
+        async () => {
+          const r = await operator.call<{ total: number }>('GET', '/deliveries?status=failed&pageSize=5');
+          return r.status === 200 && r.body.total > 0 ? r.body.total : undefined;
+        },
+        'a failed delivery',
+        90,
+      );
     } finally {
       await fetch(`${stack.mockEhrUrl}/_admin/faults`, { method: 'DELETE' });
     }
@@ -162,11 +189,19 @@ describe('operator replays a failed delivery', () => {
     await page.getByLabel('Select all on this page').check();
     await screenshot(page, 'operator-failed-deliveries');
     await page.getByRole('button', { name: /Retry selected/ }).click();
-    await page.getByRole('dialog', { name: 'Retry deliveries' }).getByRole('button', { name: /^Retry \d+$/ }).click();
+    await page
+      .getByRole('dialog', { name: 'Retry deliveries' })
+      .getByRole('button', { name: /^Retry \d+$/ })
+      .click();
     const progress = page.getByRole('region', { name: 'Retry' });
     await progress.waitFor();
     // The strict CSP forbids page-side eval, so poll the outcome rows from here.
-    await eventually(async () => ((await progress.locator('[data-outcome="waiting"], [data-outcome="running"]').count()) === 0 ? true : undefined), 'every retry to finish', 60, 500);
+    await eventually(
+      async () => ((await progress.locator('[data-outcome="waiting"], [data-outcome="running"]').count()) === 0 ? true : undefined),
+      'every retry to finish',
+      60,
+      500,
+    );
     expect(await progress.locator('[data-outcome="failed"]').count()).toBe(0);
     // Each item reports what the EHR answered once the sender tried it again.
     expect(await progress.locator('[data-outcome="done"]').count()).toBe(await progress.locator('li').count());
@@ -184,7 +219,10 @@ describe('operator replays a failed delivery', () => {
     await page.getByRole('link', { name: 'open' }).first().click();
     await page.getByRole('heading', { name: /^Assessment of / }).waitFor();
     await page.getByRole('heading', { name: 'Sent to the EHR' }).waitFor();
-    await page.getByLabel(/^FHIR resource for /).first().waitFor();
+    await page
+      .getByLabel(/^FHIR resource for /)
+      .first()
+      .waitFor();
     expect(await page.locator('[data-mark^="beat-"]').count()).toBeGreaterThan(0);
     expect(await page.getByTestId('cautions').textContent()).toContain('Defer to local protocols');
     await screenshot(page, 'operator-assessment-detail');

@@ -79,7 +79,15 @@ export interface GatewayProcess {
   stop(): Promise<void>;
 }
 
-export async function spawnGateway(opts: { databaseUrl: string; jwtSecret: string; mllp?: boolean; workers?: boolean; env?: Record<string, string>; port?: number; mllpPort?: number }): Promise<GatewayProcess> {
+export async function spawnGateway(opts: {
+  databaseUrl: string;
+  jwtSecret: string;
+  mllp?: boolean;
+  workers?: boolean;
+  env?: Record<string, string>;
+  port?: number;
+  mllpPort?: number;
+}): Promise<GatewayProcess> {
   const port = opts.port ?? (await freePort());
   const mllpPort = opts.mllp ? (opts.mllpPort ?? (await freePort())) : null;
   const child = spawnTracked(path.join(repoRoot, 'gateway/src/main.ts'), [], {
@@ -134,16 +142,32 @@ export async function spawnGateway(opts: { databaseUrl: string; jwtSecret: strin
 
 /** A signed-in person over plain fetch: session cookie plus the CSRF header on changes. */
 export async function signIn(url: string, username: string, password: string) {
-  const res = await fetch(`${url}/api/v1/auth/sign-in`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ username, password }) });
+  const res = await fetch(`${url}/api/v1/auth/sign-in`, {
+    method: 'POST',
+    headers: { 'content-type': 'application/json' },
+    body: JSON.stringify({ username, password }),
+  });
   if (res.status !== 200) throw new Error(`sign-in ${res.status}: ${await res.text()}`);
-  const cookie = res.headers.getSetCookie().map((c) => c.split(';')[0]).join('; ');
+  const cookie = res.headers
+    .getSetCookie()
+    .map((c) => c.split(';')[0])
+    .join('; ');
   const { csrfToken } = (await res.json()) as { csrfToken: string };
   const call = async (method: string, p: string, body?: unknown) => {
-    const r = await fetch(`${url}/api/v1${p}`, { method, headers: { cookie, 'x-csrf-token': csrfToken, ...(body ? { 'content-type': 'application/json' } : {}) }, body: body ? JSON.stringify(body) : undefined });
+    const r = await fetch(`${url}/api/v1${p}`, {
+      method,
+      headers: { cookie, 'x-csrf-token': csrfToken, ...(body ? { 'content-type': 'application/json' } : {}) },
+      body: body ? JSON.stringify(body) : undefined,
+    });
     const text = await r.text();
     return { status: r.status, body: text ? (JSON.parse(text) as any) : undefined }; // eslint-disable-line @typescript-eslint/no-explicit-any
   };
-  return { get: (p: string) => call('GET', p), post: (p: string, b?: unknown) => call('POST', p, b ?? {}), put: (p: string, b: unknown) => call('PUT', p, b), patch: (p: string, b: unknown) => call('PATCH', p, b) };
+  return {
+    get: (p: string) => call('GET', p),
+    post: (p: string, b?: unknown) => call('POST', p, b ?? {}),
+    put: (p: string, b: unknown) => call('PUT', p, b),
+    patch: (p: string, b: unknown) => call('PATCH', p, b),
+  };
 }
 
 export const DEMO_INTEGRATOR = { username: 'ivo.integrator', password: 'Harrowmere-integrator-1' };

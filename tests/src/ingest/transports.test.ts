@@ -35,7 +35,8 @@ const waves = [
   { code: '150452', refId: 'MDC_PULS_OXIM_PLETH', unit: '262656^MDC_DIM_DIMLESS^MDC', sampleRate: 125, samples: wave.channels[1]!.samples },
 ];
 const T0 = Date.parse('2026-11-30T14:00:00.000Z');
-const inboundTotal = async (outcome?: string) => (await integrator.get(`/inbound-messages?pageSize=1${outcome ? `&outcome=${outcome}` : ''}`)).body.total as number;
+const inboundTotal = async (outcome?: string) =>
+  (await integrator.get(`/inbound-messages?pageSize=1${outcome ? `&outcome=${outcome}` : ''}`)).body.total as number;
 
 describe('MLLP: IHE PCD-01 messages from an independent HL7 library (node-hl7-client)', () => {
   it('acknowledges each message in the mode asked for, echoing MSH-10, with ERR naming what was wrong', async () => {
@@ -56,10 +57,27 @@ describe('MLLP: IHE PCD-01 messages from an independent HL7 library (node-hl7-cl
     };
     const short = waves.map((w) => ({ ...w, samples: w.samples.slice(0, 500) }));
     for (let i = 0; i < 3; i++) {
-      await send(buildPcd01({ controlId: `HL7C-${i}`, equipment: '0123456789ABCDEF', start: new Date(T0 + i * 4_000), waves: short, heartRate: 78, setRespiratoryRate: 14, tidalVolumeMl: 480 }));
+      await send(
+        buildPcd01({
+          controlId: `HL7C-${i}`,
+          equipment: '0123456789ABCDEF',
+          start: new Date(T0 + i * 4_000),
+          waves: short,
+          heartRate: 78,
+          setRespiratoryRate: 14,
+          tidalVolumeMl: 480,
+        }),
+      );
     }
     await send(buildPcd01({ controlId: 'HL7C-ENH', equipment: '0123456789ABCDEF', start: new Date(T0 + 12_000), waves: short, enhanced: true }));
-    await send(buildPcd01({ controlId: 'HL7C-BAD', equipment: '0123456789ABCDEF', start: new Date(T0 + 16_000), waves: [{ code: '123', refId: 'MDC_NOT_IN_PROFILE', sampleRate: 125, samples: [1, 2, 3] }] }));
+    await send(
+      buildPcd01({
+        controlId: 'HL7C-BAD',
+        equipment: '0123456789ABCDEF',
+        start: new Date(T0 + 16_000),
+        waves: [{ code: '123', refId: 'MDC_NOT_IN_PROFILE', sampleRate: 125, samples: [1, 2, 3] }],
+      }),
+    );
     await send(buildPcd01({ controlId: 'HL7C-WHO', equipment: '1111111111111111', start: new Date(T0), waves: short }));
     await conn.close();
     // HL7 v2: MSA-1 acknowledgement code, MSA-2 = the message's MSH-10; ERR-3 from table 0357.
@@ -76,7 +94,11 @@ describe('MLLP: IHE PCD-01 messages from an independent HL7 library (node-hl7-cl
     expect(acks[4]!.get('ERR.3.1').toString()).toBe('103');
     expect(acks[4]!.get('ERR.4').toString()).toBe('E');
     expect(acks[5]!.get('ERR.3.1').toString()).toBe('204');
-    const msgs = (await integrator.get('/inbound-messages?transport=mllp&order=asc&pageSize=50')).body.items as { batchId: string; outcome: string; continuity: string }[];
+    const msgs = (await integrator.get('/inbound-messages?transport=mllp&order=asc&pageSize=50')).body.items as {
+      batchId: string;
+      outcome: string;
+      continuity: string;
+    }[];
     expect(msgs.map((m) => [m.batchId, m.outcome])).toEqual([
       ['HL7C-0', 'accepted'],
       ['HL7C-1', 'accepted'],
@@ -93,16 +115,30 @@ describe('property: bad input never crashes the gateway, always gets a clear ans
   it('HTTP: arbitrary and mutated bodies get 2xx or problem details, every 400/422 is quarantined', async () => {
     const apiKey = keys.get('FEDCBA9876543210')!;
     const valid = toIngestBatch(wave, { monitorId: 'FEDCBA9876543210', batchId: 'base', startTime: new Date(T0).toISOString() });
-    const mutated = fc.record({ key: fc.constantFrom('monitorId', 'batchId', 'startTime', 'channels', 'context'), value: fc.anything() }).map(({ key, value }) => JSON.stringify({ ...valid, batchId: `m-${randomBytes(4).toString('hex')}`, [key]: value }));
-    const channelMutation = fc.record({ field: fc.constantFrom('code', 'sampleRate', 'samples', 'unit', 'role'), value: fc.anything() }).map(({ field, value }) =>
-      JSON.stringify({ ...valid, batchId: `c-${randomBytes(4).toString('hex')}`, channels: [{ ...valid.channels[0], [field]: value }] }),
+    const mutated = fc
+      .record({ key: fc.constantFrom('monitorId', 'batchId', 'startTime', 'channels', 'context'), value: fc.anything() })
+      .map(({ key, value }) => JSON.stringify({ ...valid, batchId: `m-${randomBytes(4).toString('hex')}`, [key]: value }));
+    const channelMutation = fc
+      .record({ field: fc.constantFrom('code', 'sampleRate', 'samples', 'unit', 'role'), value: fc.anything() })
+      .map(({ field, value }) =>
+        JSON.stringify({ ...valid, batchId: `c-${randomBytes(4).toString('hex')}`, channels: [{ ...valid.channels[0], [field]: value }] }),
+      );
+    const body = fc.oneof(
+      fc.string(),
+      fc.json(),
+      mutated,
+      channelMutation,
+      fc.uint8Array({ maxLength: 300 }).map((b) => Buffer.from(b).toString('latin1')),
     );
-    const body = fc.oneof(fc.string(), fc.json(), mutated, channelMutation, fc.uint8Array({ maxLength: 300 }).map((b) => Buffer.from(b).toString('latin1')));
     let quarantinedAnswers = 0;
     const before = await inboundTotal('quarantined');
     await fc.assert(
       fc.asyncProperty(body, async (text) => {
-        const r = await fetch(`${gw.url}/api/v1/ingest/batches`, { method: 'POST', headers: { authorization: `Bearer ${apiKey}`, 'content-type': 'application/json' }, body: text });
+        const r = await fetch(`${gw.url}/api/v1/ingest/batches`, {
+          method: 'POST',
+          headers: { authorization: `Bearer ${apiKey}`, 'content-type': 'application/json' },
+          body: text,
+        });
         expect(r.status).toBeLessThan(500);
         if (r.status >= 400) {
           expect(r.headers.get('content-type')).toMatch(/application\/problem\+json/);
@@ -119,11 +155,22 @@ describe('property: bad input never crashes the gateway, always gets a clear ans
   });
 
   it('MLLP: arbitrary frames and mutated PCD-01 messages each get one ACK/NAK on an open connection and one inbound row', async () => {
-    const base = buildPcd01({ controlId: 'PROP', equipment: 'FEDCBA9876543210', start: new Date(T0), waves: [{ ...waves[0]!, samples: waves[0]!.samples.slice(0, 250) }] });
+    const base = buildPcd01({
+      controlId: 'PROP',
+      equipment: 'FEDCBA9876543210',
+      start: new Date(T0),
+      waves: [{ ...waves[0]!, samples: waves[0]!.samples.slice(0, 250) }],
+    });
     // MLLP start (0x0B) and end (0x1C) bytes would re-frame the message, so they are left out.
     const strip = (s: string) => s.split(String.fromCharCode(0x0b)).join('').split(String.fromCharCode(0x1c)).join('');
-    const mutatedHl7 = fc.record({ at: fc.nat({ max: base.length - 1 }), len: fc.nat({ max: 40 }), insert: fc.string({ maxLength: 20 }) }).map(({ at, len, insert }) => strip(base.slice(0, at) + insert + base.slice(at + len)));
-    const frameText = fc.oneof(mutatedHl7, fc.string({ maxLength: 400 }).map(strip), fc.uint8Array({ maxLength: 400 }).map((b) => strip(Buffer.from(b).toString('latin1'))));
+    const mutatedHl7 = fc
+      .record({ at: fc.nat({ max: base.length - 1 }), len: fc.nat({ max: 40 }), insert: fc.string({ maxLength: 20 }) })
+      .map(({ at, len, insert }) => strip(base.slice(0, at) + insert + base.slice(at + len)));
+    const frameText = fc.oneof(
+      mutatedHl7,
+      fc.string({ maxLength: 400 }).map(strip),
+      fc.uint8Array({ maxLength: 400 }).map((b) => strip(Buffer.from(b).toString('latin1'))),
+    );
     const peer = await RawMllpPeer.connect(gw.mllpPort!);
     let sent = 0;
     const before = await inboundTotal();

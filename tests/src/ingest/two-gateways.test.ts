@@ -23,7 +23,14 @@ afterAll(async () => {
 
 async function query<T>(sql: string, params: unknown[] = []): Promise<T[]> {
   const u = new URL(db.url);
-  const conn = await mariadb.createConnection({ host: u.hostname, port: Number(u.port), user: decodeURIComponent(u.username), password: decodeURIComponent(u.password), database: u.pathname.slice(1), bigIntAsNumber: true });
+  const conn = await mariadb.createConnection({
+    host: u.hostname,
+    port: Number(u.port),
+    user: decodeURIComponent(u.username),
+    password: decodeURIComponent(u.password),
+    database: u.pathname.slice(1),
+    bigIntAsNumber: true,
+  });
   try {
     return (await conn.query(sql, params)) as T[];
   } finally {
@@ -56,7 +63,11 @@ describe('two gateway processes on one database', () => {
           const slice = { ...w, channels: w.channels.map((c) => ({ ...c, samples: c.samples.slice(t * 125, (t + 10) * 125) })) };
           const body = toIngestBatch(slice, { monitorId: k.identifier, batchId: `x-${t}`, startTime: new Date(T0 + t * 1000).toISOString() });
           const target = (t / 10) % 2 === 0 ? a.url : b.url;
-          const r = await fetch(`${target}/api/v1/ingest/batches`, { method: 'POST', headers: { authorization: `Bearer ${k.apiKey}`, 'content-type': 'application/json' }, body: JSON.stringify(body) });
+          const r = await fetch(`${target}/api/v1/ingest/batches`, {
+            method: 'POST',
+            headers: { authorization: `Bearer ${k.apiKey}`, 'content-type': 'application/json' },
+            body: JSON.stringify(body),
+          });
           if (r.status !== 202) throw new Error(`batch ${k.identifier} ${t}: ${r.status} ${await r.text()}`);
         }
       }),
@@ -68,10 +79,14 @@ describe('two gateway processes on one database', () => {
       if ((Number(row!.due) === 0 && Number(row!.done) >= expected) || Date.now() > until) break;
       await new Promise((r) => setTimeout(r, 500));
     }
-    const windows = await query<{ status: string; attempts: number; claimed_by: string; assessment_id: string }>('SELECT status, attempts, claimed_by, assessment_id FROM analysis_window');
+    const windows = await query<{ status: string; attempts: number; claimed_by: string; assessment_id: string }>(
+      'SELECT status, attempts, claimed_by, assessment_id FROM analysis_window',
+    );
     expect(windows).toHaveLength(expected); // none skipped: every fully covered window was planned
     expect(windows.every((w) => w.status === 'done' && w.attempts === 1 && w.assessment_id)).toBe(true);
-    const dup = await query<{ n: number }>('SELECT COUNT(*) AS n FROM (SELECT monitor_id, window_start, engine_version FROM assessment GROUP BY monitor_id, window_start, engine_version HAVING COUNT(*) > 1) d');
+    const dup = await query<{ n: number }>(
+      'SELECT COUNT(*) AS n FROM (SELECT monitor_id, window_start, engine_version FROM assessment GROUP BY monitor_id, window_start, engine_version HAVING COUNT(*) > 1) d',
+    );
     expect(Number(dup[0]!.n)).toBe(0);
     const [total] = await query<{ n: number }>('SELECT COUNT(*) AS n FROM assessment');
     expect(Number(total!.n)).toBe(expected);

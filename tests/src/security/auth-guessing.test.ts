@@ -21,9 +21,29 @@ let dir: string;
 beforeAll(async () => {
   dir = mkdtempSync(path.join(os.tmpdir(), 'ebbgate-guess-'));
   const file = path.join(dir, 'config.json');
-  writeFileSync(file, JSON.stringify({ auth: { signInAttemptsPerMinute: 1000, throttle: { accountFreeFailures: 5, sourceFreeFailures: 1000, baseDelaySeconds: 1, accountMaxDelaySeconds: 2, sourceMaxDelaySeconds: 900, forgetMinutes: 60 } } }));
+  writeFileSync(
+    file,
+    JSON.stringify({
+      auth: {
+        signInAttemptsPerMinute: 1000,
+        throttle: {
+          accountFreeFailures: 5,
+          sourceFreeFailures: 1000,
+          baseDelaySeconds: 1,
+          accountMaxDelaySeconds: 2,
+          sourceMaxDelaySeconds: 900,
+          forgetMinutes: 60,
+        },
+      },
+    }),
+  );
   db = await createTestDatabase();
-  gw = await spawnGateway({ databaseUrl: db.runtimeUrl, jwtSecret: randomBytes(32).toString('hex'), workers: false, env: { EBBGATE_CONFIG: file, DATABASE_MIGRATION_URL: db.url } });
+  gw = await spawnGateway({
+    databaseUrl: db.runtimeUrl,
+    jwtSecret: randomBytes(32).toString('hex'),
+    workers: false,
+    env: { EBBGATE_CONFIG: file, DATABASE_MIGRATION_URL: db.url },
+  });
 });
 afterAll(async () => {
   await gw?.stop();
@@ -32,11 +52,22 @@ afterAll(async () => {
 });
 
 const signIn = (body: { username: string; password: string }, from: string) =>
-  fetch(`${gw.url}/api/v1/auth/sign-in`, { method: 'POST', headers: { 'content-type': 'application/json', 'x-forwarded-for': from }, body: JSON.stringify(body) });
+  fetch(`${gw.url}/api/v1/auth/sign-in`, {
+    method: 'POST',
+    headers: { 'content-type': 'application/json', 'x-forwarded-for': from },
+    body: JSON.stringify(body),
+  });
 
 async function query<T>(sql: string, params: unknown[] = []): Promise<T[]> {
   const u = new URL(db.url);
-  const conn = await mariadb.createConnection({ host: u.hostname, port: Number(u.port), user: decodeURIComponent(u.username), password: decodeURIComponent(u.password), database: u.pathname.slice(1), bigIntAsNumber: true });
+  const conn = await mariadb.createConnection({
+    host: u.hostname,
+    port: Number(u.port),
+    user: decodeURIComponent(u.username),
+    password: decodeURIComponent(u.password),
+    database: u.pathname.slice(1),
+    bigIntAsNumber: true,
+  });
   try {
     return (await conn.query(sql, params)) as T[];
   } finally {
@@ -46,7 +77,9 @@ async function query<T>(sql: string, params: unknown[] = []): Promise<T[]> {
 
 describe('password guessing', () => {
   it('counts every checked guess of 30 parallel ones, then makes the account wait (capped), not lock', async () => {
-    const answers = await Promise.all(Array.from({ length: 30 }, (_, i) => signIn({ username: ADMIN.username, password: `guess-${i}-Harrowmere` }, '203.0.113.50')));
+    const answers = await Promise.all(
+      Array.from({ length: 30 }, (_, i) => signIn({ username: ADMIN.username, password: `guess-${i}-Harrowmere` }, '203.0.113.50')),
+    );
     const statuses = answers.map((a) => a.status);
     expect(statuses.every((s) => s === 401 || s === 429)).toBe(true);
     const checked = statuses.filter((s) => s === 401).length;

@@ -66,13 +66,16 @@ beforeAll(async () => {
   const admin = new URL(process.env.EBBGATE_TEST_ADMIN_URL!);
   proxy = await DbProxy.start({ host: admin.hostname, port: Number(admin.port) });
   // The gateway's runtime connections go through the proxy; its migrations do not.
-  e = await startEdgeGateway({ ingest: { retryAfterSeconds: 1 } }, {
-    databaseUrl: (db) => {
-      const u = new URL(db.runtimeUrl);
-      u.port = String(proxy.port);
-      return u.toString();
+  e = await startEdgeGateway(
+    { ingest: { retryAfterSeconds: 1 } },
+    {
+      databaseUrl: (db) => {
+        const u = new URL(db.runtimeUrl);
+        u.port = String(proxy.port);
+        return u.toString();
+      },
     },
-  });
+  );
   spoolDir = await mkdtemp(path.join(os.tmpdir(), 'ebbgate-dbdown-'));
 }, 120_000);
 afterAll(async () => {
@@ -85,7 +88,15 @@ const batch = (k: number): IngestBatch => ({
   monitorId: M,
   batchId: `dbdown-${k}`,
   startTime: new Date(Date.UTC(2026, 11, 1, 12, 0, 4 * k)).toISOString(),
-  channels: [{ code: '150036', role: 'abp', sampleRate: 125, unit: 'mmHg', samples: Array.from({ length: 500 }, (_, i) => 80 + 40 * Math.max(0, Math.sin((2 * Math.PI * i) / 94))) }],
+  channels: [
+    {
+      code: '150036',
+      role: 'abp',
+      sampleRate: 125,
+      unit: 'mmHg',
+      samples: Array.from({ length: 500 }, (_, i) => 80 + 40 * Math.max(0, Math.sin((2 * Math.PI * i) / 94))),
+    },
+  ],
 });
 
 describe('the database is unreachable during ingest', () => {
@@ -103,7 +114,11 @@ describe('the database is unreachable during ingest', () => {
     expect(orig!.errors[0]!.code).toBe('207');
     expect(enh).toMatchObject({ code: 'CR', controlId: 'down-enh' });
 
-    const http = await fetch(`${e.gw.url}/api/v1/ingest/batches`, { method: 'POST', headers: { authorization: `Bearer ${key}`, 'content-type': 'application/json' }, body: JSON.stringify(batch(99)) });
+    const http = await fetch(`${e.gw.url}/api/v1/ingest/batches`, {
+      method: 'POST',
+      headers: { authorization: `Bearer ${key}`, 'content-type': 'application/json' },
+      body: JSON.stringify(batch(99)),
+    });
     expect(http.status).toBe(503);
     expect(http.headers.get('retry-after')).toBe('1');
 
@@ -128,7 +143,9 @@ describe('the database is unreachable during ingest', () => {
     }
     expect(events.filter((ev) => ev.kind === 'rejected')).toEqual([]);
     expect(sender.stats).toMatchObject({ accepted: 3, rejected: 0 });
-    const rows = await e.query<{ batch_id: string; n: number }>("SELECT batch_id, COUNT(*) AS n FROM inbound_message WHERE batch_id LIKE 'dbdown-%' AND outcome = 'accepted' GROUP BY batch_id ORDER BY batch_id");
+    const rows = await e.query<{ batch_id: string; n: number }>(
+      "SELECT batch_id, COUNT(*) AS n FROM inbound_message WHERE batch_id LIKE 'dbdown-%' AND outcome = 'accepted' GROUP BY batch_id ORDER BY batch_id",
+    );
     expect(rows.map((r) => [r.batch_id, Number(r.n)])).toEqual([
       ['dbdown-0', 1],
       ['dbdown-1', 1],

@@ -27,7 +27,10 @@ export interface EdgeGateway {
 }
 
 /** Starts a gateway with MLLP (plain and TLS) and the given config on top of the defaults. */
-export async function startEdgeGateway(config: Record<string, unknown> = {}, opts: { clients?: string[]; databaseUrl?: (db: TestDatabase) => string } = {}): Promise<EdgeGateway> {
+export async function startEdgeGateway(
+  config: Record<string, unknown> = {},
+  opts: { clients?: string[]; databaseUrl?: (db: TestDatabase) => string } = {},
+): Promise<EdgeGateway> {
   const dir = mkdtempSync(path.join(os.tmpdir(), 'ebbgate-edge-'));
   const certs = ensureDemoCertificates(path.join(dir, 'certs'), opts.clients ?? ['adapter-a', 'adapter-b']);
   const tlsPort = await freePort();
@@ -39,7 +42,19 @@ export async function startEdgeGateway(config: Record<string, unknown> = {}, opt
       ...config,
       gateway: { rateLimit: { perSourcePerMinute: 1_000_000, perKeyPerMinute: 1_000_000 }, ...((config.gateway as object) ?? {}) },
       auth: { signInAttemptsPerMinute: 1000 },
-      mllp: { ...mllp, tls: { enabled: true, host: '127.0.0.1', port: tlsPort, certFile: certs.certFile, keyFile: certs.keyFile, caFile: certs.caFile, maxFrameBytes: 8_388_608, ...((mllp.tls as object) ?? {}) } },
+      mllp: {
+        ...mllp,
+        tls: {
+          enabled: true,
+          host: '127.0.0.1',
+          port: tlsPort,
+          certFile: certs.certFile,
+          keyFile: certs.keyFile,
+          caFile: certs.caFile,
+          maxFrameBytes: 8_388_608,
+          ...((mllp.tls as object) ?? {}),
+        },
+      },
     }),
   );
   const db = await createTestDatabase();
@@ -61,7 +76,14 @@ export async function startEdgeGateway(config: Record<string, unknown> = {}, opt
   const integrator = await signIn(gw.url, DEMO_INTEGRATOR.username, DEMO_INTEGRATOR.password);
   const query = async <T>(sql: string, params: unknown[] = []): Promise<T[]> => {
     const u = new URL(db.url);
-    const conn = await mariadb.createConnection({ host: u.hostname, port: Number(u.port), user: decodeURIComponent(u.username), password: decodeURIComponent(u.password), database: u.pathname.slice(1), bigIntAsNumber: true });
+    const conn = await mariadb.createConnection({
+      host: u.hostname,
+      port: Number(u.port),
+      user: decodeURIComponent(u.username),
+      password: decodeURIComponent(u.password),
+      database: u.pathname.slice(1),
+      bigIntAsNumber: true,
+    });
     try {
       return (await conn.query(sql, params)) as T[];
     } finally {
@@ -107,7 +129,11 @@ export async function registerMllpMonitor(e: EdgeGateway, identifier: string, pr
   return { profileId: profile.body.id as string, monitorId: monitor.body.id as string };
 }
 
-const ts = (d: Date) => d.toISOString().replace(/[-:T]/g, '').replace(/\.(\d{3})Z$/, '.$1+0000');
+const ts = (d: Date) =>
+  d
+    .toISOString()
+    .replace(/[-:T]/g, '')
+    .replace(/\.(\d{3})Z$/, '.$1+0000');
 
 /** A PCD-01 style ORU^R01 (arterial pressure and airway pressure waveforms), written by hand here. */
 export function oru(o: { controlId: string; equipment: string; start: Date; seconds?: number; enhanced?: boolean; value?: number }): string {
@@ -115,21 +141,26 @@ export function oru(o: { controlId: string; equipment: string; start: Date; seco
   const t = ts(o.start);
   const abp = Array.from({ length: n }, (_, i) => (80 + 40 * Math.max(0, Math.sin((2 * Math.PI * i) / 94)) + (o.value ?? 0)).toFixed(1)).join('^');
   const paw = Array.from({ length: n }, (_, i) => (i % 300 < 100 ? 18 : 5).toFixed(1)).join('^');
-  return [
-    `MSH|^~\\&|EDGE_TEST^${o.equipment}^EUI-64|HGH|EBBGATE|HGH|${ts(new Date())}||ORU^R01^ORU_R01|${o.controlId}|P|2.6|||${o.enhanced ? 'AL|NE' : '|'}`,
-    'PID|||HGH-1^^^HGH^MR||Testpatient^Edge',
-    `OBR|1|||182777000^monitoring of patient^SCT|||${t}`,
-    `OBX|1||69965^MDC_DEV_MON_PHYSIO_MULTI_PARAM_MDS^MDC|1.0.0.0|||||||X|||||||${o.equipment}^^${o.equipment}^EUI-64`,
-    `OBX|2|NA|150036^MDC_PRESS_BLD_ART_ABP^MDC|1.2.1.1|${abp}|266016^MDC_DIM_MMHG^MDC|||||R|||${t}`,
-    'OBX|3|NM|67981^MDC_ATTR_SAMP_RATE^MDC|1.2.1.1.1|125|264608^MDC_DIM_PER_SEC^MDC|||||R',
-    `OBX|4|NA|151868^MDC_PRESS_AWAY^MDC|1.2.2.1|${paw}|266048^MDC_DIM_CM_H2O^MDC|||||R|||${t}`,
-    'OBX|5|NM|67981^MDC_ATTR_SAMP_RATE^MDC|1.2.2.1.1|125|264608^MDC_DIM_PER_SEC^MDC|||||R',
-  ].join('\r') + '\r';
+  return (
+    [
+      `MSH|^~\\&|EDGE_TEST^${o.equipment}^EUI-64|HGH|EBBGATE|HGH|${ts(new Date())}||ORU^R01^ORU_R01|${o.controlId}|P|2.6|||${o.enhanced ? 'AL|NE' : '|'}`,
+      'PID|||HGH-1^^^HGH^MR||Testpatient^Edge',
+      `OBR|1|||182777000^monitoring of patient^SCT|||${t}`,
+      `OBX|1||69965^MDC_DEV_MON_PHYSIO_MULTI_PARAM_MDS^MDC|1.0.0.0|||||||X|||||||${o.equipment}^^${o.equipment}^EUI-64`,
+      `OBX|2|NA|150036^MDC_PRESS_BLD_ART_ABP^MDC|1.2.1.1|${abp}|266016^MDC_DIM_MMHG^MDC|||||R|||${t}`,
+      'OBX|3|NM|67981^MDC_ATTR_SAMP_RATE^MDC|1.2.1.1.1|125|264608^MDC_DIM_PER_SEC^MDC|||||R',
+      `OBX|4|NA|151868^MDC_PRESS_AWAY^MDC|1.2.2.1|${paw}|266048^MDC_DIM_CM_H2O^MDC|||||R|||${t}`,
+      'OBX|5|NM|67981^MDC_ATTR_SAMP_RATE^MDC|1.2.2.1.1|125|264608^MDC_DIM_PER_SEC^MDC|||||R',
+    ].join('\r') + '\r'
+  );
 }
 
 /** MSA-1, MSA-2 and ERR-3/ERR-8 of an answer. */
 export function readAck(ack: string) {
-  const segs = ack.split('\r').filter(Boolean).map((s) => s.split('|'));
+  const segs = ack
+    .split('\r')
+    .filter(Boolean)
+    .map((s) => s.split('|'));
   const msa = segs.find((s) => s[0] === 'MSA') ?? [];
   return { code: msa[1], controlId: msa[2], errors: segs.filter((s) => s[0] === 'ERR').map((s) => ({ code: (s[3] ?? '').split('^')[0], text: s[8] ?? '' })) };
 }
@@ -164,7 +195,16 @@ export class Peer {
   /** TLS 1.2+ to the gateway; `client` is the certificate to present (none: no certificate). */
   static secure(port: number, certs: DemoCertificates, client?: { certFile: string; keyFile: string }): Promise<Peer> {
     return new Promise((resolve, reject) => {
-      const s = tls.connect({ host: '127.0.0.1', port, ca: readFileSync(certs.caFile), minVersion: 'TLSv1.2', ...(client ? { cert: readFileSync(client.certFile), key: readFileSync(client.keyFile) } : {}) }, () => resolve(new Peer(s)));
+      const s = tls.connect(
+        {
+          host: '127.0.0.1',
+          port,
+          ca: readFileSync(certs.caFile),
+          minVersion: 'TLSv1.2',
+          ...(client ? { cert: readFileSync(client.certFile), key: readFileSync(client.keyFile) } : {}),
+        },
+        () => resolve(new Peer(s)),
+      );
       s.once('error', reject);
     });
   }

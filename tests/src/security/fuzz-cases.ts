@@ -13,16 +13,52 @@ import { IngestRefusal } from '@ebbgate/gateway/ingest/refusal';
 import { oru } from './edge-support';
 
 const SEED_ORU = oru({ controlId: 'fz-1', equipment: '02EB6AFFFE00EF01', start: new Date('2026-12-01T10:00:00Z'), seconds: 1 });
-const SEED_JSON = JSON.stringify({ monitorId: '02EB6AFFFE00EF01', batchId: 'fz-1', startTime: '2026-12-01T10:00:00.000Z', channels: [{ code: '150036', sampleRate: 125, samples: [80, 81, null, 82] }], context: { tidalVolumeMl: 450 } });
-const NASTY = ['|', '^', '~', '\\', '&', '\r', '\n', '\x0b', '\x1c', '\x1c\r', 'MSH|^~\\&|', 'OBX|', '\\X41\\', '\\X' + '0'.repeat(300) + '\\', '1.2.1.1.1', 'NA', 'NM', '', '\u0000', '\uffff', 'é', '9'.repeat(400), '-1e309', 'NaN'];
+const SEED_JSON = JSON.stringify({
+  monitorId: '02EB6AFFFE00EF01',
+  batchId: 'fz-1',
+  startTime: '2026-12-01T10:00:00.000Z',
+  channels: [{ code: '150036', sampleRate: 125, samples: [80, 81, null, 82] }],
+  context: { tidalVolumeMl: 450 },
+});
+const NASTY = [
+  '|',
+  '^',
+  '~',
+  '\\',
+  '&',
+  '\r',
+  '\n',
+  '\x0b',
+  '\x1c',
+  '\x1c\r',
+  'MSH|^~\\&|',
+  'OBX|',
+  '\\X41\\',
+  '\\X' + '0'.repeat(300) + '\\',
+  '1.2.1.1.1',
+  'NA',
+  'NM',
+  '',
+  '\u0000',
+  '\uffff',
+  'é',
+  '9'.repeat(400),
+  '-1e309',
+  'NaN',
+];
 
 /** A seed message with a few splices of nasty or random text at random places. */
 const mutated = (seed: string) =>
-  fc.array(fc.record({ at: fc.nat({ max: seed.length }), cut: fc.nat({ max: 40 }), insert: fc.oneof(fc.constantFrom(...NASTY), fc.string({ maxLength: 30 })) }), { minLength: 1, maxLength: 6 }).map((edits) => {
-    let s = seed;
-    for (const e of edits) s = s.slice(0, Math.min(e.at, s.length)) + e.insert + s.slice(Math.min(e.at, s.length) + e.cut);
-    return s;
-  });
+  fc
+    .array(
+      fc.record({ at: fc.nat({ max: seed.length }), cut: fc.nat({ max: 40 }), insert: fc.oneof(fc.constantFrom(...NASTY), fc.string({ maxLength: 30 })) }),
+      { minLength: 1, maxLength: 6 },
+    )
+    .map((edits) => {
+      let s = seed;
+      for (const e of edits) s = s.slice(0, Math.min(e.at, s.length)) + e.insert + s.slice(Math.min(e.at, s.length) + e.cut);
+      return s;
+    });
 
 /** HL7-ish bytes: mutated valid messages, random text, random bytes. */
 export const hl7Input = fc.oneof(
@@ -59,7 +95,10 @@ export function checkHl7Case(input: Buffer, chunk: number): void {
       refusal = err;
     }
     const ack = buildAck(header, ackCodeFor(refusal, header?.enhancedMode ?? false), refusal);
-    const msa = ack.split('\r').find((s) => s.startsWith('MSA|'))?.split('|');
+    const msa = ack
+      .split('\r')
+      .find((s) => s.startsWith('MSA|'))
+      ?.split('|');
     if (!msa || !ACK_CODES.has(msa[1] ?? '')) throw new Error(`no clear MSA in ${JSON.stringify(ack.slice(0, 200))}`);
     if (refusal && !ack.includes('\rERR|')) throw new Error('a NAK without ERR');
     if (header?.controlId && !msa[2]) throw new Error('MSA-2 empty although MSH-10 was readable');

@@ -12,7 +12,9 @@ import { Peer, readAck, registerMllpMonitor, startEdgeGateway, type EdgeGateway 
 describe('generated bad input, in process', () => {
   it('100,000 cases per transport: each decoded or refused with a reason, every ACK clear', () => {
     const r = fuzzInProcess(100_000);
-    console.log(`fuzz in process: MLLP ${r.mllp.cases} cases in ${(r.mllp.ms / 1000).toFixed(1)} s, HTTP ${r.http.cases} cases in ${(r.http.ms / 1000).toFixed(1)} s`);
+    console.log(
+      `fuzz in process: MLLP ${r.mllp.cases} cases in ${(r.mllp.ms / 1000).toFixed(1)} s, HTTP ${r.http.cases} cases in ${(r.http.ms / 1000).toFixed(1)} s`,
+    );
     expect(r.mllp.cases).toBe(100_000);
     expect(r.http.cases).toBe(100_000);
   });
@@ -45,7 +47,11 @@ describe('generated bad input, against the gateway', () => {
   it('HTTP: 1,000 generated bodies with a valid key, each answered 2xx or with problem details', async () => {
     const bodies = fc.sample(jsonInput, { numRuns: 1000, seed: 12 });
     for (const body of bodies) {
-      const r = await fetch(`${e.gw.url}/api/v1/ingest/batches`, { method: 'POST', headers: { authorization: `Bearer ${key}`, 'content-type': 'application/json' }, body });
+      const r = await fetch(`${e.gw.url}/api/v1/ingest/batches`, {
+        method: 'POST',
+        headers: { authorization: `Bearer ${key}`, 'content-type': 'application/json' },
+        body,
+      });
       const text = await r.text();
       expect([200, 202, 400, 409, 413, 422, 429]).toContain(r.status);
       if (r.status >= 400) {

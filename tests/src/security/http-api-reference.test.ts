@@ -25,7 +25,9 @@ describe('API reference page', () => {
     const problems: string[] = [];
     page.on('pageerror', (e) => problems.push(`page error: ${e.message}`));
     page.on('console', (m) => m.type() === 'error' && problems.push(`console: ${m.text()}`));
-    await page.addInitScript({ content: "document.addEventListener('securitypolicyviolation', (e) => console.error('CSP violation: ' + e.violatedDirective + ' ' + e.blockedURI));" });
+    await page.addInitScript({
+      content: "document.addEventListener('securitypolicyviolation', (e) => console.error('CSP violation: ' + e.violatedDirective + ' ' + e.blockedURI));",
+    });
     await page.goto(`${gw.url}/api/docs`);
     await page.waitForSelector('.opblock', { timeout: 30_000 });
     const paths = await page.$$eval('.opblock .opblock-summary-path', (els) => els.map((e) => e.getAttribute('data-path') ?? e.textContent ?? ''));

@@ -65,7 +65,14 @@ describe('gateway over HTTPS', () => {
 
   it('refuses TLS 1.1 (TLS 1.2 or newer only, BCP 195)', async () => {
     const outcome = await new Promise<string>((resolve) => {
-      const socket = tls.connect({ host: '127.0.0.1', port, ca: readFileSync(certs.caFile), servername: 'localhost', minVersion: 'TLSv1', maxVersion: 'TLSv1.1' });
+      const socket = tls.connect({
+        host: '127.0.0.1',
+        port,
+        ca: readFileSync(certs.caFile),
+        servername: 'localhost',
+        minVersion: 'TLSv1',
+        maxVersion: 'TLSv1.1',
+      });
       socket.once('secureConnect', () => {
         resolve(`connected with ${socket.getProtocol()}`);
         socket.destroy();

@@ -23,7 +23,10 @@ describe('no PHI in logs when the database fails', () => {
   it('keeps the patient name and record number out of the log during MLLP and HTTP failures', async () => {
     await e.query('RENAME TABLE inbound_message TO inbound_message_away, assessment TO assessment_away');
     try {
-      const message = oru({ controlId: 'PHI-1', equipment: MONITOR, start: new Date(Date.now() - 10_000) }).replace('PID|||HGH-1^^^HGH^MR||Testpatient^Edge', `PID|||${MRN}^^^HGH^MR||${NAME}^Maren||19610423|F`);
+      const message = oru({ controlId: 'PHI-1', equipment: MONITOR, start: new Date(Date.now() - 10_000) }).replace(
+        'PID|||HGH-1^^^HGH^MR||Testpatient^Edge',
+        `PID|||${MRN}^^^HGH^MR||${NAME}^Maren||19610423|F`,
+      );
       expect(message).toContain(NAME);
       const peer = await Peer.plain(e.gw.mllpPort!);
       peer.send(message);

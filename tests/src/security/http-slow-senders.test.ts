@@ -22,9 +22,17 @@ let port = 0;
 beforeAll(async () => {
   dir = mkdtempSync(path.join(os.tmpdir(), 'ebbgate-slow-'));
   const file = path.join(dir, 'config.json');
-  writeFileSync(file, JSON.stringify({ gateway: { headersTimeoutMs: 1000, requestTimeoutMs: 2000, rateLimit: { perSourcePerMinute: 100_000, perKeyPerMinute: 100_000 } } }));
+  writeFileSync(
+    file,
+    JSON.stringify({ gateway: { headersTimeoutMs: 1000, requestTimeoutMs: 2000, rateLimit: { perSourcePerMinute: 100_000, perKeyPerMinute: 100_000 } } }),
+  );
   db = await createTestDatabase();
-  gw = await spawnGateway({ databaseUrl: db.runtimeUrl, jwtSecret: randomBytes(32).toString('hex'), workers: false, env: { EBBGATE_CONFIG: file, DATABASE_MIGRATION_URL: db.url } });
+  gw = await spawnGateway({
+    databaseUrl: db.runtimeUrl,
+    jwtSecret: randomBytes(32).toString('hex'),
+    workers: false,
+    env: { EBBGATE_CONFIG: file, DATABASE_MIGRATION_URL: db.url },
+  });
   port = Number(new URL(gw.url).port);
 });
 afterAll(async () => {
@@ -57,7 +65,13 @@ function drip(head: string, everyMs: number, giveUpMs: number): Promise<{ closed
 
 function strangerUpload(): Promise<number | 'no answer'> {
   return new Promise((resolve) => {
-    const req = http.request({ host: '127.0.0.1', port, path: '/api/v1/analysis/preview', method: 'POST', headers: { 'content-type': 'multipart/form-data; boundary=b', 'content-length': String(8 * 1024 * 1024) } });
+    const req = http.request({
+      host: '127.0.0.1',
+      port,
+      path: '/api/v1/analysis/preview',
+      method: 'POST',
+      headers: { 'content-type': 'multipart/form-data; boundary=b', 'content-length': String(8 * 1024 * 1024) },
+    });
     const timer = setTimeout(() => {
       req.destroy();
       resolve('no answer');
@@ -82,7 +96,11 @@ describe('slow and oversized strangers', () => {
   });
 
   it('cuts off a dripped body at the request timeout', async () => {
-    const r = await drip('POST /api/v1/auth/sign-in HTTP/1.1\r\nHost: 127.0.0.1\r\nContent-Type: application/json\r\nContent-Length: 500000\r\n\r\n', 150, 9000);
+    const r = await drip(
+      'POST /api/v1/auth/sign-in HTTP/1.1\r\nHost: 127.0.0.1\r\nContent-Type: application/json\r\nContent-Length: 500000\r\n\r\n',
+      150,
+      9000,
+    );
     expect(r.closedAfterMs).not.toBeNull();
     expect(r.closedAfterMs!).toBeLessThan(6000);
   });

@@ -14,7 +14,11 @@ const M4 = '02EB6AFFFE00E104';
 let ids: Record<string, { profileId: string; monitorId: string }>;
 const start = new Date('2026-12-01T08:00:00.000Z');
 const segments = async (identifier: string) =>
-  Number((await e.query<{ n: number }>('SELECT COUNT(*) AS n FROM waveform_segment s JOIN monitor m ON m.id = s.monitor_id WHERE m.identifier = ?', [identifier]))[0]!.n);
+  Number(
+    (
+      await e.query<{ n: number }>('SELECT COUNT(*) AS n FROM waveform_segment s JOIN monitor m ON m.id = s.monitor_id WHERE m.identifier = ?', [identifier])
+    )[0]!.n,
+  );
 
 beforeAll(async () => {
   // Nothing allowed by configuration: plain MLLP only from sources registered on a monitor or profile.
@@ -52,7 +56,11 @@ describe('MLLP over TLS with client certificates', () => {
 
   it('files a message whose certificate is registered on the monitor, storing the sender', async () => {
     const [a, b] = e.certs.clients;
-    const reg = await e.integrator.post(`/monitors/${ids[M1]!.monitorId}/edge-credentials`, { kind: 'certificate-fingerprint', value: a!.fingerprint.match(/../g)!.join(':'), note: 'adapter A' });
+    const reg = await e.integrator.post(`/monitors/${ids[M1]!.monitorId}/edge-credentials`, {
+      kind: 'certificate-fingerprint',
+      value: a!.fingerprint.match(/../g)!.join(':'),
+      note: 'adapter A',
+    });
     expect(reg.status).toBe(201);
     expect(reg.body.value).toBe(a!.fingerprint);
     expect((await e.integrator.post(`/profiles/${ids[M2]!.profileId}/edge-credentials`, { kind: 'certificate-subject', value: b!.subject })).status).toBe(201);
@@ -83,7 +91,9 @@ describe('MLLP over TLS with client certificates', () => {
     expect(own).toMatchObject({ code: 'AA', controlId: 'tls-own-1' });
     expect(await segments(M1)).toBe(2);
     expect(await segments(M2)).toBe(2);
-    const kept = await e.query<{ outcome: string; stranger: number; size_bytes: number; raw: Buffer; monitor_id: string | null }>("SELECT outcome, stranger, size_bytes, raw, monitor_id FROM inbound_message WHERE reason LIKE '%not registered for monitor%' ORDER BY id");
+    const kept = await e.query<{ outcome: string; stranger: number; size_bytes: number; raw: Buffer; monitor_id: string | null }>(
+      "SELECT outcome, stranger, size_bytes, raw, monitor_id FROM inbound_message WHERE reason LIKE '%not registered for monitor%' ORDER BY id",
+    );
     expect(kept).toHaveLength(2);
     for (const k of kept) {
       expect(k).toMatchObject({ outcome: 'rejected', stranger: 1, monitor_id: null });

@@ -47,7 +47,10 @@ function bigOru(rows: number): string {
     `OBR|1|||182777000^monitoring of patient^SCT|||${t}`,
     `OBX|1||69965^MDC_DEV_MON_PHYSIO_MULTI_PARAM_MDS^MDC|1.0.0.0|||||||X|||||||${M}^^${M}^EUI-64`,
   ];
-  for (let i = 0; i < rows; i++) segs.push(`OBX|${i + 2}|NM|147842^MDC_ECG_HEART_RATE^MDC|1.1.${Math.floor(i / 1000) + 1}.${(i % 1000) + 1}|${60 + (i % 40)}|264864^MDC_DIM_BEAT_PER_MIN^MDC|||||R|||${t}`);
+  for (let i = 0; i < rows; i++)
+    segs.push(
+      `OBX|${i + 2}|NM|147842^MDC_ECG_HEART_RATE^MDC|1.1.${Math.floor(i / 1000) + 1}.${(i % 1000) + 1}|${60 + (i % 40)}|264864^MDC_DIM_BEAT_PER_MIN^MDC|||||R|||${t}`,
+    );
   return segs.join('\r') + '\r';
 }
 
@@ -73,7 +76,7 @@ describe('a 64k-OBX message', () => {
 });
 
 describe('connections', () => {
-  it('closes a source\'s connection beyond its limit at once (counted)', async () => {
+  it("closes a source's connection beyond its limit at once (counted)", async () => {
     const peers = await Promise.all(Array.from({ length: 600 }, () => Peer.plain(e.gw.mllpPort!)));
     const extra = await Peer.plain(e.gw.mllpPort!);
     const closedAt = await extra.closed(5_000);

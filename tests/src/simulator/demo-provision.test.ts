@@ -8,7 +8,17 @@ import { mkdtemp, rm, writeFile } from 'node:fs/promises';
 import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { createIngestClient, DEMO_MONITORS, MonitorFeed, BedStream, SCENARIOS, provisionDemoMonitors, provisionMonitors, loadMonitorId, demoIntegrator } from '@ebbgate/simulator';
+import {
+  createIngestClient,
+  DEMO_MONITORS,
+  MonitorFeed,
+  BedStream,
+  SCENARIOS,
+  provisionDemoMonitors,
+  provisionMonitors,
+  loadMonitorId,
+  demoIntegrator,
+} from '@ebbgate/simulator';
 import { repoRoot } from '@ebbgate/gateway/config/load';
 import { startTestGateway, type TestGateway } from '@ebbgate/gateway/test/support/harness';
 import { freePort } from './gateway-client';
@@ -20,7 +30,12 @@ let mllpPort: number;
 beforeAll(async () => {
   mllpPort = await freePort();
   gw = await startTestGateway(
-    { ehr: { fhirBaseUrl: 'http://127.0.0.1:9/fhir', tokenUrl: 'http://127.0.0.1:9/oauth/token' }, delivery: { alerts: { enabled: false } }, mail: { smtpPort: 9 }, mllp: { enabled: true, host: '127.0.0.1', port: mllpPort } },
+    {
+      ehr: { fhirBaseUrl: 'http://127.0.0.1:9/fhir', tokenUrl: 'http://127.0.0.1:9/oauth/token' },
+      delivery: { alerts: { enabled: false } },
+      mail: { smtpPort: 9 },
+      mllp: { enabled: true, host: '127.0.0.1', port: mllpPort },
+    },
     { services: true },
   );
   dir = await mkdtemp(path.join(os.tmpdir(), 'ebbgate-e2e-provision-'));
@@ -40,7 +55,11 @@ describe('demo provisioning', () => {
     expect(again.map((m) => m.apiKey)).not.toEqual(first.map((m) => m.apiKey)); // fresh keys each start
 
     const integrator = await gw.signIn('integrator');
-    const monitors = (await integrator.get('/api/v1/monitors?pageSize=500')).body.items as { identifier: string; bedId: string | null; profileId: string | null }[];
+    const monitors = (await integrator.get('/api/v1/monitors?pageSize=500')).body.items as {
+      identifier: string;
+      bedId: string | null;
+      profileId: string | null;
+    }[];
     const beds = (await integrator.get('/api/v1/beds?pageSize=500')).body.items as { id: string; locationIdentifier: string }[];
     for (const d of DEMO_MONITORS) {
       const m = monitors.find((x) => x.identifier === d.identifier)!;
@@ -53,8 +72,20 @@ describe('demo provisioning', () => {
     // The returned key is the monitor's: one real batch is accepted (202).
     const m = again[0];
     const statuses: number[] = [];
-    const client = await createIngestClient({ gatewayUrl: gw.url, apiKeys: { [m.identifier]: m.apiKey }, spoolDir: path.join(dir, 'spool'), onEvent: (e) => e.kind === 'accepted' && statuses.push(e.status) });
-    const feed = new MonitorFeed({ identifier: m.identifier, scenario: SCENARIOS['fluid-responsive'], source: new BedStream({ scenario: SCENARIOS['fluid-responsive'], seed: 3 }), transport: 'http', batchSeconds: 5, startTime: new Date(Date.now() - 10_000) });
+    const client = await createIngestClient({
+      gatewayUrl: gw.url,
+      apiKeys: { [m.identifier]: m.apiKey },
+      spoolDir: path.join(dir, 'spool'),
+      onEvent: (e) => e.kind === 'accepted' && statuses.push(e.status),
+    });
+    const feed = new MonitorFeed({
+      identifier: m.identifier,
+      scenario: SCENARIOS['fluid-responsive'],
+      source: new BedStream({ scenario: SCENARIOS['fluid-responsive'], seed: 3 }),
+      transport: 'http',
+      batchSeconds: 5,
+      startTime: new Date(Date.now() - 10_000),
+    });
     for (const b of feed.due(Date.now())) await client.send(b);
     await client.drain(20_000);
     await client.close();
@@ -95,7 +126,22 @@ describe('npm run simulate', () => {
   }, 60_000);
 
   it('over MLLP: the same monitors as ORU^R01 messages, every one acknowledged', async () => {
-    const out = await simulate(['--transport', 'mllp', '--mllp-port', String(mllpPort), '--monitors', '4', '--connections', '2', '--interval', '1', '--duration', '6', '--spool', path.join(dir, 'cli-spool-mllp')]);
+    const out = await simulate([
+      '--transport',
+      'mllp',
+      '--mllp-port',
+      String(mllpPort),
+      '--monitors',
+      '4',
+      '--connections',
+      '2',
+      '--interval',
+      '1',
+      '--duration',
+      '6',
+      '--spool',
+      path.join(dir, 'cli-spool-mllp'),
+    ]);
     expect(out.code, out.text).toBe(0);
     expect(out.text).toMatch(/4 monitors, 1-s batches over mllp/);
     const done = /done: (\d+) accepted \(\d+ repeats\), (\d+) refused/.exec(out.text);

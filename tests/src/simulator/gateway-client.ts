@@ -41,7 +41,11 @@ export interface StoredAssessment {
  */
 export type ApiGet = (path: string) => Promise<{ status: number; body: any }>; // eslint-disable-line @typescript-eslint/no-explicit-any
 
-export async function assessmentsOf(gw: Pick<TestGateway, 'ctx'>, reviewer: SignedInClient | ApiGet, monitorRowId: string): Promise<{ items: StoredAssessment[]; via: 'api' | 'table' }> {
+export async function assessmentsOf(
+  gw: Pick<TestGateway, 'ctx'>,
+  reviewer: SignedInClient | ApiGet,
+  monitorRowId: string,
+): Promise<{ items: StoredAssessment[]; via: 'api' | 'table' }> {
   const get: ApiGet = typeof reviewer === 'function' ? reviewer : async (p) => reviewer.get(p);
   const list = await get(`/api/v1/assessments?monitor=${monitorRowId}&pageSize=200`);
   if (list.status === 200) {
@@ -57,7 +61,13 @@ export async function assessmentsOf(gw: Pick<TestGateway, 'ctx'>, reviewer: Sign
     [monitorRowId],
   );
   return {
-    items: rows.map((r) => ({ id: r.id, monitorId: r.monitor_id, windowStart: new Date(r.window_start).toISOString(), verdict: r.verdict, result: JSON.parse(r.result) as AnalysisResult })),
+    items: rows.map((r) => ({
+      id: r.id,
+      monitorId: r.monitor_id,
+      windowStart: new Date(r.window_start).toISOString(),
+      verdict: r.verdict,
+      result: JSON.parse(r.result) as AnalysisResult,
+    })),
     via: 'table',
   };
 }

@@ -4,10 +4,28 @@ import type { TidalVolumeChallengeResult } from '@/lib/analysis';
 import { ChallengePanel, LineChecks, MechanicsPanel } from './line-checks';
 
 const base: TidalVolumeChallengeResult = {
-  engineVersion: '2.0.0', baselinePpv: 8.2, challengePpv: 12.6, deltaPpv: 4.4, threshold: 3.5, thresholdSource: 'Myatra et al., Crit Care Med 2017 (from memory)',
-  verdict: 'positive', reasons: [], reasonTexts: [], baselineTidalVolumeMl: 390, challengeTidalVolumeMl: 520, baselineMlPerKg: 6, challengeMlPerKg: 8,
-  stepAtSeconds: 60, challengeHeldSeconds: 62, baselineVerdict: 'valid', challengeVerdict: 'valid', baselinePressureSwingCmH2O: 11, challengePressureSwingCmH2O: 15,
-  baselineFlags: [], challengeFlags: [], cautions: ['Decision support only.'],
+  engineVersion: '2.0.0',
+  baselinePpv: 8.2,
+  challengePpv: 12.6,
+  deltaPpv: 4.4,
+  threshold: 3.5,
+  thresholdSource: 'Myatra et al., Crit Care Med 2017 (from memory)',
+  verdict: 'positive',
+  reasons: [],
+  reasonTexts: [],
+  baselineTidalVolumeMl: 390,
+  challengeTidalVolumeMl: 520,
+  baselineMlPerKg: 6,
+  challengeMlPerKg: 8,
+  stepAtSeconds: 60,
+  challengeHeldSeconds: 62,
+  baselineVerdict: 'valid',
+  challengeVerdict: 'valid',
+  baselinePressureSwingCmH2O: 11,
+  challengePressureSwingCmH2O: 15,
+  baselineFlags: [],
+  challengeFlags: [],
+  cautions: ['Decision support only.'],
 };
 
 describe('tidal volume challenge panel', () => {
@@ -23,7 +41,18 @@ describe('tidal volume challenge panel', () => {
   });
 
   it('says why a challenge cannot be judged instead of a verdict', () => {
-    render(<ChallengePanel challenge={{ ...base, verdict: 'cannot-be-judged', challengePpv: null, deltaPpv: null, reasons: ['step-too-short'], reasonTexts: ['The higher volume was held 30 s, under the minute the method needs.'] }} />);
+    render(
+      <ChallengePanel
+        challenge={{
+          ...base,
+          verdict: 'cannot-be-judged',
+          challengePpv: null,
+          deltaPpv: null,
+          reasons: ['step-too-short'],
+          reasonTexts: ['The higher volume was held 30 s, under the minute the method needs.'],
+        }}
+      />,
+    );
     expect(screen.getByTestId('challenge-verdict').textContent).toBe('Cannot be judged');
     expect(within(screen.getByRole('list', { name: 'Reasons the challenge cannot be judged' })).getByText(/held 30 s/)).toBeTruthy();
     expect(screen.queryByText(/ΔPPV/)).toBeNull();
@@ -32,10 +61,36 @@ describe('tidal volume challenge panel', () => {
 
 describe('line checks and mechanics', () => {
   it('shows fn, ζ and the Gardner region in words; compliance and driving pressure with the plateau source', () => {
-    render(<>
-      <LineChecks flushTests={[{ releaseTime: 4.2, naturalFrequencyHz: 18.5, dampingRatio: 0.42, amplitudeRatio: 0.23, oscillations: 3, region: 'optimal', regionText: 'in the optimal region' }]} dampingEstimate="adequate" />
-      <MechanicsPanel mechanics={{ peepCmH2O: 5, peakCmH2O: 24, plateauCmH2O: 19, plateauSource: 'estimated-from-peak', drivingPressureCmH2O: 14, complianceMlPerCmH2O: 32.1, complianceSource: 'airway-pressure', pressureSwingCmH2O: 19 }} />
-    </>);
+    render(
+      <>
+        <LineChecks
+          flushTests={[
+            {
+              releaseTime: 4.2,
+              naturalFrequencyHz: 18.5,
+              dampingRatio: 0.42,
+              amplitudeRatio: 0.23,
+              oscillations: 3,
+              region: 'optimal',
+              regionText: 'in the optimal region',
+            },
+          ]}
+          dampingEstimate="adequate"
+        />
+        <MechanicsPanel
+          mechanics={{
+            peepCmH2O: 5,
+            peakCmH2O: 24,
+            plateauCmH2O: 19,
+            plateauSource: 'estimated-from-peak',
+            drivingPressureCmH2O: 14,
+            complianceMlPerCmH2O: 32.1,
+            complianceSource: 'airway-pressure',
+            pressureSwingCmH2O: 19,
+          }}
+        />
+      </>,
+    );
     const body = document.body.textContent!;
     expect(body).toContain('18.5 Hz');
     expect(body).toContain('0.42');

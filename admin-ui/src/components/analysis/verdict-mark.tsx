@@ -23,8 +23,12 @@ export function VerdictValue({ value, verdict, unit = '%', digits = 1 }: { value
   if (value === null) return <span className="text-muted">—</span>;
   const notValid = verdict === 'not-valid';
   return (
-    <span className={`num ${notValid ? 'text-notvalid line-through decoration-notvalid/70' : ''}`} title={notValid ? 'Not valid: do not act on this value; see the flags' : undefined}>
-      {formatNumber(value, digits)}{unit && <span className="text-xs text-muted"> {unit}</span>}
+    <span
+      className={`num ${notValid ? 'text-notvalid line-through decoration-notvalid/70' : ''}`}
+      title={notValid ? 'Not valid: do not act on this value; see the flags' : undefined}
+    >
+      {formatNumber(value, digits)}
+      {unit && <span className="text-xs text-muted"> {unit}</span>}
       {notValid && <span className="sr-only"> (not valid)</span>}
     </span>
   );
@@ -34,7 +38,11 @@ export function VerdictLegend() {
   return (
     <ul className="flex flex-wrap gap-3 text-xs text-muted" aria-label="Verdict marks">
       {(['valid', 'questionable', 'not-valid'] as const).map((v) => (
-        <li key={v} className="inline-flex items-center gap-1"><VerdictShape verdict={v} />{VERDICT_TEXT[v]}{v === 'not-valid' && ' (value struck through)'}</li>
+        <li key={v} className="inline-flex items-center gap-1">
+          <VerdictShape verdict={v} />
+          {VERDICT_TEXT[v]}
+          {v === 'not-valid' && ' (value struck through)'}
+        </li>
       ))}
     </ul>
   );

@@ -29,7 +29,9 @@ export const VERDICT_GLYPH: Record<Verdict, string> = { valid: '●', questionab
 export function VerdictBadge({ verdict }: { verdict: Verdict }) {
   return (
     <Badge tone={verdict}>
-      <span aria-hidden data-shape={verdict}>{VERDICT_GLYPH[verdict]}</span>
+      <span aria-hidden data-shape={verdict}>
+        {VERDICT_GLYPH[verdict]}
+      </span>
       {VERDICT_TEXT[verdict]}
     </Badge>
   );
@@ -39,12 +41,41 @@ export function VerdictBadge({ verdict }: { verdict: Verdict }) {
  * Destination health in the API's own words (overview and deliveries use the same states), and
  * the other status words used by deliveries, inbound messages, monitors and users.
  */
-export const DESTINATION_STATE_TEXT: Record<string, string> = { up: 'up', paused: 'paused', 'circuit-open': 'circuit open', down: 'down', misconfigured: 'misconfigured' };
+export const DESTINATION_STATE_TEXT: Record<string, string> = {
+  up: 'up',
+  paused: 'paused',
+  'circuit-open': 'circuit open',
+  down: 'down',
+  misconfigured: 'misconfigured',
+};
 const statusTone: Record<string, Tone> = {
-  delivered: 'good', accepted: 'good', reprocessed: 'good', enabled: 'good', active: 'good', running: 'good', up: 'good',
-  pending: 'info', 'waiting-context': 'info', duplicate: 'neutral', paused: 'warn', quarantined: 'warn',
-  failed: 'bad', rejected: 'bad', discarded: 'neutral', disabled: 'neutral', locked: 'bad', down: 'bad', 'entered-in-error': 'bad', 'circuit-open': 'bad', misconfigured: 'bad', withheld: 'neutral',
-  sending: 'good', stale: 'warn', 'no-patient': 'info', quarantining: 'warn', 'no-monitor': 'neutral',
+  delivered: 'good',
+  accepted: 'good',
+  reprocessed: 'good',
+  enabled: 'good',
+  active: 'good',
+  running: 'good',
+  up: 'good',
+  pending: 'info',
+  'waiting-context': 'info',
+  duplicate: 'neutral',
+  paused: 'warn',
+  quarantined: 'warn',
+  failed: 'bad',
+  rejected: 'bad',
+  discarded: 'neutral',
+  disabled: 'neutral',
+  locked: 'bad',
+  down: 'bad',
+  'entered-in-error': 'bad',
+  'circuit-open': 'bad',
+  misconfigured: 'bad',
+  withheld: 'neutral',
+  sending: 'good',
+  stale: 'warn',
+  'no-patient': 'info',
+  quarantining: 'warn',
+  'no-monitor': 'neutral',
 };
 
 export function StatusBadge({ status }: { status: string }) {

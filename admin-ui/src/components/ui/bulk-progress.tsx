@@ -12,7 +12,9 @@ export function BulkProgress({ title, items, label }: { title: string; items: It
       <div className="mb-1 flex items-center gap-3">
         <strong>{title}</strong>
         <progress className="h-2 w-40 accent-ink-700" max={items.length} value={finished} aria-label={`${finished} of ${items.length} finished`} />
-        <span className="num text-xs text-muted">{finished}/{items.length} · {items.filter((i) => i.status === 'done').length} done · {items.filter((i) => i.status === 'failed').length} failed</span>
+        <span className="num text-xs text-muted">
+          {finished}/{items.length} · {items.filter((i) => i.status === 'done').length} done · {items.filter((i) => i.status === 'failed').length} failed
+        </span>
       </div>
       <ul className="max-h-40 overflow-auto text-xs">
         {items.map((i) => (

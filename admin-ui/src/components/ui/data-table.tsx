@@ -38,7 +38,24 @@ const PAGE_SIZES = [25, 50, 100];
  * and row selection: each is a request or the caller's state, never client-side slicing).
  */
 export function DataTable<T>(props: DataTableProps<T>) {
-  const { caption, columns, rows, total, rowId, params, onParamsChange, loading, fetching, error, onRetry, emptyTitle, emptyHint, selected, onSelectedChange, onRowClick } = props;
+  const {
+    caption,
+    columns,
+    rows,
+    total,
+    rowId,
+    params,
+    onParamsChange,
+    loading,
+    fetching,
+    error,
+    onRetry,
+    emptyTitle,
+    emptyHint,
+    selected,
+    onSelectedChange,
+    onRowClick,
+  } = props;
   const selectable = !!onSelectedChange;
   const pageIds = rows?.map(rowId) ?? [];
   const allOnPage = selectable && pageIds.length > 0 && pageIds.every((id) => selected?.has(id));
@@ -109,14 +126,22 @@ export function DataTable<T>(props: DataTableProps<T>) {
                 const dir = h.column.getIsSorted();
                 const sorted = Boolean(dir);
                 return (
-                  <th key={h.id} scope="col" className={`whitespace-nowrap px-2 py-1.5 ${c.className ?? ''}`}
-                    aria-sort={sorted ? (dir === 'asc' ? 'ascending' : 'descending') : undefined}>
+                  <th
+                    key={h.id}
+                    scope="col"
+                    className={`whitespace-nowrap px-2 py-1.5 ${c.className ?? ''}`}
+                    aria-sort={sorted ? (dir === 'asc' ? 'ascending' : 'descending') : undefined}
+                  >
                     {c.sortField ? (
                       <button type="button" className="inline-flex items-center gap-1 hover:text-ink-950" onClick={() => toggleSort(c.sortField!)}>
                         {flexRender(h.column.columnDef.header, h.getContext())}
-                        <span aria-hidden className={sorted ? 'text-ink-700' : 'text-ink-300'}>{sorted ? (params.order === 'asc' ? '▲' : '▼') : '↕'}</span>
+                        <span aria-hidden className={sorted ? 'text-ink-700' : 'text-ink-300'}>
+                          {sorted ? (params.order === 'asc' ? '▲' : '▼') : '↕'}
+                        </span>
                       </button>
-                    ) : c.header}
+                    ) : (
+                      c.header
+                    )}
                   </th>
                 );
               })}
@@ -127,15 +152,34 @@ export function DataTable<T>(props: DataTableProps<T>) {
               const row = r.original;
               const id = r.id;
               return (
-                <tr key={id} className={`border-t border-line/70 hover:bg-sand-100/50 ${onRowClick ? 'cursor-pointer' : ''} ${selected?.has(id) ? 'bg-sand-100/70' : ''}`}
-                  onClick={onRowClick ? (e) => { if (!(e.target as HTMLElement).closest('a,button,input,label')) onRowClick(row); } : undefined}>
+                <tr
+                  key={id}
+                  className={`border-t border-line/70 hover:bg-sand-100/50 ${onRowClick ? 'cursor-pointer' : ''} ${selected?.has(id) ? 'bg-sand-100/70' : ''}`}
+                  onClick={
+                    onRowClick
+                      ? (e) => {
+                          if (!(e.target as HTMLElement).closest('a,button,input,label')) onRowClick(row);
+                        }
+                      : undefined
+                  }
+                >
                   {selectable && (
                     <td className="px-2 py-1">
-                      <input type="checkbox" aria-label={`Select ${id}`} className="accent-ink-700" checked={r.getIsSelected()} onChange={() => toggleOne(id)} />
+                      <input
+                        type="checkbox"
+                        aria-label={`Select ${id}`}
+                        className="accent-ink-700"
+                        checked={r.getIsSelected()}
+                        onChange={() => toggleOne(id)}
+                      />
                     </td>
                   )}
                   {/* Cells render through this render's columns (by id): the table model keeps column defs between renders, and a cell must not close over an earlier render's state. */}
-                  {r.getVisibleCells().map((cell) => <td key={cell.id} className={`px-2 py-1 align-top ${(cell.column.columnDef.meta as Column<T>).className ?? ''}`}>{(columns.find((c) => c.key === cell.column.id) ?? (cell.column.columnDef.meta as Column<T>)).render(r.original)}</td>)}
+                  {r.getVisibleCells().map((cell) => (
+                    <td key={cell.id} className={`px-2 py-1 align-top ${(cell.column.columnDef.meta as Column<T>).className ?? ''}`}>
+                      {(columns.find((c) => c.key === cell.column.id) ?? (cell.column.columnDef.meta as Column<T>)).render(r.original)}
+                    </td>
+                  ))}
                 </tr>
               );
             })}
@@ -152,17 +196,39 @@ export function DataTable<T>(props: DataTableProps<T>) {
           {fetching && !loading ? ' · refreshing…' : ''}
         </span>
         <div className="flex items-center gap-2">
-          <label className="flex items-center gap-1">Rows
-            <select className="rounded border border-line bg-white px-1 py-0.5" value={params.pageSize}
-              onChange={(e) => onParamsChange({ ...params, pageSize: Number(e.target.value), page: 1 })}>
-              {PAGE_SIZES.map((n) => <option key={n} value={n}>{n}</option>)}
+          <label className="flex items-center gap-1">
+            Rows
+            <select
+              className="rounded border border-line bg-white px-1 py-0.5"
+              value={params.pageSize}
+              onChange={(e) => onParamsChange({ ...params, pageSize: Number(e.target.value), page: 1 })}
+            >
+              {PAGE_SIZES.map((n) => (
+                <option key={n} value={n}>
+                  {n}
+                </option>
+              ))}
             </select>
           </label>
-          <button type="button" className="rounded border border-line bg-white px-2 py-0.5 disabled:opacity-40" disabled={params.page <= 1}
-            onClick={() => onParamsChange({ ...params, page: params.page - 1 })}>‹ Previous</button>
-          <span className="num">Page {params.page} of {pages}</span>
-          <button type="button" className="rounded border border-line bg-white px-2 py-0.5 disabled:opacity-40" disabled={params.page >= pages}
-            onClick={() => onParamsChange({ ...params, page: params.page + 1 })}>Next ›</button>
+          <button
+            type="button"
+            className="rounded border border-line bg-white px-2 py-0.5 disabled:opacity-40"
+            disabled={params.page <= 1}
+            onClick={() => onParamsChange({ ...params, page: params.page - 1 })}
+          >
+            ‹ Previous
+          </button>
+          <span className="num">
+            Page {params.page} of {pages}
+          </span>
+          <button
+            type="button"
+            className="rounded border border-line bg-white px-2 py-0.5 disabled:opacity-40"
+            disabled={params.page >= pages}
+            onClick={() => onParamsChange({ ...params, page: params.page + 1 })}
+          >
+            Next ›
+          </button>
         </div>
       </div>
     </div>

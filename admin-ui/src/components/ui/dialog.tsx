@@ -24,28 +24,49 @@ export function Dialog({ open, title, onClose, children, footer, wide }: DialogP
     const first = el?.querySelector<HTMLElement>('input,select,textarea,button:not([data-close])');
     (first ?? el)?.focus();
     const onKey = (e: KeyboardEvent) => {
-      if (e.key === 'Escape') { e.stopPropagation(); onClose(); }
+      if (e.key === 'Escape') {
+        e.stopPropagation();
+        onClose();
+      }
       if (e.key === 'Tab' && el) {
         const items = Array.from(el.querySelectorAll<HTMLElement>('a[href],button:not([disabled]),input:not([disabled]),select,textarea,[tabindex="0"]'));
         if (items.length === 0) return;
         const firstItem = items[0]!;
         const lastItem = items[items.length - 1]!;
-        if (e.shiftKey && document.activeElement === firstItem) { e.preventDefault(); lastItem.focus(); }
-        else if (!e.shiftKey && document.activeElement === lastItem) { e.preventDefault(); firstItem.focus(); }
+        if (e.shiftKey && document.activeElement === firstItem) {
+          e.preventDefault();
+          lastItem.focus();
+        } else if (!e.shiftKey && document.activeElement === lastItem) {
+          e.preventDefault();
+          firstItem.focus();
+        }
       }
     };
     document.addEventListener('keydown', onKey);
-    return () => { document.removeEventListener('keydown', onKey); previous?.focus?.(); };
+    return () => {
+      document.removeEventListener('keydown', onKey);
+      previous?.focus?.();
+    };
   }, [open, onClose]);
 
   if (!open) return null;
   return createPortal(
     <div className="fixed inset-0 z-40 flex items-start justify-center overflow-y-auto bg-ink-950/40 p-6 pt-[8vh]">
-      <div ref={ref} role="dialog" aria-modal="true" aria-labelledby={titleId} tabIndex={-1}
-        className={`w-full rounded-md border border-line bg-white shadow-xl ${wide ? 'max-w-3xl' : 'max-w-lg'}`}>
+      <div
+        ref={ref}
+        role="dialog"
+        aria-modal="true"
+        aria-labelledby={titleId}
+        tabIndex={-1}
+        className={`w-full rounded-md border border-line bg-white shadow-xl ${wide ? 'max-w-3xl' : 'max-w-lg'}`}
+      >
         <div className="flex items-center justify-between border-b border-line px-4 py-2.5">
-          <h2 id={titleId} className="text-base font-semibold">{title}</h2>
-          <button data-close type="button" onClick={onClose} className="rounded px-1.5 text-lg leading-none text-muted hover:bg-ink-50" aria-label="Close">×</button>
+          <h2 id={titleId} className="text-base font-semibold">
+            {title}
+          </h2>
+          <button data-close type="button" onClick={onClose} className="rounded px-1.5 text-lg leading-none text-muted hover:bg-ink-50" aria-label="Close">
+            ×
+          </button>
         </div>
         <div className="px-4 py-3">{children}</div>
         {footer && <div className="flex justify-end gap-2 border-t border-line bg-paper/60 px-4 py-2.5">{footer}</div>}
@@ -73,7 +94,12 @@ interface ConfirmProps {
 export function ConfirmDialog({ open, title, message, confirmLabel, danger, reasonLabel, busy, error, onConfirm, onClose }: ConfirmProps) {
   const [reason, setReason] = useState('');
   const [touched, setTouched] = useState(false);
-  useEffect(() => { if (open) { setReason(''); setTouched(false); } }, [open]);
+  useEffect(() => {
+    if (open) {
+      setReason('');
+      setTouched(false);
+    }
+  }, [open]);
   const reasonError = reasonLabel && touched && reason.trim().length < 3 ? 'Give a reason (at least 3 characters)' : undefined;
   const submit = () => {
     setTouched(true);
@@ -81,18 +107,38 @@ export function ConfirmDialog({ open, title, message, confirmLabel, danger, reas
     onConfirm(reason.trim());
   };
   return (
-    <Dialog open={open} title={title} onClose={onClose}
-      footer={<>
-        <Button onClick={onClose} disabled={busy}>Cancel</Button>
-        <Button variant={danger ? 'danger' : 'primary'} onClick={submit} busy={busy}>{confirmLabel}</Button>
-      </>}>
+    <Dialog
+      open={open}
+      title={title}
+      onClose={onClose}
+      footer={
+        <>
+          <Button onClick={onClose} disabled={busy}>
+            Cancel
+          </Button>
+          <Button variant={danger ? 'danger' : 'primary'} onClick={submit} busy={busy}>
+            {confirmLabel}
+          </Button>
+        </>
+      }
+    >
       <div className="flex flex-col gap-3 text-sm">
         <div>{message}</div>
         {reasonLabel && (
-          <TextAreaField label={reasonLabel} rows={3} value={reason} error={reasonError}
-            onChange={(e) => setReason(e.target.value)} onBlur={() => setTouched(true)} />
+          <TextAreaField
+            label={reasonLabel}
+            rows={3}
+            value={reason}
+            error={reasonError}
+            onChange={(e) => setReason(e.target.value)}
+            onBlur={() => setTouched(true)}
+          />
         )}
-        {error && <p role="alert" className="rounded border border-error/30 bg-error-bg px-2 py-1 text-error">{error}</p>}
+        {error && (
+          <p role="alert" className="rounded border border-error/30 bg-error-bg px-2 py-1 text-error">
+            {error}
+          </p>
+        )}
       </div>
     </Dialog>
   );

@@ -17,10 +17,20 @@ interface FieldShellProps {
 export function FieldShell({ id, label, error, hint, children, className = '' }: FieldShellProps) {
   return (
     <div className={`flex flex-col gap-0.5 ${className}`}>
-      <label htmlFor={id} className="text-xs font-medium text-ink-800">{label}</label>
+      <label htmlFor={id} className="text-xs font-medium text-ink-800">
+        {label}
+      </label>
       {children}
-      {hint && !error && <p id={`${id}-hint`} className="text-xs text-muted">{hint}</p>}
-      {error && <p id={`${id}-error`} role="alert" className="text-xs text-error">{error}</p>}
+      {hint && !error && (
+        <p id={`${id}-hint`} className="text-xs text-muted">
+          {hint}
+        </p>
+      )}
+      {error && (
+        <p id={`${id}-error`} role="alert" className="text-xs text-error">
+          {error}
+        </p>
+      )}
     </div>
   );
 }
@@ -31,12 +41,22 @@ function describedBy(id: string, error?: string, hint?: ReactNode) {
 
 type TextFieldProps = InputHTMLAttributes<HTMLInputElement> & { label: string; error?: string; hint?: ReactNode; wrapClassName?: string };
 
-export const TextField = forwardRef<HTMLInputElement, TextFieldProps>(function TextField({ label, error, hint, id, wrapClassName, className = '', ...rest }, ref) {
+export const TextField = forwardRef<HTMLInputElement, TextFieldProps>(function TextField(
+  { label, error, hint, id, wrapClassName, className = '', ...rest },
+  ref,
+) {
   const auto = useId();
   const fid = id ?? auto;
   return (
     <FieldShell id={fid} label={label} error={error} hint={hint} className={wrapClassName}>
-      <input ref={ref} id={fid} aria-invalid={error ? true : undefined} aria-describedby={describedBy(fid, error, hint)} className={`${control} ${className}`} {...rest} />
+      <input
+        ref={ref}
+        id={fid}
+        aria-invalid={error ? true : undefined}
+        aria-describedby={describedBy(fid, error, hint)}
+        className={`${control} ${className}`}
+        {...rest}
+      />
     </FieldShell>
   );
 });
@@ -50,14 +70,28 @@ type SelectFieldProps = SelectHTMLAttributes<HTMLSelectElement> & {
   wrapClassName?: string;
 };
 
-export const SelectField = forwardRef<HTMLSelectElement, SelectFieldProps>(function SelectField({ label, error, hint, id, options, placeholder, wrapClassName, className = '', ...rest }, ref) {
+export const SelectField = forwardRef<HTMLSelectElement, SelectFieldProps>(function SelectField(
+  { label, error, hint, id, options, placeholder, wrapClassName, className = '', ...rest },
+  ref,
+) {
   const auto = useId();
   const fid = id ?? auto;
   return (
     <FieldShell id={fid} label={label} error={error} hint={hint} className={wrapClassName}>
-      <select ref={ref} id={fid} aria-invalid={error ? true : undefined} aria-describedby={describedBy(fid, error, hint)} className={`${control} ${className}`} {...rest}>
+      <select
+        ref={ref}
+        id={fid}
+        aria-invalid={error ? true : undefined}
+        aria-describedby={describedBy(fid, error, hint)}
+        className={`${control} ${className}`}
+        {...rest}
+      >
         {placeholder !== undefined && <option value="">{placeholder}</option>}
-        {options.map((o) => <option key={o.value} value={o.value}>{o.label}</option>)}
+        {options.map((o) => (
+          <option key={o.value} value={o.value}>
+            {o.label}
+          </option>
+        ))}
       </select>
     </FieldShell>
   );
@@ -65,18 +99,34 @@ export const SelectField = forwardRef<HTMLSelectElement, SelectFieldProps>(funct
 
 type TextAreaFieldProps = TextareaHTMLAttributes<HTMLTextAreaElement> & { label: string; error?: string; hint?: ReactNode; wrapClassName?: string };
 
-export const TextAreaField = forwardRef<HTMLTextAreaElement, TextAreaFieldProps>(function TextAreaField({ label, error, hint, id, wrapClassName, className = '', ...rest }, ref) {
+export const TextAreaField = forwardRef<HTMLTextAreaElement, TextAreaFieldProps>(function TextAreaField(
+  { label, error, hint, id, wrapClassName, className = '', ...rest },
+  ref,
+) {
   const auto = useId();
   const fid = id ?? auto;
   return (
     <FieldShell id={fid} label={label} error={error} hint={hint} className={wrapClassName}>
-      <textarea ref={ref} id={fid} aria-invalid={error ? true : undefined} aria-describedby={describedBy(fid, error, hint)} className={`${control} ${className}`} {...rest} />
+      <textarea
+        ref={ref}
+        id={fid}
+        aria-invalid={error ? true : undefined}
+        aria-describedby={describedBy(fid, error, hint)}
+        className={`${control} ${className}`}
+        {...rest}
+      />
     </FieldShell>
   );
 });
 
 /** A group of checkboxes for a multi-valued field (roles, transports). */
-export function CheckboxGroup<T extends string>({ legend, options, value, onChange, error }: {
+export function CheckboxGroup<T extends string>({
+  legend,
+  options,
+  value,
+  onChange,
+  error,
+}: {
   legend: string;
   options: readonly { value: T; label: string }[];
   value: readonly T[];
@@ -100,7 +150,11 @@ export function CheckboxGroup<T extends string>({ legend, options, value, onChan
           </label>
         ))}
       </div>
-      {error && <p id={`${id}-error`} role="alert" className="text-xs text-error">{error}</p>}
+      {error && (
+        <p id={`${id}-error`} role="alert" className="text-xs text-error">
+          {error}
+        </p>
+      )}
     </fieldset>
   );
 }

@@ -31,7 +31,11 @@ export function FilterBar({ children, onClear }: { children: ReactNode; onClear?
   return (
     <div role="search" className="mb-2 flex flex-wrap items-end gap-2 rounded-md border border-line bg-white px-2 py-2">
       {children}
-      {onClear && <button type="button" className="ml-auto self-end px-2 py-1 text-xs text-ink-700 underline" onClick={onClear}>Clear filters</button>}
+      {onClear && (
+        <button type="button" className="ml-auto self-end px-2 py-1 text-xs text-ink-700 underline" onClick={onClear}>
+          Clear filters
+        </button>
+      )}
     </div>
   );
 }

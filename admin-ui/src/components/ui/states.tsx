@@ -26,8 +26,14 @@ export function EmptyState({ title, children }: { title: string; children?: Reac
 export function ErrorState({ error, onRetry }: { error: unknown; onRetry?: () => void }) {
   return (
     <div role="alert" className="m-3 flex items-start gap-3 rounded border border-error/30 bg-error-bg px-3 py-2 text-sm text-error">
-      <span className="flex-1"><strong className="font-semibold">Could not load.</strong> {errorMessage(error)}</span>
-      {onRetry && <Button size="sm" onClick={onRetry}>Try again</Button>}
+      <span className="flex-1">
+        <strong className="font-semibold">Could not load.</strong> {errorMessage(error)}
+      </span>
+      {onRetry && (
+        <Button size="sm" onClick={onRetry}>
+          Try again
+        </Button>
+      )}
     </div>
   );
 }

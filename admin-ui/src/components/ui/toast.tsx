@@ -1,7 +1,11 @@
 import { createContext, useCallback, useContext, useMemo, useRef, useState, type ReactNode } from 'react';
 
 type ToastTone = 'success' | 'error' | 'info';
-interface Toast { id: number; tone: ToastTone; text: string }
+interface Toast {
+  id: number;
+  tone: ToastTone;
+  text: string;
+}
 
 const ToastContext = createContext<((tone: ToastTone, text: string) => void) | null>(null);
 
@@ -25,9 +29,20 @@ export function ToastProvider({ children }: { children: ReactNode }) {
       {children}
       <div aria-live="polite" className="fixed bottom-4 right-4 z-50 flex w-96 flex-col gap-2">
         {toasts.map((t) => (
-          <div key={t.id} role={t.tone === 'error' ? 'alert' : 'status'} className={`flex items-start gap-2 rounded border px-3 py-2 text-sm shadow ${toneClass[t.tone]}`}>
+          <div
+            key={t.id}
+            role={t.tone === 'error' ? 'alert' : 'status'}
+            className={`flex items-start gap-2 rounded border px-3 py-2 text-sm shadow ${toneClass[t.tone]}`}
+          >
             <span className="flex-1">{t.text}</span>
-            <button type="button" aria-label="Dismiss" className="leading-none opacity-70 hover:opacity-100" onClick={() => setToasts((x) => x.filter((y) => y.id !== t.id))}>×</button>
+            <button
+              type="button"
+              aria-label="Dismiss"
+              className="leading-none opacity-70 hover:opacity-100"
+              onClick={() => setToasts((x) => x.filter((y) => y.id !== t.id))}
+            >
+              ×
+            </button>
           </div>
         ))}
       </div>
@@ -38,9 +53,12 @@ export function ToastProvider({ children }: { children: ReactNode }) {
 export function useToast() {
   const push = useContext(ToastContext);
   if (!push) throw new Error('useToast outside ToastProvider');
-  return useMemo(() => ({
-    success: (text: string) => push('success', text),
-    error: (text: string) => push('error', text),
-    info: (text: string) => push('info', text),
-  }), [push]);
+  return useMemo(
+    () => ({
+      success: (text: string) => push('success', text),
+      error: (text: string) => push('error', text),
+      info: (text: string) => push('info', text),
+    }),
+    [push],
+  );
 }

@@ -49,7 +49,10 @@ export interface CycleMark {
 }
 
 function laneRange(lo: number, hi: number, lane: [number, number]): [number, number] {
-  if (!(hi > lo)) { hi = lo + 1; lo -= 1; }
+  if (!(hi > lo)) {
+    hi = lo + 1;
+    lo -= 1;
+  }
   const perFraction = (hi - lo) / (lane[1] - lane[0]);
   return [lo - lane[0] * perFraction, hi + (1 - lane[1]) * perFraction];
 }
@@ -57,7 +60,11 @@ function laneRange(lo: number, hi: number, lane: [number, number]): [number, num
 function finiteExtent(values: (number | null)[]): [number, number] {
   let lo = Infinity;
   let hi = -Infinity;
-  for (const v of values) if (v !== null && Number.isFinite(v)) { if (v < lo) lo = v; if (v > hi) hi = v; }
+  for (const v of values)
+    if (v !== null && Number.isFinite(v)) {
+      if (v < lo) lo = v;
+      if (v > hi) hi = v;
+    }
   return Number.isFinite(lo) ? [lo, hi] : [0, 1];
 }
 
@@ -81,7 +88,15 @@ export function buildPlotData(waveform: Waveform): PlotData {
     const ch = waveform.channels.find((c) => roles.includes(c.role));
     if (!ch) return;
     const extent = finiteExtent(ch.samples);
-    traces.push({ key, role: ch.role, unit: ch.unit, sampleRate: ch.sampleRate, samples: ch.samples, range: laneRange(extent[0], extent[1], LANES[key]), extent });
+    traces.push({
+      key,
+      role: ch.role,
+      unit: ch.unit,
+      sampleRate: ch.sampleRate,
+      samples: ch.samples,
+      range: laneRange(extent[0], extent[1], LANES[key]),
+      extent,
+    });
   };
   pick('abp', ['abp']);
   pick('pleth', ['pleth']);
@@ -92,7 +107,9 @@ export function buildPlotData(waveform: Waveform): PlotData {
   const durationSeconds = Math.max(...traces.map((t) => t.samples.length / t.sampleRate));
   const n = Math.floor(durationSeconds * finest.sampleRate);
   const x = Array.from({ length: n }, (_, i) => i / finest.sampleRate);
-  const ys = traces.map((t) => (t === finest || t.sampleRate === finest.sampleRate ? x.map((_, i) => t.samples[i] ?? null) : x.map((tt) => sampleAt(t.samples, t.sampleRate, tt))));
+  const ys = traces.map((t) =>
+    t === finest || t.sampleRate === finest.sampleRate ? x.map((_, i) => t.samples[i] ?? null) : x.map((tt) => sampleAt(t.samples, t.sampleRate, tt)),
+  );
   return { x, traces, ys, durationSeconds };
 }
 

@@ -11,7 +11,10 @@ export function visibleSeconds(widthPx: number, speedMmPerS: number): number {
   return widthPx / (speedMmPerS * PX_PER_MM);
 }
 
-export interface View { min: number; max: number }
+export interface View {
+  min: number;
+  max: number;
+}
 
 /** Keeps a view inside [0, duration] while keeping its span (unless the span is longer). */
 export function clampView(min: number, span: number, duration: number): View {

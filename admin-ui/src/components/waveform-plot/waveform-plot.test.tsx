@@ -9,7 +9,10 @@ const marks = (kind: string) => document.querySelectorAll(`[data-mark="${kind}"]
 
 describe('waveform plot marks', () => {
   it('draws one mark per beat and per cycle of the AnalysisResult at the default 6.25 mm/s', () => {
-    const { waveform, analysis } = fixtureWindow({ rejected: { 3: ['sbp-jump'], 10: ['ectopic', 'period-jump'] }, unusableCycles: { 0: ['partial'], 7: ['partial', 'too-few-beats'] } });
+    const { waveform, analysis } = fixtureWindow({
+      rejected: { 3: ['sbp-jump'], 10: ['ectopic', 'period-jump'] },
+      unusableCycles: { 0: ['partial'], 7: ['partial', 'too-few-beats'] },
+    });
     render(<WaveformPlot waveform={waveform} analysis={analysis} width={960} />);
     const beats = analysis.beats.abp!.beats;
     // 30 s fits in 860 px at 6.25 mm/s (860 / (6.25 × 3.78) ≈ 36 s), so every mark is in view.
@@ -45,7 +48,11 @@ describe('waveform plot marks', () => {
     const inView = analysis.beats.abp!.beats.filter((b) => b.peakTime <= span).length;
     expect(marks('beat-accepted')).toHaveLength(inView);
     await userEvent.click(screen.getByRole('button', { name: 'Pan forward' }));
-    const first = Number(marks('beat-accepted')[0]!.getAttribute('aria-label')!.match(/beat (\d+)/)![1]);
+    const first = Number(
+      marks('beat-accepted')[0]!
+        .getAttribute('aria-label')!
+        .match(/beat (\d+)/)![1],
+    );
     expect(first).toBeGreaterThan(0);
   });
 });

@@ -63,7 +63,10 @@ export function WaveformPlot({ waveform, analysis, width: fixedWidth }: Waveform
 
   // A new sweep speed, zoom or width keeps the left edge and changes the span.
   useEffect(() => {
-    setView((v) => { const next = clampView(v.min, span, data.durationSeconds); return sameView(v, next) ? v : next; });
+    setView((v) => {
+      const next = clampView(v.min, span, data.durationSeconds);
+      return sameView(v, next) ? v : next;
+    });
   }, [span, data.durationSeconds]);
 
   useEffect(() => {
@@ -76,39 +79,91 @@ export function WaveformPlot({ waveform, analysis, width: fixedWidth }: Waveform
       series.push({ label: LABELS[t.key], scale: t.key, stroke: COLORS[t.key], width: t.key === 'resp' ? 1 : 1.25, points: { show: false }, spanGaps: false });
     });
     const axes: uPlot.Axis[] = [
-      { stroke: '#5b6468', grid: { stroke: '#e6e3da', width: 1 }, ticks: { stroke: '#dcdad2' }, values: (_u, splits) => splits.map((s) => `${s.toFixed(s % 1 ? 1 : 0)} s`) },
+      {
+        stroke: '#5b6468',
+        grid: { stroke: '#e6e3da', width: 1 },
+        ticks: { stroke: '#dcdad2' },
+        values: (_u, splits) => splits.map((s) => `${s.toFixed(s % 1 ? 1 : 0)} s`),
+      },
     ];
     const abp = data.traces.find((t) => t.key === 'abp');
     const pleth = data.traces.find((t) => t.key === 'pleth');
     // Ticks only within a trace's own lane, so the shared plot area does not read as one scale.
-    const inLane = (t: (typeof data.traces)[number]) => (_u: uPlot, splits: number[]) => splits.map((v) => (v >= t.extent[0] - 1e-9 && v <= t.extent[1] + 1e-9 ? v : null));
-    if (abp) axes.push({ scale: 'abp', stroke: COLORS.abp, grid: { show: false }, size: 50, label: displayUnit(abp.unit), labelSize: 16, filter: inLane(abp), space: 24 });
-    if (pleth) axes.push({ scale: 'pleth', side: 1, stroke: COLORS.pleth, grid: { show: false }, size: 50, label: pleth.unit === '1' || pleth.unit === 'au' ? 'a.u.' : displayUnit(pleth.unit), labelSize: 16, filter: inLane(pleth), space: 18 });
+    const inLane = (t: (typeof data.traces)[number]) => (_u: uPlot, splits: number[]) =>
+      splits.map((v) => (v >= t.extent[0] - 1e-9 && v <= t.extent[1] + 1e-9 ? v : null));
+    if (abp)
+      axes.push({
+        scale: 'abp',
+        stroke: COLORS.abp,
+        grid: { show: false },
+        size: 50,
+        label: displayUnit(abp.unit),
+        labelSize: 16,
+        filter: inLane(abp),
+        space: 24,
+      });
+    if (pleth)
+      axes.push({
+        scale: 'pleth',
+        side: 1,
+        stroke: COLORS.pleth,
+        grid: { show: false },
+        size: 50,
+        label: pleth.unit === '1' || pleth.unit === 'au' ? 'a.u.' : displayUnit(pleth.unit),
+        labelSize: 16,
+        filter: inLane(pleth),
+        space: 18,
+      });
     const opts: uPlot.Options = {
-      width, height: HEIGHT, scales, series, axes,
+      width,
+      height: HEIGHT,
+      scales,
+      series,
+      axes,
       legend: { show: false },
       cursor: { drag: { x: true, y: false, setScale: true }, points: { show: false } },
       hooks: {
-        setScale: [(u, key) => {
-          if (key !== 'x' || u.scales.x!.min == null || u.scales.x!.max == null) return;
-          const next = { min: u.scales.x!.min, max: u.scales.x!.max };
-          setView((v) => (sameView(v, next) ? v : next));
-        }],
-        setSize: [(u) => setArea({ left: u.bbox.left / uPlot.pxRatio, top: u.bbox.top / uPlot.pxRatio, width: u.bbox.width / uPlot.pxRatio, height: u.bbox.height / uPlot.pxRatio })],
+        setScale: [
+          (u, key) => {
+            if (key !== 'x' || u.scales.x!.min == null || u.scales.x!.max == null) return;
+            const next = { min: u.scales.x!.min, max: u.scales.x!.max };
+            setView((v) => (sameView(v, next) ? v : next));
+          },
+        ],
+        setSize: [
+          (u) =>
+            setArea({
+              left: u.bbox.left / uPlot.pxRatio,
+              top: u.bbox.top / uPlot.pxRatio,
+              width: u.bbox.width / uPlot.pxRatio,
+              height: u.bbox.height / uPlot.pxRatio,
+            }),
+        ],
       },
     };
     let plot: uPlot | null = null;
-    if (!canvasAvailable()) { setOverEl(null); return; }
+    if (!canvasAvailable()) {
+      setOverEl(null);
+      return;
+    }
     try {
       plot = new uPlot(opts, [data.x, ...data.ys] as uPlot.AlignedData, el);
-      setArea({ left: plot.bbox.left / uPlot.pxRatio, top: plot.bbox.top / uPlot.pxRatio, width: plot.bbox.width / uPlot.pxRatio, height: plot.bbox.height / uPlot.pxRatio });
+      setArea({
+        left: plot.bbox.left / uPlot.pxRatio,
+        top: plot.bbox.top / uPlot.pxRatio,
+        width: plot.bbox.width / uPlot.pxRatio,
+        height: plot.bbox.height / uPlot.pxRatio,
+      });
       setOverEl(plot.over);
     } catch {
       plot = null;
       setOverEl(null);
     }
     plotRef.current = plot;
-    return () => { plot?.destroy(); plotRef.current = null; };
+    return () => {
+      plot?.destroy();
+      plotRef.current = null;
+    };
   }, [data, width]);
 
   useEffect(() => {
@@ -120,8 +175,14 @@ export function WaveformPlot({ waveform, analysis, width: fixedWidth }: Waveform
 
   const pan = (fraction: number) => setView((v) => clampView(v.min + (v.max - v.min) * fraction, v.max - v.min, data.durationSeconds));
   const onKey = (e: KeyboardEvent) => {
-    if (e.key === 'ArrowRight') { e.preventDefault(); pan(0.25); }
-    if (e.key === 'ArrowLeft') { e.preventDefault(); pan(-0.25); }
+    if (e.key === 'ArrowRight') {
+      e.preventDefault();
+      pan(0.25);
+    }
+    if (e.key === 'ArrowLeft') {
+      e.preventDefault();
+      pan(-0.25);
+    }
     if (e.key === '+' || e.key === '=') setZoom((z) => Math.min(16, z * 2));
     if (e.key === '-') setZoom((z) => Math.max(0.25, z / 2));
   };
@@ -134,23 +195,73 @@ export function WaveformPlot({ waveform, analysis, width: fixedWidth }: Waveform
 
   return (
     <figure className="flex flex-col gap-1.5" aria-label="Waveform with beat and cycle marks">
-      <PlotToolbar speed={speed} speeds={SWEEP_SPEEDS} onSpeed={(s) => { setSpeed(s); setZoom(1); }} zoom={zoom} onZoom={setZoom}
-        view={view} duration={data.durationSeconds} onPan={pan}
+      <PlotToolbar
+        speed={speed}
+        speeds={SWEEP_SPEEDS}
+        onSpeed={(s) => {
+          setSpeed(s);
+          setZoom(1);
+        }}
+        zoom={zoom}
+        onZoom={setZoom}
+        view={view}
+        duration={data.durationSeconds}
+        onPan={pan}
         onPosition={(min) => setView((v) => clampView(min, v.max - v.min, data.durationSeconds))}
-        onFit={() => { setZoom(visibleSeconds(area.width, speed) / Math.max(1, data.durationSeconds)); setView({ min: 0, max: data.durationSeconds }); }} />
-      <div ref={host} tabIndex={0} onKeyDown={onKey} aria-label="Waveform plot. Left and right arrows pan, plus and minus zoom. Drag across to zoom in."
-        className="relative rounded border border-line bg-white" style={{ height: HEIGHT }}>
-        {overEl ? createPortal(overlay, overEl) : <div className="absolute" style={{ left: area.left, top: area.top, width: area.width, height: area.height }}>{overlay}</div>}
+        onFit={() => {
+          setZoom(visibleSeconds(area.width, speed) / Math.max(1, data.durationSeconds));
+          setView({ min: 0, max: data.durationSeconds });
+        }}
+      />
+      <div
+        ref={host}
+        tabIndex={0}
+        onKeyDown={onKey}
+        aria-label="Waveform plot. Left and right arrows pan, plus and minus zoom. Drag across to zoom in."
+        className="relative rounded border border-line bg-white"
+        style={{ height: HEIGHT }}
+      >
+        {overEl ? (
+          createPortal(overlay, overEl)
+        ) : (
+          <div className="absolute" style={{ left: area.left, top: area.top, width: area.width, height: area.height }}>
+            {overlay}
+          </div>
+        )}
       </div>
       <figcaption className="flex flex-wrap items-center gap-x-4 gap-y-1 text-xs text-muted">
         {data.traces.map((t) => (
-          <span key={t.key} className="inline-flex items-center gap-1"><svg width="18" height="6" aria-hidden><line x1="0" y1="3" x2="18" y2="3" stroke={COLORS[t.key]} strokeWidth="2" /></svg>{LABELS[t.key]} ({t.role}, {displayUnit(t.unit) || 'a.u.'}, {t.sampleRate} Hz)</span>
+          <span key={t.key} className="inline-flex items-center gap-1">
+            <svg width="18" height="6" aria-hidden>
+              <line x1="0" y1="3" x2="18" y2="3" stroke={COLORS[t.key]} strokeWidth="2" />
+            </svg>
+            {LABELS[t.key]} ({t.role}, {displayUnit(t.unit) || 'a.u.'}, {t.sampleRate} Hz)
+          </span>
         ))}
-        <span className="inline-flex items-center gap-1"><span aria-hidden className="text-ink-900">▼</span>accepted beat</span>
-        <span className="inline-flex items-center gap-1"><span aria-hidden className="font-bold text-error">✕</span>rejected beat (hover or focus for reasons)</span>
-        <span className="inline-flex items-center gap-1"><span aria-hidden className="inline-block h-3 w-4 border border-valid/40 bg-valid-bg" />usable cycle</span>
-        <span className="inline-flex items-center gap-1"><span aria-hidden className="inline-block h-3 w-4 border border-error/40 bg-error-bg" />unusable cycle</span>
-        <span className="num">{beats.filter((b) => b.accepted).length} accepted · {beats.filter((b) => !b.accepted).length} rejected beats · {cycles.filter((c) => c.usable).length}/{cycles.length} usable cycles</span>
+        <span className="inline-flex items-center gap-1">
+          <span aria-hidden className="text-ink-900">
+            ▼
+          </span>
+          accepted beat
+        </span>
+        <span className="inline-flex items-center gap-1">
+          <span aria-hidden className="font-bold text-error">
+            ✕
+          </span>
+          rejected beat (hover or focus for reasons)
+        </span>
+        <span className="inline-flex items-center gap-1">
+          <span aria-hidden className="inline-block h-3 w-4 border border-valid/40 bg-valid-bg" />
+          usable cycle
+        </span>
+        <span className="inline-flex items-center gap-1">
+          <span aria-hidden className="inline-block h-3 w-4 border border-error/40 bg-error-bg" />
+          unusable cycle
+        </span>
+        <span className="num">
+          {beats.filter((b) => b.accepted).length} accepted · {beats.filter((b) => !b.accepted).length} rejected beats · {cycles.filter((c) => c.usable).length}
+          /{cycles.length} usable cycles
+        </span>
       </figcaption>
     </figure>
   );

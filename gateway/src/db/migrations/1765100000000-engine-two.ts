@@ -19,7 +19,9 @@ export class EngineTwo1765100000000 implements MigrationInterface {
   }
 
   async down(q: QueryRunner): Promise<void> {
-    await q.query('ALTER TABLE assessment DROP INDEX ix_assessment_challenge_step, DROP COLUMN challenge_step_at, DROP COLUMN challenge_verdict, DROP COLUMN challenge_delta_ppv, DROP COLUMN tidal_volume_challenge');
+    await q.query(
+      'ALTER TABLE assessment DROP INDEX ix_assessment_challenge_step, DROP COLUMN challenge_step_at, DROP COLUMN challenge_verdict, DROP COLUMN challenge_delta_ppv, DROP COLUMN tidal_volume_challenge',
+    );
     await q.query('ALTER TABLE bed DROP COLUMN checklist');
   }
 }

@@ -39,6 +39,8 @@ export class DeliveryReliability1765400000000 implements MigrationInterface {
   async down(q: QueryRunner): Promise<void> {
     await q.query('DROP TABLE alert_mail');
     await q.query('ALTER TABLE assessment DROP COLUMN patient_name, DROP COLUMN patient_mrn');
-    await q.query('ALTER TABLE delivery DROP COLUMN claim_id, DROP COLUMN claimed_at, DROP COLUMN encounter_ref, DROP COLUMN patient_name, DROP COLUMN patient_mrn');
+    await q.query(
+      'ALTER TABLE delivery DROP COLUMN claim_id, DROP COLUMN claimed_at, DROP COLUMN encounter_ref, DROP COLUMN patient_name, DROP COLUMN patient_mrn',
+    );
   }
 }

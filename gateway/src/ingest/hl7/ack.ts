@@ -4,7 +4,6 @@ import type { IngestRefusal } from '../refusal';
 import { DEFAULT_DELIMITERS, escapeHl7, formatHl7Time, parseHl7 } from '@ebbgate/shared/hl7';
 import { readHeader, type Hl7Header } from './pcd01';
 
-
 export type AckCode = 'AA' | 'AE' | 'AR' | 'CA' | 'CE' | 'CR';
 
 /** Best-effort header of a message we could not fully read, so the ACK can still echo MSH-10. */
@@ -86,7 +85,20 @@ export function buildAck(header: Hl7Header | null, code: AckCode, refusal?: Inge
   const version = header?.version || '2.6';
   const e = (s: string) => escapeHl7(s, DEFAULT_DELIMITERS);
   const segs = [
-    ['MSH', '^~\\&', 'EBBGATE', 'EBBGATE', header?.sendingApplication ?? '', header?.sendingFacility ?? '', now, '', 'ACK^R01^ACK', `EBG${processTag}${counter}`, 'P', version].join('|'),
+    [
+      'MSH',
+      '^~\\&',
+      'EBBGATE',
+      'EBBGATE',
+      header?.sendingApplication ?? '',
+      header?.sendingFacility ?? '',
+      now,
+      '',
+      'ACK^R01^ACK',
+      `EBG${processTag}${counter}`,
+      'P',
+      version,
+    ].join('|'),
     ['MSA', code, e(header?.controlId ?? ''), e((refusal ? refusal.reason : (note ?? '')).slice(0, 80))].join('|'),
   ];
   if (refusal) {
@@ -94,7 +106,19 @@ export function buildAck(header: Hl7Header | null, code: AckCode, refusal?: Inge
     for (const err of errors) {
       const c = hl7ErrorCode(refusal, err);
       const words = err ? `${refusal.reason} ${err.path}: ${err.message}` : refusal.reason;
-      segs.push(['ERR', '', errorLocation(err?.path ?? ''), `${c}^${ERROR_TEXT[c] ?? 'Error'}^HL70357`, 'E', '', '', e(words.slice(0, 2000)), e(words.slice(0, 250))].join('|'));
+      segs.push(
+        [
+          'ERR',
+          '',
+          errorLocation(err?.path ?? ''),
+          `${c}^${ERROR_TEXT[c] ?? 'Error'}^HL70357`,
+          'E',
+          '',
+          '',
+          e(words.slice(0, 2000)),
+          e(words.slice(0, 250)),
+        ].join('|'),
+      );
     }
   }
   return segs.join('\r') + '\r';

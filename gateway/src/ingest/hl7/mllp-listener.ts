@@ -145,9 +145,17 @@ export class MllpListener implements BackgroundService {
     const address = plainAddress(socket.remoteAddress);
     if (socket instanceof tls.TLSSocket) {
       const cert = socket.getPeerCertificate();
-      const subject = Object.entries(cert.subject ?? {}).map(([k, v]) => `${k}=${Array.isArray(v) ? v.join('+') : v}`).join(',');
+      const subject = Object.entries(cert.subject ?? {})
+        .map(([k, v]) => `${k}=${Array.isArray(v) ? v.join('+') : v}`)
+        .join(',');
       const cn = cert.subject?.CN;
-      return { kind: 'certificate', fingerprint: (cert.fingerprint256 ?? '').replace(/:/g, '').toUpperCase(), subject, commonName: Array.isArray(cn) ? (cn[0] ?? '') : (cn ?? ''), address };
+      return {
+        kind: 'certificate',
+        fingerprint: (cert.fingerprint256 ?? '').replace(/:/g, '').toUpperCase(),
+        subject,
+        commonName: Array.isArray(cn) ? (cn[0] ?? '') : (cn ?? ''),
+        address,
+      };
     }
     return { kind: 'source', address: address ?? 'unknown' };
   }
@@ -246,23 +254,42 @@ export class MllpListener implements BackgroundService {
       if (rest) {
         const size = rest.length;
         void recordInbound(this.ctx.ds, {
-          transport: 'mllp', receivedAt: new Date(), outcome: 'quarantined', reason: 'The connection closed in the middle of an MLLP frame.',
-          raw: size > HEAD_BYTES ? Buffer.from(rest.subarray(0, HEAD_BYTES)) : rest, sizeBytes: size, sender: senderLabel(sender), sourceAddress: source,
+          transport: 'mllp',
+          receivedAt: new Date(),
+          outcome: 'quarantined',
+          reason: 'The connection closed in the middle of an MLLP frame.',
+          raw: size > HEAD_BYTES ? Buffer.from(rest.subarray(0, HEAD_BYTES)) : rest,
+          sizeBytes: size,
+          sender: senderLabel(sender),
+          sourceAddress: source,
         }).catch((err: unknown) => this.ctx.logger.error({ err: (err as Error).message }, 'could not keep a cut-off MLLP frame'));
       }
     });
   }
 
   private async stray(bytes: Buffer, sender: Sender): Promise<string> {
-    const refusal = new IngestRefusal('invalid', 'Bytes arrived outside an MLLP frame (no 0x0B start block).', [{ path: 'MLLP', message: `${bytes.length} stray bytes` }], 100);
+    const refusal = new IngestRefusal(
+      'invalid',
+      'Bytes arrived outside an MLLP frame (no 0x0B start block).',
+      [{ path: 'MLLP', message: `${bytes.length} stray bytes` }],
+      100,
+    );
     const keep = this.ctx.config.ingest.strangers.keepBytes;
-    await this.keep({ outcome: 'quarantined', reason: refusal.describe(), raw: bytes.length > keep ? Buffer.from(bytes.subarray(0, keep)) : bytes, sizeBytes: bytes.length }, sender);
+    await this.keep(
+      { outcome: 'quarantined', reason: refusal.describe(), raw: bytes.length > keep ? Buffer.from(bytes.subarray(0, keep)) : bytes, sizeBytes: bytes.length },
+      sender,
+    );
     return buildAck(headerOf(bytes), 'AR', refusal);
   }
 
   private async oversize(head: Buffer, size: number, sender: Sender): Promise<string> {
     const limit = this.maxFrameBytes;
-    const refusal = new IngestRefusal('too-large', `The message is over the limit of ${limit} bytes (maxFrameBytes=${limit}).`, [{ path: 'MLLP', message: `at least ${size} bytes` }], 102);
+    const refusal = new IngestRefusal(
+      'too-large',
+      `The message is over the limit of ${limit} bytes (maxFrameBytes=${limit}).`,
+      [{ path: 'MLLP', message: `at least ${size} bytes` }],
+      102,
+    );
     await this.keep({ outcome: 'rejected', reason: refusal.describe() + ' Only the first 64 kB are kept.', raw: head, sizeBytes: size }, sender);
     const header = headerOf(head);
     return buildAck(header, ackCodeFor(refusal, header?.enhancedMode ?? false), refusal);
@@ -295,8 +322,16 @@ export class MllpListener implements BackgroundService {
       // The gateway's own trouble (typically the database is away): not a fault of the message.
       // AR/CR with ERR-3 207 and MSA-2 echoed, so a conforming sender keeps it and sends again.
       this.edge.counters.inc('storage-unavailable');
-      this.ctx.logger.error({ err: (err as Error).name, code: (err as { code?: string }).code }, 'MLLP message could not be stored; answered AR/CR (send again)');
-      const refusal = new IngestRefusal('unavailable', 'The gateway cannot store messages right now (storage unavailable); keep this message and send it again.', [], 207);
+      this.ctx.logger.error(
+        { err: (err as Error).name, code: (err as { code?: string }).code },
+        'MLLP message could not be stored; answered AR/CR (send again)',
+      );
+      const refusal = new IngestRefusal(
+        'unavailable',
+        'The gateway cannot store messages right now (storage unavailable); keep this message and send it again.',
+        [],
+        207,
+      );
       return buildAck(header, ackCodeFor(refusal, enhanced), refusal);
     }
   }

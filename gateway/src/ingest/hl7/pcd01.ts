@@ -89,7 +89,8 @@ export interface Pcd01Limits extends Hl7Limits {
 
 export const PCD01_LIMITS: Pcd01Limits = { maxSegments: 20_000, maxFieldsPerSegment: 64, maxSubIdDepth: 8, maxSamples: 2_000_000 };
 
-const overCap = (reason: string, path: string, limit: string) => new IngestRefusal('too-large', `${reason} (limit ${limit}).`, [{ path, message: `over the limit ${limit}` }], 102);
+const overCap = (reason: string, path: string, limit: string) =>
+  new IngestRefusal('too-large', `${reason} (limit ${limit}).`, [{ path, message: `over the limit ${limit}` }], 102);
 
 /** Decodes an ORU^R01 message; throws IngestRefusal('invalid') naming the segment and field. */
 export function decodePcd01(raw: Buffer, limits: Pcd01Limits = PCD01_LIMITS): Pcd01Decoded {
@@ -136,7 +137,8 @@ function* decodeSteps(raw: Buffer, limits: Pcd01Limits): Generator<void, Pcd01De
   const header = readHeader(msg);
   const d = msg.delimiters;
   if (!header.controlId) throw fail('MSH-10 (message control id) is empty.', 'MSH-10', 'required', 101);
-  if (header.messageType !== 'ORU^R01') throw fail(`Only ORU^R01 is accepted here, not ${header.messageType}.`, 'MSH-9', `unsupported message type ${header.messageType}`, 200);
+  if (header.messageType !== 'ORU^R01')
+    throw fail(`Only ORU^R01 is accepted here, not ${header.messageType}.`, 'MSH-9', `unsupported message type ${header.messageType}`, 200);
 
   let obrTime: Date | null = null;
   // PID-8 administrative sex (HL7 table 0001): F / M; anything else leaves the sex unknown.
@@ -217,16 +219,24 @@ function* decodeSteps(raw: Buffer, limits: Pcd01Limits): Generator<void, Pcd01De
     if (valueType === 'NA') {
       const rateSeg = rateRowUnder.get(subId);
       const rateRow = rateSeg ? { seg: rateSeg } : undefined;
-      if (!rateRow) throw fail(`Waveform ${refId || code} has no sample-rate facet row under sub-ID ${subId}.`, `${where}-4`, `expected an OBX with MDC_ATTR_SAMP_RATE at ${subId}.1`, 101);
+      if (!rateRow)
+        throw fail(
+          `Waveform ${refId || code} has no sample-rate facet row under sub-ID ${subId}.`,
+          `${where}-4`,
+          `expected an OBX with MDC_ATTR_SAMP_RATE at ${subId}.1`,
+          101,
+        );
       const rate = Number(component(rateRow.seg, 5, 1, d));
       const rateUnit = (component(rateRow.seg, 6, 2, d) || component(rateRow.seg, 6, 1, d)).toUpperCase();
-      if (!(rate > 0) || rate > 2000) throw fail('The sample-rate facet is not a positive number.', `OBX[${rateRow.seg.index}]-5`, `"${component(rateRow.seg, 5, 1, d)}"`, 102);
+      if (!(rate > 0) || rate > 2000)
+        throw fail('The sample-rate facet is not a positive number.', `OBX[${rateRow.seg.index}]-5`, `"${component(rateRow.seg, 5, 1, d)}"`, 102);
       if (rateUnit && !PER_SECOND_UNITS.has(rateUnit) && !PER_SECOND_UNITS.has(component(rateRow.seg, 6, 1, d).toUpperCase())) {
         throw fail('The sample-rate facet is not in a per-second unit.', `OBX[${rateRow.seg.index}]-6`, `"${rateUnit}"`, 102);
       }
       const t = inherit(timeBySubId, subId) ?? obrTime;
       if (!t) throw fail(`Waveform ${refId || code} has no time (OBX-14, an ancestor's OBX-14, or OBR-7).`, `${where}-14`, 'required', 101);
-      if (startTime && t.getTime() !== startTime.getTime()) throw fail('Waveforms in one message must start at the same time.', `${where}-14`, `${t.toISOString()} vs ${startTime.toISOString()}`, 102);
+      if (startTime && t.getTime() !== startTime.getTime())
+        throw fail('Waveforms in one message must start at the same time.', `${where}-14`, `${t.toISOString()} vs ${startTime.toISOString()}`, 102);
       startTime = t;
       const parts = (seg.fields[5] ?? '').split(d.component, limits.maxSamples - samplesSoFar + 1);
       samplesSoFar += parts.length;
@@ -237,17 +247,27 @@ function* decodeSteps(raw: Buffer, limits: Pcd01Limits): Generator<void, Pcd01De
         if (p === '') values[i] = null;
         else {
           const v = Number(p);
-          if (!Number.isFinite(v)) throw fail(`Sample ${i + 1} of waveform ${refId || code} is not a number.`, `${where}-5.${i + 1}`, `"${p.slice(0, 20)}"`, 102);
+          if (!Number.isFinite(v))
+            throw fail(`Sample ${i + 1} of waveform ${refId || code} is not a number.`, `${where}-5.${i + 1}`, `"${p.slice(0, 20)}"`, 102);
           values[i] = v;
         }
       }
-      if (!values.length || (values.length === 1 && values[0] === null)) throw fail(`Waveform ${refId || code} carries no samples.`, `${where}-5`, 'empty', 101);
-      channels.push({ code: code || refId, altCodes: refId && code ? [refId] : [], sampleRate: rate, unit: component(seg, 6, 1, d) || undefined, samples: { kind: 'array', values }, path: where });
+      if (!values.length || (values.length === 1 && values[0] === null))
+        throw fail(`Waveform ${refId || code} carries no samples.`, `${where}-5`, 'empty', 101);
+      channels.push({
+        code: code || refId,
+        altCodes: refId && code ? [refId] : [],
+        sampleRate: rate,
+        unit: component(seg, 6, 1, d) || undefined,
+        samples: { kind: 'array', values },
+        path: where,
+      });
     } else if (valueType === 'NM' || valueType === 'ST' || valueType === 'CWE' || valueType === 'CE') {
       if (prefixes(subId).some((p) => waveformSubIds.has(p))) continue; // a facet of a waveform
       const rawValue = component(seg, 5, 1, d);
       const value = valueType === 'NM' ? Number(rawValue) : rawValue;
-      if (valueType === 'NM' && rawValue !== '' && !Number.isFinite(value)) throw fail(`OBX ${refId || code} is NM but not a number.`, `${where}-5`, `"${rawValue.slice(0, 20)}"`, 102);
+      if (valueType === 'NM' && rawValue !== '' && !Number.isFinite(value))
+        throw fail(`OBX ${refId || code} is NM but not a number.`, `${where}-5`, `"${rawValue.slice(0, 20)}"`, 102);
       numerics.push({ code, refId, subId, value, unit: component(seg, 6, 2, d) || component(seg, 6, 1, d) });
       const key = CONTEXT_NUMERICS[refId.toUpperCase()] ?? CONTEXT_NUMERICS[code.toUpperCase()];
       if (key === 'vasopressorRunning' && typeof value === 'number') context.vasopressorRunning = value === 1;
@@ -258,7 +278,13 @@ function* decodeSteps(raw: Buffer, limits: Pcd01Limits): Generator<void, Pcd01De
   }
   return {
     header,
-    batch: { monitorIdentifier, batchId: header.controlId, startTime: startTime ?? obrTime ?? new Date(0), channels, context: Object.keys(context).length ? context : undefined },
+    batch: {
+      monitorIdentifier,
+      batchId: header.controlId,
+      startTime: startTime ?? obrTime ?? new Date(0),
+      channels,
+      context: Object.keys(context).length ? context : undefined,
+    },
     numerics,
     warnings,
   };

@@ -52,6 +52,8 @@ export function truthOverUsedCycles(result: AnalysisResult, truth: SyntheticTrut
  * at least `minBeats` beats (HR/RR above 3.6, De Backer et al., Anesthesiology 2009, so 4 beats).
  */
 export function truthLastCleanCycles(truth: SyntheticTruth, key: 'ppv' | 'spv' | 'deltaPop', count = 3, minBeats = 4): number | null {
-  const clean = truth.cycles.filter((c: TruthCycle) => c[key] !== null && c.beatCount >= minBeats && !c.containsEctopic && !c.containsSpontaneousEffort).slice(-count);
+  const clean = truth.cycles
+    .filter((c: TruthCycle) => c[key] !== null && c.beatCount >= minBeats && !c.containsEctopic && !c.containsSpontaneousEffort)
+    .slice(-count);
   return clean.length ? clean.reduce((a, c) => a + (c[key] as number), 0) / clean.length : null;
 }

@@ -14,7 +14,6 @@ export interface Hl7Ack {
   raw: string;
 }
 
-
 /** Parses an ACK; throws when there is no MSA segment (then it is not an acknowledgement). */
 export function parseAck(raw: string): Hl7Ack {
   const segments = raw.split(/\r\n|\r|\n/).filter(Boolean);
@@ -22,7 +21,14 @@ export function parseAck(raw: string): Hl7Ack {
   const fieldSep = msh?.[3] ?? '|';
   const compSep = msh?.[4] ?? '^';
   const fields = (s: string) => s.split(fieldSep);
-  const delimiters = { ...DEFAULT_DELIMITERS, field: fieldSep, component: compSep, repetition: msh?.[5] ?? '~', escape: msh?.[6] ?? '\\', subcomponent: msh?.[7] ?? '&' };
+  const delimiters = {
+    ...DEFAULT_DELIMITERS,
+    field: fieldSep,
+    component: compSep,
+    repetition: msh?.[5] ?? '~',
+    escape: msh?.[6] ?? '\\',
+    subcomponent: msh?.[7] ?? '&',
+  };
   const unescape = (s: string) => unescapeHl7(s, delimiters);
   const msa = segments.find((s) => s.startsWith('MSA'));
   if (!msa) throw new Error('answer has no MSA segment');

@@ -42,10 +42,12 @@ export function oruFromBatch(batch: IngestBatch, opts: Omit<MllpTransportOptions
   const roleOf = (c: IngestChannel) => c.role ?? opts.roleOf?.(c.code) ?? KNOWN_CODES.get(c.code);
   const ctx = batch.context ?? {};
   const numerics: OruNumeric[] = [...(opts.numerics?.(batch) ?? [])];
-  if (ctx.setRespiratoryRate !== undefined) numerics.push({ code: NUMERIC_CODES.setRespiratoryRate, value: ctx.setRespiratoryRate, unit: UNIT_CODES.breathsPerMin });
+  if (ctx.setRespiratoryRate !== undefined)
+    numerics.push({ code: NUMERIC_CODES.setRespiratoryRate, value: ctx.setRespiratoryRate, unit: UNIT_CODES.breathsPerMin });
   if (ctx.tidalVolumeMl !== undefined) numerics.push({ code: NUMERIC_CODES.tidalVolume, value: ctx.tidalVolumeMl, unit: UNIT_CODES.mL });
   if (ctx.patientHeightCm !== undefined) numerics.push({ code: NUMERIC_CODES.patientHeight, value: ctx.patientHeightCm, unit: UNIT_CODES.cm });
-  if (ctx.vasopressorRunning !== undefined) numerics.push({ code: NUMERIC_CODES.vasopressor, value: ctx.vasopressorRunning ? 1 : 0, unit: UNIT_CODES.dimensionless });
+  if (ctx.vasopressorRunning !== undefined)
+    numerics.push({ code: NUMERIC_CODES.vasopressor, value: ctx.vasopressorRunning ? 1 : 0, unit: UNIT_CODES.dimensionless });
   const patient = opts.patient?.(batch.monitorId) ?? (ctx.patientSex ? { mrn: '', sex: ctx.patientSex } : undefined);
   return {
     controlId: batch.batchId,

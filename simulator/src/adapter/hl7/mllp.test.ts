@@ -33,7 +33,9 @@ describe('ACK parsing (HL7 v2 MSA/ERR; table 0357 error codes)', () => {
     expect(a).toMatchObject({ code: 'CA', controlId: 'batch-1', accepted: true, errors: [] });
   });
   it('reads an AE with the ERR reason', () => {
-    const a = parseAck('MSH|^~\\&|GW||SIM||20261201101500||ACK^R01^ACK|9|P|2.6\rMSA|AE|batch-2|unmapped code\rERR|||103^Table value not found^HL70357|E||||OBX-3 code 999999 is not in the monitor profile\r');
+    const a = parseAck(
+      'MSH|^~\\&|GW||SIM||20261201101500||ACK^R01^ACK|9|P|2.6\rMSA|AE|batch-2|unmapped code\rERR|||103^Table value not found^HL70357|E||||OBX-3 code 999999 is not in the monitor profile\r',
+    );
     expect(a.accepted).toBe(false);
     expect(a.errors[0]).toEqual({ code: '103', text: 'OBX-3 code 999999 is not in the monitor profile', severity: 'E' });
   });
@@ -71,7 +73,12 @@ const batch = (k: number): IngestBatch => ({
   batchId: `b-${k}`,
   startTime: new Date(Date.UTC(2026, 11, 1, 10, 0, k * 5)).toISOString(),
   channels: [
-    { code: 'MDC_PRESS_BLD_ART_ABP', sampleRate: 125, unit: 'mmHg', samples: encodeSamplesFloat32(Array.from({ length: 625 }, (_, i) => 90 + 30 * Math.sin(i / 15))) },
+    {
+      code: 'MDC_PRESS_BLD_ART_ABP',
+      sampleRate: 125,
+      unit: 'mmHg',
+      samples: encodeSamplesFloat32(Array.from({ length: 625 }, (_, i) => 90 + 30 * Math.sin(i / 15))),
+    },
     { code: 'MDC_PRESS_AWAY', sampleRate: 125, unit: 'cmH2O', samples: encodeSamplesFloat32(Array.from({ length: 625 }, () => 5)) },
   ],
   context: { setRespiratoryRate: 14, tidalVolumeMl: 500, patientSex: 'male', patientHeightCm: 180 },
@@ -105,7 +112,15 @@ describe('durable sender over MLLP', () => {
   });
 
   it('reports AE as a permanent failure with the ERR reason, and retries after a dropped connection or AR 207', async () => {
-    const rx = await fakeReceiver((id, n) => (n === 1 ? ack('AE', id, '103^Table value not found^HL70357') : n === 2 ? 'drop' : n === 3 ? ack('AR', id, '207^Application internal error^HL70357') : ack('AA', id)));
+    const rx = await fakeReceiver((id, n) =>
+      n === 1
+        ? ack('AE', id, '103^Table value not found^HL70357')
+        : n === 2
+          ? 'drop'
+          : n === 3
+            ? ack('AR', id, '207^Application internal error^HL70357')
+            : ack('AA', id),
+    );
     const spoolDir = await mkdtemp(path.join(os.tmpdir(), 'ebbgate-mllp-'));
     dirs.push(spoolDir);
     const reasons: string[] = [];

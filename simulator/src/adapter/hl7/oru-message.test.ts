@@ -108,12 +108,22 @@ describe('ORU^R01 builder, read back by node-hl7-client (IHE PCD TF-2 PCD-01 rul
   it('ends every segment with CR (HL7 v2 message construction rules)', () => {
     expect(text.endsWith('\r')).toBe(true);
     expect(text.includes('\n')).toBe(false);
-    expect(text.split('\r').filter(Boolean).map((s) => s.slice(0, 3))).toEqual(['MSH', 'PID', 'PV1', 'OBR', ...Array(8).fill('OBX')]);
+    expect(
+      text
+        .split('\r')
+        .filter(Boolean)
+        .map((s) => s.slice(0, 3)),
+    ).toEqual(['MSH', 'PID', 'PV1', 'OBR', ...Array(8).fill('OBX')]);
   });
 
   it('refuses a waveform longer than the OBX-5 limit of 65,536 characters', () => {
     expect(() =>
-      buildOruR01({ controlId: 'x', equipmentId: EUI, startTime: start, waveforms: [{ code: WAVEFORM_CODES.abp, unit: UNIT_CODES.mmHg, sampleRate: 125, samples: new Float64Array(20_000).fill(123.45) }] }),
+      buildOruR01({
+        controlId: 'x',
+        equipmentId: EUI,
+        startTime: start,
+        waveforms: [{ code: WAVEFORM_CODES.abp, unit: UNIT_CODES.mmHg, sampleRate: 125, samples: new Float64Array(20_000).fill(123.45) }],
+      }),
     ).toThrow(/65536/);
   });
 });

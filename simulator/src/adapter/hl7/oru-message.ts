@@ -82,7 +82,8 @@ export function buildOruR01(m: OruMessageInput): string {
   const enhanced = (m.ackMode ?? 'enhanced') === 'enhanced';
   const seg: string[] = [];
   const msh = [
-    'MSH', '^~\\&',
+    'MSH',
+    '^~\\&',
     `${escapeHl7(m.sendingApplication ?? 'EBBGATE_ADAPTER')}^${eq}^EUI-64`,
     escapeHl7(m.sendingFacility ?? ''),
     escapeHl7(m.receivingApplication ?? 'EBBGATE'),
@@ -93,18 +94,21 @@ export function buildOruR01(m: OruMessageInput): string {
     escapeHl7(m.controlId),
     'P',
     '2.6',
-    '', '',
+    '',
+    '',
     enhanced ? 'AL' : '',
     enhanced ? 'NE' : '',
     '',
     'UNICODE UTF-8',
-    '', '',
+    '',
+    '',
     PCD01_PROFILE,
   ];
   seg.push(msh.join('|'));
   if (m.patient) {
     const p = m.patient;
-    const name = p.family || p.given?.length ? `${escapeHl7(p.family ?? '')}^${escapeHl7(p.given?.[0] ?? '')}^${escapeHl7(p.given?.slice(1).join(' ') ?? '')}` : '';
+    const name =
+      p.family || p.given?.length ? `${escapeHl7(p.family ?? '')}^${escapeHl7(p.given?.[0] ?? '')}^${escapeHl7(p.given?.slice(1).join(' ') ?? '')}` : '';
     const sex = p.sex === 'male' ? 'M' : p.sex === 'female' ? 'F' : '';
     const id = p.mrn ? `${escapeHl7(p.mrn)}^^^${escapeHl7(p.assigningAuthority ?? '')}^MR` : '';
     seg.push(['PID', '', '', id, '', name, '', (p.birthDate ?? '').replace(/-/g, ''), sex].join('|'));
@@ -119,7 +123,8 @@ export function buildOruR01(m: OruMessageInput): string {
   obx('', MDS_CODE, '1.0.0.0', '', null, 'X', '', `${eq}^^${eq}^EUI-64`);
   m.waveforms.forEach((w, k) => {
     const value = formatSamples(w.samples, m.decimals ?? 2);
-    if (value.length > OBX5_MAX_LENGTH) throw new RangeError(`waveform ${w.code.text}: OBX-5 would be ${value.length} characters (limit ${OBX5_MAX_LENGTH}); send shorter batches`);
+    if (value.length > OBX5_MAX_LENGTH)
+      throw new RangeError(`waveform ${w.code.text}: OBX-5 would be ${value.length} characters (limit ${OBX5_MAX_LENGTH}); send shorter batches`);
     obx('NA', w.code, `1.1.1.${k + 1}`, value, w.unit, 'R', ts, '');
     obx('NM', SAMPLE_RATE_ATTR, `1.1.1.${k + 1}.1`, String(w.sampleRate), UNIT_CODES.perSecond, 'R', '', '');
   });

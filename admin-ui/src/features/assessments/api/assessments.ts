@@ -12,7 +12,11 @@ export const assessmentKeys = {
 };
 
 /** One index's Observation as sent, and the outbox rows (shared Delivery) that carried it. */
-export interface ObservationSent { index: string; resource: Record<string, unknown> | null; deliveries?: Delivery[] }
+export interface ObservationSent {
+  index: string;
+  resource: Record<string, unknown> | null;
+  deliveries?: Delivery[];
+}
 
 export interface AssessmentDetail {
   assessment: AssessmentSummary & {
@@ -26,15 +30,26 @@ export interface AssessmentDetail {
 }
 
 export function useAssessments(q: Query) {
-  return useQuery({ queryKey: assessmentKeys.list(q), queryFn: ({ signal }) => api.get<Page<AssessmentSummary>>('/assessments', q, signal), placeholderData: keepPreviousData });
+  return useQuery({
+    queryKey: assessmentKeys.list(q),
+    queryFn: ({ signal }) => api.get<Page<AssessmentSummary>>('/assessments', q, signal),
+    placeholderData: keepPreviousData,
+  });
 }
 
 export function useAssessment(id: string) {
-  return useQuery({ queryKey: assessmentKeys.detail(id), queryFn: ({ signal }) => api.get<AssessmentDetail>(`/assessments/${encodeURIComponent(id)}`, undefined, signal) });
+  return useQuery({
+    queryKey: assessmentKeys.detail(id),
+    queryFn: ({ signal }) => api.get<AssessmentDetail>(`/assessments/${encodeURIComponent(id)}`, undefined, signal),
+  });
 }
 
 export function useBedOptions() {
-  return useQuery({ queryKey: assessmentKeys.beds, queryFn: ({ signal }) => api.get<Page<Bed>>('/beds', { page: 1, pageSize: 500, sort: 'name', order: 'asc' }, signal), staleTime: 60_000 });
+  return useQuery({
+    queryKey: assessmentKeys.beds,
+    queryFn: ({ signal }) => api.get<Page<Bed>>('/beds', { page: 1, pageSize: 500, sort: 'name', order: 'asc' }, signal),
+    staleTime: 60_000,
+  });
 }
 
 export function useMarkInError(id: string) {
@@ -47,5 +62,10 @@ export function useMarkInError(id: string) {
 
 /** The monitor behind an assessment, for showing its identifier instead of an internal id. */
 export function useMonitorOf(id: string | undefined) {
-  return useQuery({ queryKey: assessmentKeys.monitor(id ?? ''), queryFn: ({ signal }) => api.get<Monitor>(`/monitors/${encodeURIComponent(id!)}`, undefined, signal), enabled: !!id, staleTime: 60_000 });
+  return useQuery({
+    queryKey: assessmentKeys.monitor(id ?? ''),
+    queryFn: ({ signal }) => api.get<Monitor>(`/monitors/${encodeURIComponent(id!)}`, undefined, signal),
+    enabled: !!id,
+    staleTime: 60_000,
+  });
 }

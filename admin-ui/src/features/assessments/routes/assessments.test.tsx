@@ -11,15 +11,40 @@ import { AssessmentDetailRoute } from './assessment-detail';
 afterEach(() => vi.unstubAllGlobals());
 
 const summary = (i: number) => ({
-  id: `a${i}`, monitorId: 'm1', bedId: 'b1', patientRef: 'HGH-1001', patientName: i === 0 ? 'Maren Quillfeather' : null, patientMrn: i === 0 ? 'HGH-400117' : null, windowStart: '2026-12-01T21:00:00Z', windowEnd: '2026-12-01T21:01:00Z',
-  verdict: i % 2 ? 'not-valid' : 'valid', ppv: 11.8, spv: 8, deltaPop: null, perfusionIndex: null, heartRate: 75, respiratoryRate: 15,
-  flags: ['tidal-volume-unknown'], engineVersion: '1.0.0', deliveryStatus: 'delivered', enteredInError: false, createdAt: '2026-12-01T21:01:01Z',
+  id: `a${i}`,
+  monitorId: 'm1',
+  bedId: 'b1',
+  patientRef: 'HGH-1001',
+  patientName: i === 0 ? 'Maren Quillfeather' : null,
+  patientMrn: i === 0 ? 'HGH-400117' : null,
+  windowStart: '2026-12-01T21:00:00Z',
+  windowEnd: '2026-12-01T21:01:00Z',
+  verdict: i % 2 ? 'not-valid' : 'valid',
+  ppv: 11.8,
+  spv: 8,
+  deltaPop: null,
+  perfusionIndex: null,
+  heartRate: 75,
+  respiratoryRate: 15,
+  flags: ['tidal-volume-unknown'],
+  engineVersion: '1.0.0',
+  deliveryStatus: 'delivered',
+  enteredInError: false,
+  createdAt: '2026-12-01T21:01:01Z',
 });
 
 function gateway(roles: string[], extra?: (c: FakeCall) => { status?: number; body?: unknown } | undefined) {
   return fakeGateway((c) => {
     if (c.url.pathname === '/api/v1/auth/session') return { body: SESSION(roles) };
-    if (c.url.pathname === '/api/v1/beds') return { body: { items: [{ id: 'b1', name: 'Bed 4', unit: 'ICU East', locationIdentifier: 'L4', monitorId: 'm1', createdAt: '', updatedAt: '' }], page: 1, pageSize: 500, total: 1 } };
+    if (c.url.pathname === '/api/v1/beds')
+      return {
+        body: {
+          items: [{ id: 'b1', name: 'Bed 4', unit: 'ICU East', locationIdentifier: 'L4', monitorId: 'm1', createdAt: '', updatedAt: '' }],
+          page: 1,
+          pageSize: 500,
+          total: 1,
+        },
+      };
     if (c.url.pathname === '/api/v1/assessments') return { body: { items: [summary(0), summary(1)], page: 1, pageSize: 25, total: 2 } };
     return extra?.(c);
   });
@@ -47,7 +72,12 @@ describe('assessments list', () => {
 describe('assessments list from a link', () => {
   it('applies the filters in the address, as the overview links them', async () => {
     const gw = gateway(['reviewer']);
-    renderApp(<Routes><Route path="/assessments" element={<AssessmentsRoute />} /></Routes>, { route: '/assessments?verdict=not-valid' });
+    renderApp(
+      <Routes>
+        <Route path="/assessments" element={<AssessmentsRoute />} />
+      </Routes>,
+      { route: '/assessments?verdict=not-valid' },
+    );
     await screen.findAllByText('HGH-1001');
     const q = gw.calls.filter((c) => c.url.pathname === '/api/v1/assessments').at(-1)!.url.searchParams;
     expect(q.get('verdict')).toBe('not-valid');
@@ -60,14 +90,57 @@ describe('assessment detail', () => {
     const { waveform, analysis } = fixtureWindow({ rejected: { 2: ['ectopic'] } });
     return gateway(roles, (c) => {
       if (c.url.pathname === '/api/v1/assessments/a1' && c.method === 'GET') {
-        return { body: { assessment: { ...summary(1), verdict: 'questionable', enteredInErrorAt: null, enteredInErrorBy: null, enteredInErrorReason: null, result: analysis }, waveform,
-          observations: [{ index: 'ppv', resource: { resourceType: 'Observation', status: 'preliminary' }, deliveries: [{ id: 'd1', assessmentId: 'a1', destinationId: 'ehr-fhir', index: 'ppv', kind: 'create', status: 'delivered', identifier: 'a1-ppv', serverId: 'obs-1', patientRef: 'Patient/p1', tries: 1, attemptCount: 1, nextAttemptAt: '2026-12-01T21:01:02Z', lastHttpStatus: 201, lastError: null, discardReason: null, createdAt: '2026-12-01T21:01:01Z', updatedAt: '2026-12-01T21:01:02Z', deliveredAt: '2026-12-01T21:01:02Z' }] }] } };
+        return {
+          body: {
+            assessment: {
+              ...summary(1),
+              verdict: 'questionable',
+              enteredInErrorAt: null,
+              enteredInErrorBy: null,
+              enteredInErrorReason: null,
+              result: analysis,
+            },
+            waveform,
+            observations: [
+              {
+                index: 'ppv',
+                resource: { resourceType: 'Observation', status: 'preliminary' },
+                deliveries: [
+                  {
+                    id: 'd1',
+                    assessmentId: 'a1',
+                    destinationId: 'ehr-fhir',
+                    index: 'ppv',
+                    kind: 'create',
+                    status: 'delivered',
+                    identifier: 'a1-ppv',
+                    serverId: 'obs-1',
+                    patientRef: 'Patient/p1',
+                    tries: 1,
+                    attemptCount: 1,
+                    nextAttemptAt: '2026-12-01T21:01:02Z',
+                    lastHttpStatus: 201,
+                    lastError: null,
+                    discardReason: null,
+                    createdAt: '2026-12-01T21:01:01Z',
+                    updatedAt: '2026-12-01T21:01:02Z',
+                    deliveredAt: '2026-12-01T21:01:02Z',
+                  },
+                ],
+              },
+            ],
+          },
+        };
       }
       if (c.url.pathname === '/api/v1/assessments/a1/mark-in-error') return { body: {} };
       return undefined;
     });
   }
-  const app = <Routes><Route path="/assessments/:id" element={<AssessmentDetailRoute />} /></Routes>;
+  const app = (
+    <Routes>
+      <Route path="/assessments/:id" element={<AssessmentDetailRoute />} />
+    </Routes>
+  );
 
   it('shows plot marks, the FHIR resource, delivery history and cautions', async () => {
     detailGateway(['operator']);

@@ -13,14 +13,27 @@ import { useAssessments, useBedOptions } from '../api/assessments';
 import { FLAG_OPTIONS } from '../components/flag-options';
 
 const INDEX_OPTIONS = [
-  { value: 'ppv', label: 'PPV' }, { value: 'spv', label: 'SPV' }, { value: 'deltaPop', label: 'ΔPOP' },
-  { value: 'perfusionIndex', label: 'Perfusion index' }, { value: 'heartRate', label: 'Heart rate' }, { value: 'respiratoryRate', label: 'Respiratory rate' },
+  { value: 'ppv', label: 'PPV' },
+  { value: 'spv', label: 'SPV' },
+  { value: 'deltaPop', label: 'ΔPOP' },
+  { value: 'perfusionIndex', label: 'Perfusion index' },
+  { value: 'heartRate', label: 'Heart rate' },
+  { value: 'respiratoryRate', label: 'Respiratory rate' },
 ];
-const VERDICT_OPTIONS = [{ value: 'valid', label: 'Valid' }, { value: 'questionable', label: 'Questionable' }, { value: 'not-valid', label: 'Not valid' }];
+const VERDICT_OPTIONS = [
+  { value: 'valid', label: 'Valid' },
+  { value: 'questionable', label: 'Questionable' },
+  { value: 'not-valid', label: 'Not valid' },
+];
 
 function Value({ v, unit, notValid }: { v: number | null; unit: string; notValid: boolean }) {
   if (v === null) return <span className="text-muted">—</span>;
-  return <span className={`num ${notValid ? 'text-notvalid line-through decoration-notvalid/70' : ''}`} title={notValid ? 'Not valid: see the flags' : undefined}>{formatNumber(v)}<span className="ml-0.5 text-xs text-muted">{unit}</span></span>;
+  return (
+    <span className={`num ${notValid ? 'text-notvalid line-through decoration-notvalid/70' : ''}`} title={notValid ? 'Not valid: see the flags' : undefined}>
+      {formatNumber(v)}
+      <span className="ml-0.5 text-xs text-muted">{unit}</span>
+    </span>
+  );
 }
 
 export function AssessmentsRoute() {
@@ -33,41 +46,158 @@ export function AssessmentsRoute() {
   const bedName = useMemo(() => new Map((beds.data?.items ?? []).map((b) => [b.id, `${b.name} · ${b.unit}`])), [beds.data]);
 
   const columns: Column<AssessmentSummary>[] = [
-    { key: 'windowStart', header: 'Window', sortField: 'windowStart', render: (a) => <Link className="num whitespace-nowrap text-ink-700 underline-offset-2 hover:underline" to={`/assessments/${a.id}`}>{formatDateTime(a.windowStart)}</Link> },
-    { key: 'bed', header: 'Bed', render: (a) => (a.bedId ? bedName.get(a.bedId) ?? a.bedId : <span className="text-muted">unassigned</span>) },
-    { key: 'patient', header: 'Patient', sortField: 'patientRef', render: (a) => <PatientLabel name={a.patientName} mrn={a.patientMrn} patientRef={a.patientRef} /> },
+    {
+      key: 'windowStart',
+      header: 'Window',
+      sortField: 'windowStart',
+      render: (a) => (
+        <Link className="num whitespace-nowrap text-ink-700 underline-offset-2 hover:underline" to={`/assessments/${a.id}`}>
+          {formatDateTime(a.windowStart)}
+        </Link>
+      ),
+    },
+    { key: 'bed', header: 'Bed', render: (a) => (a.bedId ? (bedName.get(a.bedId) ?? a.bedId) : <span className="text-muted">unassigned</span>) },
+    {
+      key: 'patient',
+      header: 'Patient',
+      sortField: 'patientRef',
+      render: (a) => <PatientLabel name={a.patientName} mrn={a.patientMrn} patientRef={a.patientRef} />,
+    },
     { key: 'verdict', header: 'Verdict', sortField: 'verdict', render: (a) => <VerdictBadge verdict={a.verdict} /> },
     { key: 'ppv', header: 'PPV', sortField: 'ppv', className: 'text-right', render: (a) => <Value v={a.ppv} unit="%" notValid={a.verdict === 'not-valid'} /> },
-    { key: 'spv', header: 'SPV', sortField: 'spv', className: 'text-right', render: (a) => <Value v={a.spv} unit="mmHg" notValid={a.verdict === 'not-valid'} /> },
-    { key: 'deltaPop', header: 'ΔPOP', sortField: 'deltaPop', className: 'text-right', render: (a) => <Value v={a.deltaPop} unit="%" notValid={a.verdict === 'not-valid'} /> },
+    {
+      key: 'spv',
+      header: 'SPV',
+      sortField: 'spv',
+      className: 'text-right',
+      render: (a) => <Value v={a.spv} unit="mmHg" notValid={a.verdict === 'not-valid'} />,
+    },
+    {
+      key: 'deltaPop',
+      header: 'ΔPOP',
+      sortField: 'deltaPop',
+      className: 'text-right',
+      render: (a) => <Value v={a.deltaPop} unit="%" notValid={a.verdict === 'not-valid'} />,
+    },
     { key: 'pi', header: 'PI', className: 'text-right', render: (a) => <Value v={a.perfusionIndex} unit="%" notValid={a.verdict === 'not-valid'} /> },
     { key: 'hr', header: 'HR', className: 'text-right', render: (a) => <Value v={a.heartRate} unit="/min" notValid={false} /> },
-    { key: 'flags', header: 'Flags', render: (a) => (
-      <span className="flex max-w-64 flex-wrap gap-1">{a.flags.slice(0, 3).map((f) => <Badge key={f} tone="warn">{humanize(f)}</Badge>)}{a.flags.length > 3 && <Badge>+{a.flags.length - 3}</Badge>}</span>
-    ) },
-    { key: 'delivery', header: 'EHR', render: (a) => (a.enteredInError ? <StatusBadge status="entered-in-error" /> : a.deliveryStatus ? <StatusBadge status={a.deliveryStatus} /> : <span className="text-muted">—</span>) },
+    {
+      key: 'flags',
+      header: 'Flags',
+      render: (a) => (
+        <span className="flex max-w-64 flex-wrap gap-1">
+          {a.flags.slice(0, 3).map((f) => (
+            <Badge key={f} tone="warn">
+              {humanize(f)}
+            </Badge>
+          ))}
+          {a.flags.length > 3 && <Badge>+{a.flags.length - 3}</Badge>}
+        </span>
+      ),
+    },
+    {
+      key: 'delivery',
+      header: 'EHR',
+      render: (a) =>
+        a.enteredInError ? (
+          <StatusBadge status="entered-in-error" />
+        ) : a.deliveryStatus ? (
+          <StatusBadge status={a.deliveryStatus} />
+        ) : (
+          <span className="text-muted">—</span>
+        ),
+    },
   ];
 
-  const clear = () => { list.clearFilters(); setFrom(''); setTo(''); };
+  const clear = () => {
+    list.clearFilters();
+    setFrom('');
+    setTo('');
+  };
 
   return (
     <>
       <PageHeader title="Assessments" description="Every analysed window, newest first. Open one to see its waveform, marks and what was sent to the EHR." />
-      <div className="mb-2"><Cautions compact /></div>
+      <div className="mb-2">
+        <Cautions compact />
+      </div>
       <FilterBar onClear={clear}>
-        <SelectField label="Bed" placeholder="any" wrapClassName="w-44" value={list.filters.bed ?? ''} onChange={(e) => list.setFilter('bed', e.target.value)}
-          options={(beds.data?.items ?? []).map((b) => ({ value: b.id, label: `${b.name} · ${b.unit}` }))} />
-        <TextField label="Patient" placeholder="identifier" wrapClassName="w-36" value={list.filters.patient ?? ''} onChange={(e) => list.setFilter('patient', e.target.value)} />
-        <SelectField label="Has index" placeholder="any" wrapClassName="w-36" value={list.filters.index ?? ''} onChange={(e) => list.setFilter('index', e.target.value)} options={INDEX_OPTIONS} />
-        <SelectField label="Verdict" placeholder="any" wrapClassName="w-36" value={list.filters.verdict ?? ''} onChange={(e) => list.setFilter('verdict', e.target.value)} options={VERDICT_OPTIONS} />
-        <SelectField label="Flag" placeholder="any" wrapClassName="w-48" value={list.filters.flag ?? ''} onChange={(e) => list.setFilter('flag', e.target.value)} options={FLAG_OPTIONS} />
-        <TextField label="From" type="datetime-local" wrapClassName="w-48" value={from} onChange={(e) => { setFrom(e.target.value); list.setFilter('from', localInputToIso(e.target.value)); }} />
-        <TextField label="To" type="datetime-local" wrapClassName="w-48" value={to} onChange={(e) => { setTo(e.target.value); list.setFilter('to', localInputToIso(e.target.value)); }} />
+        <SelectField
+          label="Bed"
+          placeholder="any"
+          wrapClassName="w-44"
+          value={list.filters.bed ?? ''}
+          onChange={(e) => list.setFilter('bed', e.target.value)}
+          options={(beds.data?.items ?? []).map((b) => ({ value: b.id, label: `${b.name} · ${b.unit}` }))}
+        />
+        <TextField
+          label="Patient"
+          placeholder="identifier"
+          wrapClassName="w-36"
+          value={list.filters.patient ?? ''}
+          onChange={(e) => list.setFilter('patient', e.target.value)}
+        />
+        <SelectField
+          label="Has index"
+          placeholder="any"
+          wrapClassName="w-36"
+          value={list.filters.index ?? ''}
+          onChange={(e) => list.setFilter('index', e.target.value)}
+          options={INDEX_OPTIONS}
+        />
+        <SelectField
+          label="Verdict"
+          placeholder="any"
+          wrapClassName="w-36"
+          value={list.filters.verdict ?? ''}
+          onChange={(e) => list.setFilter('verdict', e.target.value)}
+          options={VERDICT_OPTIONS}
+        />
+        <SelectField
+          label="Flag"
+          placeholder="any"
+          wrapClassName="w-48"
+          value={list.filters.flag ?? ''}
+          onChange={(e) => list.setFilter('flag', e.target.value)}
+          options={FLAG_OPTIONS}
+        />
+        <TextField
+          label="From"
+          type="datetime-local"
+          wrapClassName="w-48"
+          value={from}
+          onChange={(e) => {
+            setFrom(e.target.value);
+            list.setFilter('from', localInputToIso(e.target.value));
+          }}
+        />
+        <TextField
+          label="To"
+          type="datetime-local"
+          wrapClassName="w-48"
+          value={to}
+          onChange={(e) => {
+            setTo(e.target.value);
+            list.setFilter('to', localInputToIso(e.target.value));
+          }}
+        />
       </FilterBar>
-      <DataTable caption="Assessments" columns={columns} rows={assessments.data?.items} total={assessments.data?.total} rowId={(a) => a.id}
-        params={list.params} onParamsChange={list.setParams} loading={assessments.isPending} fetching={assessments.isFetching} error={assessments.error} onRetry={() => assessments.refetch()}
+      <DataTable
+        caption="Assessments"
+        columns={columns}
+        rows={assessments.data?.items}
+        total={assessments.data?.total}
+        rowId={(a) => a.id}
+        params={list.params}
+        onParamsChange={list.setParams}
+        loading={assessments.isPending}
+        fetching={assessments.isFetching}
+        error={assessments.error}
+        onRetry={() => assessments.refetch()}
         onRowClick={(a) => navigate(`/assessments/${a.id}`)}
-        emptyTitle="No assessments match" emptyHint="Windows appear here once a mapped monitor sends data. Widen the filters or the time range." />
+        emptyTitle="No assessments match"
+        emptyHint="Windows appear here once a mapped monitor sends data. Widen the filters or the time range."
+      />
     </>
   );
 }

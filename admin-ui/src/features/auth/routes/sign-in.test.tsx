@@ -18,7 +18,9 @@ function app() {
 
 describe('sign-in form', () => {
   it('shows inline errors from the shared signInSchema and sends nothing when fields are empty', async () => {
-    const gw = fakeGateway((c) => (c.url.pathname === '/api/v1/auth/session' ? { status: 401, body: { type: 'about:blank', title: 'Unauthorized', status: 401 } } : undefined));
+    const gw = fakeGateway((c) =>
+      c.url.pathname === '/api/v1/auth/session' ? { status: 401, body: { type: 'about:blank', title: 'Unauthorized', status: 401 } } : undefined,
+    );
     renderApp(app(), { route: '/sign-in' });
     await userEvent.click(await screen.findByRole('button', { name: 'Sign in' }));
     expect(await screen.findAllByRole('alert')).toHaveLength(2);
@@ -42,8 +44,12 @@ describe('sign-in form', () => {
   it('posts the credentials and goes to the next page on success', async () => {
     let signedIn = false;
     const gw = fakeGateway((c) => {
-      if (c.url.pathname === '/api/v1/auth/session') return signedIn ? { body: SESSION(['reviewer']) } : { status: 401, body: { type: 'about:blank', title: 'Unauthorized', status: 401 } };
-      if (c.url.pathname === '/api/v1/auth/sign-in') { signedIn = true; return { body: SESSION(['reviewer']) }; }
+      if (c.url.pathname === '/api/v1/auth/session')
+        return signedIn ? { body: SESSION(['reviewer']) } : { status: 401, body: { type: 'about:blank', title: 'Unauthorized', status: 401 } };
+      if (c.url.pathname === '/api/v1/auth/sign-in') {
+        signedIn = true;
+        return { body: SESSION(['reviewer']) };
+      }
       return undefined;
     });
     renderApp(app(), { route: '/sign-in' });

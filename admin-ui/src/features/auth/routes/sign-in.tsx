@@ -28,9 +28,7 @@ export function SignInRoute() {
 
   if (session) return <Navigate to={next.startsWith('/') ? next : '/'} replace />;
 
-  const onSubmit = form.handleSubmit((values) =>
-    signIn.mutate(values, { onSuccess: () => navigate(next.startsWith('/') ? next : '/', { replace: true }) }),
-  );
+  const onSubmit = form.handleSubmit((values) => signIn.mutate(values, { onSuccess: () => navigate(next.startsWith('/') ? next : '/', { replace: true }) }));
 
   return (
     <main className="flex min-h-screen items-center justify-center bg-ink-900 px-4">
@@ -43,12 +41,30 @@ export function SignInRoute() {
           </div>
         </div>
         <form onSubmit={onSubmit} noValidate className="flex flex-col gap-3 rounded-md bg-white p-5 shadow-lg" aria-labelledby="sign-in-title">
-          <h1 id="sign-in-title" className="text-base font-semibold">Sign in</h1>
-          {ended && !signIn.error && <p role="status" className="rounded bg-sand-100 px-2 py-1 text-xs text-ink-900">Your session ended. Sign in again to continue.</p>}
+          <h1 id="sign-in-title" className="text-base font-semibold">
+            Sign in
+          </h1>
+          {ended && !signIn.error && (
+            <p role="status" className="rounded bg-sand-100 px-2 py-1 text-xs text-ink-900">
+              Your session ended. Sign in again to continue.
+            </p>
+          )}
           <TextField label="User name" autoComplete="username" autoFocus {...form.register('username')} error={form.formState.errors.username?.message} />
-          <TextField label="Password" type="password" autoComplete="current-password" {...form.register('password')} error={form.formState.errors.password?.message} />
-          {signIn.error && <p role="alert" className="rounded border border-error/30 bg-error-bg px-2 py-1 text-sm text-error">{signInFailure(signIn.error)}</p>}
-          <Button type="submit" variant="primary" busy={signIn.isPending} className="justify-center">Sign in</Button>
+          <TextField
+            label="Password"
+            type="password"
+            autoComplete="current-password"
+            {...form.register('password')}
+            error={form.formState.errors.password?.message}
+          />
+          {signIn.error && (
+            <p role="alert" className="rounded border border-error/30 bg-error-bg px-2 py-1 text-sm text-error">
+              {signInFailure(signIn.error)}
+            </p>
+          )}
+          <Button type="submit" variant="primary" busy={signIn.isPending} className="justify-center">
+            Sign in
+          </Button>
           <p className="text-xs text-muted">Decision support for trained clinicians. Access is logged.</p>
         </form>
       </div>

@@ -3,7 +3,13 @@ import type { BedDataState, BedTrend, Board } from '@ebbgate/shared';
 import { api, buildUrl } from '@/lib/api-client';
 import type { TidalVolumeChallengeResult } from '@/lib/analysis';
 
-export interface BoardFilters { unit?: string; state?: BedDataState; q?: string; page: number; pageSize: number }
+export interface BoardFilters {
+  unit?: string;
+  state?: BedDataState;
+  q?: string;
+  page: number;
+  pageSize: number;
+}
 
 export const boardKeys = {
   all: ['board'] as const,
@@ -42,7 +48,9 @@ export function useChallengeOf(assessmentId: string | null) {
     queryKey: ['assessments', assessmentId, 'challenge'],
     enabled: Boolean(assessmentId),
     queryFn: async ({ signal }) => {
-      const d = await api.get<{ assessment: { tidalVolumeChallenge?: TidalVolumeChallengeResult | null; result: { tidalVolumeChallenge?: TidalVolumeChallengeResult | null } } }>(`/assessments/${encodeURIComponent(assessmentId!)}`, undefined, signal);
+      const d = await api.get<{
+        assessment: { tidalVolumeChallenge?: TidalVolumeChallengeResult | null; result: { tidalVolumeChallenge?: TidalVolumeChallengeResult | null } };
+      }>(`/assessments/${encodeURIComponent(assessmentId!)}`, undefined, signal);
       return d.assessment.tidalVolumeChallenge ?? d.assessment.result.tidalVolumeChallenge ?? null;
     },
   });

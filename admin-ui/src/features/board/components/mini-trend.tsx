@@ -11,7 +11,10 @@ export function MiniTrend({ points, label }: { points: BedTile['trend']; label: 
   const max = Math.max(20, ...values);
   const x = (i: number) => 4 + (i / Math.max(1, points.length - 1)) * (W - 8);
   const y = (v: number) => H - 4 - (v / max) * (H - 8);
-  const line = points.map((p, i) => (p.ppv === null ? null : `${x(i).toFixed(1)},${y(p.ppv).toFixed(1)}`)).filter(Boolean).join(' ');
+  const line = points
+    .map((p, i) => (p.ppv === null ? null : `${x(i).toFixed(1)},${y(p.ppv).toFixed(1)}`))
+    .filter(Boolean)
+    .join(' ');
   return (
     <svg viewBox={`0 0 ${W} ${H}`} width={W} height={H} role="img" aria-label={label} className="block">
       <line x1="0" x2={W} y1={H - 2} y2={H - 2} stroke="#dcdad2" />
@@ -22,8 +25,16 @@ export function MiniTrend({ points, label }: { points: BedTile['trend']; label: 
         const cy = y(p.ppv);
         const c = VERDICT_COLOR[p.verdict];
         if (p.verdict === 'valid') return <circle key={i} cx={cx} cy={cy} r="2.4" fill={c} />;
-        if (p.verdict === 'questionable') return <path key={i} d={`M${cx} ${cy - 3} L${cx + 3} ${cy} L${cx} ${cy + 3} L${cx - 3} ${cy} Z`} fill="white" stroke={c} strokeWidth="1.2" />;
-        return <path key={i} d={`M${cx - 2.5} ${cy - 2.5} L${cx + 2.5} ${cy + 2.5} M${cx + 2.5} ${cy - 2.5} L${cx - 2.5} ${cy + 2.5}`} stroke={c} strokeWidth="1.2" />;
+        if (p.verdict === 'questionable')
+          return <path key={i} d={`M${cx} ${cy - 3} L${cx + 3} ${cy} L${cx} ${cy + 3} L${cx - 3} ${cy} Z`} fill="white" stroke={c} strokeWidth="1.2" />;
+        return (
+          <path
+            key={i}
+            d={`M${cx - 2.5} ${cy - 2.5} L${cx + 2.5} ${cy + 2.5} M${cx + 2.5} ${cy - 2.5} L${cx - 2.5} ${cy + 2.5}`}
+            stroke={c}
+            strokeWidth="1.2"
+          />
+        );
       })}
     </svg>
   );

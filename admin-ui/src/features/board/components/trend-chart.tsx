@@ -35,12 +35,20 @@ function drawMark(ctx: CanvasRenderingContext2D, x: number, y: number, verdict: 
     ctx.fillStyle = '#ffffff';
     ctx.strokeStyle = c;
     ctx.lineWidth = 1.5 * uPlot.pxRatio;
-    ctx.moveTo(x, y - r * 1.3); ctx.lineTo(x + r * 1.3, y); ctx.lineTo(x, y + r * 1.3); ctx.lineTo(x - r * 1.3, y); ctx.closePath();
-    ctx.fill(); ctx.stroke();
+    ctx.moveTo(x, y - r * 1.3);
+    ctx.lineTo(x + r * 1.3, y);
+    ctx.lineTo(x, y + r * 1.3);
+    ctx.lineTo(x - r * 1.3, y);
+    ctx.closePath();
+    ctx.fill();
+    ctx.stroke();
   } else {
     ctx.strokeStyle = c;
     ctx.lineWidth = 1.5 * uPlot.pxRatio;
-    ctx.moveTo(x - r, y - r); ctx.lineTo(x + r, y + r); ctx.moveTo(x + r, y - r); ctx.lineTo(x - r, y + r);
+    ctx.moveTo(x - r, y - r);
+    ctx.lineTo(x + r, y + r);
+    ctx.moveTo(x + r, y - r);
+    ctx.lineTo(x - r, y + r);
     ctx.stroke();
   }
 }
@@ -50,7 +58,17 @@ function drawMark(ctx: CanvasRenderingContext2D, x: number, y: number, verdict: 
  * its verdict's shape, the PPV grey zone as a band, events as labelled vertical lines; clicking a
  * point opens its assessment. The table beside it carries the same values for those who cannot see it.
  */
-export function TrendChart({ trend, shown, onOpen, width: fixedWidth }: { trend: BedTrend; shown: Record<SeriesKey, boolean>; onOpen: (assessmentId: string) => void; width?: number }) {
+export function TrendChart({
+  trend,
+  shown,
+  onOpen,
+  width: fixedWidth,
+}: {
+  trend: BedTrend;
+  shown: Record<SeriesKey, boolean>;
+  onOpen: (assessmentId: string) => void;
+  width?: number;
+}) {
   const host = useRef<HTMLDivElement>(null);
   const [measured, setMeasured] = useState(0);
   const width = fixedWidth ?? (measured > 0 ? measured : 960);
@@ -78,10 +96,23 @@ export function TrendChart({ trend, shown, onOpen, width: fixedWidth }: { trend:
     const opts: uPlot.Options = {
       width,
       height: HEIGHT,
-      scales: { x: { time: true, range: [Date.parse(trend.from) / 1000, Date.parse(trend.to) / 1000] }, pct: { range: (_u, _min, max) => [0, Math.max(25, Math.ceil((max ?? 0) / 5) * 5)] }, rate: { range: (_u, _min, max) => [0, Math.max(120, Math.ceil((max ?? 0) / 20) * 20)] } },
+      scales: {
+        x: { time: true, range: [Date.parse(trend.from) / 1000, Date.parse(trend.to) / 1000] },
+        pct: { range: (_u, _min, max) => [0, Math.max(25, Math.ceil((max ?? 0) / 5) * 5)] },
+        rate: { range: (_u, _min, max) => [0, Math.max(120, Math.ceil((max ?? 0) / 20) * 20)] },
+      },
       series: [
         {},
-        ...TREND_SERIES.map((s) => ({ label: s.label, scale: s.scale, stroke: s.color, width: 1.25, dash: [...s.dash], show: shown[s.key], spanGaps: false, points: { show: false } })),
+        ...TREND_SERIES.map((s) => ({
+          label: s.label,
+          scale: s.scale,
+          stroke: s.color,
+          width: 1.25,
+          dash: [...s.dash],
+          show: shown[s.key],
+          spanGaps: false,
+          points: { show: false },
+        })),
       ],
       axes: [
         { stroke: '#5b6468', grid: { stroke: '#e6e3da' } },
@@ -128,7 +159,11 @@ export function TrendChart({ trend, shown, onOpen, width: fixedWidth }: { trend:
               ctx.lineTo(x, u.bbox.top + u.bbox.height);
               ctx.stroke();
               ctx.fillStyle = ctx.strokeStyle;
-              ctx.fillText(e.kind === 'tidal-volume-challenge' ? 'Vt challenge' : e.kind === 'flush-test' ? 'flush' : e.label.slice(0, 24), x + 3 * pr, u.bbox.top + 11 * pr);
+              ctx.fillText(
+                e.kind === 'tidal-volume-challenge' ? 'Vt challenge' : e.kind === 'flush-test' ? 'flush' : e.label.slice(0, 24),
+                x + 3 * pr,
+                u.bbox.top + 11 * pr,
+              );
             }
             ctx.restore();
           },
@@ -154,5 +189,13 @@ export function TrendChart({ trend, shown, onOpen, width: fixedWidth }: { trend:
     };
   }, [data, width, trend, shown]);
 
-  return <div ref={host} data-testid="trend-chart" role="img" aria-label={`Trend chart of ${trend.bed.name}: ${trend.points.length} points; the same values are in the table below`} className="min-h-[320px] w-full" />;
+  return (
+    <div
+      ref={host}
+      data-testid="trend-chart"
+      role="img"
+      aria-label={`Trend chart of ${trend.bed.name}: ${trend.points.length} points; the same values are in the table below`}
+      className="min-h-[320px] w-full"
+    />
+  );
 }

@@ -10,11 +10,35 @@ afterEach(() => vi.unstubAllGlobals());
 
 const TREND: BedTrend = {
   bed: { id: 'b1', name: 'ICU-01', unit: 'Intensive care' },
-  from: '2026-12-01T16:00:00Z', to: '2026-12-01T22:00:00Z', windows: 3, downsampled: false, bucketSeconds: null,
+  from: '2026-12-01T16:00:00Z',
+  to: '2026-12-01T22:00:00Z',
+  windows: 3,
+  downsampled: false,
+  bucketSeconds: null,
   points: [
     { t: '2026-12-01T21:00:10Z', assessmentId: 'a1', verdict: 'valid', ppv: 11.2, spv: 7.5, deltaPop: 13, heartRate: 82, respiratoryRate: 14, windows: 1 },
-    { t: '2026-12-01T21:00:20Z', assessmentId: 'a2', verdict: 'questionable', ppv: 12.8, spv: 8, deltaPop: null, heartRate: 84, respiratoryRate: 14, windows: 1 },
-    { t: '2026-12-01T21:00:30Z', assessmentId: 'a3', verdict: 'not-valid', ppv: 25.1, spv: 12, deltaPop: null, heartRate: 120, respiratoryRate: 14, windows: 1 },
+    {
+      t: '2026-12-01T21:00:20Z',
+      assessmentId: 'a2',
+      verdict: 'questionable',
+      ppv: 12.8,
+      spv: 8,
+      deltaPop: null,
+      heartRate: 84,
+      respiratoryRate: 14,
+      windows: 1,
+    },
+    {
+      t: '2026-12-01T21:00:30Z',
+      assessmentId: 'a3',
+      verdict: 'not-valid',
+      ppv: 25.1,
+      spv: 12,
+      deltaPop: null,
+      heartRate: 120,
+      respiratoryRate: 14,
+      windows: 1,
+    },
   ],
   events: [
     { t: '2026-12-01T21:00:15Z', kind: 'tidal-volume', label: 'Tidal volume 400 → 530 mL', assessmentId: null },
@@ -24,12 +48,24 @@ const TREND: BedTrend = {
 };
 
 function render(route = '/board/beds/b1') {
-  return renderApp(<Routes><Route path="/board/beds/:bedId" element={<BedTrendRoute />} /><Route path="/assessments/:id" element={<p>assessment page</p>} /></Routes>, { route });
+  return renderApp(
+    <Routes>
+      <Route path="/board/beds/:bedId" element={<BedTrendRoute />} />
+      <Route path="/assessments/:id" element={<p>assessment page</p>} />
+    </Routes>,
+    { route },
+  );
 }
 
 describe('bed trend', () => {
   it('gives the chart a table of the same values with verdicts in words, the grey zone with its source, events and CSV export', async () => {
-    fakeGateway((c) => (c.url.pathname === '/api/v1/auth/session' ? { body: SESSION(['reviewer']) } : c.url.pathname === '/api/v1/board/beds/b1/trend' ? { body: TREND } : undefined));
+    fakeGateway((c) =>
+      c.url.pathname === '/api/v1/auth/session'
+        ? { body: SESSION(['reviewer']) }
+        : c.url.pathname === '/api/v1/board/beds/b1/trend'
+          ? { body: TREND }
+          : undefined,
+    );
     render();
     const table = await screen.findByRole('table');
     const rows = within(table).getAllByRole('row').slice(1);
@@ -49,7 +85,13 @@ describe('bed trend', () => {
   });
 
   it('changes the span from the keyboard and asks the server for it', async () => {
-    const { calls } = fakeGateway((c) => (c.url.pathname === '/api/v1/auth/session' ? { body: SESSION(['reviewer']) } : c.url.pathname === '/api/v1/board/beds/b1/trend' ? { body: TREND } : undefined));
+    const { calls } = fakeGateway((c) =>
+      c.url.pathname === '/api/v1/auth/session'
+        ? { body: SESSION(['reviewer']) }
+        : c.url.pathname === '/api/v1/board/beds/b1/trend'
+          ? { body: TREND }
+          : undefined,
+    );
     const user = userEvent.setup();
     render();
     await screen.findByRole('table');

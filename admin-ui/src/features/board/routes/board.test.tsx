@@ -8,16 +8,43 @@ import { BoardRoute } from './board';
 afterEach(() => vi.unstubAllGlobals());
 
 const tile = (over: Partial<BedTile>): BedTile => ({
-  bedId: 'b1', bedName: 'ICU-01', unit: 'Intensive care', patientRef: 'Patient/p-1', patientName: null, patientMrn: null,
+  bedId: 'b1',
+  bedName: 'ICU-01',
+  unit: 'Intensive care',
+  patientRef: 'Patient/p-1',
+  patientName: null,
+  patientMrn: null,
   monitor: { id: 'm1', identifier: '02A0B1FFFE000001', lastSeenAt: '2026-12-01T21:59:58Z' },
-  state: 'sending', stateReason: 'Data arrives and results find their patient.',
-  latest: { assessmentId: 'a1', windowEnd: '2026-12-01T21:59:50Z', ageSeconds: 10, verdict: 'valid', ppv: 14.2, spv: 9.1, deltaPop: 16.4, mainFlag: null, flagCount: 0 },
-  trend: Array.from({ length: 13 }, (_, i) => ({ t: new Date(Date.UTC(2026, 11, 1, 21, i * 5)).toISOString(), ppv: 10 + i, verdict: i === 4 ? 'not-valid' : 'valid' })),
+  state: 'sending',
+  stateReason: 'Data arrives and results find their patient.',
+  latest: {
+    assessmentId: 'a1',
+    windowEnd: '2026-12-01T21:59:50Z',
+    ageSeconds: 10,
+    verdict: 'valid',
+    ppv: 14.2,
+    spv: 9.1,
+    deltaPop: 16.4,
+    mainFlag: null,
+    flagCount: 0,
+  },
+  trend: Array.from({ length: 13 }, (_, i) => ({
+    t: new Date(Date.UTC(2026, 11, 1, 21, i * 5)).toISOString(),
+    ppv: 10 + i,
+    verdict: i === 4 ? 'not-valid' : 'valid',
+  })),
   ...over,
 });
 const BOARD = (items: BedTile[], extra: Partial<Board> = {}): Board => ({
-  generatedAt: '2026-12-01T22:00:00Z', staleAfterSeconds: 60, units: ['Intensive care', 'Theatres'],
-  counts: { sending: 1, stale: 1, 'no-patient': 0, quarantining: 0, 'no-monitor': 0 }, items, page: 1, pageSize: 48, total: items.length, ...extra,
+  generatedAt: '2026-12-01T22:00:00Z',
+  staleAfterSeconds: 60,
+  units: ['Intensive care', 'Theatres'],
+  counts: { sending: 1, stale: 1, 'no-patient': 0, quarantining: 0, 'no-monitor': 0 },
+  items,
+  page: 1,
+  pageSize: 48,
+  total: items.length,
+  ...extra,
 });
 
 describe('beds board', () => {
@@ -25,11 +52,26 @@ describe('beds board', () => {
     const items = [
       tile({ patientName: 'Ines Varga-Lowe', patientMrn: 'HGH-400388' }),
       tile({
-        bedId: 'b2', bedName: 'ICU-02', state: 'stale', stateReason: 'Nothing received for 300 s.',
-        latest: { assessmentId: 'a2', windowEnd: '2026-12-01T21:55:00Z', ageSeconds: 300, verdict: 'not-valid', ppv: 22.5, spv: null, deltaPop: null, mainFlag: { code: 'irregular-rhythm', severity: 'critical', reason: 'Beat intervals vary too much' }, flagCount: 2 },
+        bedId: 'b2',
+        bedName: 'ICU-02',
+        state: 'stale',
+        stateReason: 'Nothing received for 300 s.',
+        latest: {
+          assessmentId: 'a2',
+          windowEnd: '2026-12-01T21:55:00Z',
+          ageSeconds: 300,
+          verdict: 'not-valid',
+          ppv: 22.5,
+          spv: null,
+          deltaPop: null,
+          mainFlag: { code: 'irregular-rhythm', severity: 'critical', reason: 'Beat intervals vary too much' },
+          flagCount: 2,
+        },
       }),
     ];
-    fakeGateway((c) => (c.url.pathname === '/api/v1/auth/session' ? { body: SESSION(['reviewer']) } : c.url.pathname === '/api/v1/board' ? { body: BOARD(items) } : undefined));
+    fakeGateway((c) =>
+      c.url.pathname === '/api/v1/auth/session' ? { body: SESSION(['reviewer']) } : c.url.pathname === '/api/v1/board' ? { body: BOARD(items) } : undefined,
+    );
     renderApp(<BoardRoute />, { route: '/board' });
     const first = await screen.findByRole('article', { name: /ICU-01/ });
     expect(within(first).getByTestId('patient').textContent).toBe('Ines Varga-Lowe · MRN HGH-400388');
@@ -49,7 +91,13 @@ describe('beds board', () => {
   });
 
   it('asks the server for the unit and state chosen, keyboard only, and pages', async () => {
-    const { calls } = fakeGateway((c) => (c.url.pathname === '/api/v1/auth/session' ? { body: SESSION(['operator']) } : c.url.pathname === '/api/v1/board' ? { body: BOARD([tile({})], { total: 100 }) } : undefined));
+    const { calls } = fakeGateway((c) =>
+      c.url.pathname === '/api/v1/auth/session'
+        ? { body: SESSION(['operator']) }
+        : c.url.pathname === '/api/v1/board'
+          ? { body: BOARD([tile({})], { total: 100 }) }
+          : undefined,
+    );
     const user = userEvent.setup();
     renderApp(<BoardRoute />, { route: '/board' });
     await screen.findByRole('article', { name: /ICU-01/ });

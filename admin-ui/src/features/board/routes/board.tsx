@@ -48,12 +48,41 @@ export function BoardRoute() {
     <>
       <PageHeader
         title="Beds board"
-        description={<>Every bed's latest window and data state · refreshed every {BOARD_POLL_MS / 1000} s · updated <span aria-live="polite">{formatDateTime(b.generatedAt)}</span></>}
+        description={
+          <>
+            Every bed's latest window and data state · refreshed every {BOARD_POLL_MS / 1000} s · updated{' '}
+            <span aria-live="polite">{formatDateTime(b.generatedAt)}</span>
+          </>
+        }
       />
       <FilterBar onClear={unit || state || q ? () => setSearch(new URLSearchParams(), { replace: true }) : undefined}>
-        <SelectField label="Unit" value={unit ?? ''} placeholder="All units" options={b.units.map((u) => ({ value: u, label: u }))} onChange={(e) => set('unit', e.target.value || undefined)} wrapClassName="w-44" />
-        <SelectField label="Data state" value={state ?? ''} placeholder="All states" options={stateOptions} onChange={(e) => set('state', e.target.value || undefined)} wrapClassName="w-48" />
-        <TextField label="Bed, monitor or patient" defaultValue={q ?? ''} onKeyDown={(e) => { if (e.key === 'Enter') set('q', (e.target as HTMLInputElement).value.trim() || undefined); }} onBlur={(e) => { if ((e.target.value.trim() || undefined) !== q) set('q', e.target.value.trim() || undefined); }} wrapClassName="w-56" />
+        <SelectField
+          label="Unit"
+          value={unit ?? ''}
+          placeholder="All units"
+          options={b.units.map((u) => ({ value: u, label: u }))}
+          onChange={(e) => set('unit', e.target.value || undefined)}
+          wrapClassName="w-44"
+        />
+        <SelectField
+          label="Data state"
+          value={state ?? ''}
+          placeholder="All states"
+          options={stateOptions}
+          onChange={(e) => set('state', e.target.value || undefined)}
+          wrapClassName="w-48"
+        />
+        <TextField
+          label="Bed, monitor or patient"
+          defaultValue={q ?? ''}
+          onKeyDown={(e) => {
+            if (e.key === 'Enter') set('q', (e.target as HTMLInputElement).value.trim() || undefined);
+          }}
+          onBlur={(e) => {
+            if ((e.target.value.trim() || undefined) !== q) set('q', e.target.value.trim() || undefined);
+          }}
+          wrapClassName="w-56"
+        />
       </FilterBar>
       <div className="mb-2 flex flex-wrap items-center justify-between gap-2">
         <p className="text-sm text-ink-800" aria-label="Beds by data state">
@@ -65,15 +94,25 @@ export function BoardRoute() {
         <EmptyState title="No beds match">Change the unit or state filter.</EmptyState>
       ) : (
         <div className="grid gap-2 sm:grid-cols-2 lg:grid-cols-3 2xl:grid-cols-4" aria-label="Beds">
-          {b.items.map((t) => <BedTile key={t.bedId} tile={t} />)}
+          {b.items.map((t) => (
+            <BedTile key={t.bedId} tile={t} />
+          ))}
         </div>
       )}
       <nav aria-label="Board pages" className="mt-3 flex items-center gap-2 text-sm">
-        <Button size="sm" disabled={page <= 1} onClick={() => set('page', String(page - 1))}>Previous page</Button>
-        <span>Page {page} of {pages} · {b.total} bed{b.total === 1 ? '' : 's'}</span>
-        <Button size="sm" disabled={page >= pages} onClick={() => set('page', String(page + 1))}>Next page</Button>
+        <Button size="sm" disabled={page <= 1} onClick={() => set('page', String(page - 1))}>
+          Previous page
+        </Button>
+        <span>
+          Page {page} of {pages} · {b.total} bed{b.total === 1 ? '' : 's'}
+        </span>
+        <Button size="sm" disabled={page >= pages} onClick={() => set('page', String(page + 1))}>
+          Next page
+        </Button>
       </nav>
-      <div className="mt-3"><Cautions compact /></div>
+      <div className="mt-3">
+        <Cautions compact />
+      </div>
     </>
   );
 }

@@ -13,16 +13,30 @@ export const deliveryKeys = {
 const enc = encodeURIComponent;
 
 export function useDeliveries(q: Query) {
-  return useQuery({ queryKey: deliveryKeys.list(q), queryFn: ({ signal }) => api.get<Page<Delivery>>('/deliveries', q, signal), placeholderData: keepPreviousData });
+  return useQuery({
+    queryKey: deliveryKeys.list(q),
+    queryFn: ({ signal }) => api.get<Page<Delivery>>('/deliveries', q, signal),
+    placeholderData: keepPreviousData,
+  });
 }
 export function useDelivery(id: string | null) {
-  return useQuery({ queryKey: deliveryKeys.detail(id ?? ''), queryFn: ({ signal }) => api.get<DeliveryDetail>(`/deliveries/${enc(id!)}`, undefined, signal), enabled: !!id });
+  return useQuery({
+    queryKey: deliveryKeys.detail(id ?? ''),
+    queryFn: ({ signal }) => api.get<DeliveryDetail>(`/deliveries/${enc(id!)}`, undefined, signal),
+    enabled: !!id,
+  });
 }
 /** Destinations for the filter select (names only). */
 export function useDestinationOptions() {
-  return useQuery({ queryKey: ['deliveries', 'destination-options'] as const, queryFn: ({ signal }) => api.get<DestinationOption[] | Page<DestinationOption>>('/destinations', undefined, signal) });
+  return useQuery({
+    queryKey: ['deliveries', 'destination-options'] as const,
+    queryFn: ({ signal }) => api.get<DestinationOption[] | Page<DestinationOption>>('/destinations', undefined, signal),
+  });
 }
-export interface DestinationOption { id: string; name: string }
+export interface DestinationOption {
+  id: string;
+  name: string;
+}
 export function optionList(data: DestinationOption[] | Page<DestinationOption> | undefined): DestinationOption[] {
   if (!data) return [];
   return Array.isArray(data) ? data : data.items;

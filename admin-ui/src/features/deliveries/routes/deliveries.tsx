@@ -33,8 +33,14 @@ export function DeliveriesRoute({ destinations: destinationsPanel }: { destinati
   const [selected, setSelected] = useState<Set<string>>(new Set());
   const [open, setOpen] = useState<string | null>(null);
   const [confirm, setConfirm] = useState<'retry' | 'replay' | 'discard' | null>(null);
-  const retry = useBulkAction<string>((id) => requeueAndFollow(id, 'retry'), (r) => r);
-  const replay = useBulkAction<string>((id) => requeueAndFollow(id, 'replay'), (r) => r);
+  const retry = useBulkAction<string>(
+    (id) => requeueAndFollow(id, 'retry'),
+    (r) => r,
+  );
+  const replay = useBulkAction<string>(
+    (id) => requeueAndFollow(id, 'replay'),
+    (r) => r,
+  );
   const discard = useBulkAction<unknown, string>((id, reason) => discardDelivery(id, reason), outcomeOf);
   const destName = new Map(optionList(destinations.data).map((d) => [d.id, d.name]));
 
@@ -52,52 +58,178 @@ export function DeliveriesRoute({ destinations: destinationsPanel }: { destinati
   const columns: Column<Delivery>[] = [
     { key: 'createdAt', header: 'Queued', sortField: 'createdAt', render: (d) => <span className="num whitespace-nowrap">{formatDateTime(d.createdAt)}</span> },
     { key: 'status', header: 'Status', sortField: 'status', render: (d) => <StatusBadge status={d.status} /> },
-    { key: 'index', header: 'Index', render: (d) => <span>{d.index}{d.kind === 'amend' ? <span className="text-xs text-muted"> (amend)</span> : null}</span> },
+    {
+      key: 'index',
+      header: 'Index',
+      render: (d) => (
+        <span>
+          {d.index}
+          {d.kind === 'amend' ? <span className="text-xs text-muted"> (amend)</span> : null}
+        </span>
+      ),
+    },
     { key: 'destination', header: 'Destination', render: (d) => destName.get(d.destinationId) ?? d.destinationId },
     { key: 'patient', header: 'Patient', render: (d) => <PatientLabel name={d.patientName} mrn={d.patientMrn} patientRef={d.patientRef} /> },
     { key: 'attempts', header: 'Attempts', sortField: 'attemptCount', className: 'text-right', render: (d) => <span className="num">{d.attemptCount}</span> },
-    { key: 'last', header: 'Last answer', render: (d) => <span className="text-xs">{d.lastHttpStatus ? <span className="num mr-1 font-medium">{d.lastHttpStatus}</span> : null}<span className="text-muted">{d.lastError ?? ''}</span></span> },
-    { key: 'assessment', header: 'Assessment', render: (d) => <Link className="text-xs text-ink-700 underline" to={`/assessments/${d.assessmentId}`}>open</Link> },
-    { key: 'detail', header: '', render: (d) => <Button size="sm" onClick={() => setOpen(d.id)}>Details</Button> },
+    {
+      key: 'last',
+      header: 'Last answer',
+      render: (d) => (
+        <span className="text-xs">
+          {d.lastHttpStatus ? <span className="num mr-1 font-medium">{d.lastHttpStatus}</span> : null}
+          <span className="text-muted">{d.lastError ?? ''}</span>
+        </span>
+      ),
+    },
+    {
+      key: 'assessment',
+      header: 'Assessment',
+      render: (d) => (
+        <Link className="text-xs text-ink-700 underline" to={`/assessments/${d.assessmentId}`}>
+          open
+        </Link>
+      ),
+    },
+    {
+      key: 'detail',
+      header: '',
+      render: (d) => (
+        <Button size="sm" onClick={() => setOpen(d.id)}>
+          Details
+        </Button>
+      ),
+    },
   ];
 
-  const clear = () => { list.clearFilters(); setFrom(''); setTo(''); };
+  const clear = () => {
+    list.clearFilters();
+    setFrom('');
+    setTo('');
+  };
   const busy = retry.running || replay.running || discard.running;
 
   return (
     <>
-      <PageHeader title="Deliveries" description="Observations queued for, sent to, or refused by the EHR. Failed ones can be retried or discarded with a reason." />
+      <PageHeader
+        title="Deliveries"
+        description="Observations queued for, sent to, or refused by the EHR. Failed ones can be retried or discarded with a reason."
+      />
       {destinationsPanel}
       <FilterBar onClear={clear}>
-        <SelectField label="Status" placeholder="any" wrapClassName="w-40" value={list.filters.status ?? ''} onChange={(e) => list.setFilter('status', e.target.value)} options={STATUSES.map((s) => ({ value: s, label: s }))} />
-        <SelectField label="Destination" placeholder="any" wrapClassName="w-48" value={list.filters.destination ?? ''} onChange={(e) => list.setFilter('destination', e.target.value)}
-          options={optionList(destinations.data).map((d) => ({ value: d.id, label: d.name }))} />
-        <TextField label="From" type="datetime-local" wrapClassName="w-48" value={from} onChange={(e) => { setFrom(e.target.value); list.setFilter('from', localInputToIso(e.target.value)); }} />
-        <TextField label="To" type="datetime-local" wrapClassName="w-48" value={to} onChange={(e) => { setTo(e.target.value); list.setFilter('to', localInputToIso(e.target.value)); }} />
+        <SelectField
+          label="Status"
+          placeholder="any"
+          wrapClassName="w-40"
+          value={list.filters.status ?? ''}
+          onChange={(e) => list.setFilter('status', e.target.value)}
+          options={STATUSES.map((s) => ({ value: s, label: s }))}
+        />
+        <SelectField
+          label="Destination"
+          placeholder="any"
+          wrapClassName="w-48"
+          value={list.filters.destination ?? ''}
+          onChange={(e) => list.setFilter('destination', e.target.value)}
+          options={optionList(destinations.data).map((d) => ({ value: d.id, label: d.name }))}
+        />
+        <TextField
+          label="From"
+          type="datetime-local"
+          wrapClassName="w-48"
+          value={from}
+          onChange={(e) => {
+            setFrom(e.target.value);
+            list.setFilter('from', localInputToIso(e.target.value));
+          }}
+        />
+        <TextField
+          label="To"
+          type="datetime-local"
+          wrapClassName="w-48"
+          value={to}
+          onChange={(e) => {
+            setTo(e.target.value);
+            list.setFilter('to', localInputToIso(e.target.value));
+          }}
+        />
         {manage && (
           <div className="ml-auto flex items-end gap-2 self-end">
-            <Button variant="primary" disabled={selected.size === 0 || busy} busy={retry.running} onClick={() => setConfirm('retry')}>Retry selected ({selected.size})</Button>
-            <Button disabled={selected.size === 0 || busy} busy={replay.running} onClick={() => setConfirm('replay')} title="Rebuild with today's patient context, codes and settings, then send">Replay selected</Button>
-            <Button variant="danger" disabled={selected.size === 0 || busy} busy={discard.running} onClick={() => setConfirm('discard')}>Discard selected…</Button>
+            <Button variant="primary" disabled={selected.size === 0 || busy} busy={retry.running} onClick={() => setConfirm('retry')}>
+              Retry selected ({selected.size})
+            </Button>
+            <Button
+              disabled={selected.size === 0 || busy}
+              busy={replay.running}
+              onClick={() => setConfirm('replay')}
+              title="Rebuild with today's patient context, codes and settings, then send"
+            >
+              Replay selected
+            </Button>
+            <Button variant="danger" disabled={selected.size === 0 || busy} busy={discard.running} onClick={() => setConfirm('discard')}>
+              Discard selected…
+            </Button>
           </div>
         )}
       </FilterBar>
       <BulkProgress title="Retry" items={retry.items} />
       <BulkProgress title="Replay" items={replay.items} />
       <BulkProgress title="Discard" items={discard.items} />
-      <DataTable caption="Deliveries" columns={columns} rows={deliveries.data?.items} total={deliveries.data?.total} rowId={(d) => d.id}
-        params={list.params} onParamsChange={list.setParams} loading={deliveries.isPending} fetching={deliveries.isFetching} error={deliveries.error} onRetry={() => deliveries.refetch()}
-        selected={manage ? selected : undefined} onSelectedChange={manage ? setSelected : undefined}
-        emptyTitle={list.filters.status === 'failed' ? 'No failed deliveries' : 'No deliveries match'} emptyHint="Everything queued has reached the EHR, or the filters exclude it." />
-      <ConfirmDialog open={confirm === 'retry'} title="Retry deliveries" confirmLabel={`Retry ${selected.size}`}
-        message={<>Send the {selected.size} selected Observation{selected.size === 1 ? '' : 's'} to the EHR again now. Each one's outcome is shown as it finishes.</>}
-        onClose={() => setConfirm(null)} onConfirm={() => runBulk('retry', '')} />
-      <ConfirmDialog open={confirm === 'replay'} title="Replay deliveries" confirmLabel={`Replay ${selected.size}`}
-        message={<>Rebuild the {selected.size} selected Observation{selected.size === 1 ? '' : 's'} with the current patient context, codes and settings, and send again. The EHR sees the same identifier, so nothing is duplicated.</>}
-        onClose={() => setConfirm(null)} onConfirm={() => runBulk('replay', '')} />
-      <ConfirmDialog open={confirm === 'discard'} title="Discard deliveries" danger confirmLabel={`Discard ${selected.size}`} reasonLabel="Reason (kept in the audit log)"
-        message={<>The {selected.size} selected Observation{selected.size === 1 ? '' : 's'} will not be sent. The assessments stay stored.</>}
-        onClose={() => setConfirm(null)} onConfirm={(reason) => runBulk('discard', reason)} />
+      <DataTable
+        caption="Deliveries"
+        columns={columns}
+        rows={deliveries.data?.items}
+        total={deliveries.data?.total}
+        rowId={(d) => d.id}
+        params={list.params}
+        onParamsChange={list.setParams}
+        loading={deliveries.isPending}
+        fetching={deliveries.isFetching}
+        error={deliveries.error}
+        onRetry={() => deliveries.refetch()}
+        selected={manage ? selected : undefined}
+        onSelectedChange={manage ? setSelected : undefined}
+        emptyTitle={list.filters.status === 'failed' ? 'No failed deliveries' : 'No deliveries match'}
+        emptyHint="Everything queued has reached the EHR, or the filters exclude it."
+      />
+      <ConfirmDialog
+        open={confirm === 'retry'}
+        title="Retry deliveries"
+        confirmLabel={`Retry ${selected.size}`}
+        message={
+          <>
+            Send the {selected.size} selected Observation{selected.size === 1 ? '' : 's'} to the EHR again now. Each one's outcome is shown as it finishes.
+          </>
+        }
+        onClose={() => setConfirm(null)}
+        onConfirm={() => runBulk('retry', '')}
+      />
+      <ConfirmDialog
+        open={confirm === 'replay'}
+        title="Replay deliveries"
+        confirmLabel={`Replay ${selected.size}`}
+        message={
+          <>
+            Rebuild the {selected.size} selected Observation{selected.size === 1 ? '' : 's'} with the current patient context, codes and settings, and send
+            again. The EHR sees the same identifier, so nothing is duplicated.
+          </>
+        }
+        onClose={() => setConfirm(null)}
+        onConfirm={() => runBulk('replay', '')}
+      />
+      <ConfirmDialog
+        open={confirm === 'discard'}
+        title="Discard deliveries"
+        danger
+        confirmLabel={`Discard ${selected.size}`}
+        reasonLabel="Reason (kept in the audit log)"
+        message={
+          <>
+            The {selected.size} selected Observation{selected.size === 1 ? '' : 's'} will not be sent. The assessments stay stored.
+          </>
+        }
+        onClose={() => setConfirm(null)}
+        onConfirm={(reason) => runBulk('discard', reason)}
+      />
       <DeliveryDetailDialog id={open} onClose={() => setOpen(null)} canManage={manage} />
     </>
   );

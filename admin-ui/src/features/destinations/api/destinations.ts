@@ -5,8 +5,17 @@ type DestinationState = ApiDestination['state'];
 import { api } from '@/lib/api-client';
 
 export interface Destination {
-  id: string; name: string; kind: string; paused: boolean; circuitState?: string; consecutiveFailures?: number;
-  downSince?: string | null; lastSuccessAt?: string | null; lastFailureAt?: string | null; lastError?: string | null; configurationError?: string | null;
+  id: string;
+  name: string;
+  kind: string;
+  paused: boolean;
+  circuitState?: string;
+  consecutiveFailures?: number;
+  downSince?: string | null;
+  lastSuccessAt?: string | null;
+  lastFailureAt?: string | null;
+  lastError?: string | null;
+  configurationError?: string | null;
   /** The API's health state: up, paused, circuit-open, down, misconfigured. */
   state: DestinationState;
 }
@@ -14,7 +23,11 @@ export interface Destination {
 export const destinationKeys = { all: ['destinations'] as const };
 
 export function useDestinations() {
-  return useQuery({ queryKey: destinationKeys.all, queryFn: ({ signal }) => api.get<Destination[] | Page<Destination>>('/destinations', undefined, signal), refetchInterval: 30_000 });
+  return useQuery({
+    queryKey: destinationKeys.all,
+    queryFn: ({ signal }) => api.get<Destination[] | Page<Destination>>('/destinations', undefined, signal),
+    refetchInterval: 30_000,
+  });
 }
 
 export function useToggleDestination() {

@@ -26,10 +26,11 @@ export function DestinationsPanel() {
   const toast = useToast();
   const { can } = useAuth();
   const toggle = useToggleDestination();
-  const onToggle = (d: Destination) => toggle.mutate(d, {
-    onSuccess: () => toast.success(`${d.name} ${d.paused ? 'resumed' : 'paused'}`),
-    onError: (e) => toast.error(errorMessage(e)),
-  });
+  const onToggle = (d: Destination) =>
+    toggle.mutate(d, {
+      onSuccess: () => toast.success(`${d.name} ${d.paused ? 'resumed' : 'paused'}`),
+      onError: (e) => toast.error(errorMessage(e)),
+    });
   if (destinations.error) return <ErrorState error={destinations.error} onRetry={() => destinations.refetch()} />;
   const list = destinationList(destinations.data);
   if (list.length === 0) return null;
@@ -38,12 +39,22 @@ export function DestinationsPanel() {
       {list.map((d) => (
         <div key={d.id} className="flex items-start justify-between gap-2 rounded-md border border-line bg-white px-3 py-2 text-sm" data-destination={d.id}>
           <div className="min-w-0">
-            <p className="flex items-center gap-2 font-medium">{d.name} <StatusBadge status={destinationState(d)} /></p>
-            <p className="text-xs text-muted">{d.kind} · last success {formatDateTime(d.lastSuccessAt)}</p>
-            {(d.configurationError || d.lastError) && <p className="truncate text-xs text-error" title={d.configurationError ?? d.lastError ?? ''}>{d.configurationError ?? d.lastError}</p>}
+            <p className="flex items-center gap-2 font-medium">
+              {d.name} <StatusBadge status={destinationState(d)} />
+            </p>
+            <p className="text-xs text-muted">
+              {d.kind} · last success {formatDateTime(d.lastSuccessAt)}
+            </p>
+            {(d.configurationError || d.lastError) && (
+              <p className="truncate text-xs text-error" title={d.configurationError ?? d.lastError ?? ''}>
+                {d.configurationError ?? d.lastError}
+              </p>
+            )}
           </div>
           {can('manageDestinations') && (
-            <Button size="sm" busy={toggle.isPending && toggle.variables?.id === d.id} onClick={() => onToggle(d)}>{d.paused ? 'Resume' : 'Pause'}</Button>
+            <Button size="sm" busy={toggle.isPending && toggle.variables?.id === d.id} onClick={() => onToggle(d)}>
+              {d.paused ? 'Resume' : 'Pause'}
+            </Button>
           )}
         </div>
       ))}

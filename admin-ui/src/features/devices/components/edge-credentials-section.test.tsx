@@ -12,12 +12,39 @@ afterEach(() => vi.unstubAllGlobals());
 // A SHA-256 is 32 bytes: 64 hex digits (FIPS 180-4). Invented demo values below.
 const FINGERPRINT = '3f'.repeat(32);
 const credential = (id: string, kind: string, value: string, scope: string, scopeId: string, note: string | null = null) => ({
-  id, scope, scopeId, kind, value, note, createdAt: '2026-12-01T20:00:00Z', createdBy: 'ingrid.integrator',
+  id,
+  scope,
+  scopeId,
+  kind,
+  value,
+  note,
+  createdAt: '2026-12-01T20:00:00Z',
+  createdBy: 'ingrid.integrator',
 });
-const monitor = { id: 'm1', identifier: '0EBB000000000001', profileId: 'p1', bedId: null, enabled: true, lastSeenAt: null, dataRate: null, hasApiKey: false, createdAt: '2026-12-01T20:00:00Z', updatedAt: '2026-12-01T20:00:00Z' };
+const monitor = {
+  id: 'm1',
+  identifier: '0EBB000000000001',
+  profileId: 'p1',
+  bedId: null,
+  enabled: true,
+  lastSeenAt: null,
+  dataRate: null,
+  hasApiKey: false,
+  createdAt: '2026-12-01T20:00:00Z',
+  updatedAt: '2026-12-01T20:00:00Z',
+};
 const profile = {
-  id: 'p1', name: 'Bay monitor', manufacturer: 'Harrowmere Clinical Engineering', model: 'Bay bedside', transports: ['mllp'], plethScaling: 'raw', defaultProbeSite: null, notes: null,
-  channels: [{ code: 'MDC_PRESS_BLD_ART_ABP', role: 'abp', unit: 'mmHg', gain: 1, offset: 0, sampleRate: 125 }], createdAt: '2026-12-01T20:00:00Z', updatedAt: '2026-12-01T20:00:00Z',
+  id: 'p1',
+  name: 'Bay monitor',
+  manufacturer: 'Harrowmere Clinical Engineering',
+  model: 'Bay bedside',
+  transports: ['mllp'],
+  plethScaling: 'raw',
+  defaultProbeSite: null,
+  notes: null,
+  channels: [{ code: 'MDC_PRESS_BLD_ART_ABP', role: 'abp', unit: 'mmHg', gain: 1, offset: 0, sampleRate: 125 }],
+  createdAt: '2026-12-01T20:00:00Z',
+  updatedAt: '2026-12-01T20:00:00Z',
 };
 
 function gateway(roles: string[], stored: Record<string, ReturnType<typeof credential>[]>) {
@@ -50,12 +77,18 @@ function gateway(roles: string[], stored: Record<string, ReturnType<typeof crede
   });
 }
 
-const edgeCalls = (gw: ReturnType<typeof gateway>, method: string) => gw.calls.filter((c) => c.method === method && c.url.pathname.includes('/edge-credentials'));
+const edgeCalls = (gw: ReturnType<typeof gateway>, method: string) =>
+  gw.calls.filter((c) => c.method === method && c.url.pathname.includes('/edge-credentials'));
 
 describe('device edge on the monitors page', () => {
-  it('lists a monitor\'s certificates and sources, adds one through the shared schema and removes one', async () => {
+  it("lists a monitor's certificates and sources, adds one through the shared schema and removes one", async () => {
     expect(rolesWith('monitors.keys')).toContain('integrator');
-    const gw = gateway(['integrator'], { 'monitors/m1': [credential('c1', 'certificate-fingerprint', FINGERPRINT, 'monitor', 'm1', 'bay 7 adapter'), credential('c2', 'source', '10.20.0.0/24', 'monitor', 'm1')] });
+    const gw = gateway(['integrator'], {
+      'monitors/m1': [
+        credential('c1', 'certificate-fingerprint', FINGERPRINT, 'monitor', 'm1', 'bay 7 adapter'),
+        credential('c2', 'source', '10.20.0.0/24', 'monitor', 'm1'),
+      ],
+    });
     renderApp(<MonitorsRoute />);
     await userEvent.click(await screen.findByRole('button', { name: 'Device edge of 0EBB000000000001' }));
     const section = await screen.findByTestId('device-edge');
@@ -90,7 +123,12 @@ describe('device edge on the monitors page', () => {
     await waitFor(() => expect(edgeCalls(gw, 'DELETE')).toHaveLength(1));
     expect(edgeCalls(gw, 'DELETE')[0]!.url.pathname).toBe('/api/v1/monitors/m1/edge-credentials/c2');
     await waitFor(() => expect(within(section).getAllByTestId('edge-credential')).toHaveLength(2));
-    expect(within(section).getAllByTestId('edge-credential').map((r) => r.textContent).join('|')).not.toContain('10.20.0.0/24');
+    expect(
+      within(section)
+        .getAllByTestId('edge-credential')
+        .map((r) => r.textContent)
+        .join('|'),
+    ).not.toContain('10.20.0.0/24');
   });
 
   it('is not offered to a role without monitors.keys, and nothing is asked for', async () => {
@@ -104,7 +142,13 @@ describe('device edge on the monitors page', () => {
 });
 
 describe('device edge on the profile page', () => {
-  const renderProfile = () => renderApp(<Routes><Route path="/profiles/:id" element={<ProfileEditRoute />} /></Routes>, { route: '/profiles/p1' });
+  const renderProfile = () =>
+    renderApp(
+      <Routes>
+        <Route path="/profiles/:id" element={<ProfileEditRoute />} />
+      </Routes>,
+      { route: '/profiles/p1' },
+    );
 
   it('adds a certificate subject with a note to the profile', async () => {
     const gw = gateway(['integrator'], {});
@@ -125,13 +169,22 @@ describe('device edge on the profile page', () => {
     expect(row.textContent).toContain('ICU adapter');
   });
 
-  it('shows the gateway\'s field error next to the value when it refuses a fingerprint', async () => {
+  it("shows the gateway's field error next to the value when it refuses a fingerprint", async () => {
     const gw = fakeGateway((c) => {
       if (c.url.pathname === '/api/v1/auth/session') return { body: SESSION(['integrator']) };
       if (c.url.pathname === '/api/v1/profiles/p1') return { body: profile };
       if (c.url.pathname === '/api/v1/profiles/p1/edge-credentials' && c.method === 'GET') return { body: [] };
       if (c.url.pathname === '/api/v1/profiles/p1/edge-credentials' && c.method === 'POST') {
-        return { status: 400, body: { type: 'about:blank', title: 'Bad Request', status: 400, detail: 'A certificate fingerprint is the SHA-256 of the certificate: 64 hex digits (colons allowed).', errors: [{ path: 'value', message: 'not a SHA-256 fingerprint' }] } };
+        return {
+          status: 400,
+          body: {
+            type: 'about:blank',
+            title: 'Bad Request',
+            status: 400,
+            detail: 'A certificate fingerprint is the SHA-256 of the certificate: 64 hex digits (colons allowed).',
+            errors: [{ path: 'value', message: 'not a SHA-256 fingerprint' }],
+          },
+        };
       }
       return undefined;
     });

@@ -32,20 +32,44 @@ const undefinedIfEmpty = (v: unknown) => (typeof v === 'string' && v.trim() === 
 function AddEdgeCredentialForm({ scope, id }: { scope: EdgeCredentialScope; id: string }) {
   const add = useAddEdgeCredential(scope, id);
   const toast = useToast();
-  const form = useForm<In, unknown, Out>({ resolver: zodResolver(newEdgeCredentialSchema), defaultValues: { kind: 'certificate-fingerprint', value: '', note: undefined } });
-  useEffect(() => { if (add.error) applyServerErrors(add.error, form.setError); }, [add.error, form.setError]);
+  const form = useForm<In, unknown, Out>({
+    resolver: zodResolver(newEdgeCredentialSchema),
+    defaultValues: { kind: 'certificate-fingerprint', value: '', note: undefined },
+  });
+  useEffect(() => {
+    if (add.error) applyServerErrors(add.error, form.setError);
+  }, [add.error, form.setError]);
   const kind = useWatch({ control: form.control, name: 'kind' });
   const e = form.formState.errors;
-  const submit = (v: Out) => add.mutate(v, { onSuccess: () => { toast.success(`${EDGE_KIND_TEXT[v.kind]} added`); form.reset({ kind: v.kind, value: '', note: undefined }); } });
+  const submit = (v: Out) =>
+    add.mutate(v, {
+      onSuccess: () => {
+        toast.success(`${EDGE_KIND_TEXT[v.kind]} added`);
+        form.reset({ kind: v.kind, value: '', note: undefined });
+      },
+    });
   return (
     <form noValidate onSubmit={form.handleSubmit(submit)} className="flex flex-col gap-2" aria-label="Add device edge credential">
       <div className="grid gap-2 sm:grid-cols-[16rem_1fr]">
         <SelectField label="Kind" {...form.register('kind')} error={e.kind?.message} options={KINDS.map((k) => ({ value: k, label: EDGE_KIND_TEXT[k] }))} />
         <TextField label="Value" className="font-mono" {...form.register('value')} error={e.value?.message} hint={VALUE_HINT[kind]} />
       </div>
-      <TextField label="Note (optional)" {...form.register('note', { setValueAs: undefinedIfEmpty })} error={e.note?.message} hint="Where this comes from, e.g. the adapter host" />
-      {add.error !== null && <p role="alert" className="text-sm text-error">{errorMessage(add.error)}</p>}
-      <div className="flex justify-end"><Button type="submit" variant="primary" busy={add.isPending}>Add credential</Button></div>
+      <TextField
+        label="Note (optional)"
+        {...form.register('note', { setValueAs: undefinedIfEmpty })}
+        error={e.note?.message}
+        hint="Where this comes from, e.g. the adapter host"
+      />
+      {add.error !== null && (
+        <p role="alert" className="text-sm text-error">
+          {errorMessage(add.error)}
+        </p>
+      )}
+      <div className="flex justify-end">
+        <Button type="submit" variant="primary" busy={add.isPending}>
+          Add credential
+        </Button>
+      </div>
     </form>
   );
 }
@@ -59,16 +83,24 @@ export function EdgeCredentialsSection({ scope, id }: { scope: EdgeCredentialSco
   const remove = useRemoveEdgeCredential(scope, id);
   const toast = useToast();
   const [removing, setRemoving] = useState<EdgeCredential | null>(null);
-  const close = () => { setRemoving(null); remove.reset(); };
+  const close = () => {
+    setRemoving(null);
+    remove.reset();
+  };
   return (
     <div className="flex flex-col gap-3" data-testid="device-edge">
       <p className="text-sm text-muted">
-        {scope === 'profile' ? 'Credentials here count for every monitor of this profile. ' : ''}
-        A monitor with a client certificate registered refuses plain MLLP: it must send over MLLP with TLS.
+        {scope === 'profile' ? 'Credentials here count for every monitor of this profile. ' : ''}A monitor with a client certificate registered refuses plain
+        MLLP: it must send over MLLP with TLS.
       </p>
       {list.isPending && <LoadingState label="Loading credentials…" />}
       {list.error && <ErrorState error={list.error} onRetry={() => list.refetch()} />}
-      {list.data && list.data.length === 0 && <EmptyState title="No device edge credentials registered here">{scope === 'monitor' ? 'Those of the monitor\'s profile still apply. ' : ''}Without any, plain MLLP is allowed only from the source addresses in the gateway configuration.</EmptyState>}
+      {list.data && list.data.length === 0 && (
+        <EmptyState title="No device edge credentials registered here">
+          {scope === 'monitor' ? "Those of the monitor's profile still apply. " : ''}Without any, plain MLLP is allowed only from the source addresses in the
+          gateway configuration.
+        </EmptyState>
+      )}
       {list.data && list.data.length > 0 && (
         <ul className="divide-y divide-line rounded border border-line" aria-label="Registered credentials">
           {list.data.map((c) => (
@@ -76,18 +108,42 @@ export function EdgeCredentialsSection({ scope, id }: { scope: EdgeCredentialSco
               <div className="min-w-0">
                 <p className="text-xs font-medium text-ink-800">{EDGE_KIND_TEXT[c.kind]}</p>
                 <p className="break-all font-mono text-xs">{c.value}</p>
-                <p className="text-xs text-muted">{c.note ? `${c.note} · ` : ''}added {formatDateTime(c.createdAt)}{c.createdBy ? ` by ${c.createdBy}` : ''}</p>
+                <p className="text-xs text-muted">
+                  {c.note ? `${c.note} · ` : ''}added {formatDateTime(c.createdAt)}
+                  {c.createdBy ? ` by ${c.createdBy}` : ''}
+                </p>
               </div>
-              <Button size="sm" variant="ghost" onClick={() => setRemoving(c)} aria-label={`Remove ${c.value}`}>Remove</Button>
+              <Button size="sm" variant="ghost" onClick={() => setRemoving(c)} aria-label={`Remove ${c.value}`}>
+                Remove
+              </Button>
             </li>
           ))}
         </ul>
       )}
       <AddEdgeCredentialForm scope={scope} id={id} />
-      <ConfirmDialog open={!!removing} title="Remove credential" confirmLabel="Remove" danger
-        message={<>The device edge stops accepting <strong className="break-all">{removing?.value}</strong> for this {scope} at once.</>}
-        busy={remove.isPending} error={remove.error ? errorMessage(remove.error) : null} onClose={close}
-        onConfirm={() => removing && remove.mutate(removing.id, { onSuccess: () => { toast.success('Credential removed'); close(); } })} />
+      <ConfirmDialog
+        open={!!removing}
+        title="Remove credential"
+        confirmLabel="Remove"
+        danger
+        message={
+          <>
+            The device edge stops accepting <strong className="break-all">{removing?.value}</strong> for this {scope} at once.
+          </>
+        }
+        busy={remove.isPending}
+        error={remove.error ? errorMessage(remove.error) : null}
+        onClose={close}
+        onConfirm={() =>
+          removing &&
+          remove.mutate(removing.id, {
+            onSuccess: () => {
+              toast.success('Credential removed');
+              close();
+            },
+          })
+        }
+      />
     </div>
   );
 }

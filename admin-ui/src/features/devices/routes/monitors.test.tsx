@@ -7,8 +7,16 @@ import { MonitorsRoute } from './monitors';
 afterEach(() => vi.unstubAllGlobals());
 
 const monitor = (i: number) => ({
-  id: `m${i}`, identifier: `0EBB0000000000${String(i).padStart(2, '0')}`, profileId: 'p1', bedId: null, enabled: true,
-  lastSeenAt: null, dataRate: null, hasApiKey: false, createdAt: '2026-12-01T20:00:00Z', updatedAt: '2026-12-01T20:00:00Z',
+  id: `m${i}`,
+  identifier: `0EBB0000000000${String(i).padStart(2, '0')}`,
+  profileId: 'p1',
+  bedId: null,
+  enabled: true,
+  lastSeenAt: null,
+  dataRate: null,
+  hasApiKey: false,
+  createdAt: '2026-12-01T20:00:00Z',
+  updatedAt: '2026-12-01T20:00:00Z',
 });
 
 // The page envelope of every list endpoint (`pageOf` in shared/src/schemas/common.ts): the server
@@ -18,7 +26,25 @@ function gateway() {
     if (c.url.pathname === '/api/v1/auth/session') return { body: SESSION(['integrator']) };
     if (c.url.pathname === '/api/v1/profiles') return { body: { items: [{ id: 'p1', name: 'Bay monitor' }], page: 1, pageSize: 500, total: 1 } };
     if (c.url.pathname === '/api/v1/beds') return { body: { items: [], page: 1, pageSize: 500, total: 0 } };
-    if (c.url.pathname === '/api/v1/board/monitors/m3/flush-test') return { body: { latest: { assessmentId: 'a9', windowEnd: '2026-12-01T21:00:00Z', dampingEstimate: 'adequate', flushTest: { releaseTime: 3, naturalFrequencyHz: 21.4, dampingRatio: 0.31, amplitudeRatio: 0.36, oscillations: 3, region: 'adequate', regionText: 'adequate region of the Gardner chart' } } } };
+    if (c.url.pathname === '/api/v1/board/monitors/m3/flush-test')
+      return {
+        body: {
+          latest: {
+            assessmentId: 'a9',
+            windowEnd: '2026-12-01T21:00:00Z',
+            dampingEstimate: 'adequate',
+            flushTest: {
+              releaseTime: 3,
+              naturalFrequencyHz: 21.4,
+              dampingRatio: 0.31,
+              amplitudeRatio: 0.36,
+              oscillations: 3,
+              region: 'adequate',
+              regionText: 'adequate region of the Gardner chart',
+            },
+          },
+        },
+      };
     if (c.url.pathname === '/api/v1/monitors') {
       const page = Number(c.url.searchParams.get('page'));
       return { body: { items: Array.from({ length: 25 }, (_, i) => monitor((page - 1) * 25 + i)), page, pageSize: 25, total: 60 } };
@@ -27,7 +53,8 @@ function gateway() {
   });
 }
 
-const lastMonitorQuery = (gw: ReturnType<typeof gateway>) => Object.fromEntries(gw.calls.filter((c) => c.url.pathname === '/api/v1/monitors').at(-1)!.url.searchParams);
+const lastMonitorQuery = (gw: ReturnType<typeof gateway>) =>
+  Object.fromEntries(gw.calls.filter((c) => c.url.pathname === '/api/v1/monitors').at(-1)!.url.searchParams);
 
 describe('monitors table', () => {
   it('asks the server for each page, sort and filter, and shows the server total', async () => {

@@ -11,7 +11,17 @@ import { ConfirmDialog, Dialog } from '@/components/ui/dialog';
 import { SelectField, TextField } from '@/components/ui/field';
 import { FilterBar, PageHeader } from '@/components/ui/page';
 import { useToast } from '@/components/ui/toast';
-import { useBedOptions, useCreateMonitor, useDeleteMonitor, useIssueApiKey, useLatestFlushTest, useMonitors, useProfileOptions, useRevokeApiKey, useUpdateMonitor } from '../api/devices';
+import {
+  useBedOptions,
+  useCreateMonitor,
+  useDeleteMonitor,
+  useIssueApiKey,
+  useLatestFlushTest,
+  useMonitors,
+  useProfileOptions,
+  useRevokeApiKey,
+  useUpdateMonitor,
+} from '../api/devices';
 import { Link } from 'react-router-dom';
 import { ErrorState, LoadingState } from '@/components/ui/states';
 import { MonitorForm } from '../components/monitor-form';
@@ -30,7 +40,12 @@ function FlushTestDialogBody({ monitorId }: { monitorId: string }) {
   if (!latest) return <p className="text-sm text-muted">No flush test measured on this monitor in the last 24 hours.</p>;
   return (
     <div className="flex flex-col gap-2 text-sm" data-testid="latest-flush-test">
-      <p>Window ending {formatDateTime(latest.windowEnd)} · <Link className="text-ink-700 underline" to={`/assessments/${encodeURIComponent(latest.assessmentId)}`}>open the assessment</Link></p>
+      <p>
+        Window ending {formatDateTime(latest.windowEnd)} ·{' '}
+        <Link className="text-ink-700 underline" to={`/assessments/${encodeURIComponent(latest.assessmentId)}`}>
+          open the assessment
+        </Link>
+      </p>
       <FlushTestSummary test={latest.flushTest as Parameters<typeof FlushTestSummary>[0]['test']} />
     </div>
   );
@@ -56,74 +71,254 @@ export function MonitorsRoute() {
   const [issued, setIssued] = useState<{ key: ApiKeyIssued; monitor: string } | null>(null);
   const profileName = useMemo(() => new Map((profiles.data?.items ?? []).map((p) => [p.id, p.name])), [profiles.data]);
   const bedName = useMemo(() => new Map((beds.data?.items ?? []).map((b) => [b.id, `${b.name} · ${b.unit}`])), [beds.data]);
-  const close = () => { setPending(null); create.reset(); update.reset(); remove.reset(); issue.reset(); revoke.reset(); };
+  const close = () => {
+    setPending(null);
+    create.reset();
+    update.reset();
+    remove.reset();
+    issue.reset();
+    revoke.reset();
+  };
 
   const columns: Column<Monitor>[] = [
     { key: 'identifier', header: 'Identifier', sortField: 'identifier', render: (m) => <span className="font-mono text-xs font-medium">{m.identifier}</span> },
-    { key: 'profile', header: 'Profile', render: (m) => (m.profileId ? profileName.get(m.profileId) ?? m.profileId : <Badge tone="warn">no profile</Badge>) },
-    { key: 'bed', header: 'Bed', render: (m) => (m.bedId ? bedName.get(m.bedId) ?? m.bedId : <span className="text-muted">not assigned</span>) },
+    { key: 'profile', header: 'Profile', render: (m) => (m.profileId ? (profileName.get(m.profileId) ?? m.profileId) : <Badge tone="warn">no profile</Badge>) },
+    { key: 'bed', header: 'Bed', render: (m) => (m.bedId ? (bedName.get(m.bedId) ?? m.bedId) : <span className="text-muted">not assigned</span>) },
     { key: 'enabled', header: 'State', sortField: 'enabled', render: (m) => <StatusBadge status={m.enabled ? 'enabled' : 'disabled'} /> },
     { key: 'lastSeenAt', header: 'Last data', sortField: 'lastSeenAt', render: (m) => <span className="num">{formatDateTime(m.lastSeenAt)}</span> },
-    { key: 'dataRate', header: 'Samples/s', className: 'text-right', sortField: 'dataRate', render: (m) => <span className="num">{formatNumber(m.dataRate, 0)}</span> },
+    {
+      key: 'dataRate',
+      header: 'Samples/s',
+      className: 'text-right',
+      sortField: 'dataRate',
+      render: (m) => <span className="num">{formatNumber(m.dataRate, 0)}</span>,
+    },
     { key: 'key', header: 'API key', render: (m) => (m.hasApiKey ? <Badge tone="good">issued</Badge> : <Badge>none</Badge>) },
-    { key: 'line', header: 'Arterial line', render: (m) => <Button size="sm" variant="ghost" onClick={() => setLineCheck(m)} aria-label={`Latest flush test of ${m.identifier}`}>Latest flush test</Button> },
-    ...(edge ? [{ key: 'edge', header: 'Device edge', render: (m: Monitor) => <Button size="sm" variant="ghost" onClick={() => setEdgeOf(m)} aria-label={`Device edge of ${m.identifier}`}>Device edge</Button> }] : []),
-    ...(manage ? [{ key: 'actions', header: 'Actions', render: (m: Monitor) => (
-      <span className="flex flex-wrap gap-1">
-        <Button size="sm" onClick={() => setPending({ kind: 'edit', monitor: m })}>Edit</Button>
-        <Button size="sm" onClick={() => (m.hasApiKey ? setPending({ kind: 'issue', monitor: m }) : issueKey(m))} busy={issue.isPending && issue.variables === m.id}>{m.hasApiKey ? 'Replace key' : 'Issue key'}</Button>
-        {m.hasApiKey && <Button size="sm" variant="ghost" onClick={() => setPending({ kind: 'revoke', monitor: m })}>Revoke key</Button>}
-        <Button size="sm" variant="ghost" onClick={() => setPending({ kind: 'delete', monitor: m })}>Remove</Button>
-      </span>
-    ) }] : []),
+    {
+      key: 'line',
+      header: 'Arterial line',
+      render: (m) => (
+        <Button size="sm" variant="ghost" onClick={() => setLineCheck(m)} aria-label={`Latest flush test of ${m.identifier}`}>
+          Latest flush test
+        </Button>
+      ),
+    },
+    ...(edge
+      ? [
+          {
+            key: 'edge',
+            header: 'Device edge',
+            render: (m: Monitor) => (
+              <Button size="sm" variant="ghost" onClick={() => setEdgeOf(m)} aria-label={`Device edge of ${m.identifier}`}>
+                Device edge
+              </Button>
+            ),
+          },
+        ]
+      : []),
+    ...(manage
+      ? [
+          {
+            key: 'actions',
+            header: 'Actions',
+            render: (m: Monitor) => (
+              <span className="flex flex-wrap gap-1">
+                <Button size="sm" onClick={() => setPending({ kind: 'edit', monitor: m })}>
+                  Edit
+                </Button>
+                <Button
+                  size="sm"
+                  onClick={() => (m.hasApiKey ? setPending({ kind: 'issue', monitor: m }) : issueKey(m))}
+                  busy={issue.isPending && issue.variables === m.id}
+                >
+                  {m.hasApiKey ? 'Replace key' : 'Issue key'}
+                </Button>
+                {m.hasApiKey && (
+                  <Button size="sm" variant="ghost" onClick={() => setPending({ kind: 'revoke', monitor: m })}>
+                    Revoke key
+                  </Button>
+                )}
+                <Button size="sm" variant="ghost" onClick={() => setPending({ kind: 'delete', monitor: m })}>
+                  Remove
+                </Button>
+              </span>
+            ),
+          },
+        ]
+      : []),
   ];
 
   function issueKey(m: Monitor) {
     issue.mutate(m.id, {
-      onSuccess: (key) => { setIssued({ key, monitor: m.identifier }); setPending(null); },
+      onSuccess: (key) => {
+        setIssued({ key, monitor: m.identifier });
+        setPending(null);
+      },
       onError: (e) => toast.error(`Could not issue a key: ${errorMessage(e)}`),
     });
   }
 
   return (
     <>
-      <PageHeader title="Monitors" description="Bedside monitors allowed to send waveforms, their profile, bed and API key."
-        actions={manage ? <Button variant="primary" onClick={() => setPending({ kind: 'create' })}>Add monitor</Button> : undefined} />
+      <PageHeader
+        title="Monitors"
+        description="Bedside monitors allowed to send waveforms, their profile, bed and API key."
+        actions={
+          manage ? (
+            <Button variant="primary" onClick={() => setPending({ kind: 'create' })}>
+              Add monitor
+            </Button>
+          ) : undefined
+        }
+      />
       <FilterBar onClear={list.clearFilters}>
-        <TextField label="Search" placeholder="identifier" wrapClassName="w-56" value={list.filters.search ?? ''} onChange={(e) => list.setFilter('search', e.target.value)} />
-        <SelectField label="Profile" placeholder="any" wrapClassName="w-56" value={list.filters.profileId ?? ''} onChange={(e) => list.setFilter('profileId', e.target.value)}
-          options={(profiles.data?.items ?? []).map((p) => ({ value: p.id, label: p.name }))} />
-        <SelectField label="Bed" placeholder="any" wrapClassName="w-44" value={list.filters.bedId ?? ''} onChange={(e) => list.setFilter('bedId', e.target.value)}
-          options={(beds.data?.items ?? []).map((b) => ({ value: b.id, label: `${b.name} · ${b.unit}` }))} />
-        <SelectField label="State" placeholder="any" wrapClassName="w-36" value={list.filters.enabled ?? ''} onChange={(e) => list.setFilter('enabled', e.target.value)}
-          options={[{ value: 'true', label: 'enabled' }, { value: 'false', label: 'disabled' }]} />
+        <TextField
+          label="Search"
+          placeholder="identifier"
+          wrapClassName="w-56"
+          value={list.filters.search ?? ''}
+          onChange={(e) => list.setFilter('search', e.target.value)}
+        />
+        <SelectField
+          label="Profile"
+          placeholder="any"
+          wrapClassName="w-56"
+          value={list.filters.profileId ?? ''}
+          onChange={(e) => list.setFilter('profileId', e.target.value)}
+          options={(profiles.data?.items ?? []).map((p) => ({ value: p.id, label: p.name }))}
+        />
+        <SelectField
+          label="Bed"
+          placeholder="any"
+          wrapClassName="w-44"
+          value={list.filters.bedId ?? ''}
+          onChange={(e) => list.setFilter('bedId', e.target.value)}
+          options={(beds.data?.items ?? []).map((b) => ({ value: b.id, label: `${b.name} · ${b.unit}` }))}
+        />
+        <SelectField
+          label="State"
+          placeholder="any"
+          wrapClassName="w-36"
+          value={list.filters.enabled ?? ''}
+          onChange={(e) => list.setFilter('enabled', e.target.value)}
+          options={[
+            { value: 'true', label: 'enabled' },
+            { value: 'false', label: 'disabled' },
+          ]}
+        />
       </FilterBar>
-      <DataTable caption="Monitors" columns={columns} rows={monitors.data?.items} total={monitors.data?.total} rowId={(m) => m.id}
-        params={list.params} onParamsChange={list.setParams} loading={monitors.isPending} fetching={monitors.isFetching} error={monitors.error} onRetry={() => monitors.refetch()}
-        emptyTitle="No monitors mapped yet" emptyHint="Add a monitor by its identifier, pick its profile and bed, then issue its API key." />
+      <DataTable
+        caption="Monitors"
+        columns={columns}
+        rows={monitors.data?.items}
+        total={monitors.data?.total}
+        rowId={(m) => m.id}
+        params={list.params}
+        onParamsChange={list.setParams}
+        loading={monitors.isPending}
+        fetching={monitors.isFetching}
+        error={monitors.error}
+        onRetry={() => monitors.refetch()}
+        emptyTitle="No monitors mapped yet"
+        emptyHint="Add a monitor by its identifier, pick its profile and bed, then issue its API key."
+      />
 
       <Dialog open={pending?.kind === 'create'} title="Add monitor" onClose={close}>
-        <MonitorForm busy={create.isPending} error={create.error} onCancel={close}
-          onSubmit={(v) => create.mutate(v, { onSuccess: (m) => { toast.success(`Monitor ${m.identifier} added`); close(); } })} />
+        <MonitorForm
+          busy={create.isPending}
+          error={create.error}
+          onCancel={close}
+          onSubmit={(v) =>
+            create.mutate(v, {
+              onSuccess: (m) => {
+                toast.success(`Monitor ${m.identifier} added`);
+                close();
+              },
+            })
+          }
+        />
       </Dialog>
       {pending?.kind === 'edit' && (
         <Dialog open title={`Edit monitor ${pending.monitor.identifier}`} onClose={close}>
-          <MonitorForm monitor={pending.monitor} busy={update.isPending} error={update.error} onCancel={close}
-            onSubmit={(v) => update.mutate({ id: pending.monitor.id, body: { identifier: v.identifier, profileId: v.profileId ?? null, bedId: v.bedId ?? null, enabled: v.enabled } }, { onSuccess: () => { toast.success('Monitor saved'); close(); } })} />
+          <MonitorForm
+            monitor={pending.monitor}
+            busy={update.isPending}
+            error={update.error}
+            onCancel={close}
+            onSubmit={(v) =>
+              update.mutate(
+                { id: pending.monitor.id, body: { identifier: v.identifier, profileId: v.profileId ?? null, bedId: v.bedId ?? null, enabled: v.enabled } },
+                {
+                  onSuccess: () => {
+                    toast.success('Monitor saved');
+                    close();
+                  },
+                },
+              )
+            }
+          />
         </Dialog>
       )}
-      <ConfirmDialog open={pending?.kind === 'issue'} title="Replace API key" confirmLabel="Issue new key" danger
-        message={<>The current key of <strong>{pending && 'monitor' in pending ? pending.monitor.identifier : ''}</strong> stops working at once; the adapter needs the new key.</>}
-        busy={issue.isPending} error={issue.error ? errorMessage(issue.error) : null} onClose={close}
-        onConfirm={() => pending && 'monitor' in pending && issueKey(pending.monitor)} />
-      <ConfirmDialog open={pending?.kind === 'revoke'} title="Revoke API key" confirmLabel="Revoke" danger
+      <ConfirmDialog
+        open={pending?.kind === 'issue'}
+        title="Replace API key"
+        confirmLabel="Issue new key"
+        danger
+        message={
+          <>
+            The current key of <strong>{pending && 'monitor' in pending ? pending.monitor.identifier : ''}</strong> stops working at once; the adapter needs the
+            new key.
+          </>
+        }
+        busy={issue.isPending}
+        error={issue.error ? errorMessage(issue.error) : null}
+        onClose={close}
+        onConfirm={() => pending && 'monitor' in pending && issueKey(pending.monitor)}
+      />
+      <ConfirmDialog
+        open={pending?.kind === 'revoke'}
+        title="Revoke API key"
+        confirmLabel="Revoke"
+        danger
         message={<>The monitor can no longer send data until a new key is issued. Batches it sends meanwhile are refused with 401.</>}
-        busy={revoke.isPending} error={revoke.error ? errorMessage(revoke.error) : null} onClose={close}
-        onConfirm={() => pending && 'monitor' in pending && revoke.mutate(pending.monitor.id, { onSuccess: () => { toast.success('Key revoked'); close(); } })} />
-      <ConfirmDialog open={pending?.kind === 'delete'} title="Remove monitor" confirmLabel="Remove" danger
-        message={<>Remove <strong>{pending && 'monitor' in pending ? pending.monitor.identifier : ''}</strong>? Its stored assessments stay.</>}
-        busy={remove.isPending} error={remove.error ? errorMessage(remove.error) : null} onClose={close}
-        onConfirm={() => pending && 'monitor' in pending && remove.mutate(pending.monitor.id, { onSuccess: () => { toast.success('Monitor removed'); close(); } })} />
+        busy={revoke.isPending}
+        error={revoke.error ? errorMessage(revoke.error) : null}
+        onClose={close}
+        onConfirm={() =>
+          pending &&
+          'monitor' in pending &&
+          revoke.mutate(pending.monitor.id, {
+            onSuccess: () => {
+              toast.success('Key revoked');
+              close();
+            },
+          })
+        }
+      />
+      <ConfirmDialog
+        open={pending?.kind === 'delete'}
+        title="Remove monitor"
+        confirmLabel="Remove"
+        danger
+        message={
+          <>
+            Remove <strong>{pending && 'monitor' in pending ? pending.monitor.identifier : ''}</strong>? Its stored assessments stay.
+          </>
+        }
+        busy={remove.isPending}
+        error={remove.error ? errorMessage(remove.error) : null}
+        onClose={close}
+        onConfirm={() =>
+          pending &&
+          'monitor' in pending &&
+          remove.mutate(pending.monitor.id, {
+            onSuccess: () => {
+              toast.success('Monitor removed');
+              close();
+            },
+          })
+        }
+      />
       {lineCheck && (
         <Dialog open title={`Arterial line of ${lineCheck.identifier}`} onClose={() => setLineCheck(null)}>
           <FlushTestDialogBody monitorId={lineCheck.id} />

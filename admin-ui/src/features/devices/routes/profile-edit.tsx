@@ -21,13 +21,34 @@ export function ProfileEditRoute() {
 
   return (
     <>
-      <p className="mb-1 text-xs"><Link to="/profiles" className="text-ink-700 underline">← Monitor profiles</Link></p>
-      <PageHeader title={isNew ? 'New monitor profile' : `Profile ${profile.data?.name ?? ''}`} description="Channel codes, roles, units, scaling, rates, and what the monitor itself does to the signal." />
+      <p className="mb-1 text-xs">
+        <Link to="/profiles" className="text-ink-700 underline">
+          ← Monitor profiles
+        </Link>
+      </p>
+      <PageHeader
+        title={isNew ? 'New monitor profile' : `Profile ${profile.data?.name ?? ''}`}
+        description="Channel codes, roles, units, scaling, rates, and what the monitor itself does to the signal."
+      />
       <Panel>
         {can('manageDevices') ? (
-          <ProfileForm profile={isNew ? undefined : profile.data} busy={save.isPending} error={save.error} onCancel={() => navigate('/profiles')}
-            onSubmit={(v) => save.mutate(v, { onSuccess: (p) => { toast.success(`Profile ${p.name} saved`); navigate('/profiles'); } })} />
-        ) : <p className="text-sm text-muted">Only integrators can change profiles.</p>}
+          <ProfileForm
+            profile={isNew ? undefined : profile.data}
+            busy={save.isPending}
+            error={save.error}
+            onCancel={() => navigate('/profiles')}
+            onSubmit={(v) =>
+              save.mutate(v, {
+                onSuccess: (p) => {
+                  toast.success(`Profile ${p.name} saved`);
+                  navigate('/profiles');
+                },
+              })
+            }
+          />
+        ) : (
+          <p className="text-sm text-muted">Only integrators can change profiles.</p>
+        )}
       </Panel>
       {!isNew && id && can('edgeCredentials') && (
         <Panel title="Device edge" className="mt-3">

@@ -25,29 +25,110 @@ export function ProfilesRoute() {
   const manage = can('manageDevices');
 
   const columns: Column<MonitorProfile>[] = [
-    { key: 'name', header: 'Profile', sortField: 'name', render: (p) => <Link className="font-medium text-ink-700 hover:underline" to={`/profiles/${p.id}`}>{p.name}</Link> },
+    {
+      key: 'name',
+      header: 'Profile',
+      sortField: 'name',
+      render: (p) => (
+        <Link className="font-medium text-ink-700 hover:underline" to={`/profiles/${p.id}`}>
+          {p.name}
+        </Link>
+      ),
+    },
     { key: 'maker', header: 'Manufacturer · model', sortField: 'manufacturer', render: (p) => `${p.manufacturer} · ${p.model}` },
-    { key: 'transports', header: 'Transports', render: (p) => <span className="flex gap-1">{p.transports.map((t) => <Badge key={t}>{t}</Badge>)}</span> },
+    {
+      key: 'transports',
+      header: 'Transports',
+      render: (p) => (
+        <span className="flex gap-1">
+          {p.transports.map((t) => (
+            <Badge key={t}>{t}</Badge>
+          ))}
+        </span>
+      ),
+    },
     { key: 'channels', header: 'Channels', render: (p) => <span className="text-xs">{p.channels.map((c) => `${c.code}→${c.role}`).join(', ')}</span> },
     { key: 'pleth', header: 'Pleth', render: (p) => <Badge tone={p.plethScaling === 'raw' ? 'neutral' : 'warn'}>{p.plethScaling}</Badge> },
     { key: 'updatedAt', header: 'Updated', sortField: 'updatedAt', render: (p) => <span className="num">{formatDateTime(p.updatedAt)}</span> },
-    ...(manage ? [{ key: 'actions', header: '', render: (p: MonitorProfile) => <Button size="sm" variant="ghost" onClick={() => setDeleting(p)}>Delete</Button> }] : []),
+    ...(manage
+      ? [
+          {
+            key: 'actions',
+            header: '',
+            render: (p: MonitorProfile) => (
+              <Button size="sm" variant="ghost" onClick={() => setDeleting(p)}>
+                Delete
+              </Button>
+            ),
+          },
+        ]
+      : []),
   ];
 
   return (
     <>
-      <PageHeader title="Monitor profiles" description="How each monitor model's channels map to what the engine analyses."
-        actions={manage ? <Button variant="primary" onClick={() => navigate('/profiles/new')}>New profile</Button> : undefined} />
+      <PageHeader
+        title="Monitor profiles"
+        description="How each monitor model's channels map to what the engine analyses."
+        actions={
+          manage ? (
+            <Button variant="primary" onClick={() => navigate('/profiles/new')}>
+              New profile
+            </Button>
+          ) : undefined
+        }
+      />
       <FilterBar onClear={list.clearFilters}>
-        <TextField label="Search" placeholder="name, manufacturer, model" wrapClassName="w-72" value={list.filters.search ?? ''} onChange={(e) => list.setFilter('search', e.target.value)} />
+        <TextField
+          label="Search"
+          placeholder="name, manufacturer, model"
+          wrapClassName="w-72"
+          value={list.filters.search ?? ''}
+          onChange={(e) => list.setFilter('search', e.target.value)}
+        />
       </FilterBar>
-      <DataTable caption="Monitor profiles" columns={columns} rows={profiles.data?.items} total={profiles.data?.total} rowId={(p) => p.id}
-        params={list.params} onParamsChange={list.setParams} loading={profiles.isPending} fetching={profiles.isFetching} error={profiles.error} onRetry={() => profiles.refetch()}
-        onRowClick={(p) => navigate(`/profiles/${p.id}`)} emptyTitle="No monitor profiles yet" emptyHint="Create one for each monitor model before mapping monitors." />
-      <ConfirmDialog open={!!deleting} title="Delete profile" danger confirmLabel="Delete"
-        message={<>Delete <strong>{deleting?.name}</strong>? Monitors using it must be moved to another profile first.</>}
-        busy={remove.isPending} error={remove.error ? errorMessage(remove.error) : null} onClose={() => { setDeleting(null); remove.reset(); }}
-        onConfirm={() => deleting && remove.mutate(deleting.id, { onSuccess: () => { toast.success(`Profile ${deleting.name} deleted`); setDeleting(null); } })} />
+      <DataTable
+        caption="Monitor profiles"
+        columns={columns}
+        rows={profiles.data?.items}
+        total={profiles.data?.total}
+        rowId={(p) => p.id}
+        params={list.params}
+        onParamsChange={list.setParams}
+        loading={profiles.isPending}
+        fetching={profiles.isFetching}
+        error={profiles.error}
+        onRetry={() => profiles.refetch()}
+        onRowClick={(p) => navigate(`/profiles/${p.id}`)}
+        emptyTitle="No monitor profiles yet"
+        emptyHint="Create one for each monitor model before mapping monitors."
+      />
+      <ConfirmDialog
+        open={!!deleting}
+        title="Delete profile"
+        danger
+        confirmLabel="Delete"
+        message={
+          <>
+            Delete <strong>{deleting?.name}</strong>? Monitors using it must be moved to another profile first.
+          </>
+        }
+        busy={remove.isPending}
+        error={remove.error ? errorMessage(remove.error) : null}
+        onClose={() => {
+          setDeleting(null);
+          remove.reset();
+        }}
+        onConfirm={() =>
+          deleting &&
+          remove.mutate(deleting.id, {
+            onSuccess: () => {
+              toast.success(`Profile ${deleting.name} deleted`);
+              setDeleting(null);
+            },
+          })
+        }
+      />
     </>
   );
 }

@@ -11,10 +11,18 @@ export const inboundKeys = {
 const enc = encodeURIComponent;
 
 export function useInboundMessages(q: Query) {
-  return useQuery({ queryKey: inboundKeys.list(q), queryFn: ({ signal }) => api.get<Page<InboundMessage>>('/inbound-messages', q, signal), placeholderData: keepPreviousData });
+  return useQuery({
+    queryKey: inboundKeys.list(q),
+    queryFn: ({ signal }) => api.get<Page<InboundMessage>>('/inbound-messages', q, signal),
+    placeholderData: keepPreviousData,
+  });
 }
 export function useInboundMessage(id: string | null) {
-  return useQuery({ queryKey: inboundKeys.detail(id ?? ''), queryFn: ({ signal }) => api.get<InboundMessageDetail>(`/inbound-messages/${enc(id!)}`, undefined, signal), enabled: !!id });
+  return useQuery({
+    queryKey: inboundKeys.detail(id ?? ''),
+    queryFn: ({ signal }) => api.get<InboundMessageDetail>(`/inbound-messages/${enc(id!)}`, undefined, signal),
+    enabled: !!id,
+  });
 }
 export const reprocessInbound = (id: string) => api.post<unknown>(`/inbound-messages/${enc(id)}/reprocess`);
 export const discardInbound = (id: string, reason: string) => api.post<unknown>(`/inbound-messages/${enc(id)}/discard`, { reason });

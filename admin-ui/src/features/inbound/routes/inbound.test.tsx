@@ -8,9 +8,25 @@ import { InboundRoute } from './inbound';
 afterEach(() => vi.unstubAllGlobals());
 
 const FINGERPRINT = 'a1'.repeat(32);
-const base = { transport: 'mllp', monitorIdentifier: '0EBB000000000007', batchId: null, sizeBytes: 420, continuity: null, continuityMs: null, receivedAt: '2026-12-01T21:00:00Z' };
+const base = {
+  transport: 'mllp',
+  monitorIdentifier: '0EBB000000000007',
+  batchId: null,
+  sizeBytes: 420,
+  continuity: null,
+  continuityMs: null,
+  receivedAt: '2026-12-01T21:00:00Z',
+};
 const messages = [
-  { ...base, id: 'i1', outcome: 'conflicting', reason: 'Another sender already streams for this monitor', sender: `certificate:${FINGERPRINT}`, sourceAddress: '10.20.0.31', stranger: false },
+  {
+    ...base,
+    id: 'i1',
+    outcome: 'conflicting',
+    reason: 'Another sender already streams for this monitor',
+    sender: `certificate:${FINGERPRINT}`,
+    sourceAddress: '10.20.0.31',
+    stranger: false,
+  },
   { ...base, id: 'i2', outcome: 'rejected', reason: 'The sender is not authenticated.', sender: null, sourceAddress: '203.0.113.9', stranger: true },
   { ...base, id: 'i3', outcome: 'accepted', reason: null, sender: 'api-key:k42', sourceAddress: '10.20.0.12', stranger: false, transport: 'http' },
 ];
@@ -19,12 +35,15 @@ function gateway() {
   return fakeGateway((c) => {
     if (c.url.pathname === '/api/v1/auth/session') return { body: SESSION(['integrator']) };
     if (c.url.pathname === '/api/v1/inbound-messages') return { body: { items: messages, page: 1, pageSize: 25, total: messages.length } };
-    if (c.url.pathname === '/api/v1/inbound-messages/i1') return { body: { ...messages[0], raw: 'MSH|^~\\&|', rawTruncated: false, handledAt: null, handledBy: null } };
-    if (c.url.pathname === '/api/v1/inbound-messages/i2') return { body: { ...messages[1], raw: 'MSH|', rawTruncated: true, handledAt: null, handledBy: null } };
+    if (c.url.pathname === '/api/v1/inbound-messages/i1')
+      return { body: { ...messages[0], raw: 'MSH|^~\\&|', rawTruncated: false, handledAt: null, handledBy: null } };
+    if (c.url.pathname === '/api/v1/inbound-messages/i2')
+      return { body: { ...messages[1], raw: 'MSH|', rawTruncated: true, handledAt: null, handledBy: null } };
     return undefined;
   });
 }
-const lastListQuery = (gw: ReturnType<typeof gateway>) => Object.fromEntries(gw.calls.filter((c) => c.url.pathname === '/api/v1/inbound-messages').at(-1)!.url.searchParams);
+const lastListQuery = (gw: ReturnType<typeof gateway>) =>
+  Object.fromEntries(gw.calls.filter((c) => c.url.pathname === '/api/v1/inbound-messages').at(-1)!.url.searchParams);
 
 describe('inbound messages: sender, source, strangers, conflicting', () => {
   it('shows who sent each message, from where, marks strangers and labels conflicting streams', async () => {

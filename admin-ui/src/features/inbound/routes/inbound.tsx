@@ -34,11 +34,20 @@ function senderText(sender: string | null | undefined, full = false): string | n
 }
 
 function StrangerMark() {
-  return <Badge tone="bad" title="Unauthenticated or unknown sender: only its metadata and the start of the message are kept">stranger</Badge>;
+  return (
+    <Badge tone="bad" title="Unauthenticated or unknown sender: only its metadata and the start of the message are kept">
+      stranger
+    </Badge>
+  );
 }
 
 function OutcomeBadge({ outcome }: { outcome: string }) {
-  if (outcome === 'conflicting') return <Badge tone="bad" title="Another sender already streams for this monitor; refused and kept, never merged">conflicting stream</Badge>;
+  if (outcome === 'conflicting')
+    return (
+      <Badge tone="bad" title="Another sender already streams for this monitor; refused and kept, never merged">
+        conflicting stream
+      </Badge>
+    );
   return <StatusBadge status={outcome} />;
 }
 
@@ -68,54 +77,168 @@ export function InboundRoute() {
   };
 
   const columns: Column<InboundMessage>[] = [
-    { key: 'receivedAt', header: 'Received', sortField: 'receivedAt', render: (m) => <span className="num whitespace-nowrap">{formatDateTime(m.receivedAt)}</span> },
+    {
+      key: 'receivedAt',
+      header: 'Received',
+      sortField: 'receivedAt',
+      render: (m) => <span className="num whitespace-nowrap">{formatDateTime(m.receivedAt)}</span>,
+    },
     { key: 'transport', header: 'Via', render: (m) => <Badge>{m.transport}</Badge> },
     { key: 'outcome', header: 'Outcome', sortField: 'outcome', render: (m) => <OutcomeBadge outcome={m.outcome} /> },
     { key: 'reason', header: 'Reason', render: (m) => <span className="text-xs">{m.reason ?? <span className="text-muted">—</span>}</span> },
     { key: 'monitor', header: 'Monitor', render: (m) => <span className="font-mono text-xs">{m.monitorIdentifier ?? '—'}</span> },
-    { key: 'sender', header: 'Sender', render: (m) => (
-      <span className="flex flex-col items-start gap-0.5 text-xs">
-        {m.stranger && <StrangerMark />}
-        <span className="font-mono">{senderText(m.sender) ?? <span className="text-muted">—</span>}</span>
-        {m.sourceAddress && <span className="font-mono text-muted">from {m.sourceAddress}</span>}
-      </span>
-    ) },
+    {
+      key: 'sender',
+      header: 'Sender',
+      render: (m) => (
+        <span className="flex flex-col items-start gap-0.5 text-xs">
+          {m.stranger && <StrangerMark />}
+          <span className="font-mono">{senderText(m.sender) ?? <span className="text-muted">—</span>}</span>
+          {m.sourceAddress && <span className="font-mono text-muted">from {m.sourceAddress}</span>}
+        </span>
+      ),
+    },
     { key: 'batch', header: 'Batch', render: (m) => <span className="font-mono text-xs">{m.batchId ?? '—'}</span> },
-    { key: 'continuity', header: 'Continuity', render: (m) => (m.continuity ? <span className="text-xs">{m.continuity}{m.continuityMs ? ` (${m.continuityMs} ms)` : ''}</span> : '—') },
+    {
+      key: 'continuity',
+      header: 'Continuity',
+      render: (m) =>
+        m.continuity ? (
+          <span className="text-xs">
+            {m.continuity}
+            {m.continuityMs ? ` (${m.continuityMs} ms)` : ''}
+          </span>
+        ) : (
+          '—'
+        ),
+    },
     { key: 'size', header: 'Size', sortField: 'sizeBytes', className: 'text-right', render: (m) => <span className="num">{formatBytes(m.sizeBytes)}</span> },
-    { key: 'detail', header: '', render: (m) => <Button size="sm" onClick={() => setOpen(m.id)}>Details</Button> },
+    {
+      key: 'detail',
+      header: '',
+      render: (m) => (
+        <Button size="sm" onClick={() => setOpen(m.id)}>
+          Details
+        </Button>
+      ),
+    },
   ];
 
-  const clear = () => { list.clearFilters(); setFrom(''); setTo(''); };
+  const clear = () => {
+    list.clearFilters();
+    setFrom('');
+    setTo('');
+  };
 
   return (
     <>
-      <PageHeader title="Inbound & quarantine" description="Every message a monitor sent, with what became of it. Nothing is dropped: quarantined messages wait here to be reprocessed or discarded." />
+      <PageHeader
+        title="Inbound & quarantine"
+        description="Every message a monitor sent, with what became of it. Nothing is dropped: quarantined messages wait here to be reprocessed or discarded."
+      />
       <FilterBar onClear={clear}>
-        <SelectField label="Outcome" placeholder="any" wrapClassName="w-40" value={list.filters.outcome ?? ''} onChange={(e) => list.setFilter('outcome', e.target.value)} options={OUTCOMES.map((o) => ({ value: o, label: OUTCOME_TEXT[o] ?? o }))} />
-        <SelectField label="Transport" placeholder="any" wrapClassName="w-32" value={list.filters.transport ?? ''} onChange={(e) => list.setFilter('transport', e.target.value)} options={[{ value: 'http', label: 'HTTP' }, { value: 'mllp', label: 'MLLP' }]} />
-        <TextField label="Monitor" placeholder="identifier" wrapClassName="w-44" value={list.filters.monitor ?? ''} onChange={(e) => list.setFilter('monitor', e.target.value)} />
-        <TextField label="From" type="datetime-local" wrapClassName="w-48" value={from} onChange={(e) => { setFrom(e.target.value); list.setFilter('from', localInputToIso(e.target.value)); }} />
-        <TextField label="To" type="datetime-local" wrapClassName="w-48" value={to} onChange={(e) => { setTo(e.target.value); list.setFilter('to', localInputToIso(e.target.value)); }} />
+        <SelectField
+          label="Outcome"
+          placeholder="any"
+          wrapClassName="w-40"
+          value={list.filters.outcome ?? ''}
+          onChange={(e) => list.setFilter('outcome', e.target.value)}
+          options={OUTCOMES.map((o) => ({ value: o, label: OUTCOME_TEXT[o] ?? o }))}
+        />
+        <SelectField
+          label="Transport"
+          placeholder="any"
+          wrapClassName="w-32"
+          value={list.filters.transport ?? ''}
+          onChange={(e) => list.setFilter('transport', e.target.value)}
+          options={[
+            { value: 'http', label: 'HTTP' },
+            { value: 'mllp', label: 'MLLP' },
+          ]}
+        />
+        <TextField
+          label="Monitor"
+          placeholder="identifier"
+          wrapClassName="w-44"
+          value={list.filters.monitor ?? ''}
+          onChange={(e) => list.setFilter('monitor', e.target.value)}
+        />
+        <TextField
+          label="From"
+          type="datetime-local"
+          wrapClassName="w-48"
+          value={from}
+          onChange={(e) => {
+            setFrom(e.target.value);
+            list.setFilter('from', localInputToIso(e.target.value));
+          }}
+        />
+        <TextField
+          label="To"
+          type="datetime-local"
+          wrapClassName="w-48"
+          value={to}
+          onChange={(e) => {
+            setTo(e.target.value);
+            list.setFilter('to', localInputToIso(e.target.value));
+          }}
+        />
         {selectable && (
           <div className="ml-auto flex items-end gap-2 self-end">
-            {can('reprocessInbound') && <Button variant="primary" disabled={selected.size === 0 || discard.running} busy={reprocess.running} onClick={() => setConfirm('reprocess')}>Reprocess selected ({selected.size})</Button>}
-            {can('discardInbound') && <Button variant="danger" disabled={selected.size === 0 || reprocess.running} busy={discard.running} onClick={() => setConfirm('discard')}>Discard selected…</Button>}
+            {can('reprocessInbound') && (
+              <Button variant="primary" disabled={selected.size === 0 || discard.running} busy={reprocess.running} onClick={() => setConfirm('reprocess')}>
+                Reprocess selected ({selected.size})
+              </Button>
+            )}
+            {can('discardInbound') && (
+              <Button variant="danger" disabled={selected.size === 0 || reprocess.running} busy={discard.running} onClick={() => setConfirm('discard')}>
+                Discard selected…
+              </Button>
+            )}
           </div>
         )}
       </FilterBar>
       <BulkProgress title="Reprocess" items={reprocess.items} />
       <BulkProgress title="Discard" items={discard.items} />
-      <DataTable caption="Inbound messages" columns={columns} rows={messages.data?.items} total={messages.data?.total} rowId={(m) => m.id}
-        params={list.params} onParamsChange={list.setParams} loading={messages.isPending} fetching={messages.isFetching} error={messages.error} onRetry={() => messages.refetch()}
-        selected={selectable ? selected : undefined} onSelectedChange={selectable ? setSelected : undefined}
-        emptyTitle={list.filters.outcome === 'quarantined' ? 'Quarantine is empty' : 'No inbound messages match'} emptyHint="Messages that could not be matched to a monitor or profile land in quarantine." />
-      <ConfirmDialog open={confirm === 'reprocess'} title="Reprocess messages" confirmLabel={`Reprocess ${selected.size}`}
-        message={<>Run the {selected.size} selected message{selected.size === 1 ? '' : 's'} through intake again with the current monitors and profiles.</>}
-        onClose={() => setConfirm(null)} onConfirm={() => run('reprocess', '')} />
-      <ConfirmDialog open={confirm === 'discard'} title="Discard messages" danger confirmLabel={`Discard ${selected.size}`} reasonLabel="Reason (kept in the audit log)"
+      <DataTable
+        caption="Inbound messages"
+        columns={columns}
+        rows={messages.data?.items}
+        total={messages.data?.total}
+        rowId={(m) => m.id}
+        params={list.params}
+        onParamsChange={list.setParams}
+        loading={messages.isPending}
+        fetching={messages.isFetching}
+        error={messages.error}
+        onRetry={() => messages.refetch()}
+        selected={selectable ? selected : undefined}
+        onSelectedChange={selectable ? setSelected : undefined}
+        emptyTitle={list.filters.outcome === 'quarantined' ? 'Quarantine is empty' : 'No inbound messages match'}
+        emptyHint="Messages that could not be matched to a monitor or profile land in quarantine."
+      />
+      <ConfirmDialog
+        open={confirm === 'reprocess'}
+        title="Reprocess messages"
+        confirmLabel={`Reprocess ${selected.size}`}
+        message={
+          <>
+            Run the {selected.size} selected message{selected.size === 1 ? '' : 's'} through intake again with the current monitors and profiles.
+          </>
+        }
+        onClose={() => setConfirm(null)}
+        onConfirm={() => run('reprocess', '')}
+      />
+      <ConfirmDialog
+        open={confirm === 'discard'}
+        title="Discard messages"
+        danger
+        confirmLabel={`Discard ${selected.size}`}
+        reasonLabel="Reason (kept in the audit log)"
         message={<>The selected messages stay stored for the record but will not be analysed.</>}
-        onClose={() => setConfirm(null)} onConfirm={(reason) => run('discard', reason)} />
+        onClose={() => setConfirm(null)}
+        onConfirm={(reason) => run('discard', reason)}
+      />
       <InboundDetailDialog id={open} onClose={() => setOpen(null)} />
     </>
   );
@@ -127,27 +250,75 @@ function InboundDetailDialog({ id, onClose }: { id: string | null; onClose: () =
   const toast = useToast();
   const { can } = useAuth();
   const [discarding, setDiscarding] = useState(false);
-  const reprocess = useMutation({ mutationFn: reprocessInbound, onSuccess: (r) => { toast.success(`Reprocess: ${outcomeOf(r) ?? 'done'}`); invalidate(); }, onError: (e) => toast.error(errorMessage(e)) });
-  const discard = useMutation({ mutationFn: (reason: string) => discardInbound(id!, reason), onSuccess: () => { toast.success('Message discarded'); setDiscarding(false); invalidate(); } });
+  const reprocess = useMutation({
+    mutationFn: reprocessInbound,
+    onSuccess: (r) => {
+      toast.success(`Reprocess: ${outcomeOf(r) ?? 'done'}`);
+      invalidate();
+    },
+    onError: (e) => toast.error(errorMessage(e)),
+  });
+  const discard = useMutation({
+    mutationFn: (reason: string) => discardInbound(id!, reason),
+    onSuccess: () => {
+      toast.success('Message discarded');
+      setDiscarding(false);
+      invalidate();
+    },
+  });
   const m = detail.data;
   const actionable = m && (m.outcome === 'quarantined' || m.outcome === 'rejected');
   return (
     <>
-      <Dialog open={!!id} title="Inbound message" onClose={onClose} wide
-        footer={actionable ? <>
-          {can('discardInbound') && <Button variant="danger" onClick={() => setDiscarding(true)}>Discard…</Button>}
-          {can('reprocessInbound') && <Button variant="primary" busy={reprocess.isPending} onClick={() => reprocess.mutate(id!)}>Reprocess</Button>}
-        </> : undefined}>
+      <Dialog
+        open={!!id}
+        title="Inbound message"
+        onClose={onClose}
+        wide
+        footer={
+          actionable ? (
+            <>
+              {can('discardInbound') && (
+                <Button variant="danger" onClick={() => setDiscarding(true)}>
+                  Discard…
+                </Button>
+              )}
+              {can('reprocessInbound') && (
+                <Button variant="primary" busy={reprocess.isPending} onClick={() => reprocess.mutate(id!)}>
+                  Reprocess
+                </Button>
+              )}
+            </>
+          ) : undefined
+        }
+      >
         {detail.isPending && <LoadingState />}
         {detail.error && <ErrorState error={detail.error} onRetry={() => detail.refetch()} />}
         {m && (
           <div className="flex flex-col gap-3">
-            <DefinitionList items={[
-              ['Received', formatDateTime(m.receivedAt)], ['Transport', m.transport], ['Outcome', <OutcomeBadge key="o" outcome={m.outcome} />], ['Reason', m.reason ?? '—'],
-              ['Sender', m.stranger ? <span key="s" className="flex items-center gap-1"><StrangerMark /> {senderText(m.sender, true) ?? 'not authenticated'}</span> : senderText(m.sender, true) ?? '—'],
-              ['Source address', m.sourceAddress ?? '—'],
-              ['Monitor', m.monitorIdentifier ?? '—'], ['Batch', m.batchId ?? '—'], ['Size', formatBytes(m.sizeBytes)], ['Handled', m.handledAt ? `${formatDateTime(m.handledAt)} by ${m.handledBy ?? '—'}` : '—'],
-            ]} />
+            <DefinitionList
+              items={[
+                ['Received', formatDateTime(m.receivedAt)],
+                ['Transport', m.transport],
+                ['Outcome', <OutcomeBadge key="o" outcome={m.outcome} />],
+                ['Reason', m.reason ?? '—'],
+                [
+                  'Sender',
+                  m.stranger ? (
+                    <span key="s" className="flex items-center gap-1">
+                      <StrangerMark /> {senderText(m.sender, true) ?? 'not authenticated'}
+                    </span>
+                  ) : (
+                    (senderText(m.sender, true) ?? '—')
+                  ),
+                ],
+                ['Source address', m.sourceAddress ?? '—'],
+                ['Monitor', m.monitorIdentifier ?? '—'],
+                ['Batch', m.batchId ?? '—'],
+                ['Size', formatBytes(m.sizeBytes)],
+                ['Handled', m.handledAt ? `${formatDateTime(m.handledAt)} by ${m.handledBy ?? '—'}` : '—'],
+              ]}
+            />
             <div>
               <h3 className="mb-1 text-sm font-semibold">As received{m.rawTruncated ? ' (truncated)' : ''}</h3>
               <JsonBlock label="Raw message" value={m.transport === 'mllp' ? m.raw.replace(/\r/g, '\n') : m.raw} />
@@ -155,9 +326,21 @@ function InboundDetailDialog({ id, onClose }: { id: string | null; onClose: () =
           </div>
         )}
       </Dialog>
-      <ConfirmDialog open={discarding} title="Discard message" danger confirmLabel="Discard" reasonLabel="Reason (kept in the audit log)"
-        message="The message stays stored for the record but will not be analysed." busy={discard.isPending} error={discard.error ? errorMessage(discard.error) : null}
-        onClose={() => { setDiscarding(false); discard.reset(); }} onConfirm={(reason) => discard.mutate(reason)} />
+      <ConfirmDialog
+        open={discarding}
+        title="Discard message"
+        danger
+        confirmLabel="Discard"
+        reasonLabel="Reason (kept in the audit log)"
+        message="The message stays stored for the record but will not be analysed."
+        busy={discard.isPending}
+        error={discard.error ? errorMessage(discard.error) : null}
+        onClose={() => {
+          setDiscarding(false);
+          discard.reset();
+        }}
+        onConfirm={(reason) => discard.mutate(reason)}
+      />
     </>
   );
 }

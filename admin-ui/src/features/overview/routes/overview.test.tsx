@@ -5,9 +5,11 @@ import { OverviewRoute } from './overview';
 
 afterEach(() => vi.unstubAllGlobals());
 
-const minutes = (fields: string[]) => Array.from({ length: 60 }, (_, i) => ({ t: new Date(Date.UTC(2026, 11, 1, 21, i)).toISOString(), ...Object.fromEntries(fields.map((f) => [f, i % 5])) }));
+const minutes = (fields: string[]) =>
+  Array.from({ length: 60 }, (_, i) => ({ t: new Date(Date.UTC(2026, 11, 1, 21, i)).toISOString(), ...Object.fromEntries(fields.map((f) => [f, i % 5])) }));
 const OVERVIEW = {
-  generatedAt: '2026-12-01T22:00:00Z', windowMinutes: 60,
+  generatedAt: '2026-12-01T22:00:00Z',
+  windowMinutes: 60,
   inbound: { accepted: 120, rejected: 2, quarantined: 1, perMinute: 2, series: minutes(['accepted', 'rejected', 'quarantined']) },
   assessments: { valid: 40, questionable: 9, notValid: 4, series: minutes(['valid', 'questionable', 'notValid']) },
   delivery: { queueDepth: 3, failed: 5, delivered: 44, series: minutes(['delivered', 'failed']) },
@@ -17,7 +19,13 @@ const OVERVIEW = {
 
 describe('overview', () => {
   it('links every number to the filtered list behind it, for a role that may open it', async () => {
-    fakeGateway((c) => (c.url.pathname === '/api/v1/auth/session' ? { body: SESSION(['operator', 'reviewer']) } : c.url.pathname === '/api/v1/overview' ? { body: OVERVIEW } : undefined));
+    fakeGateway((c) =>
+      c.url.pathname === '/api/v1/auth/session'
+        ? { body: SESSION(['operator', 'reviewer']) }
+        : c.url.pathname === '/api/v1/overview'
+          ? { body: OVERVIEW }
+          : undefined,
+    );
     renderApp(<OverviewRoute />);
     // The roles arrive with the session; the links appear once they are known.
     await waitFor(() => expect(screen.getByText('failed').closest('a')?.getAttribute('href')).toBe('/deliveries?status=failed'));

@@ -32,9 +32,18 @@ export function OverviewRoute() {
             <Stat label="messages / min (5 min)" value={o.inbound.perMinute} to={link('inbound', '/inbound?outcome=accepted')} />
             <Stat label="accepted" value={o.inbound.accepted} tone="good" to={link('inbound', '/inbound?outcome=accepted')} />
             <Stat label="rejected" value={o.inbound.rejected} tone={o.inbound.rejected ? 'bad' : undefined} to={link('inbound', '/inbound?outcome=rejected')} />
-            <Stat label="quarantined" value={o.inbound.quarantined} tone={o.inbound.quarantined ? 'warn' : undefined} to={link('inbound', '/inbound?outcome=quarantined')} />
+            <Stat
+              label="quarantined"
+              value={o.inbound.quarantined}
+              tone={o.inbound.quarantined ? 'warn' : undefined}
+              to={link('inbound', '/inbound?outcome=quarantined')}
+            />
           </div>
-          <Sparkline label="Inbound messages per minute: accepted, rejected, quarantined" series={[col(o.inbound.series, 'accepted'), col(o.inbound.series, 'rejected'), col(o.inbound.series, 'quarantined')]} colors={[C.ink, C.bad, C.warn]} />
+          <Sparkline
+            label="Inbound messages per minute: accepted, rejected, quarantined"
+            series={[col(o.inbound.series, 'accepted'), col(o.inbound.series, 'rejected'), col(o.inbound.series, 'quarantined')]}
+            colors={[C.ink, C.bad, C.warn]}
+          />
         </Panel>
         <Panel title="Assessments by verdict">
           <div className="grid grid-cols-3 gap-2">
@@ -42,7 +51,11 @@ export function OverviewRoute() {
             <Stat label="questionable" value={o.assessments.questionable} tone="questionable" to={link('assessments', '/assessments?verdict=questionable')} />
             <Stat label="not valid" value={o.assessments.notValid} tone="not-valid" to={link('assessments', '/assessments?verdict=not-valid')} />
           </div>
-          <Sparkline label="Assessments per minute by verdict" series={[col(o.assessments.series, 'valid'), col(o.assessments.series, 'questionable'), col(o.assessments.series, 'notValid')]} colors={[VERDICT_COLOR.valid, VERDICT_COLOR.questionable, VERDICT_COLOR['not-valid']]} />
+          <Sparkline
+            label="Assessments per minute by verdict"
+            series={[col(o.assessments.series, 'valid'), col(o.assessments.series, 'questionable'), col(o.assessments.series, 'notValid')]}
+            colors={[VERDICT_COLOR.valid, VERDICT_COLOR.questionable, VERDICT_COLOR['not-valid']]}
+          />
         </Panel>
         <Panel title="Delivery to the EHR">
           <div className="grid grid-cols-3 gap-2">
@@ -50,7 +63,11 @@ export function OverviewRoute() {
             <Stat label="failed" value={o.delivery.failed} tone={o.delivery.failed ? 'bad' : undefined} to={link('deliveries', '/deliveries?status=failed')} />
             <Stat label="delivered" value={o.delivery.delivered} tone="good" to={link('deliveries', '/deliveries?status=delivered')} />
           </div>
-          <Sparkline label="Deliveries per minute: delivered, failed" series={[col(o.delivery.series, 'delivered'), col(o.delivery.series, 'failed')]} colors={[C.good, C.bad]} />
+          <Sparkline
+            label="Deliveries per minute: delivered, failed"
+            series={[col(o.delivery.series, 'delivered'), col(o.delivery.series, 'failed')]}
+            colors={[C.good, C.bad]}
+          />
         </Panel>
         <Panel title="Monitors and destinations">
           <Stat label="monitors sending / registered" value={`${o.monitors.live} / ${o.monitors.total}`} to={link('devices', '/monitors')} />
@@ -58,10 +75,21 @@ export function OverviewRoute() {
             {o.destinations.length === 0 && <li className="text-muted">No destinations configured.</li>}
             {o.destinations.map((d) => {
               const to = link('deliveries', `/deliveries?destination=${encodeURIComponent(d.id)}`);
-              const body = <><span className="flex-1 truncate">{d.name}</span><StatusBadge status={d.state} /></>;
+              const body = (
+                <>
+                  <span className="flex-1 truncate">{d.name}</span>
+                  <StatusBadge status={d.state} />
+                </>
+              );
               return (
                 <li key={d.id} className="flex items-center gap-2">
-                  {to ? <Link to={to} className="flex flex-1 items-center gap-2 rounded hover:bg-ink-50">{body}</Link> : body}
+                  {to ? (
+                    <Link to={to} className="flex flex-1 items-center gap-2 rounded hover:bg-ink-50">
+                      {body}
+                    </Link>
+                  ) : (
+                    body
+                  )}
                   {d.downSince && <span className="text-xs text-muted">since {formatDateTime(d.downSince)}</span>}
                 </li>
               );
@@ -69,7 +97,9 @@ export function OverviewRoute() {
           </ul>
         </Panel>
       </div>
-      <div className="mt-3"><Cautions compact /></div>
+      <div className="mt-3">
+        <Cautions compact />
+      </div>
     </>
   );
 }

@@ -2,8 +2,15 @@ import { useMutation, useQuery } from '@tanstack/react-query';
 import type { AssessmentSummary, Bed, Page } from '@ebbgate/shared';
 import { api, type Query } from '@/lib/api-client';
 
-export interface ReanalysisRequest { monitorId?: string; from?: string; to?: string }
-export interface ReanalysisAnswer { engineVersion: string; queued: number }
+export interface ReanalysisRequest {
+  monitorId?: string;
+  from?: string;
+  to?: string;
+}
+export interface ReanalysisAnswer {
+  engineVersion: string;
+  queued: number;
+}
 
 export function useReanalyse() {
   return useMutation({ mutationFn: (body: ReanalysisRequest) => api.post<ReanalysisAnswer>('/analysis/reanalyse', body) });
@@ -28,5 +35,8 @@ export function useAssessmentSummary(id: string | null) {
 }
 
 export function useBedList() {
-  return useQuery({ queryKey: ['reanalyse', 'beds'], queryFn: ({ signal }) => api.get<Page<Bed & { monitorId?: string | null }>>('/beds', { pageSize: 500, sort: 'name', order: 'asc' }, signal) });
+  return useQuery({
+    queryKey: ['reanalyse', 'beds'],
+    queryFn: ({ signal }) => api.get<Page<Bed & { monitorId?: string | null }>>('/beds', { pageSize: 500, sort: 'name', order: 'asc' }, signal),
+  });
 }

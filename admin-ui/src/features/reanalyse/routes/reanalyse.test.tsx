@@ -7,17 +7,46 @@ import { ReanalyseRoute } from './reanalyse';
 afterEach(() => vi.unstubAllGlobals());
 
 const run = (id: string, engineVersion: string, verdict: string, ppv: number, createdAt: string) => ({
-  id, monitorId: 'm1', bedId: 'b1', patientRef: null, patientName: null, patientMrn: null, windowStart: '2026-12-01T21:00:00.000Z', windowEnd: '2026-12-01T21:00:10.000Z',
-  verdict, ppv, spv: 7, deltaPop: null, perfusionIndex: null, heartRate: 80, respiratoryRate: 14, flags: [], engineVersion, deliveryStatus: null, enteredInError: false, createdAt,
+  id,
+  monitorId: 'm1',
+  bedId: 'b1',
+  patientRef: null,
+  patientName: null,
+  patientMrn: null,
+  windowStart: '2026-12-01T21:00:00.000Z',
+  windowEnd: '2026-12-01T21:00:10.000Z',
+  verdict,
+  ppv,
+  spv: 7,
+  deltaPop: null,
+  perfusionIndex: null,
+  heartRate: 80,
+  respiratoryRate: 14,
+  flags: [],
+  engineVersion,
+  deliveryStatus: null,
+  enteredInError: false,
+  createdAt,
 });
 
 function gateway(after: () => boolean, extra?: (c: FakeCall) => { body: unknown } | undefined) {
   return fakeGateway((c) => {
     if (c.url.pathname === '/api/v1/auth/session') return { body: SESSION(['integrator']) };
-    if (c.url.pathname === '/api/v1/beds') return { body: { items: [{ id: 'b1', name: 'ICU bed 1', unit: 'ICU', locationIdentifier: 'ICU-01', monitorId: 'm1', createdAt: '', updatedAt: '' }], page: 1, pageSize: 500, total: 1 } };
+    if (c.url.pathname === '/api/v1/beds')
+      return {
+        body: {
+          items: [{ id: 'b1', name: 'ICU bed 1', unit: 'ICU', locationIdentifier: 'ICU-01', monitorId: 'm1', createdAt: '', updatedAt: '' }],
+          page: 1,
+          pageSize: 500,
+          total: 1,
+        },
+      };
     if (c.url.pathname === '/api/v1/analysis/reanalyse') return { body: { engineVersion: '2.0.0', queued: 1 } };
     if (c.url.pathname === '/api/v1/assessments') {
-      const items = [run('old', '1.1.0', 'valid', 11.2, '2026-12-01T21:00:11Z'), ...(after() ? [run('new', '2.0.0', 'questionable', 11.9, '2026-12-02T04:00:00Z')] : [])];
+      const items = [
+        run('old', '1.1.0', 'valid', 11.2, '2026-12-01T21:00:11Z'),
+        ...(after() ? [run('new', '2.0.0', 'questionable', 11.9, '2026-12-02T04:00:00Z')] : []),
+      ];
       return { body: { items, page: 1, pageSize: 500, total: items.length } };
     }
     return extra?.(c);
@@ -35,7 +64,13 @@ describe('reanalyse', () => {
     await user.type(screen.getByLabelText('From'), '2026-12-01T20:00');
     await user.type(screen.getByLabelText('To'), '2026-12-01T22:00');
     await user.click(screen.getByRole('button', { name: 'Queue reanalysis' }));
-    await waitFor(() => expect(gw.calls.find((c) => c.url.pathname === '/api/v1/analysis/reanalyse')?.body).toEqual({ monitorId: 'm1', from: new Date('2026-12-01T20:00').toISOString(), to: new Date('2026-12-01T22:00').toISOString() }));
+    await waitFor(() =>
+      expect(gw.calls.find((c) => c.url.pathname === '/api/v1/analysis/reanalyse')?.body).toEqual({
+        monitorId: 'm1',
+        from: new Date('2026-12-01T20:00').toISOString(),
+        to: new Date('2026-12-01T22:00').toISOString(),
+      }),
+    );
     expect((await screen.findByRole('status')).textContent).toContain('1 window queued for engine 2.0.0');
     const table = await screen.findByRole('region', { name: 'Results side by side' });
     expect(within(table).getByText('waiting for the engine…')).toBeTruthy();
@@ -58,15 +93,26 @@ describe('reanalyse', () => {
     await user.click(screen.getByRole('radio', { name: 'Everything since a time' }));
     await user.type(screen.getByLabelText('Since'), '2026-12-01T20:00');
     await user.click(screen.getByRole('button', { name: 'Queue reanalysis' }));
-    await waitFor(() => expect(gw.calls.find((c) => c.url.pathname === '/api/v1/analysis/reanalyse')?.body).toEqual({ from: new Date('2026-12-01T20:00').toISOString() }));
+    await waitFor(() =>
+      expect(gw.calls.find((c) => c.url.pathname === '/api/v1/analysis/reanalyse')?.body).toEqual({ from: new Date('2026-12-01T20:00').toISOString() }),
+    );
   });
 
   it('reanalyses one assessment’s window from its page', async () => {
-    const gw = gateway(() => true, (c) => (c.url.pathname === '/api/v1/assessments/old' ? { body: { assessment: run('old', '1.1.0', 'valid', 11.2, '2026-12-01T21:00:11Z') } } : undefined));
+    const gw = gateway(
+      () => true,
+      (c) => (c.url.pathname === '/api/v1/assessments/old' ? { body: { assessment: run('old', '1.1.0', 'valid', 11.2, '2026-12-01T21:00:11Z') } } : undefined),
+    );
     const user = userEvent.setup();
     renderApp(<ReanalyseRoute />, { route: '/reanalyse?assessment=old' });
     await user.click(await screen.findByRole('button', { name: 'Queue reanalysis' }));
-    await waitFor(() => expect(gw.calls.find((c) => c.url.pathname === '/api/v1/analysis/reanalyse')?.body).toEqual({ monitorId: 'm1', from: '2026-12-01T21:00:00.000Z', to: '2026-12-01T21:00:00.001Z' }));
+    await waitFor(() =>
+      expect(gw.calls.find((c) => c.url.pathname === '/api/v1/analysis/reanalyse')?.body).toEqual({
+        monitorId: 'm1',
+        from: '2026-12-01T21:00:00.000Z',
+        to: '2026-12-01T21:00:00.001Z',
+      }),
+    );
     await screen.findByText('verdict valid → questionable');
   });
 });

@@ -66,31 +66,67 @@ export function ReanalyseRoute() {
 
   return (
     <>
-      <PageHeader title="Reanalyse" description="Run stored windows again with the engine this gateway runs. Earlier assessments stay; each window then has both results." />
+      <PageHeader
+        title="Reanalyse"
+        description="Run stored windows again with the engine this gateway runs. Earlier assessments stay; each window then has both results."
+      />
       <Panel title="What to reanalyse">
         <form onSubmit={submit} className="flex flex-col gap-3" aria-label="Reanalysis scope">
           {one.data ? (
-            <p className="text-sm">This window: {formatDateTime(one.data.windowStart)} – {formatDateTime(one.data.windowEnd)}, engine {one.data.engineVersion}. <Link className="text-ink-700 underline" to={`/assessments/${encodeURIComponent(one.data.id)}`}>Back to the assessment</Link></p>
+            <p className="text-sm">
+              This window: {formatDateTime(one.data.windowStart)} – {formatDateTime(one.data.windowEnd)}, engine {one.data.engineVersion}.{' '}
+              <Link className="text-ink-700 underline" to={`/assessments/${encodeURIComponent(one.data.id)}`}>
+                Back to the assessment
+              </Link>
+            </p>
           ) : (
             <>
               <fieldset className="flex gap-4 text-sm">
                 <legend className="mb-1 text-xs font-medium text-ink-800">Scope</legend>
-                <label className="inline-flex items-center gap-1"><input type="radio" name="scope" checked={scopeKind === 'bed'} onChange={() => setScopeKind('bed')} /> A bed over a span</label>
-                <label className="inline-flex items-center gap-1"><input type="radio" name="scope" checked={scopeKind === 'since'} onChange={() => setScopeKind('since')} /> Everything since a time</label>
+                <label className="inline-flex items-center gap-1">
+                  <input type="radio" name="scope" checked={scopeKind === 'bed'} onChange={() => setScopeKind('bed')} /> A bed over a span
+                </label>
+                <label className="inline-flex items-center gap-1">
+                  <input type="radio" name="scope" checked={scopeKind === 'since'} onChange={() => setScopeKind('since')} /> Everything since a time
+                </label>
               </fieldset>
               <div className="flex flex-wrap gap-2">
                 {scopeKind === 'bed' && (
-                  <SelectField label="Bed" value={bedId} onChange={(e) => setBedId(e.target.value)} placeholder="Choose a bed" wrapClassName="w-56"
-                    options={(beds.data?.items ?? []).map((b) => ({ value: b.id, label: `${b.name} · ${b.unit}` }))} />
+                  <SelectField
+                    label="Bed"
+                    value={bedId}
+                    onChange={(e) => setBedId(e.target.value)}
+                    placeholder="Choose a bed"
+                    wrapClassName="w-56"
+                    options={(beds.data?.items ?? []).map((b) => ({ value: b.id, label: `${b.name} · ${b.unit}` }))}
+                  />
                 )}
-                <TextField label={scopeKind === 'bed' ? 'From' : 'Since'} type="datetime-local" value={from} onChange={(e) => setFrom(e.target.value)} wrapClassName="w-56" />
+                <TextField
+                  label={scopeKind === 'bed' ? 'From' : 'Since'}
+                  type="datetime-local"
+                  value={from}
+                  onChange={(e) => setFrom(e.target.value)}
+                  wrapClassName="w-56"
+                />
                 {scopeKind === 'bed' && <TextField label="To" type="datetime-local" value={to} onChange={(e) => setTo(e.target.value)} wrapClassName="w-56" />}
               </div>
             </>
           )}
-          {formError && <p role="alert" className="text-sm text-error">{formError}</p>}
-          {reanalyse.error && <p role="alert" className="text-sm text-error">{errorMessage(reanalyse.error)}</p>}
-          <div><Button type="submit" variant="primary" busy={reanalyse.isPending}>Queue reanalysis</Button></div>
+          {formError && (
+            <p role="alert" className="text-sm text-error">
+              {formError}
+            </p>
+          )}
+          {reanalyse.error && (
+            <p role="alert" className="text-sm text-error">
+              {errorMessage(reanalyse.error)}
+            </p>
+          )}
+          <div>
+            <Button type="submit" variant="primary" busy={reanalyse.isPending}>
+              Queue reanalysis
+            </Button>
+          </div>
         </form>
       </Panel>
       {done && (
@@ -98,7 +134,9 @@ export function ReanalyseRoute() {
           <Panel title="Earlier and new results">
             <p className="mb-2 text-sm" role="status">
               {done.answer.queued} window{done.answer.queued === 1 ? '' : 's'} queued for engine {done.answer.engineVersion}
-              {done.answer.queued === 0 ? ' (the windows in scope already have a result from this engine, or there are none).' : `; ${finished} of ${pairs.length} analysed so far.`}
+              {done.answer.queued === 0
+                ? ' (the windows in scope already have a result from this engine, or there are none).'
+                : `; ${finished} of ${pairs.length} analysed so far.`}
             </p>
             {pairs.length > 0 ? <SideBySide pairs={pairs} /> : <p className="text-sm text-muted">No earlier results in the scope.</p>}
           </Panel>

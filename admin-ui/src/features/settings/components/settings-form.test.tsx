@@ -5,7 +5,13 @@ import type { SiteSettings } from '@ebbgate/shared';
 import { SettingsForm } from './settings-form';
 
 const SETTINGS: SiteSettings = {
-  analysis: { cyclesToAverage: 3, windowSeconds: 60, bands: [{ id: 'ppv-grey-zone', index: 'ppv', lower: 9, upper: 13, unit: '%', label: 'Grey zone', source: 'Cannesson et al., Anesthesiology 2011 (from memory)' }] },
+  analysis: {
+    cyclesToAverage: 3,
+    windowSeconds: 60,
+    bands: [
+      { id: 'ppv-grey-zone', index: 'ppv', lower: 9, upper: 13, unit: '%', label: 'Grey zone', source: 'Cannesson et al., Anesthesiology 2011 (from memory)' },
+    ],
+  },
   delivery: { observationStatus: 'preliminary', notValidPolicy: 'withhold' },
   alerts: { recipients: ['oncall@harrowmere.example'], destinationDownMinutes: 5, failureThreshold: 10 },
 };

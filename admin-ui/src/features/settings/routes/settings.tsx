@@ -15,14 +15,24 @@ export function SettingsRoute({ destinations }: { destinations?: ReactNode }) {
   const readOnly = !can('manageSettings');
   return (
     <>
-      <PageHeader title="Settings" description={readOnly ? 'Read-only: only administrators change settings.' : 'Changes apply to windows analysed from now on and are recorded in the audit log.'} />
+      <PageHeader
+        title="Settings"
+        description={
+          readOnly ? 'Read-only: only administrators change settings.' : 'Changes apply to windows analysed from now on and are recorded in the audit log.'
+        }
+      />
       <div className="flex flex-col gap-3">
         <Panel>
           {settings.isPending && <LoadingState />}
           {settings.error && <ErrorState error={settings.error} onRetry={() => settings.refetch()} />}
           {settings.data && (
-            <SettingsForm settings={settings.data} readOnly={readOnly} busy={save.isPending} error={save.error}
-              onSubmit={(v) => save.mutate(v, { onSuccess: () => toast.success('Settings saved') })} />
+            <SettingsForm
+              settings={settings.data}
+              readOnly={readOnly}
+              busy={save.isPending}
+              error={save.error}
+              onSubmit={(v) => save.mutate(v, { onSuccess: () => toast.success('Settings saved') })}
+            />
           )}
         </Panel>
         {destinations && <Panel title="Destinations">{destinations}</Panel>}

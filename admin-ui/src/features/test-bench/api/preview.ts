@@ -7,7 +7,12 @@ export const testBenchKeys = {
   profileOptions: ['test-bench', 'profile-options'] as const,
 };
 
-export interface ProfileOption { id: string; name: string; manufacturer: string; model: string }
+export interface ProfileOption {
+  id: string;
+  name: string;
+  manufacturer: string;
+  model: string;
+}
 
 export function useProfileOptions() {
   return useQuery({

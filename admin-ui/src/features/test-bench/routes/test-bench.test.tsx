@@ -13,9 +13,20 @@ describe('test bench', () => {
     const { waveform, analysis } = fixtureWindow({ rejected: { 4: ['template-mismatch'] }, unusableCycles: { 0: ['partial'] } });
     const gw = fakeGateway((c) => {
       if (c.url.pathname === '/api/v1/auth/session') return { body: SESSION(['integrator']) };
-      if (c.url.pathname === '/api/v1/profiles') return { body: { items: [{ id: 'p1', name: 'Bay monitor', manufacturer: 'Demo', model: 'M1' }], page: 1, pageSize: 500, total: 1 } };
+      if (c.url.pathname === '/api/v1/profiles')
+        return { body: { items: [{ id: 'p1', name: 'Bay monitor', manufacturer: 'Demo', model: 'M1' }], page: 1, pageSize: 500, total: 1 } };
       if (c.url.pathname === '/api/v1/analysis/preview') {
-        return { body: { parseReport: { format: 'json-batch', channels: [{ code: 'ABP', role: 'abp', unit: 'mmHg', sampleRate: 125, samples: 3750 }], warnings: ['one warning'] }, waveform, analysis } };
+        return {
+          body: {
+            parseReport: {
+              format: 'json-batch',
+              channels: [{ code: 'ABP', role: 'abp', unit: 'mmHg', sampleRate: 125, samples: 3750 }],
+              warnings: ['one warning'],
+            },
+            waveform,
+            analysis,
+          },
+        };
       }
       return undefined;
     });
@@ -49,7 +60,17 @@ describe('test bench', () => {
     fakeGateway((c) => {
       if (c.url.pathname === '/api/v1/auth/session') return { body: SESSION(['integrator']) };
       if (c.url.pathname === '/api/v1/profiles') return { body: { items: [], page: 1, pageSize: 500, total: 0 } };
-      if (c.url.pathname === '/api/v1/analysis/preview') return { status: 422, body: { type: 'urn:ebbgate:invalid-capture', title: 'Capture not readable', status: 422, detail: 'No channel with a sample rate', errors: [{ path: 'channels.0.sampleRate', message: 'Required' }] } };
+      if (c.url.pathname === '/api/v1/analysis/preview')
+        return {
+          status: 422,
+          body: {
+            type: 'urn:ebbgate:invalid-capture',
+            title: 'Capture not readable',
+            status: 422,
+            detail: 'No channel with a sample rate',
+            errors: [{ path: 'channels.0.sampleRate', message: 'Required' }],
+          },
+        };
       return undefined;
     });
     renderApp(<TestBenchRoute />);

@@ -7,7 +7,16 @@ import { UsersRoute } from './users';
 afterEach(() => vi.unstubAllGlobals());
 
 function user(i: number) {
-  return { id: `id-${i}`, username: `user.${i}`, displayName: `User ${i}`, roles: ['reviewer'], disabled: false, lockedUntil: null, lastSignInAt: null, createdAt: '2026-11-30T10:00:00Z' };
+  return {
+    id: `id-${i}`,
+    username: `user.${i}`,
+    displayName: `User ${i}`,
+    roles: ['reviewer'],
+    disabled: false,
+    lockedUntil: null,
+    lastSignInAt: null,
+    createdAt: '2026-11-30T10:00:00Z',
+  };
 }
 
 function gateway(total = 60) {
