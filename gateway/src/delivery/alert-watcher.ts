@@ -1,7 +1,9 @@
 /**
  * E-mail alerts to the on-call list: a destination down for N minutes, failures past a threshold
  * in a window, a configuration error (401/403), or an entered-in-error amendment that could not be
- * delivered (the withdrawn value may still stand in the chart). One incident row per episode (a
+ * delivered (the withdrawn value may still stand in the chart), or a second stream claiming a
+ * monitor at the device edge (a spoofing attempt or a misrouted adapter; the incident's source is
+ * EDGE_SOURCE instead of a destination). One incident row per episode (a
  * unique key while open); its mails go through their own outbox (alert_mail: one row per incident
  * and event, claimed with a lease and a fencing token, sent, then marked), so a process that dies
  * between claiming and sending leaves the mail due again: at-least-once, with a stable Message-ID.
@@ -21,6 +23,11 @@ interface Condition {
 
 /** The console screen the mail sends people to (admin-ui routes: Deliver → Deliveries, /deliveries). */
 export const CONSOLE_SCREEN = { name: 'Deliveries', path: '/deliveries' } as const;
+/** Where refused second streams are listed (admin-ui routes: Deliver → Inbound & quarantine). */
+export const EDGE_SCREEN = { name: 'Inbound & quarantine', path: '/inbound?outcome=conflicting' } as const;
+
+/** The incident source for device-edge conditions (alert_incident.destination_id holds it). */
+export const EDGE_SOURCE = { id: 'device-edge', name: 'Device edge' } as const;
 
 /** How long a claimed mail is left to its sender before another process may send it. */
 const MAIL_LEASE_MS = 60_000;
@@ -58,9 +65,9 @@ export class AlertWatcher implements BackgroundService {
     m?.close();
   }
 
-  consoleLink(): string {
+  consoleLink(path: string = CONSOLE_SCREEN.path): string {
     const base = (this.ctx.config.delivery.alerts.consoleUrl ?? this.ctx.config.gateway.publicUrl).replace(/\/$/, '');
-    return `${base}${CONSOLE_SCREEN.path}`;
+    return `${base}${path}`;
   }
 
   /** One evaluation of every destination; exported for tests through the service. */
@@ -98,24 +105,37 @@ export class AlertWatcher implements BackgroundService {
           detail: `${amends} entered-in-error ${amends === 1 ? 'amendment' : 'amendments'} to ${d.name} failed: a value reviewers withdrew may still stand in the chart. See the ${CONSOLE_SCREEN.name} screen (kind Amend, status Failed) for the reason; correct it at the EHR by hand or retry once the original can be found.`,
         },
       ];
-      for (const c of conditions) await (c.active ? this.open(d, c, now) : this.clear(d, c.kind, now));
+      for (const c of conditions) await (c.active ? this.open(d.id, c, now) : this.clear(d.id, c.kind, now));
     }
+    const conflicting = Number(
+      (
+        (await this.ctx.ds.query(`SELECT COUNT(*) AS c FROM inbound_message WHERE outcome = 'conflicting' AND received_at >= ?`, [since])) as {
+          c: string | number;
+        }[]
+      )[0]?.c ?? 0,
+    );
+    const edge: Condition = {
+      kind: 'conflicting',
+      active: conflicting > 0,
+      detail: `${conflicting} ${conflicting === 1 ? 'message' : 'messages'} in the last ${cfg.failureWindowMinutes} minutes came from a second sender claiming a monitor that another sender was already streaming for the same time. They were refused and kept, not merged: see the Inbound & quarantine screen (outcome conflicting) for the sender, its address and the monitor, and check the adapters.`,
+    };
+    await (edge.active ? this.open(EDGE_SOURCE.id, edge, now) : this.clear(EDGE_SOURCE.id, edge.kind, now));
     await this.queueMail(settings.recipients, now);
     await this.sendDueMail(settings.recipients);
   }
 
-  private async open(d: DestinationRow, c: Condition, now: Date): Promise<void> {
+  private async open(sourceId: string, c: Condition, now: Date): Promise<void> {
     await this.ctx.ds.query(`INSERT IGNORE INTO alert_incident (destination_id, kind, open_key, opened_at, detail) VALUES (?, ?, ?, ?, ?)`, [
-      d.id,
+      sourceId,
       c.kind,
-      `${d.id}:${c.kind}`,
+      `${sourceId}:${c.kind}`,
       now,
       c.detail,
     ]);
   }
 
-  private async clear(d: DestinationRow, kind: IncidentKind, now: Date): Promise<void> {
-    await this.ctx.ds.query(`UPDATE alert_incident SET cleared_at = ?, open_key = NULL WHERE open_key = ?`, [now, `${d.id}:${kind}`]);
+  private async clear(sourceId: string, kind: IncidentKind, now: Date): Promise<void> {
+    await this.ctx.ds.query(`UPDATE alert_incident SET cleared_at = ?, open_key = NULL WHERE open_key = ?`, [now, `${sourceId}:${kind}`]);
   }
 
   private messageId(incidentId: string, event: string): string {
@@ -161,7 +181,10 @@ export class AlertWatcher implements BackgroundService {
     const incidents = new Map(
       (await this.ctx.ds.getRepository(AlertIncidentRow).findBy({ id: In(due.map((d) => d.incidentId)) })).map((i) => [String(i.id), i]),
     );
-    const names = new Map((await this.ctx.ds.getRepository(DestinationRow).find()).map((d) => [d.id, d.name]));
+    const names = new Map<string, string>([
+      [EDGE_SOURCE.id, EDGE_SOURCE.name],
+      ...(await this.ctx.ds.getRepository(DestinationRow).find()).map((d) => [d.id, d.name] as [string, string]),
+    ]);
     for (const mail of due) {
       const i = incidents.get(String(mail.incidentId));
       if (!i) continue;
@@ -196,6 +219,7 @@ export class AlertWatcher implements BackgroundService {
       failures: 'has failed deliveries past the threshold',
       configuration: 'rejects the configured credentials',
       amendment: 'has an entered-in-error amendment that failed',
+      conflicting: 'refused a second stream claiming a monitor',
     }[i.kind];
     const subject = opening
       ? `[Ebbgate] ${name} ${what}`
@@ -210,11 +234,15 @@ export class AlertWatcher implements BackgroundService {
       '',
       i.detail,
       '',
-      `Open the ${CONSOLE_SCREEN.name} screen of the Ebbgate console (Deliver → ${CONSOLE_SCREEN.name}), destination "${name}": ${this.consoleLink()}`,
+      i.kind === 'conflicting'
+        ? `Open the ${EDGE_SCREEN.name} screen of the Ebbgate console (Deliver → ${EDGE_SCREEN.name}), outcome conflicting: ${this.consoleLink(EDGE_SCREEN.path)}`
+        : `Open the ${CONSOLE_SCREEN.name} screen of the Ebbgate console (Deliver → ${CONSOLE_SCREEN.name}), destination "${name}": ${this.consoleLink()}`,
       '',
-      i.kind === 'amendment'
-        ? 'An amendment that failed is kept, with its reason, until someone retries or resolves it; it is never dropped.'
-        : 'Results are kept in the outbox and are delivered when the destination answers again; nothing is lost.',
+      i.kind === 'conflicting'
+        ? 'The refused messages are kept with their sender; the first stream goes on unaffected.'
+        : i.kind === 'amendment'
+          ? 'An amendment that failed is kept, with its reason, until someone retries or resolves it; it is never dropped.'
+          : 'Results are kept in the outbox and are delivered when the destination answers again; nothing is lost.',
       'This mail is sent once when an incident opens and once when it clears; a copy with the same Message-ID is a resend of the same mail.',
     ].join('\n');
     return { subject, text };

@@ -86,7 +86,7 @@ export class DeliveryAttemptRow {
   @Column({ type: 'varchar', length: 16 }) mode!: string;
 }
 
-export type IncidentKind = 'down' | 'failures' | 'configuration' | 'amendment';
+export type IncidentKind = 'down' | 'failures' | 'configuration' | 'amendment' | 'conflicting';
 
 /** An alert incident: opened once, mailed once, cleared once. */
 @Entity('alert_incident')

@@ -12,12 +12,13 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startMockEhr, type RunningMockEhr } from '@ebbgate/mock-ehr';
 import { createDataSource } from '../../src/db/data-source';
-import { AlertWatcher } from '../../src/delivery/alert-watcher';
+import { AlertWatcher, EDGE_SOURCE } from '../../src/delivery/alert-watcher';
 import { defaultCodeMap } from '../../src/delivery/code-map';
 import { AlertMailRow, DeliveryRow } from '../../src/delivery/delivery.entities';
 import { buildDelivery, FHIR_DESTINATION_ID, HL7_DESTINATION_ID, type DeliveryParts } from '../../src/delivery/delivery.module';
 import { Hl7Destination } from '../../src/delivery/hl7-destination';
 import { claimDueFenced, recordAttempts } from '../../src/delivery/outbox';
+import { recordInbound } from '../../src/ingest/inbound-store';
 import type { Mailer } from '../../src/mail/mailer';
 import { startTestGateway, type TestGateway } from '../support/harness';
 import { insertBedAndMonitor, markInError, storeAssessment, waitFor, windowStart } from './support';
@@ -342,5 +343,42 @@ describe('alert mail outbox', () => {
     expect(ours[0]!.text).toContain('Open the Deliveries screen');
     expect(ours[0]!.text).toContain('http://console.harrowmere.example/deliveries');
     expect((await gw.ctx.ds.getRepository(AlertMailRow).findOneBy({ id: claimed.id }))!.status).toBe('sent');
+  });
+
+  it('a second stream claiming a monitor (kept as conflicting) opens a device-edge incident and mails the on-call list, pointing at the inbound screen', async () => {
+    await adminCall('DELETE', '/mail');
+    const settings = async () => ({ recipients: ['icu-oncall@harrowmere.example'], destinationDownMinutes: 10_000, failureThreshold: 100_000 }) as never;
+    const watcher = new AlertWatcher(gw.ctx, settings);
+    await watcher.start();
+    try {
+      await watcher.check();
+      expect(await gw.ctx.ds.query(`SELECT id FROM alert_incident WHERE open_key = ?`, [`${EDGE_SOURCE.id}:conflicting`])).toHaveLength(0);
+      await recordInbound(gw.ctx.ds, {
+        transport: 'mllp',
+        receivedAt: new Date(),
+        outcome: 'conflicting',
+        reason: 'a second stream for monitor 02EB6AFFFE000001 overlaps the stream of another sender',
+        raw: Buffer.from('MSH|^~\\&|...'),
+        monitorIdentifier: '02EB6AFFFE000001',
+        sender: 'source 127.0.0.9',
+        sourceAddress: '127.0.0.9',
+      });
+      await watcher.check();
+      const open = (await gw.ctx.ds.query(`SELECT id, kind, destination_id AS source FROM alert_incident WHERE open_key = ?`, [
+        `${EDGE_SOURCE.id}:conflicting`,
+      ])) as { id: string; kind: string; source: string }[];
+      expect(open).toHaveLength(1);
+      expect(open[0]!.source).toBe(EDGE_SOURCE.id);
+      const mailOf = async () => ((await adminCall('GET', '/mail')) as { subject: string; text: string }[]).filter((x) => x.subject.includes('second stream'));
+      await waitFor('the edge alert at the catcher', async () => ((await mailOf()).length ? true : undefined), 10_000);
+      const [mail] = await mailOf();
+      expect(mail!.subject).toBe('[Ebbgate] Device edge refused a second stream claiming a monitor');
+      expect(mail!.text).toContain('/inbound?outcome=conflicting');
+      // Once another check still sees the message inside the window, the incident stays one incident.
+      await watcher.check();
+      expect(await gw.ctx.ds.query(`SELECT id FROM alert_incident WHERE kind = 'conflicting'`)).toHaveLength(1);
+    } finally {
+      await watcher.stop();
+    }
   });
 });
