@@ -40,6 +40,7 @@ const ENV_MAP: Record<string, { path: string; type: 'string' | 'number' | 'boole
   EBBGATE_MLLP_TLS_CERT: { path: 'mllp.tls.certFile', type: 'string' },
   EBBGATE_MLLP_TLS_KEY: { path: 'mllp.tls.keyFile', type: 'string' },
   EBBGATE_MLLP_TLS_CA: { path: 'mllp.tls.caFile', type: 'string' },
+  EBBGATE_INGEST_GROUP_COMMIT: { path: 'ingest.groupCommit', type: 'boolean' },
   EBBGATE_INGEST_BACKLOG_LIMIT: { path: 'ingest.backlogLimit', type: 'number' },
   EBBGATE_RETENTION_DAYS: { path: 'ingest.retentionDays', type: 'number' },
   EBBGATE_ANALYSIS_WINDOW_SECONDS: { path: 'analysis.windowSeconds', type: 'number' },

@@ -95,12 +95,11 @@ const ms = (d: Date | string | null): number | null => (d === null ? null : new 
  * Stores one batch in one transaction: the inbound message row, one segment row per channel,
  * the monitor's stream position and any analysis windows the new data completes. Answers
  * `duplicate` for a repeat of the same batch id and content; refuses (409) other content.
- * With EBBGATE_INGEST_GROUP_COMMIT=on, new batches share their transaction and commit with those arriving within 2 ms.
+ * With `settings.groupCommit` (config ingest.groupCommit, opt-in), new batches share their
+ * transaction and commit with those arriving within 2 ms.
  */
 export function storeBatch(ds: DataSource, req: StoreRequest, settings: StreamSettings): Promise<StoredBatch> {
-  // Opt-in (EBBGATE_INGEST_GROUP_COMMIT=on): measured on 2 busy cores it lowered throughput (the
-  // batches of a group run one after another on one connection), so one transaction per batch stays the default.
-  if (req.reprocessOf || process.env.EBBGATE_INGEST_GROUP_COMMIT !== 'on') return storeBatchAlone(ds, req, settings);
+  if (req.reprocessOf || !settings.groupCommit) return storeBatchAlone(ds, req, settings);
   return groupCommitterFor(ds).store(req, settings);
 }
 

@@ -65,7 +65,12 @@ export class IngestService {
   private async settings() {
     const { analysis, ingest } = this.ctx.config;
     const site = await getSiteSettings(this.ctx);
-    return { windowSeconds: site.analysis.windowSeconds ?? analysis.windowSeconds, stepSeconds: analysis.stepSeconds, gapResetSeconds: ingest.gapResetSeconds };
+    return {
+      windowSeconds: site.analysis.windowSeconds ?? analysis.windowSeconds,
+      stepSeconds: analysis.stepSeconds,
+      gapResetSeconds: ingest.gapResetSeconds,
+      groupCommit: ingest.groupCommit,
+    };
   }
 
   async ingest(req: IngestRequest): Promise<IngestOutcome> {

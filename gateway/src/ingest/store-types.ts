@@ -11,6 +11,8 @@ export interface StreamSettings {
   windowSeconds: number;
   stepSeconds: number;
   gapResetSeconds: number;
+  /** Share transactions with concurrent batches (config ingest.groupCommit). */
+  groupCommit?: boolean;
 }
 
 export interface StoredBatch {

@@ -21,15 +21,11 @@ const batchOf = (monitorId: string, batchId: string, startMs: number, seed = 1) 
 
 describe('ingest group commit', () => {
   let gw: TestGateway;
-  const before = process.env.EBBGATE_INGEST_GROUP_COMMIT;
   beforeAll(async () => {
-    process.env.EBBGATE_INGEST_GROUP_COMMIT = 'on'; // opt-in (see inbound-store.ts)
-    gw = await startTestGateway();
+    gw = await startTestGateway({ ingest: { groupCommit: true } }); // opt-in (config ingest.groupCommit)
   });
   afterAll(async () => {
     await gw?.stop();
-    if (before === undefined) delete process.env.EBBGATE_INGEST_GROUP_COMMIT;
-    else process.env.EBBGATE_INGEST_GROUP_COMMIT = before;
   });
 
   it('stores concurrent batches once each in shared commits, and refuses a bad one alone', async () => {
