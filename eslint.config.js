@@ -82,11 +82,8 @@ export default tseslint.config(
   // React: the rules of hooks (and the React Compiler's checks) for the console.
   { files: ['admin-ui/src/**/*.{ts,tsx}'], ...reactHooks.configs.flat['recommended-latest'] },
   {
-    // Three of the React Compiler checks flag code written before they were on (setState in an
-    // effect, a ref written during render, Date.now() during render): warnings until those places
-    // are reworked, then back to errors by deleting this block.
     files: ['admin-ui/src/**/*.{ts,tsx}'],
-    rules: { 'react-hooks/set-state-in-effect': 'warn', 'react-hooks/refs': 'warn', 'react-hooks/purity': 'warn' },
+    rules: { 'react-hooks/set-state-in-effect': 'error', 'react-hooks/refs': 'error', 'react-hooks/purity': 'error' },
   },
 
   // Console layers: app → features → shared (components, lib, hooks); shared code imports neither.

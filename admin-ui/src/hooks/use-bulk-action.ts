@@ -1,4 +1,4 @@
-import { useCallback, useRef, useState } from 'react';
+import { useCallback, useState } from 'react';
 import { errorMessage } from '@/lib/api-client';
 
 export type ItemState = { id: string; status: 'waiting' | 'running' | 'done' | 'failed'; message?: string };
@@ -10,8 +10,6 @@ export type ItemState = { id: string; status: 'waiting' | 'running' | 'done' | '
 export function useBulkAction<R, A = void>(run: (id: string, arg: A) => Promise<R>, describe?: (r: R) => string | undefined) {
   const [items, setItems] = useState<ItemState[]>([]);
   const [running, setRunning] = useState(false);
-  const runRef = useRef(run);
-  runRef.current = run;
 
   const start = useCallback(
     async (ids: string[], arg: A) => {
@@ -23,7 +21,7 @@ export function useBulkAction<R, A = void>(run: (id: string, arg: A) => Promise<
         for (let id = queue.shift(); id !== undefined; id = queue.shift()) {
           set(id, { status: 'running' });
           try {
-            const r = await runRef.current(id, arg);
+            const r = await run(id, arg);
             set(id, { status: 'done', message: describe?.(r) });
           } catch (err) {
             set(id, { status: 'failed', message: errorMessage(err) });
@@ -33,7 +31,7 @@ export function useBulkAction<R, A = void>(run: (id: string, arg: A) => Promise<
       await Promise.all([worker(), worker()]);
       setRunning(false);
     },
-    [describe],
+    [run, describe],
   );
 
   const reset = useCallback(() => setItems([]), []);

@@ -1,4 +1,4 @@
-import { useCallback, useEffect, useRef, useState } from 'react';
+import { useCallback, useState } from 'react';
 import { useSearchParams } from 'react-router-dom';
 import { DEFAULT_LIST, cleanFilters, type Filters, type ListParams } from '@/lib/paging';
 
@@ -16,16 +16,15 @@ export function useListState(initial: Partial<ListParams> = {}, initialFilters: 
     return cleanFilters(Object.keys(fromUrl).length > 0 ? fromUrl : initialFilters);
   };
   const [filters, setFiltersRaw] = useState<Filters>(fromAddress);
-  // Following a link to the same screen with other filters (e.g. from a toast or a detail) applies them.
+  // Following a link to the same screen with other filters (e.g. from a toast or a detail) applies
+  // them: adjusted while rendering, React's pattern for state that follows a changed input.
   const address = search.toString();
-  const seen = useRef(address);
-  useEffect(() => {
-    if (seen.current === address) return;
-    seen.current = address;
+  const [seen, setSeen] = useState(address);
+  if (seen !== address) {
+    setSeen(address);
     setFiltersRaw(fromAddress());
     setParams((p) => ({ ...p, page: 1 }));
-    // fromAddress reads `search`, which `address` stands for.
-  }, [address]);
+  }
   const setFilter = useCallback((key: string, value: string | undefined) => {
     setFiltersRaw((f) => cleanFilters({ ...f, [key]: value }));
     setParams((p) => ({ ...p, page: 1 }));

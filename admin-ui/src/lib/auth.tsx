@@ -50,7 +50,8 @@ export function AuthProvider({ children }: { children: ReactNode }) {
   const query = useQuery({ queryKey: sessionKey, queryFn: fetchSession, staleTime: Infinity, retry: 1 });
   const session = query.data ?? null;
   const signIn = useSignIn();
-  const lastActivity = useRef(Date.now());
+  // Set when the provider mounts (an effect, not render: reading the clock during render is impure).
+  const lastActivity = useRef(0);
   const [ended, setEnded] = useState(false);
 
   useEffect(() => {
@@ -74,6 +75,7 @@ export function AuthProvider({ children }: { children: ReactNode }) {
     const mark = () => {
       lastActivity.current = Date.now();
     };
+    mark();
     window.addEventListener('pointerdown', mark);
     window.addEventListener('keydown', mark);
     return () => {

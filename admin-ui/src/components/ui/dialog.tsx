@@ -16,6 +16,12 @@ interface DialogProps {
 export function Dialog({ open, title, onClose, children, footer, wide }: DialogProps) {
   const ref = useRef<HTMLDivElement>(null);
   const titleId = useId();
+  // The latest onClose, read by the key handler: a parent's re-render (a poll, a new inline
+  // callback) must not re-run the opening effect, which would move focus back to the first field.
+  const closeRef = useRef(onClose);
+  useEffect(() => {
+    closeRef.current = onClose;
+  }, [onClose]);
 
   useEffect(() => {
     if (!open) return;
@@ -26,7 +32,7 @@ export function Dialog({ open, title, onClose, children, footer, wide }: DialogP
     const onKey = (e: KeyboardEvent) => {
       if (e.key === 'Escape') {
         e.stopPropagation();
-        onClose();
+        closeRef.current();
       }
       if (e.key === 'Tab' && el) {
         const items = Array.from(el.querySelectorAll<HTMLElement>('a[href],button:not([disabled]),input:not([disabled]),select,textarea,[tabindex="0"]'));
@@ -47,7 +53,7 @@ export function Dialog({ open, title, onClose, children, footer, wide }: DialogP
       document.removeEventListener('keydown', onKey);
       previous?.focus?.();
     };
-  }, [open, onClose]);
+  }, [open]);
 
   if (!open) return null;
   return createPortal(
@@ -91,15 +97,14 @@ interface ConfirmProps {
 }
 
 /** Confirmation for anything that changes state for others (retry, discard, revoke, disable). */
-export function ConfirmDialog({ open, title, message, confirmLabel, danger, reasonLabel, busy, error, onConfirm, onClose }: ConfirmProps) {
+export function ConfirmDialog(props: ConfirmProps) {
+  // Mounted only while open, so every opening starts with an empty reason.
+  return props.open ? <OpenConfirmDialog {...props} /> : null;
+}
+
+function OpenConfirmDialog({ title, message, confirmLabel, danger, reasonLabel, busy, error, onConfirm, onClose }: ConfirmProps) {
   const [reason, setReason] = useState('');
   const [touched, setTouched] = useState(false);
-  useEffect(() => {
-    if (open) {
-      setReason('');
-      setTouched(false);
-    }
-  }, [open]);
   const reasonError = reasonLabel && touched && reason.trim().length < 3 ? 'Give a reason (at least 3 characters)' : undefined;
   const submit = () => {
     setTouched(true);
@@ -108,7 +113,7 @@ export function ConfirmDialog({ open, title, message, confirmLabel, danger, reas
   };
   return (
     <Dialog
-      open={open}
+      open
       title={title}
       onClose={onClose}
       footer={

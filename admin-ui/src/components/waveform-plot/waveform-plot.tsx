@@ -3,6 +3,7 @@ import { createPortal } from 'react-dom';
 import uPlot from 'uplot';
 import type { AnalysisResult, Waveform } from '@/lib/analysis';
 import { displayUnit } from '@/lib/format';
+import { useElementWidth } from '@/hooks/use-element-width';
 import { beatMarks, buildPlotData, cycleMarks } from './marks';
 import { MarksOverlay } from './marks-overlay';
 import { clampView, DEFAULT_SWEEP, SWEEP_SPEEDS, visibleSeconds, type SweepSpeed, type View } from './sweep';
@@ -30,6 +31,10 @@ function canvasAvailable(): boolean {
   }
 }
 
+function plotArea(u: uPlot) {
+  return { left: u.bbox.left / uPlot.pxRatio, top: u.bbox.top / uPlot.pxRatio, width: u.bbox.width / uPlot.pxRatio, height: u.bbox.height / uPlot.pxRatio };
+}
+
 function sameView(a: View, b: View) {
   return Math.abs(a.min - b.min) < 1e-6 && Math.abs(a.max - b.max) < 1e-6;
 }
@@ -39,10 +44,8 @@ function sameView(a: View, b: View) {
  * cycle boundaries (usable or not), at a chosen sweep speed, with zoom and pan.
  */
 export function WaveformPlot({ waveform, analysis, width: fixedWidth }: WaveformPlotProps) {
-  const host = useRef<HTMLDivElement>(null);
+  const { host, width } = useElementWidth<HTMLDivElement>(fixedWidth, FALLBACK_WIDTH);
   const plotRef = useRef<uPlot | null>(null);
-  const [measured, setMeasured] = useState(0);
-  const width = fixedWidth ?? (measured > 0 ? measured : FALLBACK_WIDTH);
   const [speed, setSpeed] = useState<SweepSpeed>(DEFAULT_SWEEP);
   const [zoom, setZoom] = useState(1);
   const data = useMemo(() => buildPlotData(waveform), [waveform]);
@@ -53,25 +56,22 @@ export function WaveformPlot({ waveform, analysis, width: fixedWidth }: Waveform
   const span = visibleSeconds(area.width, speed) / zoom;
   const [view, setView] = useState<View>(() => clampView(0, span, data.durationSeconds));
   const [overEl, setOverEl] = useState<HTMLElement | null>(null);
+  const [canvas] = useState(canvasAvailable);
 
-  useEffect(() => {
-    if (fixedWidth || !host.current || typeof ResizeObserver === 'undefined') return;
-    const ro = new ResizeObserver((entries) => setMeasured(Math.floor(entries[0]!.contentRect.width)));
-    ro.observe(host.current);
-    return () => ro.disconnect();
-  }, [fixedWidth]);
-
-  // A new sweep speed, zoom or width keeps the left edge and changes the span.
-  useEffect(() => {
+  // A new sweep speed, zoom or width keeps the left edge and changes the span: adjusted while
+  // rendering (React's pattern for state that follows a changed input), not in an effect after.
+  const [spanOf, setSpanOf] = useState({ span, duration: data.durationSeconds });
+  if (spanOf.span !== span || spanOf.duration !== data.durationSeconds) {
+    setSpanOf({ span, duration: data.durationSeconds });
     setView((v) => {
       const next = clampView(v.min, span, data.durationSeconds);
       return sameView(v, next) ? v : next;
     });
-  }, [span, data.durationSeconds]);
+  }
 
   useEffect(() => {
     const el = host.current;
-    if (!el || data.x.length === 0) return;
+    if (!el || data.x.length === 0 || !canvas) return;
     const series: uPlot.Series[] = [{}];
     const scales: uPlot.Scales = { x: { time: false, auto: false } };
     data.traces.forEach((t) => {
@@ -130,41 +130,30 @@ export function WaveformPlot({ waveform, analysis, width: fixedWidth }: Waveform
             setView((v) => (sameView(v, next) ? v : next));
           },
         ],
-        setSize: [
-          (u) =>
-            setArea({
-              left: u.bbox.left / uPlot.pxRatio,
-              top: u.bbox.top / uPlot.pxRatio,
-              width: u.bbox.width / uPlot.pxRatio,
-              height: u.bbox.height / uPlot.pxRatio,
-            }),
+        setSize: [(u) => setArea(plotArea(u))],
+        // The overlay moves into the plot once uPlot has laid it out (its first draw).
+        ready: [
+          (u) => {
+            setArea(plotArea(u));
+            setOverEl(u.over);
+          },
         ],
       },
     };
     let plot: uPlot | null = null;
-    if (!canvasAvailable()) {
-      setOverEl(null);
-      return;
-    }
     try {
       plot = new uPlot(opts, [data.x, ...data.ys] as uPlot.AlignedData, el);
-      setArea({
-        left: plot.bbox.left / uPlot.pxRatio,
-        top: plot.bbox.top / uPlot.pxRatio,
-        width: plot.bbox.width / uPlot.pxRatio,
-        height: plot.bbox.height / uPlot.pxRatio,
-      });
-      setOverEl(plot.over);
     } catch {
       plot = null;
-      setOverEl(null);
     }
     plotRef.current = plot;
     return () => {
       plot?.destroy();
       plotRef.current = null;
+      // The overlay falls back to the host until the next plot is ready (or for good, if none is).
+      setOverEl(null);
     };
-  }, [data, width]);
+  }, [data, width, canvas, host]);
 
   useEffect(() => {
     const u = plotRef.current;

@@ -1,6 +1,7 @@
-import { useEffect, useMemo, useRef, useState } from 'react';
+import { useEffect, useMemo, useRef } from 'react';
 import uPlot from 'uplot';
 import type { BedTrend, TrendPoint } from '@ebbgate/shared';
+import { useElementWidth } from '@/hooks/use-element-width';
 import { VERDICT_COLOR } from '@/components/analysis/verdict-mark';
 
 export const TREND_SERIES = [
@@ -69,9 +70,7 @@ export function TrendChart({
   onOpen: (assessmentId: string) => void;
   width?: number;
 }) {
-  const host = useRef<HTMLDivElement>(null);
-  const [measured, setMeasured] = useState(0);
-  const width = fixedWidth ?? (measured > 0 ? measured : 960);
+  const { host, width } = useElementWidth<HTMLDivElement>(fixedWidth, 960);
   const data = useMemo(() => {
     const x = trend.points.map((p) => Date.parse(p.t) / 1000);
     return [x, ...TREND_SERIES.map((s) => trend.points.map((p) => p[s.key]))] as uPlot.AlignedData;
@@ -80,13 +79,6 @@ export function TrendChart({
   useEffect(() => {
     onOpenRef.current = onOpen;
   }, [onOpen]);
-
-  useEffect(() => {
-    if (fixedWidth || !host.current || typeof ResizeObserver === 'undefined') return;
-    const ro = new ResizeObserver((entries) => setMeasured(Math.floor(entries[0]!.contentRect.width)));
-    ro.observe(host.current);
-    return () => ro.disconnect();
-  }, [fixedWidth]);
 
   useEffect(() => {
     const el = host.current;
@@ -187,7 +179,7 @@ export function TrendChart({
       plot?.over.removeEventListener('click', onClick);
       plot?.destroy();
     };
-  }, [data, width, trend, shown]);
+  }, [data, width, trend, shown, host]);
 
   return (
     <div
