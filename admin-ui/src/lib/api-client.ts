@@ -4,12 +4,15 @@ import type { Problem } from '@ebbgate/shared';
 export class ApiError extends Error {
   readonly status: number;
   readonly problem: Problem;
+  /** The answer's Retry-After in seconds (429, 503), when it sent one. */
+  readonly retryAfterSeconds: number | undefined;
 
-  constructor(problem: Problem) {
+  constructor(problem: Problem, retryAfterSeconds?: number) {
     super(problem.detail ?? problem.title);
     this.name = 'ApiError';
     this.status = problem.status;
     this.problem = problem;
+    this.retryAfterSeconds = retryAfterSeconds;
   }
 
   /** Field path → message, for showing server-side validation beside the form field. */
@@ -63,6 +66,15 @@ export function buildUrl(path: string, query?: Query): string {
   return qs ? `${url}?${qs}` : url;
 }
 
+/** Retry-After as delay-seconds or an HTTP date (RFC 9110 §10.2.3), in whole seconds from now. */
+export function retryAfterSeconds(value: string | null, now = Date.now()): number | undefined {
+  if (!value) return undefined;
+  const v = value.trim();
+  if (/^\d+$/.test(v)) return Number(v);
+  const at = Date.parse(v);
+  return Number.isFinite(at) ? Math.max(0, Math.ceil((at - now) / 1000)) : undefined;
+}
+
 async function toProblem(res: Response): Promise<Problem> {
   const text = await res.text().catch(() => '');
   try {
@@ -100,7 +112,7 @@ export async function apiRequest<T>(path: string, opts: RequestOptions = {}): Pr
   if (!res.ok) {
     const problem = await toProblem(res);
     if (res.status === 401 && !path.startsWith('/auth/')) for (const l of unauthorizedListeners) l();
-    throw new ApiError(problem);
+    throw new ApiError(problem, retryAfterSeconds(res.headers.get('Retry-After')));
   }
   if (res.status === 204) return undefined as T;
   const type = res.headers.get('content-type') ?? '';

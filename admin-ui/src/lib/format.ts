@@ -40,6 +40,21 @@ export function localInputToIso(v: string | undefined): string | undefined {
   return Number.isNaN(d.getTime()) ? undefined : d.toISOString();
 }
 
+/**
+ * A wait in words, rounded up so the user never tries too early: 45 → "45 seconds", 61 → "2 minutes",
+ * 3600 → "1 hour", 5400 → "1 hour 30 minutes".
+ */
+export function formatWait(seconds: number): string {
+  const plural = (n: number, unit: string) => `${n} ${unit}${n === 1 ? '' : 's'}`;
+  const s = Math.max(1, Math.ceil(seconds));
+  if (s < 60) return plural(s, 'second');
+  const minutes = Math.ceil(s / 60);
+  if (minutes < 60) return plural(minutes, 'minute');
+  const hours = Math.floor(minutes / 60);
+  const rest = minutes % 60;
+  return rest === 0 ? plural(hours, 'hour') : `${plural(hours, 'hour')} ${plural(rest, 'minute')}`;
+}
+
 export function humanize(code: string): string {
   const s = code.replace(/[-_]/g, ' ');
   return s.charAt(0).toUpperCase() + s.slice(1);

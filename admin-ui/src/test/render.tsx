@@ -12,7 +12,7 @@ export interface FakeCall {
   body: unknown;
   headers: Record<string, string>;
 }
-type Handler = (call: FakeCall) => { status?: number; body?: unknown } | undefined;
+type Handler = (call: FakeCall) => { status?: number; body?: unknown; headers?: Record<string, string> } | undefined;
 
 /**
  * Replaces fetch with a scripted gateway: each request goes to `handler`, and every call is
@@ -29,9 +29,9 @@ export function fakeGateway(handler: Handler) {
     calls.push(call);
     const answer = handler(call) ?? { status: 404, body: { type: 'about:blank', title: 'Not Found', status: 404 } };
     const status = answer.status ?? 200;
-    if (status === 204) return new Response(null, { status });
+    if (status === 204) return new Response(null, { status, headers: answer.headers });
     const type = status >= 400 ? 'application/problem+json' : 'application/json';
-    return new Response(JSON.stringify(answer.body ?? {}), { status, headers: { 'content-type': type } });
+    return new Response(JSON.stringify(answer.body ?? {}), { status, headers: { 'content-type': type, ...answer.headers } });
   });
   vi.stubGlobal('fetch', fetchMock);
   return { calls, fetchMock };

@@ -4,6 +4,7 @@ import { Navigate, useLocation, useNavigate } from 'react-router-dom';
 import { signInSchema, type SignIn } from '@ebbgate/shared';
 import { useAuth } from '@/lib/auth';
 import { ApiError, errorMessage } from '@/lib/api-client';
+import { formatWait } from '@/lib/format';
 import { Button } from '@/components/ui/button';
 import { TextField } from '@/components/ui/field';
 import { BrandMark } from '@/components/ui/brand';
@@ -11,8 +12,12 @@ import { BrandMark } from '@/components/ui/brand';
 function signInFailure(err: unknown): string {
   if (err instanceof ApiError) {
     if (err.status === 401) return 'User name or password not recognised.';
-    if (err.status === 423) return 'This account is locked for a while after repeated failures. Try later or ask an administrator.';
-    if (err.status === 429) return 'Too many attempts. Wait a minute and try again.';
+    // The gateway slows repeated failures down (a growing wait, per account and per address) and
+    // says how long in Retry-After; nothing is locked, so the wait is all there is to say.
+    if (err.status === 429)
+      return err.retryAfterSeconds !== undefined
+        ? `Too many attempts. Try again in ${formatWait(err.retryAfterSeconds)}.`
+        : 'Too many attempts. Wait a little and try again.';
   }
   return errorMessage(err);
 }
