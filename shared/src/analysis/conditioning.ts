@@ -1,5 +1,5 @@
 import type { ChannelRole } from '../schemas/ingest';
-import { cachedButterSos, sosfiltfilt } from './filters';
+import { cachedButterSos, filtfiltJob, runFiltfiltJobs, type FiltfiltJob } from './filters';
 import { findSignalLoss } from './signal-loss';
 import { robustPercentiles } from './signal-utils';
 import type { AnalysisChannel, AnalysisSettings, ChannelReport, FilterReport, SampleSpan } from './types';
@@ -91,23 +91,67 @@ interface ScanResult {
 }
 
 /**
- * One pass over the channel: unit conversion, gap bridging (linear), flat-line runs (spread within
- * flatTol), runs of identical samples (clipping candidates) and the longest run above highLevel.
- * Folding these into one loop keeps conditioning to a single read of the samples.
+ * Flat-line runs: greedy runs of finite samples whose spread stays within `tol`, a run ending at the
+ * first sample that would widen it beyond `tol` (or at a missing sample), kept when at least
+ * `minFlat` long.
+ */
+function flatRuns(src: ArrayLike<number>, scale: number, fs: number, tol: number, minFlat: number): SampleSpan[] {
+  const n = src.length;
+  const flatLines: SampleSpan[] = [];
+  let fStart = 0;
+  let fLo = Number.NaN;
+  let fHi = Number.NaN;
+  for (let i = 0; i < n; i++) {
+    const v = src[i] * scale;
+    if (v - v === 0) {
+      if (fLo === fLo) {
+        const nlo = v < fLo ? v : fLo;
+        const nhi = v > fHi ? v : fHi;
+        if (nhi - nlo <= tol) {
+          fLo = nlo;
+          fHi = nhi;
+        } else {
+          if (i - fStart >= minFlat) flatLines.push(spanOf(fStart, i, fs));
+          fStart = i;
+          fLo = v;
+          fHi = v;
+        }
+      } else {
+        fStart = i;
+        fLo = v;
+        fHi = v;
+      }
+    } else {
+      if (fLo === fLo && i - fStart >= minFlat) flatLines.push(spanOf(fStart, i, fs));
+      fLo = Number.NaN;
+    }
+  }
+  if (fLo === fLo && n - fStart >= minFlat) flatLines.push(spanOf(fStart, n, fs));
+  return flatLines;
+}
+
+/**
+ * One pass over the channel: unit conversion, gap bridging (linear), runs of identical samples
+ * (clipping candidates), the longest run above highLevel, and the spread of each block of
+ * ⌊minFlat / 2⌋ samples. A flat-line run of minFlat samples contains a whole block, so it needs a
+ * block of finite samples with spread within flatTol: only then are the runs themselves followed
+ * (flatRuns, a second read). Following them sample by sample costs a mispredicted branch on most
+ * samples of a noisy trace, which made this the slowest loop of the engine.
  */
 function scan(src: ArrayLike<number>, scale: number, fs: number, o: ScanOptions, filled: Float64Array): ScanResult {
   const n = src.length;
   const trackEqual = o.minClip <= n;
   const trackHigh = o.highLevel !== Infinity;
   const gaps: SampleSpan[] = [];
-  const flatLines: SampleSpan[] = [];
   const equalRuns: { a: number; b: number; v: number }[] = [];
   let last = -1;
   let min = Infinity;
   let max = -Infinity;
-  let fStart = 0;
-  let fLo = Number.NaN;
-  let fHi = Number.NaN;
+  const block = o.minFlat >> 1;
+  let blockEnd = block - 1;
+  let bLo = Infinity;
+  let bHi = -Infinity;
+  let quietBlock = block < 1;
   let eStart = 0;
   let eVal = Number.NaN;
   let high = 0;
@@ -127,23 +171,8 @@ function scan(src: ArrayLike<number>, scale: number, fs: number, o: ScanOptions,
       last = i;
       if (v < min) min = v;
       if (v > max) max = v;
-      if (fLo === fLo) {
-        const nlo = v < fLo ? v : fLo;
-        const nhi = v > fHi ? v : fHi;
-        if (nhi - nlo <= o.flatTol) {
-          fLo = nlo;
-          fHi = nhi;
-        } else {
-          if (i - fStart >= o.minFlat) flatLines.push(spanOf(fStart, i, fs));
-          fStart = i;
-          fLo = v;
-          fHi = v;
-        }
-      } else {
-        fStart = i;
-        fLo = v;
-        fHi = v;
-      }
+      if (v < bLo) bLo = v;
+      if (v > bHi) bHi = v;
       if (trackEqual && v !== eVal) {
         if (eVal === eVal && i - eStart >= o.minClip) equalRuns.push({ a: eStart, b: i, v: eVal });
         eStart = i;
@@ -159,15 +188,20 @@ function scan(src: ArrayLike<number>, scale: number, fs: number, o: ScanOptions,
         }
       }
     } else {
-      if (fLo === fLo && i - fStart >= o.minFlat) flatLines.push(spanOf(fStart, i, fs));
-      fLo = Number.NaN;
+      bHi = Infinity; // a block with a missing sample holds no flat-line run
       if (eVal === eVal && i - eStart >= o.minClip) equalRuns.push({ a: eStart, b: i, v: eVal });
       eVal = Number.NaN;
       if (high >= minHigh) highRuns.push(spanOf(i - high, i, fs));
       high = 0;
     }
+    if (i === blockEnd) {
+      if (bHi - bLo <= o.flatTol) quietBlock = true;
+      bLo = Infinity;
+      bHi = -Infinity;
+      blockEnd += block;
+    }
   }
-  if (fLo === fLo && n - fStart >= o.minFlat) flatLines.push(spanOf(fStart, n, fs));
+  const flatLines = quietBlock ? flatRuns(src, scale, fs, o.flatTol, o.minFlat) : [];
   if (eVal === eVal && n - eStart >= o.minClip) equalRuns.push({ a: eStart, b: n, v: eVal });
   if (last < n - 1) {
     const a = last + 1;
@@ -184,8 +218,24 @@ function scan(src: ArrayLike<number>, scale: number, fs: number, o: ScanOptions,
   return { gaps, flatLines, clipping, longestHighRun: longestHigh, highRuns };
 }
 
-/** Conditioning stage: unit conversion, gaps, flat lines, clipping, zero-phase Butterworth filtering. */
-export function conditionChannel(ch: AnalysisChannel, settings: AnalysisSettings, declaredFiltering: string | null): ConditionedChannel {
+/** A channel after its single read (scan), with its low-pass prepared but not yet run. */
+export interface ScannedChannel {
+  ch: AnalysisChannel;
+  to: string;
+  scale: number;
+  filled: Float64Array;
+  found: ScanResult;
+  gapCount: number;
+  hasSignal: boolean;
+  declaredFiltering: string | null;
+  lowpass: { job: FiltfiltJob; report: FilterReport } | null;
+}
+
+/**
+ * First half of conditioning: checks (sample rate, length, unit: AnalysisInputError), unit
+ * conversion, gaps, flat lines, clipping, and the zero-phase Butterworth low-pass prepared.
+ */
+export function scanChannel(ch: AnalysisChannel, settings: AnalysisSettings, declaredFiltering: string | null): ScannedChannel {
   const fs = ch.sampleRate;
   if (!(fs > 0 && Number.isFinite(fs))) throw new AnalysisInputError(`${ch.role}: sample rate must be a positive number, got ${fs}`);
   const n = ch.samples.length;
@@ -209,33 +259,59 @@ export function conditionChannel(ch: AnalysisChannel, settings: AnalysisSettings
     },
     filled,
   );
-  const { gaps, flatLines, clipping } = found;
-  const gapCount = gaps.reduce((s, g) => s + g.endSample - g.startSample, 0);
+  const gapCount = found.gaps.reduce((s, g) => s + g.endSample - g.startSample, 0);
   const hasSignal = gapCount < n;
-  let filter: FilterReport | null = null;
-  let smooth: Float64Array = filled;
+  let lowpass: ScannedChannel['lowpass'] = null;
   const cutoff = ch.role === 'abp' ? settings.abpLowpassHz : ch.role === 'pleth' ? settings.plethBandpassHz[1] : settings.respirationLowpassHz;
   const order = ch.role === 'abp' ? settings.abpFilterOrder : ch.role === 'pleth' ? settings.plethFilterOrder : 2;
   if (hasSignal && cutoff < 0.45 * fs && n > 30) {
-    smooth = sosfiltfilt(cachedButterSos(order, cutoff, 'lowpass', fs), filled);
-    filter = { kind: 'butterworth-lowpass', order, cutoffHz: [cutoff], zeroPhase: true };
+    lowpass = {
+      job: filtfiltJob(cachedButterSos(order, cutoff, 'lowpass', fs), filled),
+      report: { kind: 'butterworth-lowpass', order, cutoffHz: [cutoff], zeroPhase: true },
+    };
   }
+  return { ch, to, scale, filled, found, gapCount, hasSignal, declaredFiltering, lowpass };
+}
+
+/**
+ * Second half of conditioning: the low-passes of all channels of a window run together (two
+ * channels of equal length share one loop, see runFiltfiltJobs), then signal loss is sought on the
+ * smoothed arterial pressure.
+ */
+export function filterChannels(scanned: ScannedChannel[], settings: AnalysisSettings): ConditionedChannel[] {
+  const withFilter = scanned.filter((s) => s.lowpass !== null);
+  const smoothed = runFiltfiltJobs(withFilter.map((s) => (s.lowpass as NonNullable<ScannedChannel['lowpass']>).job));
+  return scanned.map((s) => {
+    const k = withFilter.indexOf(s);
+    return finishChannel(s, k >= 0 ? smoothed[k] : s.filled, settings);
+  });
+}
+
+function finishChannel(s: ScannedChannel, smooth: Float64Array, settings: AnalysisSettings): ConditionedChannel {
+  const { ch, found, gapCount, hasSignal } = s;
+  const fs = ch.sampleRate;
+  const n = ch.samples.length;
   const report: ChannelReport = {
     role: ch.role,
     sampleRate: fs,
     sampleCount: n,
     durationSeconds: n / fs,
     unitFrom: ch.unit,
-    unitTo: to,
-    unitScale: scale,
-    gaps,
-    flatLines,
-    clipping,
+    unitTo: s.to,
+    unitScale: s.scale,
+    gaps: found.gaps,
+    flatLines: found.flatLines,
+    clipping: found.clipping,
     signalLoss: ch.role === 'abp' && hasSignal ? findSignalLoss(smooth, fs, settings.minFlatLineSeconds) : [],
     gapFraction: gapCount / n,
-    filter,
+    filter: s.lowpass ? s.lowpass.report : null,
     resampledTo: null,
-    declaredFiltering,
+    declaredFiltering: s.declaredFiltering,
   };
-  return { role: ch.role, fs, filled, smooth, report, hasSignal, longestHighRun: found.longestHighRun, highRuns: found.highRuns };
+  return { role: ch.role, fs, filled: s.filled, smooth, report, hasSignal, longestHighRun: found.longestHighRun, highRuns: found.highRuns };
+}
+
+/** Conditioning stage for one channel: unit conversion, gaps, flat lines, clipping, zero-phase Butterworth filtering. */
+export function conditionChannel(ch: AnalysisChannel, settings: AnalysisSettings, declaredFiltering: string | null): ConditionedChannel {
+  return filterChannels([scanChannel(ch, settings, declaredFiltering)], settings)[0];
 }

@@ -253,7 +253,7 @@ function oddExtend(x: ArrayLike<number>, edge: number): Float64Array {
   const first = x[0];
   const last = x[n - 1];
   for (let i = 0; i < edge; i++) out[i] = 2 * first - x[edge - i];
-  for (let i = 0; i < n; i++) out[edge + i] = x[i];
+  out.set(x, edge);
   for (let i = 0; i < edge; i++) out[edge + n + i] = 2 * last - x[n - 2 - i];
   return out;
 }
@@ -294,31 +294,84 @@ export function sosfiltZi(sos: Sos): number[][] {
 }
 
 /**
- * In-place cascade of biquads over `buf` (direct form II transposed), from initial states × x0;
+ * One biquad section over `buf` in place (direct form II transposed), from initial state zi × x0;
  * `backward` runs from the last sample to the first (saves reversing the buffer twice).
  */
-function sosfiltInPlace(sos: Sos, zi: number[][], x0: number, buf: Float64Array, backward: boolean): void {
+function sectionInPlace(sec: number[], zi: number[], x0: number, buf: Float64Array, backward: boolean): void {
+  const [b0, b1, b2, , a1, a2] = sec;
+  let z0 = zi[0] * x0;
+  let z1 = zi[1] * x0;
   const n = buf.length;
-  for (let s = 0; s < sos.length; s++) {
-    const [b0, b1, b2, , a1, a2] = sos[s];
-    let z0 = zi[s][0] * x0;
-    let z1 = zi[s][1] * x0;
-    if (!backward) {
-      for (let i = 0; i < n; i++) {
-        const xi = buf[i];
-        const yi = b0 * xi + z0;
-        z0 = b1 * xi - a1 * yi + z1;
-        z1 = b2 * xi - a2 * yi;
-        buf[i] = yi;
-      }
-    } else {
-      for (let i = n - 1; i >= 0; i--) {
-        const xi = buf[i];
-        const yi = b0 * xi + z0;
-        z0 = b1 * xi - a1 * yi + z1;
-        z1 = b2 * xi - a2 * yi;
-        buf[i] = yi;
-      }
+  const step = backward ? -1 : 1;
+  for (let k = 0, i = backward ? n - 1 : 0; k < n; k++, i += step) {
+    const xi = buf[i];
+    const yi = b0 * xi + z0;
+    z0 = b1 * xi - a1 * yi + z1;
+    z1 = b2 * xi - a2 * yi;
+    buf[i] = yi;
+  }
+}
+
+/**
+ * One section of each of two cascades over two buffers of equal length, in one loop. Each
+ * recursion does exactly what sectionInPlace does; a biquad is bound by the latency of its own
+ * feedback, so the processor runs the second, independent one in the gaps of the first.
+ */
+function sectionPairInPlace(
+  secP: number[],
+  ziP: number[],
+  x0P: number,
+  p: Float64Array,
+  secQ: number[],
+  ziQ: number[],
+  x0Q: number,
+  q: Float64Array,
+  backward: boolean,
+): void {
+  const [b0, b1, b2, , a1, a2] = secP;
+  const [c0, c1, c2, , d1, d2] = secQ;
+  let z0 = ziP[0] * x0P;
+  let z1 = ziP[1] * x0P;
+  let w0 = ziQ[0] * x0Q;
+  let w1 = ziQ[1] * x0Q;
+  const n = p.length;
+  const step = backward ? -1 : 1;
+  for (let k = 0, i = backward ? n - 1 : 0; k < n; k++, i += step) {
+    const xi = p[i];
+    const yi = b0 * xi + z0;
+    z0 = b1 * xi - a1 * yi + z1;
+    z1 = b2 * xi - a2 * yi;
+    p[i] = yi;
+    const ui = q[i];
+    const vi = c0 * ui + w0;
+    w0 = c1 * ui - d1 * vi + w1;
+    w1 = c2 * ui - d2 * vi;
+    q[i] = vi;
+  }
+}
+
+/** A signal prepared for sosfiltfilt: its sections, their initial states, the padded buffer. */
+export interface FiltfiltJob {
+  sos: Sos;
+  zi: number[][];
+  ext: Float64Array;
+  edge: number;
+  length: number;
+}
+
+/** Both passes of one job, or of two jobs of equal padded length section by section together. */
+function runPasses(p: FiltfiltJob, q: FiltfiltJob | null): void {
+  for (const backward of [false, true]) {
+    // Initial states scale with the first sample the pass reads (scipy's sosfiltfilt).
+    const x0P = p.ext[backward ? p.ext.length - 1 : 0];
+    const x0Q = q ? q.ext[backward ? q.ext.length - 1 : 0] : 0;
+    const sections = Math.max(p.sos.length, q ? q.sos.length : 0);
+    for (let s = 0; s < sections; s++) {
+      const inP = s < p.sos.length;
+      const inQ = q !== null && s < q.sos.length;
+      if (inP && inQ) sectionPairInPlace(p.sos[s], p.zi[s], x0P, p.ext, q.sos[s], q.zi[s], x0Q, q.ext, backward);
+      else if (inP) sectionInPlace(p.sos[s], p.zi[s], x0P, p.ext, backward);
+      else if (inQ) sectionInPlace(q.sos[s], q.zi[s], x0Q, q.ext, backward);
     }
   }
 }
@@ -334,8 +387,8 @@ export function sosPadLength(sos: Sos): number {
 
 const ziCache = new WeakMap<Sos, number[][]>();
 
-/** Zero-phase forward–backward section filtering, as scipy.signal.sosfiltfilt(sos, x). */
-export function sosfiltfilt(sos: Sos, x: ArrayLike<number>): Float64Array {
+/** Checks and pads a signal for sosfiltfilt (throws RangeError when it is too short); runFiltfiltJobs filters it. */
+export function filtfiltJob(sos: Sos, x: ArrayLike<number>): FiltfiltJob {
   const edge = sosPadLength(sos);
   if (x.length <= edge) throw new RangeError(`sosfiltfilt needs more than ${edge} samples, got ${x.length}`);
   let zi = ziCache.get(sos);
@@ -343,8 +396,27 @@ export function sosfiltfilt(sos: Sos, x: ArrayLike<number>): Float64Array {
     zi = sosfiltZi(sos);
     ziCache.set(sos, zi);
   }
-  const ext = oddExtend(x, edge);
-  sosfiltInPlace(sos, zi, ext[0], ext, false);
-  sosfiltInPlace(sos, zi, ext[ext.length - 1], ext, true);
-  return ext.subarray(edge, edge + x.length);
+  return { sos, zi, ext: oddExtend(x, edge), edge, length: x.length };
+}
+
+/**
+ * Runs prepared sosfiltfilt jobs, each with its own sections; the results are those of sosfiltfilt
+ * on each signal, bit for bit. Jobs of equal padded length (the channels of one window) are
+ * filtered two at a time, which takes little more than the time of one.
+ */
+export function runFiltfiltJobs(jobs: FiltfiltJob[]): Float64Array[] {
+  const paired = new Uint8Array(jobs.length);
+  for (let a = 0; a < jobs.length; a++) {
+    if (paired[a]) continue;
+    let b = a + 1;
+    while (b < jobs.length && (paired[b] || jobs[b].ext.length !== jobs[a].ext.length)) b++;
+    if (b < jobs.length) paired[b] = 1;
+    runPasses(jobs[a], b < jobs.length ? jobs[b] : null);
+  }
+  return jobs.map((j) => j.ext.subarray(j.edge, j.edge + j.length));
+}
+
+/** Zero-phase forward–backward section filtering, as scipy.signal.sosfiltfilt(sos, x). */
+export function sosfiltfilt(sos: Sos, x: ArrayLike<number>): Float64Array {
+  return runFiltfiltJobs([filtfiltJob(sos, x)])[0];
 }

@@ -9,7 +9,7 @@ import { qualifyBeats, type QualifiedBeats } from './beat-quality';
 import { detectArterialBeats } from './beats-abp';
 import { detectPlethBeats } from './beats-pleth';
 import { CAUTIONS } from './cautions';
-import { AnalysisInputError, conditionChannel, type ConditionedChannel } from './conditioning';
+import { AnalysisInputError, filterChannels, scanChannel, type ConditionedChannel, type ScannedChannel } from './conditioning';
 import { findBreaths, spontaneousEvidence } from './breath-source';
 import { buildCycles, computeIndices, keptVersusDropped, selectCycles, selectionReport } from './indices';
 import { respiratoryMechanics } from './mechanics';
@@ -85,13 +85,14 @@ export function analyseWindow(input: AnalysisInput, partialSettings?: Partial<An
   const settings = resolveSettings(partialSettings);
   const context = input.context ?? {};
   if (!input.channels || input.channels.length === 0) throw new AnalysisInputError('no channels in the analysis window');
-  const byRole = new Map<ChannelRole, ConditionedChannel>();
+  const scanned: ScannedChannel[] = [];
   for (const ch of input.channels) {
-    if (byRole.has(ch.role)) throw new AnalysisInputError(`more than one ${ch.role} channel in the window`);
+    if (scanned.some((s) => s.ch.role === ch.role)) throw new AnalysisInputError(`more than one ${ch.role} channel in the window`);
     const declared = ch.role === 'pleth' || ch.role === 'abp' ? (context.builtInFiltering ?? null) : null;
-    byRole.set(ch.role, conditionChannel(ch, settings, declared));
+    scanned.push(scanChannel(ch, settings, declared));
   }
-  const conditioned = [...byRole.values()];
+  const conditioned = filterChannels(scanned, settings);
+  const byRole = new Map<ChannelRole, ConditionedChannel>(conditioned.map((c) => [c.role, c]));
   const abpQ = beatsFor(byRole.get('abp'), settings);
   const plethQ = beatsFor(byRole.get('pleth'), settings);
   const arterialLine = abpQ ? checkArterialLine(byRole.get('abp') as ConditionedChannel, abpQ.series, abpQ.noiseSd) : null;
