@@ -1,17 +1,14 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { RunningMockEhr } from '../src/index.js';
-import { fhir, getToken, observation, startTestEhr } from './helpers.js';
+import { fhir, observation, startTestEhrWithToken } from './helpers.js';
 
 // Reference: FHIR R4 RESTful API, "Conditional create" (If-None-Exist): no match → 201 Created;
 // one match → 200 OK and the posted resource is ignored; several matches → 412 Precondition Failed.
 
 let ehr: RunningMockEhr;
 let token: string;
-beforeAll(async () => {
-  ehr = await startTestEhr();
-  token = await getToken(ehr);
-});
-afterAll(() => ehr.stop());
+beforeAll(async () => ({ ehr, token } = await startTestEhrWithToken()));
+afterAll(() => ehr?.stop());
 
 const ifNoneExist = (v: string) => ({ 'If-None-Exist': `identifier=urn:ebbgate:test:result|${v}` });
 

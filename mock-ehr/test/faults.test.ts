@@ -1,17 +1,14 @@
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
 import type { RunningMockEhr } from '../src/index.js';
-import { admin, fhir, getToken, observation, startTestEhr } from './helpers.js';
+import { admin, fhir, observation, startTestEhrWithToken } from './helpers.js';
 
 // Fault injection through /_admin/faults. References: RFC 9110 §10.2.3 (Retry-After on 429/503),
 // RFC 6585 §4 (429 Too Many Requests); the rest is the mock's own documented contract.
 
 let ehr: RunningMockEhr;
 let token: string;
-beforeAll(async () => {
-  ehr = await startTestEhr();
-  token = await getToken(ehr);
-});
-afterAll(() => ehr.stop());
+beforeAll(async () => ({ ehr, token } = await startTestEhrWithToken()));
+afterAll(() => ehr?.stop());
 beforeEach(async () => {
   await admin(ehr, 'DELETE', 'faults');
 });

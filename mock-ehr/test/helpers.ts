@@ -8,6 +8,17 @@ export function startTestEhr(extra: MockEhrOptions = {}): Promise<RunningMockEhr
   return startMockEhr({ httpPort: 0, smtpPort: 0, mllpPort: 0, clientId: CLIENT.id, clientSecret: CLIENT.secret, ...extra });
 }
 
+/** A mock EHR for a test file and a token of the test client, for `beforeAll`. */
+export async function startTestEhrWithToken(extra: MockEhrOptions = {}): Promise<{ ehr: RunningMockEhr; token: string }> {
+  const ehr = await startTestEhr(extra);
+  try {
+    return { ehr, token: await getToken(ehr) };
+  } catch (err) {
+    await ehr.stop();
+    throw err;
+  }
+}
+
 export async function getToken(ehr: RunningMockEhr): Promise<string> {
   const res = await fetch(ehr.tokenUrl, {
     method: 'POST',

@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { RunningMockEhr } from '../src/index.js';
-import { admin, fhir, getToken, observation, startTestEhr } from './helpers.js';
+import { admin, fhir, observation, startTestEhrWithToken } from './helpers.js';
 
 // Reference: FHIR R4 RESTful API, "HTTP status codes": 404 unknown resource type or id, 405 an
 // interaction the server does not support, 415 an unsupported content type; every error body an
@@ -8,11 +8,8 @@ import { admin, fhir, getToken, observation, startTestEhr } from './helpers.js';
 
 let ehr: RunningMockEhr;
 let token: string;
-beforeAll(async () => {
-  ehr = await startTestEhr();
-  token = await getToken(ehr);
-});
-afterAll(() => ehr.stop());
+beforeAll(async () => ({ ehr, token } = await startTestEhrWithToken()));
+afterAll(() => ehr?.stop());
 
 const expectOutcome = (body: { resourceType: string; issue: { severity: string; code: string }[] }) => {
   expect(body.resourceType).toBe('OperationOutcome');

@@ -1,7 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { loadHospitalFile, LOCATION_SYSTEM, MRN_SYSTEM, type RunningMockEhr } from '../src/index.js';
 import { validateAgainstSchema } from '../src/fhir/schema-validator.js';
-import { fhir, getToken, startTestEhr } from './helpers.js';
+import { fhir, startTestEhrWithToken } from './helpers.js';
 
 // The demo hospital (config/demo/hospital.json) seeded as FHIR resources. Every seeded resource is
 // checked against the FHIR R4 JSON schema; Encounter.class uses v3 ActCode IMP (FHIR R4 value set
@@ -9,11 +9,8 @@ import { fhir, getToken, startTestEhr } from './helpers.js';
 
 let ehr: RunningMockEhr;
 let token: string;
-beforeAll(async () => {
-  ehr = await startTestEhr();
-  token = await getToken(ehr);
-});
-afterAll(() => ehr.stop());
+beforeAll(async () => ({ ehr, token } = await startTestEhrWithToken()));
+afterAll(() => ehr?.stop());
 
 describe('demo hospital seed', () => {
   const file = loadHospitalFile();

@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { RunningMockEhr } from '../src/index.js';
-import { admin, fhir, getToken, observation, startTestEhr } from './helpers.js';
+import { admin, fhir, observation, startTestEhrWithToken } from './helpers.js';
 
 // Reference: FHIR R4 RESTful API, "Transaction" (Bundle.type = transaction): processed as a single
 // atomic unit (all or nothing); urn:uuid fullUrls are replaced by server ids in every reference;
@@ -9,11 +9,8 @@ import { admin, fhir, getToken, observation, startTestEhr } from './helpers.js';
 
 let ehr: RunningMockEhr;
 let token: string;
-beforeAll(async () => {
-  ehr = await startTestEhr();
-  token = await getToken(ehr);
-});
-afterAll(() => ehr.stop());
+beforeAll(async () => ({ ehr, token } = await startTestEhrWithToken()));
+afterAll(() => ehr?.stop());
 
 const deviceUuid = 'urn:uuid:2b0f6a64-5d0c-4c1e-9a35-7f1e3d1b8c01';
 const post = (resource: Record<string, unknown>, fullUrl?: string, ifNoneExist?: string) => ({

@@ -2,7 +2,7 @@ import fhirpath from 'fhirpath';
 import r4model from 'fhirpath/fhir-context/r4';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { RunningMockEhr } from '../src/index.js';
-import { fhir, getToken, observation, startTestEhr } from './helpers.js';
+import { fhir, observation, startTestEhrWithToken } from './helpers.js';
 
 // References: the FHIR R4 JSON schema (fhir.schema.json, http://hl7.org/fhir/json-schema/4.0) for
 // structure; the FHIR R4 Observation invariants obs-6 and obs-7, whose official FHIRPath
@@ -16,11 +16,8 @@ const holds = (expr: string, r: unknown) => (fhirpath.evaluate(r, expr, { resour
 
 let ehr: RunningMockEhr;
 let token: string;
-beforeAll(async () => {
-  ehr = await startTestEhr();
-  token = await getToken(ehr);
-});
-afterAll(() => ehr.stop());
+beforeAll(async () => ({ ehr, token } = await startTestEhrWithToken()));
+afterAll(() => ehr?.stop());
 
 describe('validation of posted resources', () => {
   it('answers 400 with an OperationOutcome for a body that is not JSON', async () => {

@@ -3,15 +3,12 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { generateChallenge, generateWindow, toIngestBatch, type SyntheticWindow } from '@ebbgate/shared/synthetic';
 import type { AnalysisContext } from '@ebbgate/shared';
 import { analyseNextWindow, DEFAULT_ENGINE } from '../../src/analysis/analysis-worker';
-import { startTestGateway, type SignedInClient, type TestGateway } from '../support/harness';
+import { startTestGatewayAs, type SignedInClient, type TestGateway } from '../support/harness';
 import { registerMonitor } from '../devices/fixtures';
 
 let gw: TestGateway;
 let integrator: SignedInClient;
-beforeAll(async () => {
-  gw = await startTestGateway();
-  integrator = await gw.signIn('integrator');
-});
+beforeAll(async () => ({ gw, client: integrator } = await startTestGatewayAs('integrator')));
 afterAll(async () => gw?.stop());
 
 const T0 = Date.parse('2026-12-01T09:00:00.000Z');

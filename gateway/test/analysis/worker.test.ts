@@ -3,16 +3,13 @@ import { analyseWindow } from '@ebbgate/shared/analysis';
 import { analyseNextWindow, AnalysisWorker, DEFAULT_ENGINE, requestReanalysis, type Engine } from '../../src/analysis/analysis-worker';
 import { assembleWindow } from '../../src/analysis/window-assembly';
 import { assessmentEvents } from '../../src/assessments/events';
-import { startTestGateway, type SignedInClient, type TestGateway } from '../support/harness';
+import { startTestGatewayAs, type SignedInClient, type TestGateway } from '../support/harness';
 import { registerMonitor } from '../devices/fixtures';
 import { sendRecording } from './ingest-helpers';
 
 let gw: TestGateway;
 let integrator: SignedInClient;
-beforeAll(async () => {
-  gw = await startTestGateway();
-  integrator = await gw.signIn('integrator');
-});
+beforeAll(async () => ({ gw, client: integrator } = await startTestGatewayAs('integrator')));
 afterAll(async () => gw?.stop());
 
 const T0 = Date.parse('2026-11-30T10:00:00.000Z');

@@ -5,7 +5,7 @@
  * Observation invariants and UCUM by the independent checks in tests/src/delivery/fhir-conformance.ts.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { startMockEhr, type RunningMockEhr } from '@ebbgate/mock-ehr';
+import type { RunningMockEhr } from '@ebbgate/mock-ehr';
 import { analyseTidalVolumeChallenge } from '@ebbgate/shared/analysis';
 import { generateChallenge } from '@ebbgate/shared/synthetic';
 import { failedInvariants, r4SchemaErrors, ucumStatus } from '../../../tests/src/delivery/fhir-conformance';
@@ -14,50 +14,35 @@ import { defaultCodeMap } from '../../src/delivery/code-map';
 import { DeliveryRow } from '../../src/delivery/delivery.entities';
 import type { Observation } from '../../src/delivery/fhir-types';
 import { buildOru } from '../../src/delivery/oru-message';
-import { startTestGateway, type TestGateway } from '../support/harness';
-import { insertBedAndMonitor, markInError, mockAdmin, storeAssessment, waitFor, windowStart, type MockAdmin } from './support';
+import type { TestGateway } from '../support/harness';
+import {
+  insertBedAndMonitor,
+  markInError,
+  mockEhrToken,
+  QUICK_DELIVERY,
+  startDeliveryStack,
+  storeAssessment,
+  waitFor,
+  windowStart,
+  type DeliveryStack,
+  type MockAdmin,
+} from './support';
 
+let stack: DeliveryStack;
 let ehr: RunningMockEhr;
 let gw: TestGateway;
 let admin: MockAdmin;
 const IDENT = 'urn:ebbgate:observation|';
 
 beforeAll(async () => {
-  ehr = await startMockEhr({ httpPort: 0, smtpPort: 0, mllpPort: 0 });
-  admin = mockAdmin(ehr.baseUrl);
-  gw = await startTestGateway(
-    {
-      ehr: { fhirBaseUrl: ehr.fhirBaseUrl, tokenUrl: ehr.tokenUrl },
-      mail: { smtpPort: ehr.smtpPort },
-      delivery: {
-        pollMs: 30,
-        leaseSeconds: 5,
-        requestTimeoutMs: 2000,
-        bundleSize: 1,
-        retry: { limit: 50, baseMs: 40, maxMs: 200 },
-        patientContext: { cacheSeconds: 60, retrySeconds: 0.3 },
-      },
-    },
-    { services: true },
-  );
+  stack = await startDeliveryStack(() => QUICK_DELIVERY, { services: true });
+  ({ ehr, gw, admin } = stack);
 }, 60_000);
 
-afterAll(async () => {
-  await gw?.stop();
-  await ehr?.stop();
-});
-
-async function mockToken(): Promise<string> {
-  const res = await fetch(ehr.tokenUrl, {
-    method: 'POST',
-    headers: { 'content-type': 'application/x-www-form-urlencoded' },
-    body: 'grant_type=client_credentials&client_id=ebbgate-gateway&client_secret=mock-ehr-dev-secret',
-  });
-  return ((await res.json()) as { access_token: string }).access_token;
-}
+afterAll(async () => stack?.stop());
 
 async function readObservation(serverId: string): Promise<Observation> {
-  const res = await fetch(`${ehr.fhirBaseUrl}/Observation/${serverId}`, { headers: { authorization: `Bearer ${await mockToken()}` } });
+  const res = await fetch(`${ehr.fhirBaseUrl}/Observation/${serverId}`, { headers: { authorization: `Bearer ${await mockEhrToken(ehr)}` } });
   expect(res.status).toBe(200);
   return (await res.json()) as Observation;
 }

@@ -3,61 +3,50 @@
  * real gateway, real MariaDB, real outbox worker and alert watcher.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { startMockEhr, type RunningMockEhr } from '@ebbgate/mock-ehr';
+import type { RunningMockEhr } from '@ebbgate/mock-ehr';
 import { DeliveryRow, DestinationRow } from '../../src/delivery/delivery.entities';
 import { FHIR_DESTINATION_ID } from '../../src/delivery/delivery.module';
-import { startTestGateway, type TestGateway } from '../support/harness';
-import { insertBedAndMonitor, markInError, mockAdmin, storeAssessment, waitFor, windowStart, type MockAdmin } from './support';
+import type { TestGateway } from '../support/harness';
+import {
+  insertBedAndMonitor,
+  markInError,
+  mockEhrToken,
+  QUICK_DELIVERY,
+  startDeliveryStack,
+  storeAssessment,
+  waitFor,
+  windowStart,
+  type DeliveryStack,
+  type MockAdmin,
+} from './support';
 
+let stack: DeliveryStack;
 let ehr: RunningMockEhr;
 let gw: TestGateway;
 let admin: MockAdmin;
 const IDENT = 'urn:ebbgate:observation|';
 
 beforeAll(async () => {
-  ehr = await startMockEhr({ httpPort: 0, smtpPort: 0, mllpPort: 0 });
-  admin = mockAdmin(ehr.baseUrl);
-  gw = await startTestGateway(
-    {
-      ehr: { fhirBaseUrl: ehr.fhirBaseUrl, tokenUrl: ehr.tokenUrl },
-      mail: { smtpPort: ehr.smtpPort },
-      delivery: {
-        pollMs: 30,
-        leaseSeconds: 5,
-        requestTimeoutMs: 2000,
-        bundleSize: 1,
-        retry: { limit: 50, baseMs: 40, maxMs: 200 },
-        circuit: { failureThreshold: 5, openSeconds: 0.3 },
-        patientContext: { cacheSeconds: 60, retrySeconds: 0.3 },
-        alerts: {
-          enabled: true,
-          checkIntervalMs: 100,
-          destinationDownMinutes: 0.01,
-          failureThreshold: 1000,
-          failureWindowMinutes: 60,
-          recipients: ['icu-oncall@harrowmere.example'],
-          consoleUrl: 'http://console.harrowmere.example',
-        },
+  stack = await startDeliveryStack(
+    () => ({
+      ...QUICK_DELIVERY,
+      circuit: { failureThreshold: 5, openSeconds: 0.3 },
+      alerts: {
+        enabled: true,
+        checkIntervalMs: 100,
+        destinationDownMinutes: 0.01,
+        failureThreshold: 1000,
+        failureWindowMinutes: 60,
+        recipients: ['icu-oncall@harrowmere.example'],
+        consoleUrl: 'http://console.harrowmere.example',
       },
-    },
+    }),
     { services: true },
   );
+  ({ ehr, gw, admin } = stack);
 }, 60_000);
 
-afterAll(async () => {
-  await gw?.stop();
-  await ehr?.stop();
-});
-
-/** A token from the mock's client-credentials endpoint, to read what the gateway wrote. */
-async function mockToken(): Promise<string> {
-  const res = await fetch(ehr.tokenUrl, {
-    method: 'POST',
-    headers: { 'content-type': 'application/x-www-form-urlencoded' },
-    body: 'grant_type=client_credentials&client_id=ebbgate-gateway&client_secret=mock-ehr-dev-secret',
-  });
-  return ((await res.json()) as { access_token: string }).access_token;
-}
+afterAll(async () => stack?.stop());
 
 const rowsOf = (assessmentIds: string[]) =>
   gw.ctx.ds.getRepository(DeliveryRow).createQueryBuilder('d').where('d.assessment_id IN (:...ids)', { ids: assessmentIds }).getMany();
@@ -160,7 +149,7 @@ describe('delivery to the mock EHR', () => {
     const { bed, monitor } = await insertBedAndMonitor(gw.ctx.ds, 'ICU-05'); // empty in config/demo/hospital.json
     const a = await storeAssessment(gw.ctx.ds, { bedId: bed.id, monitorId: monitor.id }, windowStart(0));
     await waitFor('waiting-context', allSettled([a.id], ['waiting-context']));
-    const token = await mockToken();
+    const token = await mockEhrToken(ehr);
     const post = (type: string, body: object) =>
       fetch(`${ehr.fhirBaseUrl}/${type}`, {
         method: 'POST',
@@ -223,7 +212,7 @@ describe('delivery to the mock EHR', () => {
       const rows = (await rowsOf([a.id])).filter((r) => r.kind === 'amend');
       return rows.length === 4 && rows.every((r) => r.status === 'delivered');
     });
-    const token = await mockToken();
+    const token = await mockEhrToken(ehr);
     for (const r of created) {
       const res = await fetch(`${ehr.fhirBaseUrl}/Observation/${r.serverId}`, { headers: { authorization: `Bearer ${token}` } });
       const body = (await res.json()) as { status: string; identifier: { value: string }[] };

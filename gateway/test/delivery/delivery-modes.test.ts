@@ -3,13 +3,24 @@
  * (FOR UPDATE SKIP LOCKED) and replay, against the mock EHR. Workers are driven by hand here.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { startMockEhr, type RunningMockEhr } from '@ebbgate/mock-ehr';
+import type { RunningMockEhr } from '@ebbgate/mock-ehr';
 import { createDataSource } from '../../src/db/data-source';
 import { DeliveryAttemptRow, DeliveryRow } from '../../src/delivery/delivery.entities';
 import { buildDelivery, FHIR_DESTINATION_ID, HL7_DESTINATION_ID, type DeliveryParts } from '../../src/delivery/delivery.module';
-import { startTestGateway, type TestGateway } from '../support/harness';
-import { engineResult, insertBedAndMonitor, mockAdmin, storeAssessment, windowStart, type MockAdmin } from './support';
+import type { TestGateway } from '../support/harness';
+import {
+  drainOutbox,
+  engineResult,
+  handDrivenDelivery,
+  insertBedAndMonitor,
+  startDeliveryStack,
+  storeAssessment,
+  windowStart,
+  type DeliveryStack,
+  type MockAdmin,
+} from './support';
 
+let stack: DeliveryStack;
 let ehr: RunningMockEhr;
 let gw: TestGateway;
 let admin: MockAdmin;
@@ -17,40 +28,25 @@ let parts: DeliveryParts;
 const IDENT = 'urn:ebbgate:observation|';
 
 beforeAll(async () => {
-  ehr = await startMockEhr({ httpPort: 0, smtpPort: 0, mllpPort: 0 });
-  admin = mockAdmin(ehr.baseUrl);
-  gw = await startTestGateway(
-    {
-      ehr: { fhirBaseUrl: ehr.fhirBaseUrl, tokenUrl: ehr.tokenUrl },
-      mail: { smtpPort: ehr.smtpPort },
-      delivery: {
-        bundleSize: 10,
-        claimBatch: 16,
-        concurrency: 4,
-        leaseSeconds: 30,
-        retry: { limit: 5, baseMs: 20, maxMs: 100 },
-        alerts: { enabled: false },
-        hl7: { enabled: true, host: '127.0.0.1', port: ehr.mllpPort, sendingFacility: 'HGH', receivingApplication: 'HGH-EHR' },
-      },
-    },
+  stack = await startDeliveryStack(
+    (mock) => ({
+      bundleSize: 10,
+      claimBatch: 16,
+      concurrency: 4,
+      leaseSeconds: 30,
+      retry: { limit: 5, baseMs: 20, maxMs: 100 },
+      alerts: { enabled: false },
+      hl7: { enabled: true, host: '127.0.0.1', port: mock.mllpPort, sendingFacility: 'HGH', receivingApplication: 'HGH-EHR' },
+    }),
     { services: false },
   );
-  parts = buildDelivery(gw.ctx);
-  await parts.services[0]!.start(); // destinations
+  ({ ehr, gw, admin } = stack);
+  parts = await handDrivenDelivery(gw);
 }, 60_000);
 
-afterAll(async () => {
-  await gw?.stop();
-  await ehr?.stop();
-});
+afterAll(async () => stack?.stop());
 
-async function drain(...workers: DeliveryParts['worker'][]): Promise<void> {
-  for (let round = 0; round < 200; round++) {
-    const handled = await Promise.all(workers.map((w) => w.runOnce()));
-    if (handled.every((n) => n === 0)) return;
-  }
-  throw new Error('outbox did not drain in 200 rounds');
-}
+const drain = (...workers: DeliveryParts['worker'][]) => drainOutbox(workers, { rounds: 200, mustDrain: true });
 
 const rowsOf = (ids: string[]) => gw.ctx.ds.getRepository(DeliveryRow).createQueryBuilder('d').where('d.assessment_id IN (:...ids)', { ids }).getMany();
 

@@ -10,7 +10,7 @@
  * - alert mail is an outbox row: a process dying after the claim leaves it due, one Message-ID.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { startMockEhr, type RunningMockEhr } from '@ebbgate/mock-ehr';
+import type { RunningMockEhr } from '@ebbgate/mock-ehr';
 import { createDataSource } from '../../src/db/data-source';
 import { AlertWatcher, EDGE_SOURCE } from '../../src/delivery/alert-watcher';
 import { defaultCodeMap } from '../../src/delivery/code-map';
@@ -20,68 +20,58 @@ import { Hl7Destination } from '../../src/delivery/hl7-destination';
 import { claimDueFenced, recordAttempts } from '../../src/delivery/outbox';
 import { recordInbound } from '../../src/ingest/inbound-store';
 import type { Mailer } from '../../src/mail/mailer';
-import { startTestGateway, type TestGateway } from '../support/harness';
-import { insertBedAndMonitor, markInError, storeAssessment, waitFor, windowStart } from './support';
+import type { TestGateway } from '../support/harness';
+import {
+  drainOutbox,
+  handDrivenDelivery,
+  insertBedAndMonitor,
+  markInError,
+  mockEhrToken,
+  startDeliveryStack,
+  storeAssessment,
+  waitFor,
+  windowStart,
+  type DeliveryStack,
+} from './support';
 
+let stack: DeliveryStack;
 let ehr: RunningMockEhr;
 let gw: TestGateway;
 let parts: DeliveryParts;
-
-const adminCall = async (method: string, path: string, body?: object) => {
-  const res = await fetch(`${ehr.baseUrl}/_admin${path}`, {
-    method,
-    headers: { 'content-type': 'application/json' },
-    body: body ? JSON.stringify(body) : undefined,
-  });
-  if (!res.ok) throw new Error(`${method} ${path}: ${res.status} ${await res.text()}`);
-  return res.status === 204 ? undefined : res.json();
-};
+const adminCall = (method: string, path: string, body?: object) => stack.admin.call(method, path, body);
 
 beforeAll(async () => {
-  ehr = await startMockEhr({ httpPort: 0, smtpPort: 0, mllpPort: 0 });
-  gw = await startTestGateway(
-    {
-      ehr: { fhirBaseUrl: ehr.fhirBaseUrl, tokenUrl: ehr.tokenUrl },
-      mail: { smtpPort: ehr.smtpPort },
-      delivery: {
-        bundleSize: 1,
-        claimBatch: 8,
-        concurrency: 4,
-        leaseSeconds: 1,
-        requestTimeoutMs: 10_000,
-        retry: { limit: 5, baseMs: 20, maxMs: 100 },
-        // Rows waiting for context are not looked at again within a test (drains end when nothing else is due).
-        patientContext: { cacheSeconds: 600, retrySeconds: 60 },
-        alerts: {
-          enabled: false,
-          checkIntervalMs: 100,
-          downMinutes: 10,
-          failureThreshold: 1000,
-          failureWindowMinutes: 60,
-          recipients: ['icu-oncall@harrowmere.example'],
-          consoleUrl: 'http://console.harrowmere.example',
-        },
-        hl7: { enabled: true, host: '127.0.0.1', port: ehr.mllpPort, sendingFacility: 'HGH', receivingApplication: 'HGH-EHR' },
+  stack = await startDeliveryStack(
+    (mock) => ({
+      bundleSize: 1,
+      claimBatch: 8,
+      concurrency: 4,
+      leaseSeconds: 1,
+      requestTimeoutMs: 10_000,
+      retry: { limit: 5, baseMs: 20, maxMs: 100 },
+      // Rows waiting for context are not looked at again within a test (drains end when nothing else is due).
+      patientContext: { cacheSeconds: 600, retrySeconds: 60 },
+      alerts: {
+        enabled: false,
+        checkIntervalMs: 100,
+        downMinutes: 10,
+        failureThreshold: 1000,
+        failureWindowMinutes: 60,
+        recipients: ['icu-oncall@harrowmere.example'],
+        consoleUrl: 'http://console.harrowmere.example',
       },
-    },
+      hl7: { enabled: true, host: '127.0.0.1', port: mock.mllpPort, sendingFacility: 'HGH', receivingApplication: 'HGH-EHR' },
+    }),
     { services: false },
   );
-  parts = buildDelivery(gw.ctx);
-  await parts.services[0]!.start(); // destinations
+  ({ ehr, gw } = stack);
+  parts = await handDrivenDelivery(gw);
 }, 60_000);
 
-afterAll(async () => {
-  await gw?.stop();
-  await ehr?.stop();
-});
+afterAll(async () => stack?.stop());
 
-async function drain(...workers: DeliveryParts['worker'][]): Promise<void> {
-  for (let round = 0; round < 100; round++) {
-    const handled = await Promise.all(workers.map((w) => w.runOnce()));
-    if (handled.every((n) => n === 0)) return;
-    await new Promise((r) => setTimeout(r, 20));
-  }
-}
+/** Up to 100 rounds, 20 ms apart: rows held back (lease, backoff) may still be due afterwards. */
+const drain = (...workers: DeliveryParts['worker'][]) => drainOutbox(workers, { rounds: 100, pauseMs: 20 });
 
 const fhirRows = (ids: string[]) =>
   gw.ctx.ds
@@ -166,17 +156,12 @@ describe('amendments', () => {
     const amends = (await fhirRows([a.id])).filter((r) => r.kind === 'amend');
     expect(amends).toHaveLength(4);
     expect(amends.every((r) => r.status === 'delivered' && r.serverId)).toBe(true);
-    const token = (await (
-      await fetch(ehr.tokenUrl, {
-        method: 'POST',
-        headers: { 'content-type': 'application/x-www-form-urlencoded' },
-        body: 'grant_type=client_credentials&client_id=ebbgate-gateway&client_secret=mock-ehr-dev-secret',
-      })
-    ).json()) as { access_token: string };
+    const token = await mockEhrToken(ehr);
     for (const r of amends) {
-      const obs = (await (
-        await fetch(`${ehr.fhirBaseUrl}/Observation/${r.serverId}`, { headers: { authorization: `Bearer ${token.access_token}` } })
-      ).json()) as { status: string; identifier: { value: string }[] };
+      const obs = (await (await fetch(`${ehr.fhirBaseUrl}/Observation/${r.serverId}`, { headers: { authorization: `Bearer ${token}` } })).json()) as {
+        status: string;
+        identifier: { value: string }[];
+      };
       expect(obs.status).toBe('entered-in-error');
       expect(obs.identifier.some((i) => i.value === r.identifier)).toBe(true);
     }

@@ -4,11 +4,14 @@
  */
 import { randomUUID } from 'node:crypto';
 import type { DataSource, EntityManager } from 'typeorm';
+import { startMockEhr, type RunningMockEhr } from '@ebbgate/mock-ehr';
 import { analyzeWindow, type AnalysisContext, type AnalysisResult } from '@ebbgate/shared/analysis';
 import { generateWindow, type SyntheticSpec } from '@ebbgate/shared/synthetic';
 import { AssessmentRow } from '../../src/assessments/assessment.entity';
 import { assessmentEvents } from '../../src/assessments/events';
+import { buildDelivery, type DeliveryParts } from '../../src/delivery/delivery.module';
 import { BedRow, MonitorRow } from '../../src/devices/device.entities';
+import { startTestGateway, type TestGateway } from '../support/harness';
 
 export const VENTILATED: AnalysisContext = { ventilationMode: 'controlled', tidalVolumeMl: 650, patientHeightCm: 175, patientSex: 'male', plethScaling: 'raw' };
 
@@ -119,6 +122,8 @@ export async function statusCounts(ds: DataSource): Promise<Record<string, numbe
 }
 
 export interface MockAdmin {
+  /** Any of the mock's /_admin endpoints (ADT events, quirks, HL7 and mail logs); the JSON answer, undefined for 204. */
+  call(method: string, path: string, body?: object): Promise<unknown>;
   faults(rules: object[]): Promise<void>;
   clearFaults(): Promise<void>;
   observations(): Promise<{ total: number; byIdentifier: Record<string, number>; duplicated: string[] }>;
@@ -136,9 +141,87 @@ export function mockAdmin(baseUrl: string): MockAdmin {
     return res.status === 204 ? undefined : res.json();
   };
   return {
+    call,
     faults: async (rules) => void (await call('PUT', '/faults', { rules })),
     clearFaults: async () => void (await call('DELETE', '/faults')),
     observations: () => call('GET', '/observations') as Promise<Awaited<ReturnType<MockAdmin['observations']>>>,
     mail: () => call('GET', '/mail') as Promise<Awaited<ReturnType<MockAdmin['mail']>>>,
   };
+}
+
+/** A token from the mock EHR's client-credentials endpoint, to read back what the gateway wrote. */
+export async function mockEhrToken(ehr: RunningMockEhr): Promise<string> {
+  const res = await fetch(ehr.tokenUrl, {
+    method: 'POST',
+    headers: { 'content-type': 'application/x-www-form-urlencoded' },
+    body: 'grant_type=client_credentials&client_id=ebbgate-gateway&client_secret=mock-ehr-dev-secret',
+  });
+  if (!res.ok) throw new Error(`mock EHR token: ${res.status} ${await res.text()}`);
+  return ((await res.json()) as { access_token: string }).access_token;
+}
+
+/** Delivery settings for suites where the gateway's own worker delivers: quick polls and retries, one row per request. */
+export const QUICK_DELIVERY = {
+  pollMs: 30,
+  leaseSeconds: 5,
+  requestTimeoutMs: 2000,
+  bundleSize: 1,
+  retry: { limit: 50, baseMs: 40, maxMs: 200 },
+  patientContext: { cacheSeconds: 60, retrySeconds: 0.3 },
+};
+
+export interface DeliveryStack {
+  ehr: RunningMockEhr;
+  gw: TestGateway;
+  admin: MockAdmin;
+  stop(): Promise<void>;
+}
+
+/**
+ * The mock EHR (FHIR with OAuth2, SMTP catcher, HL7 receiver, all on free ports) and a test
+ * gateway whose EHR and mail settings point at it, with the suite's delivery settings on top
+ * (a function of the mock, for its HL7 port). `services`: the gateway runs its outbox worker and
+ * alert watcher itself; without, the suite drives the workers by hand.
+ */
+export async function startDeliveryStack(delivery: (ehr: RunningMockEhr) => object, opts: { services: boolean }): Promise<DeliveryStack> {
+  const ehr = await startMockEhr({ httpPort: 0, smtpPort: 0, mllpPort: 0 });
+  let gw: TestGateway;
+  try {
+    gw = await startTestGateway(
+      { ehr: { fhirBaseUrl: ehr.fhirBaseUrl, tokenUrl: ehr.tokenUrl }, mail: { smtpPort: ehr.smtpPort }, delivery: delivery(ehr) },
+      { services: opts.services },
+    );
+  } catch (err) {
+    await ehr.stop();
+    throw err;
+  }
+  return {
+    ehr,
+    gw,
+    admin: mockAdmin(ehr.baseUrl),
+    stop: async () => {
+      await gw.stop();
+      await ehr.stop();
+    },
+  };
+}
+
+/** Delivery parts for a suite that drives the workers by hand: the destinations started, the worker not. */
+export async function handDrivenDelivery(gw: TestGateway): Promise<DeliveryParts> {
+  const parts = buildDelivery(gw.ctx);
+  await parts.services[0]!.start(); // destinations
+  return parts;
+}
+
+/**
+ * Runs the workers side by side until a round in which none of them handled a row, at most
+ * `rounds` rounds (`pauseMs` between rounds); `mustDrain`: an outbox still busy after them is an error.
+ */
+export async function drainOutbox(workers: DeliveryParts['worker'][], opts: { rounds: number; pauseMs?: number; mustDrain?: boolean }): Promise<void> {
+  for (let round = 0; round < opts.rounds; round++) {
+    const handled = await Promise.all(workers.map((w) => w.runOnce()));
+    if (handled.every((n) => n === 0)) return;
+    if (opts.pauseMs) await new Promise((r) => setTimeout(r, opts.pauseMs));
+  }
+  if (opts.mustDrain) throw new Error(`outbox did not drain in ${opts.rounds} rounds`);
 }

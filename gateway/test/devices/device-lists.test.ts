@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { bedSortFields, monitorSortFields, profileSortFields } from '@ebbgate/shared';
-import { startTestGateway, type SignedInClient, type TestGateway } from '../support/harness';
+import { startTestGatewayAs, type SignedInClient, type TestGateway } from '../support/harness';
 import { corvaneProfile } from './fixtures';
 
 // Server paging of the device lists against the contract every list endpoint shares
@@ -12,10 +12,7 @@ import { corvaneProfile } from './fixtures';
 
 let gw: TestGateway;
 let integrator: SignedInClient;
-beforeAll(async () => {
-  gw = await startTestGateway();
-  integrator = await gw.signIn('integrator');
-});
+beforeAll(async () => ({ gw, client: integrator } = await startTestGatewayAs('integrator')));
 afterAll(async () => gw?.stop());
 
 interface Paged<T> {

@@ -3,7 +3,6 @@
  * request rate limits per key and per source, no error text in /readyz for strangers, a token
  * on /metrics, and x-request-id validated before it is stored.
  */
-import http from 'node:http';
 import net from 'node:net';
 import { Router } from 'express';
 import request from 'supertest';
@@ -11,6 +10,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { authenticate } from '../../src/auth/auth.middleware';
 import { createApp } from '../../src/http/app';
 import { startTestGateway, type TestGateway } from '../support/harness';
+import { drip, partialUpload } from '../support/slow-sender';
 
 let gw: TestGateway;
 beforeAll(async () => {
@@ -20,57 +20,19 @@ afterAll(async () => gw?.stop());
 
 const port = () => (gw.server.address() as net.AddressInfo).port;
 
-/** Sends headers declaring `declared` bytes and only `sent` of them; resolves with the status if the answer comes first. */
-function partialUpload(path: string, headers: Record<string, string>, declared: number, sent: number): Promise<number | 'no answer'> {
-  return new Promise((resolve) => {
-    const req = http.request({ host: '127.0.0.1', port: port(), path, method: 'POST', headers: { ...headers, 'content-length': String(declared) } });
-    const timer = setTimeout(() => {
-      req.destroy();
-      resolve('no answer');
-    }, 4000);
-    req.on('response', (res) => {
-      clearTimeout(timer);
-      res.resume();
-      req.destroy();
-      resolve(res.statusCode ?? 0);
-    });
-    req.on('error', () => undefined);
-    req.write(Buffer.alloc(sent, 0x41));
-  });
-}
-
-/** Opens a socket, writes `head`, then one byte every `everyMs`; resolves with what came back and when the server closed. */
-function drip(head: string, everyMs: number, giveUpMs: number): Promise<{ closedAfterMs: number | null; answer: string }> {
-  return new Promise((resolve) => {
-    const t0 = Date.now();
-    const sock = net.connect(port(), '127.0.0.1');
-    let answer = '';
-    const timer = setInterval(() => sock.writable && sock.write('x'), everyMs);
-    const giveUp = setTimeout(() => {
-      clearInterval(timer);
-      sock.destroy();
-      resolve({ closedAfterMs: null, answer });
-    }, giveUpMs);
-    sock.on('data', (d) => (answer += d.toString()));
-    sock.on('error', () => undefined);
-    sock.on('close', () => {
-      clearInterval(timer);
-      clearTimeout(giveUp);
-      resolve({ closedAfterMs: Date.now() - t0, answer });
-    });
-    sock.write(head);
-  });
-}
+/** Headers declaring `declared` bytes, only `sent` of them sent; the status if the answer comes within 4 s. */
+const partial = (path: string, headers: Record<string, string>, declared: number, sent: number) =>
+  partialUpload(port(), { path, headers, declared, sent, giveUpMs: 4000 });
 
 describe('the permission check comes before the body', () => {
   it('answers a stranger uploading 8 MB to the test bench with 401 before the body is sent', async () => {
-    const status = await partialUpload('/api/v1/analysis/preview', { 'content-type': 'multipart/form-data; boundary=xyz' }, 8 * 1024 * 1024, 64 * 1024);
+    const status = await partial('/api/v1/analysis/preview', { 'content-type': 'multipart/form-data; boundary=xyz' }, 8 * 1024 * 1024, 64 * 1024);
     expect(status).toBe(401);
   });
 
   it('answers a signed-in person without the permission with 403 before the body is sent', async () => {
     const reviewer = await gw.signIn('reviewer');
-    const status = await partialUpload(
+    const status = await partial(
       '/api/v1/analysis/preview',
       { 'content-type': 'multipart/form-data; boundary=xyz', cookie: reviewer.cookies.join('; '), 'x-csrf-token': reviewer.csrfToken },
       8 * 1024 * 1024,
@@ -80,14 +42,14 @@ describe('the permission check comes before the body', () => {
   });
 
   it('answers a stranger posting a large JSON body before reading it', async () => {
-    const status = await partialUpload('/api/v1/users', { 'content-type': 'application/json' }, 8 * 1024 * 1024, 64 * 1024);
+    const status = await partial('/api/v1/users', { 'content-type': 'application/json' }, 8 * 1024 * 1024, 64 * 1024);
     expect(status).toBe(401);
   });
 });
 
 describe('slow senders', () => {
   it('closes a connection whose headers drip in slower than the header timeout (1 s)', async () => {
-    const r = await drip('GET /healthz HTTP/1.1\r\nHost: 127.0.0.1\r\nX-Slow: ', 200, 6000);
+    const r = await drip(port(), 'GET /healthz HTTP/1.1\r\nHost: 127.0.0.1\r\nX-Slow: ', 200, 6000);
     expect(r.closedAfterMs).not.toBeNull();
     expect(r.closedAfterMs!).toBeLessThan(5000);
     expect(r.answer).toMatch(/^HTTP\/1\.1 408/);
@@ -95,6 +57,7 @@ describe('slow senders', () => {
 
   it('closes a request whose body drips in slower than the request timeout (2 s)', async () => {
     const r = await drip(
+      port(),
       'POST /api/v1/auth/sign-in HTTP/1.1\r\nHost: 127.0.0.1\r\nContent-Type: application/json\r\nContent-Length: 100000\r\n\r\n',
       200,
       8000,

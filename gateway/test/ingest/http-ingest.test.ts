@@ -3,16 +3,13 @@ import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { encodeSamplesFloat32, type IngestBatch } from '@ebbgate/shared';
 import { generateWindow, toIngestBatch } from '@ebbgate/shared/synthetic';
-import { startTestGateway, type SignedInClient, type TestGateway } from '../support/harness';
+import { startTestGateway, startTestGatewayAs, type SignedInClient, type TestGateway } from '../support/harness';
 import { corvaneProfile, registerMonitor } from '../devices/fixtures';
 import { decodeSegment } from '@ebbgate/shared/codec';
 
 let gw: TestGateway;
 let integrator: SignedInClient;
-beforeAll(async () => {
-  gw = await startTestGateway();
-  integrator = await gw.signIn('integrator');
-});
+beforeAll(async () => ({ gw, client: integrator } = await startTestGatewayAs('integrator')));
 afterAll(async () => gw?.stop());
 
 const T0 = Date.parse('2026-11-30T08:00:00.000Z');

@@ -87,3 +87,18 @@ export async function startTestGateway(overrides: Record<string, unknown> = {}, 
     },
   };
 }
+
+/** A test gateway with one demo user signed in, for a suite's `beforeAll`; the gateway is stopped again if the sign-in fails. */
+export async function startTestGatewayAs(
+  role: Role,
+  overrides: Record<string, unknown> = {},
+  opts: { services?: boolean } = {},
+): Promise<{ gw: TestGateway; client: SignedInClient }> {
+  const gw = await startTestGateway(overrides, opts);
+  try {
+    return { gw, client: await gw.signIn(role) };
+  } catch (err) {
+    await gw.stop();
+    throw err;
+  }
+}

@@ -1,12 +1,9 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { startTestGateway, type SignedInClient, type TestGateway } from '../support/harness';
+import { startTestGatewayAs, type SignedInClient, type TestGateway } from '../support/harness';
 
 let gw: TestGateway;
 let admin: SignedInClient;
-beforeAll(async () => {
-  gw = await startTestGateway();
-  admin = await gw.signIn('admin');
-});
+beforeAll(async () => ({ gw, client: admin } = await startTestGatewayAs('admin')));
 afterAll(async () => gw?.stop());
 
 const auditFor = async (entityId: string) =>

@@ -9,9 +9,13 @@
  * is killed.
  */
 import { spawn, type ChildProcess, type SpawnOptions } from 'node:child_process';
+import { randomBytes } from 'node:crypto';
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import net from 'node:net';
+import os from 'node:os';
 import path from 'node:path';
 import { repoRoot } from '@ebbgate/gateway/config/load';
+import { createTestDatabase, type TestDatabase } from '../../../scripts/lib/test-database';
 
 export async function freePort(): Promise<number> {
   return new Promise((resolve, reject) => {
@@ -138,6 +142,56 @@ export async function spawnGateway(opts: {
     output: () => out,
     stop: () => endProcess(child),
   };
+}
+
+export interface ConfiguredGateway {
+  gw: GatewayProcess;
+  db: TestDatabase;
+  /** The temporary folder holding config.json (and whatever the caller put there); removed by stop(). */
+  dir: string;
+  stop(): Promise<void>;
+}
+
+/**
+ * A gateway process on a throwaway database with `config` as its config file (EBBGATE_CONFIG in
+ * a temporary folder, `dir` if the caller made one), migrations run by the migration user and the
+ * gateway on the data-only one (unless `databaseUrl` says otherwise). Everything it made is
+ * removed again if the gateway does not come up, and by stop().
+ */
+export async function spawnConfiguredGateway(
+  config: object,
+  opts: { dir?: string; mllp?: boolean; mllpPort?: number; workers?: boolean; env?: Record<string, string>; databaseUrl?: (db: TestDatabase) => string } = {},
+): Promise<ConfiguredGateway> {
+  const dir = opts.dir ?? mkdtempSync(path.join(os.tmpdir(), 'ebbgate-gw-'));
+  const file = path.join(dir, 'config.json');
+  writeFileSync(file, JSON.stringify(config));
+  let db: TestDatabase | undefined;
+  try {
+    db = await createTestDatabase();
+    const gw = await spawnGateway({
+      databaseUrl: opts.databaseUrl ? opts.databaseUrl(db) : db.runtimeUrl,
+      jwtSecret: randomBytes(32).toString('hex'),
+      mllp: opts.mllp,
+      mllpPort: opts.mllpPort,
+      workers: opts.workers,
+      env: { EBBGATE_CONFIG: file, DATABASE_MIGRATION_URL: db.url, ...opts.env },
+    });
+    const made = db;
+    return {
+      gw,
+      db: made,
+      dir,
+      stop: async () => {
+        await gw.stop();
+        await made.drop();
+        rmSync(dir, { recursive: true, force: true });
+      },
+    };
+  } catch (err) {
+    await db?.drop();
+    rmSync(dir, { recursive: true, force: true });
+    throw err;
+  }
 }
 
 /** A signed-in person over plain fetch: session cookie plus the CSRF header on changes. */

@@ -1,10 +1,10 @@
 import { randomBytes } from 'node:crypto';
-import * as mariadb from 'mariadb';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { generateWindow, toIngestBatch } from '@ebbgate/shared/synthetic';
 import { createTestDatabase, type TestDatabase } from '../../../scripts/lib/test-database';
 import { corvaneProfile } from '@ebbgate/gateway/test/devices/fixtures';
 import { DEMO_INTEGRATOR, signIn, spawnGateway, type GatewayProcess } from './gateway-process';
+import { queryDatabase } from '../support/database';
 
 let db: TestDatabase;
 let a: GatewayProcess;
@@ -21,22 +21,7 @@ afterAll(async () => {
   await db?.drop();
 });
 
-async function query<T>(sql: string, params: unknown[] = []): Promise<T[]> {
-  const u = new URL(db.url);
-  const conn = await mariadb.createConnection({
-    host: u.hostname,
-    port: Number(u.port),
-    user: decodeURIComponent(u.username),
-    password: decodeURIComponent(u.password),
-    database: u.pathname.slice(1),
-    bigIntAsNumber: true,
-  });
-  try {
-    return (await conn.query(sql, params)) as T[];
-  } finally {
-    await conn.end();
-  }
-}
+const query = <T>(sql: string, params: unknown[] = []) => queryDatabase<T>(db.url, sql, params);
 
 const MONITORS = 6;
 const SECONDS = 90; // 90 s each: 30-s windows every 10 s → 7 windows per monitor

@@ -4,26 +4,17 @@
  * a race; the account then waits a growing, capped time instead of locking, so the admin gets in
  * again soon from another address; and the answers do not tell a real account from a made-up one.
  */
-import { randomBytes } from 'node:crypto';
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
-import os from 'node:os';
-import path from 'node:path';
-import mariadb from 'mariadb';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { createTestDatabase, type TestDatabase } from '../../../scripts/lib/test-database';
-import { spawnGateway, type GatewayProcess } from '../ingest/gateway-process';
+import { spawnConfiguredGateway, type ConfiguredGateway, type GatewayProcess } from '../ingest/gateway-process';
+import { queryDatabase } from '../support/database';
 
 const ADMIN = { username: 'ada.admin', password: 'Harrowmere-admin-1' };
-let db: TestDatabase;
+let started: ConfiguredGateway;
 let gw: GatewayProcess;
-let dir: string;
 
 beforeAll(async () => {
-  dir = mkdtempSync(path.join(os.tmpdir(), 'ebbgate-guess-'));
-  const file = path.join(dir, 'config.json');
-  writeFileSync(
-    file,
-    JSON.stringify({
+  started = await spawnConfiguredGateway(
+    {
       auth: {
         signInAttemptsPerMinute: 1000,
         throttle: {
@@ -35,21 +26,12 @@ beforeAll(async () => {
           forgetMinutes: 60,
         },
       },
-    }),
+    },
+    { workers: false },
   );
-  db = await createTestDatabase();
-  gw = await spawnGateway({
-    databaseUrl: db.runtimeUrl,
-    jwtSecret: randomBytes(32).toString('hex'),
-    workers: false,
-    env: { EBBGATE_CONFIG: file, DATABASE_MIGRATION_URL: db.url },
-  });
+  gw = started.gw;
 });
-afterAll(async () => {
-  await gw?.stop();
-  await db?.drop();
-  if (dir) rmSync(dir, { recursive: true, force: true });
-});
+afterAll(async () => started?.stop());
 
 const signIn = (body: { username: string; password: string }, from: string) =>
   fetch(`${gw.url}/api/v1/auth/sign-in`, {
@@ -58,22 +40,7 @@ const signIn = (body: { username: string; password: string }, from: string) =>
     body: JSON.stringify(body),
   });
 
-async function query<T>(sql: string, params: unknown[] = []): Promise<T[]> {
-  const u = new URL(db.url);
-  const conn = await mariadb.createConnection({
-    host: u.hostname,
-    port: Number(u.port),
-    user: decodeURIComponent(u.username),
-    password: decodeURIComponent(u.password),
-    database: u.pathname.slice(1),
-    bigIntAsNumber: true,
-  });
-  try {
-    return (await conn.query(sql, params)) as T[];
-  } finally {
-    await conn.end();
-  }
-}
+const query = <T>(sql: string, params: unknown[] = []) => queryDatabase<T>(started.db.url, sql, params);
 
 describe('password guessing', () => {
   it('counts every checked guess of 30 parallel ones, then makes the account wait (capped), not lock', async () => {

@@ -4,16 +4,15 @@
  * certificates made by openssl in a temporary folder, and a bare MLLP peer (plain or TLS) that
  * writes bytes as given and reads answers with its own framing code (independent of the kit).
  */
-import { randomBytes } from 'node:crypto';
-import { mkdtempSync, rmSync, writeFileSync, readFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync } from 'node:fs';
 import net from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
 import tls from 'node:tls';
-import mariadb from 'mariadb';
-import { createTestDatabase, type TestDatabase } from '../../../scripts/lib/test-database';
+import type { TestDatabase } from '../../../scripts/lib/test-database';
 import { ensureDemoCertificates, type DemoCertificates } from '../../../scripts/lib/certs';
-import { DEMO_INTEGRATOR, freePort, signIn, spawnGateway, type GatewayProcess } from '../ingest/gateway-process';
+import { DEMO_INTEGRATOR, freePort, signIn, spawnConfiguredGateway, type GatewayProcess } from '../ingest/gateway-process';
+import { queryDatabase } from '../support/database';
 
 export interface EdgeGateway {
   gw: GatewayProcess;
@@ -35,10 +34,8 @@ export async function startEdgeGateway(
   const certs = ensureDemoCertificates(path.join(dir, 'certs'), opts.clients ?? ['adapter-a', 'adapter-b']);
   const tlsPort = await freePort();
   const mllp = (config.mllp ?? {}) as Record<string, unknown>;
-  const file = path.join(dir, 'config.json');
-  writeFileSync(
-    file,
-    JSON.stringify({
+  const started = await spawnConfiguredGateway(
+    {
       ...config,
       gateway: { rateLimit: { perSourcePerMinute: 1_000_000, perKeyPerMinute: 1_000_000 }, ...((config.gateway as object) ?? {}) },
       auth: { signInAttemptsPerMinute: 1000 },
@@ -55,41 +52,25 @@ export async function startEdgeGateway(
           ...((mllp.tls as object) ?? {}),
         },
       },
-    }),
-  );
-  const db = await createTestDatabase();
-  let gw: GatewayProcess;
-  try {
-    gw = await spawnGateway({
-      databaseUrl: opts.databaseUrl ? opts.databaseUrl(db) : db.runtimeUrl,
-      jwtSecret: randomBytes(32).toString('hex'),
+    },
+    {
+      dir,
+      databaseUrl: opts.databaseUrl,
       mllp: true,
       // Services on (the MLLP listeners are services); the analysis worker off: not under test.
       workers: true,
-      env: { EBBGATE_CONFIG: file, DATABASE_MIGRATION_URL: db.url, EBBGATE_ANALYSIS_WORKER: 'false' },
-    });
+      env: { EBBGATE_ANALYSIS_WORKER: 'false' },
+    },
+  );
+  const { gw, db } = started;
+  let integrator: EdgeGateway['integrator'];
+  try {
+    integrator = await signIn(gw.url, DEMO_INTEGRATOR.username, DEMO_INTEGRATOR.password);
   } catch (err) {
-    await db.drop();
-    rmSync(dir, { recursive: true, force: true });
+    await started.stop();
     throw err;
   }
-  const integrator = await signIn(gw.url, DEMO_INTEGRATOR.username, DEMO_INTEGRATOR.password);
-  const query = async <T>(sql: string, params: unknown[] = []): Promise<T[]> => {
-    const u = new URL(db.url);
-    const conn = await mariadb.createConnection({
-      host: u.hostname,
-      port: Number(u.port),
-      user: decodeURIComponent(u.username),
-      password: decodeURIComponent(u.password),
-      database: u.pathname.slice(1),
-      bigIntAsNumber: true,
-    });
-    try {
-      return (await conn.query(sql, params)) as T[];
-    } finally {
-      await conn.end();
-    }
-  };
+  const query = <T>(sql: string, params: unknown[] = []) => queryDatabase<T>(db.url, sql, params);
   const metric = async (reason: string) => {
     const text = await (await fetch(`${gw.url}/metrics`)).text();
     const m = new RegExp(`^ebbgate_edge_events_total\\{reason="${reason}"\\} (\\d+)`, 'm').exec(text);
@@ -103,11 +84,7 @@ export async function startEdgeGateway(
     integrator,
     query,
     metric,
-    stop: async () => {
-      await gw.stop();
-      await db.drop();
-      rmSync(dir, { recursive: true, force: true });
-    },
+    stop: started.stop,
   };
 }
 
