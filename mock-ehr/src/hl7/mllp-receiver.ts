@@ -6,6 +6,8 @@ import { checkOru } from './oru-checks.js';
 
 // HL7 v2 receiver over MLLP (simple-hl7's TCP server, bound to loopback). Every message is kept,
 // accepted or not, and answered with our own ACK (AA, or AR with the reason in MSA-3 and ERR).
+// Deliberately not the shared HL7 kit: an independent implementation on this side of the wire is
+// what lets the delivery tests catch a framing fault in the kit the gateway sends with (README).
 
 export interface ReceivedHl7 {
   id: number;
