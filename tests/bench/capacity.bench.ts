@@ -8,7 +8,11 @@
  * then the largest N meeting the goals (ingest p99 < 100 ms, analysis lag < 15 s, delivery lag
  * < 30 s over the hold), and the database bytes stored per bed per day with and without the
  * segment codec. Runs on one private MariaDB and on the Galera cluster (HAProxy, two gateways).
- * The load generator runs on the same machine. Prints figures only.
+ * The load generator runs on the same machine. Prints figures. Answers are counted by status and
+ * only accepted batches (202) count as throughput; overload answers (429, 503, timeouts) make a
+ * step miss its goals, while any other refusal (the fixture sending what a well-configured
+ * monitor would not: 4xx, a duplicate) fails the run (exit 1) with the gateway's reasons, as do
+ * analysis windows or deliveries that failed.
  * Run: npm run bench:capacity   (CAPACITY_STEPS=50,200,500,1000,2000  CAPACITY_HOLD_SECONDS=60
  *      CAPACITY_DB=single,galera CAPACITY_KEEP_STEPPING=1; the issue's goal holds for five minutes: CAPACITY_HOLD_SECONDS=300)
  */
@@ -104,8 +108,8 @@ async function singlePipeline(hospitalFile: string): Promise<Pipeline> {
   const { server, adminUrl } = await startTestMariaDb();
   process.env.EBBGATE_TEST_ADMIN_URL = adminUrl;
   const db = await createTestDatabase();
-  const port = await freePort();
-  const ehrPort = await freePort();
+  const port = env.EBBGATE_PORT ? Number(env.EBBGATE_PORT) : await freePort();
+  const ehrPort = env.EBBGATE_MOCK_EHR_PORT ? Number(env.EBBGATE_MOCK_EHR_PORT) : await freePort();
   const mockEhr = supervise(
     {
       name: 'mock EHR',
@@ -228,6 +232,7 @@ interface StepResult {
   ingestP99: number;
   failures: number;
   sent: number;
+  accepted: number;
   analysisLagP99: number;
   analysisOldestDue: number;
   deliveryLagP99: number;
@@ -236,7 +241,8 @@ interface StepResult {
   ok: boolean;
 }
 
-async function runPipeline(p: Pipeline): Promise<void> {
+/** Runs the steps on one pipeline; returns what was refused or failed other than by load (empty: nothing). */
+async function runPipeline(p: Pipeline): Promise<string[]> {
   log(`\n== ${p.name}: steps ${STEPS.join(', ')} beds, ${WARM_S} s warm-up + ${HOLD_S} s hold each`);
   const api = await signIn(p.url, DEMO_INTEGRATOR.username, DEMO_INTEGRATOR.password);
   const operator = await signIn(p.url, 'otto.operator', 'Harrowmere-operator-1');
@@ -255,6 +261,10 @@ async function runPipeline(p: Pipeline): Promise<void> {
   let latencies: number[] = [];
   let failures = 0;
   let sent = 0;
+  let accepted = 0;
+  let answers: Record<string, number> = {};
+  /** Refusals that are not overload (the fixture's fault, never the gateway's load): reason → count, over the whole run. */
+  const refusals = new Map<string, number>();
   let inFlight = 0;
   let running = true;
 
@@ -267,10 +277,24 @@ async function runPipeline(p: Pipeline): Promise<void> {
         headers: { 'content-type': 'application/json', authorization: `Bearer ${b.apiKey}` },
         body: JSON.stringify(batch),
       });
-      await res.arrayBuffer();
+      const text = await res.text();
       latencies.push(performance.now() - t);
-      if (res.status >= 300) failures++;
-    } catch {
+      answers[res.status] = (answers[res.status] ?? 0) + 1;
+      if (res.status === 202) accepted++;
+      else failures++;
+      if (res.status !== 202 && res.status !== 429 && res.status !== 503) {
+        let why = text.slice(0, 200);
+        try {
+          const body = JSON.parse(text) as { title?: string; detail?: string; outcome?: string };
+          why = body.detail ?? body.title ?? `outcome ${body.outcome}`;
+        } catch {
+          // not JSON: the first 200 characters
+        }
+        const key = `HTTP ${res.status}: ${why.replace(/\d+/g, '#')}`;
+        if (refusals.has(key) || refusals.size < 5) refusals.set(key, (refusals.get(key) ?? 0) + 1);
+      }
+    } catch (err) {
+      answers[(err as Error).name] = (answers[(err as Error).name] ?? 0) + 1;
       failures++;
     } finally {
       sent++;
@@ -292,6 +316,7 @@ async function runPipeline(p: Pipeline): Promise<void> {
   })();
 
   const results: StepResult[] = [];
+  let failedWork: string | null = null;
   try {
     for (const n of STEPS) {
       if (n > beds.length) beds.push(...(await addBeds(p, beds.length, n, prof.body.id as string, loop, api)));
@@ -299,6 +324,8 @@ async function runPipeline(p: Pipeline): Promise<void> {
       latencies = [];
       failures = 0;
       sent = 0;
+      accepted = 0;
+      answers = {};
       const t0 = new Date();
       const cpu0 = Object.fromEntries(
         Object.entries({ ...p.pids(), 'load generator': process.pid }).map(([k, pid]) => [k, pid ? procStat(pid).cpuS : Number.NaN]),
@@ -333,6 +360,7 @@ async function runPipeline(p: Pipeline): Promise<void> {
         ingestP99: pct(latencies, 99),
         failures,
         sent,
+        accepted,
         analysisLagP99: pct(
           lags.map((l) => Number(l.lag)),
           99,
@@ -354,8 +382,15 @@ async function runPipeline(p: Pipeline): Promise<void> {
         r.deliveryLagP99 < GOALS.deliveryLagS &&
         r.deliveryOldestPending < GOALS.deliveryLagS;
       results.push(r);
+      const [broken] = (await sql.query(
+        "SELECT (SELECT COUNT(*) FROM analysis_window WHERE status = 'failed') AS windows, (SELECT COUNT(*) FROM delivery WHERE status = 'failed') AS deliveries",
+      )) as { windows: number | bigint; deliveries: number | bigint }[];
+      if (Number(broken?.windows ?? 0) || Number(broken?.deliveries ?? 0)) {
+        r.ok = false;
+        failedWork = `${Number(broken!.windows)} analysis windows and ${Number(broken!.deliveries)} deliveries failed (by ${n} beds)`;
+      }
       log(
-        `${String(n).padStart(5)} beds: ${(r.sent / wall).toFixed(0)} batches/s, ingest p50 ${r.ingestP50.toFixed(0)} ms p99 ${r.ingestP99.toFixed(0)} ms, failed ${r.failures}; ` +
+        `${String(n).padStart(5)} beds: ${(r.accepted / wall).toFixed(0)} accepted batches/s (answers ${JSON.stringify(answers)}), ingest p50 ${r.ingestP50.toFixed(0)} ms p99 ${r.ingestP99.toFixed(0)} ms, not accepted ${r.failures}; ` +
           `analysis lag p99 ${r.analysisLagP99.toFixed(1)} s (oldest due ${r.analysisOldestDue.toFixed(1)} s, ${lags.length} windows); ` +
           `delivery lag p99 ${r.deliveryLagP99.toFixed(1)} s (oldest pending ${r.deliveryOldestPending.toFixed(1)} s, ${dlags.length} Observations) → ${r.ok ? 'meets the goals' : 'misses the goals'}`,
       );
@@ -396,6 +431,8 @@ async function runPipeline(p: Pipeline): Promise<void> {
     );
   }
   await sql.end();
+  const wrong = [...[...refusals].map(([why, k]) => `${k} × ${why}`), ...(failedWork ? [failedWork] : [])];
+  return wrong.map((w) => `${p.name}: ${w}`);
 }
 
 async function main(): Promise<void> {
@@ -408,11 +445,12 @@ async function main(): Promise<void> {
   const dir = mkdtempSync(path.join(tmpdir(), 'ebbgate-capacity-'));
   const hospitalFile = path.join(dir, 'hospital.json');
   benchHospital(Math.max(...STEPS), hospitalFile);
+  const wrong: string[] = [];
   try {
     for (const target of TARGETS) {
       const p = target === 'galera' ? await galeraPipeline(hospitalFile, path.join(dir, 'cluster')) : await singlePipeline(hospitalFile);
       try {
-        await runPipeline(p);
+        wrong.push(...(await runPipeline(p)));
       } finally {
         await p.stop();
       }
@@ -420,6 +458,8 @@ async function main(): Promise<void> {
   } finally {
     rmSync(dir, { recursive: true, force: true });
   }
+  if (wrong.length)
+    throw new Error(`bench:capacity FAILED: refused or failed work, not load (the figures above count only accepted batches):\n  ${wrong.join('\n  ')}`);
 }
 
 main().then(

@@ -2,8 +2,10 @@
  * Benchmark: FHIR R4 Observations per second delivered by the outbox worker to the mock EHR
  * (which validates every resource against the R4 JSON schema), singly (one conditional-create
  * POST each) and in transaction Bundles. Real MariaDB (private, throwaway), real worker code.
- * Prints figures only; no timed assertion. Goal from issue 5: >= 500 Observations/s.
- * Run: npm run bench:delivery
+ * Prints figures; no timed assertion. Goal from issue 5: >= 500 Observations/s. The rate counts
+ * delivered Observations only; a run that leaves any of its rows not delivered (failed, waiting,
+ * retrying) is reported with its statuses and fails the benchmark (exit 1) after the figures.
+ * Run: npm run bench:delivery   (EBBGATE_MOCK_EHR_PORT, EBBGATE_SMTP_PORT, EBBGATE_HL7_RECEIVER_PORT for fixed mock ports)
  */
 import { spawn } from 'node:child_process';
 import { cpus, loadavg } from 'node:os';
@@ -27,6 +29,8 @@ import { PatientContextResolver } from '@ebbgate/gateway/delivery/patient-contex
 import { insertBedAndMonitor, storeAssessment } from '@ebbgate/gateway/test/delivery/support';
 
 const ASSESSMENTS = Number(process.env.BENCH_ASSESSMENTS ?? 300); // × 4 indices = Observations per run
+/** Runs whose rows were not all delivered, in words; the benchmark fails on any. */
+const undelivered: string[] = [];
 
 // Windows inside the seeded encounters; each run has its own monitor, so runs may share times.
 const T0 = Date.now() - 3_600_000;
@@ -56,20 +60,29 @@ async function run(label: string, ds: DataSource, ehr: { fhirBaseUrl: string; to
   let passes = 0;
   while ((await worker.runOnce()) > 0) passes++;
   const seconds = (performance.now() - t0) / 1000;
-  const done = await ds.getRepository(DeliveryRow).countBy({ status: 'delivered' });
-  const failed = await ds.getRepository(DeliveryRow).countBy({ status: 'failed' });
+  // This run's rows by status (earlier runs' rows are parked as 'benchmarked').
+  const rows = (await ds.query(`SELECT status, COUNT(*) AS n FROM delivery WHERE status <> 'benchmarked' GROUP BY status`)) as { status: string; n: unknown }[];
+  const byStatus = Object.fromEntries(rows.map((r) => [r.status, Number(r.n)]));
+  const done = byStatus.delivered ?? 0;
   console.log(
-    `${label.padEnd(34)} ${String(due).padStart(5)} Observations in ${seconds.toFixed(2)} s = ${(due / seconds).toFixed(0).padStart(5)} /s  (${passes} passes, ${done} delivered in total, ${failed} failed)`,
+    `${label.padEnd(34)} ${String(done).padStart(5)} of ${due} Observations delivered in ${seconds.toFixed(2)} s = ${(done / seconds).toFixed(0).padStart(5)} /s  (${passes} passes; rows ${JSON.stringify(byStatus)})`,
   );
+  if (done !== due || Object.keys(byStatus).some((st) => st !== 'delivered'))
+    undelivered.push(`${label.trim()}: ${done} of ${due} delivered; rows by status ${JSON.stringify(byStatus)}`);
   // Park this run's rows so the next run counts only its own.
-  await ds.query(`UPDATE delivery SET status = 'benchmarked' WHERE status = 'delivered'`);
+  await ds.query(`UPDATE delivery SET status = 'benchmarked' WHERE status <> 'benchmarked'`);
 }
 
 /** The mock EHR in its own process, as the EHR is in production: it does not share our event loop. */
 async function startMockProcess() {
   const child = spawn(path.join(repoRoot, 'node_modules/.bin/tsx'), ['mock-ehr/src/main.ts'], {
     cwd: repoRoot,
-    env: { PATH: process.env.PATH, MOCK_EHR_HTTP_PORT: '0', MOCK_EHR_SMTP_PORT: '0', MOCK_EHR_MLLP_PORT: '0' },
+    env: {
+      PATH: process.env.PATH,
+      MOCK_EHR_HTTP_PORT: process.env.EBBGATE_MOCK_EHR_PORT ?? '0',
+      MOCK_EHR_SMTP_PORT: process.env.EBBGATE_SMTP_PORT ?? '0',
+      MOCK_EHR_MLLP_PORT: process.env.EBBGATE_HL7_RECEIVER_PORT ?? '0',
+    },
     stdio: ['ignore', 'pipe', 'inherit'],
   });
   const baseUrl = await new Promise<string>((resolve, reject) => {
@@ -86,8 +99,10 @@ async function startMockProcess() {
 }
 
 /**
- * A stub that answers every FHIR call at once (token, Location/Encounter search, Device, 201 for
- * Observations) in its own process: what the gateway side alone can do, without the mock's work.
+ * A stub that answers every FHIR call at once (token, Location/Encounter search, Patient, Device,
+ * 201 for Observations) in its own process: what the gateway side alone can do, without the
+ * mock's work. Its Encounter is what the patient-context rules ask of an EHR (in progress, a
+ * period.start before the windows, at the bed's Location), else every row waits for context.
  */
 const STUB = `
 const http = require('node:http'); let n = 0;
@@ -96,7 +111,8 @@ http.createServer((req, res) => { let b = ''; req.on('data', (c) => (b += c)); r
   const u = req.url; res.setHeader('content-type', 'application/fhir+json');
   if (u.startsWith('/oauth/token')) return res.end(JSON.stringify({ access_token: 't', token_type: 'Bearer', expires_in: 3600 }));
   if (u.startsWith('/fhir/Location')) return res.end(bundle({ resourceType: 'Location', id: 'l1' }));
-  if (u.startsWith('/fhir/Encounter')) return res.end(bundle({ resourceType: 'Encounter', id: 'e1', subject: { reference: 'Patient/p1' } }));
+  if (u.startsWith('/fhir/Encounter')) return res.end(bundle({ resourceType: 'Encounter', id: 'e1', status: 'in-progress', period: { start: '2026-01-01T00:00:00Z' }, subject: { reference: 'Patient/p1' }, location: [{ location: { reference: 'Location/l1' } }] }));
+  if (u.startsWith('/fhir/Patient')) return res.end(JSON.stringify({ resourceType: 'Patient', id: 'p1', identifier: [{ system: 'urn:ebbgate:stub:mrn', value: 'STUB-1' }], name: [{ family: 'Stub', given: ['Bench'] }] }));
   if (u.startsWith('/fhir/Device')) return res.end(JSON.stringify({ resourceType: 'Device', id: 'd1' }));
   if (req.method === 'POST' && u === '/fhir/') { const e = JSON.parse(b).entry; res.end(JSON.stringify({ resourceType: 'Bundle', type: 'transaction-response', entry: e.map(() => ({ response: { status: '201 Created', location: 'Observation/o' + (++n) + '/_history/1' } })) })); return; }
   res.statusCode = 201; res.end(JSON.stringify({ resourceType: 'Observation', id: 'o' + (++n) }));
@@ -143,4 +159,8 @@ try {
   await db.drop();
   await ehr.stop();
   await server.stop();
+}
+if (undelivered.length) {
+  console.error(`bench:delivery FAILED: not every Observation was delivered, so those rates do not measure delivery:\n  ${undelivered.join('\n  ')}`);
+  process.exit(1);
 }

@@ -160,7 +160,15 @@ export interface ConfiguredGateway {
  */
 export async function spawnConfiguredGateway(
   config: object,
-  opts: { dir?: string; mllp?: boolean; mllpPort?: number; workers?: boolean; env?: Record<string, string>; databaseUrl?: (db: TestDatabase) => string } = {},
+  opts: {
+    dir?: string;
+    port?: number;
+    mllp?: boolean;
+    mllpPort?: number;
+    workers?: boolean;
+    env?: Record<string, string>;
+    databaseUrl?: (db: TestDatabase) => string;
+  } = {},
 ): Promise<ConfiguredGateway> {
   const dir = opts.dir ?? mkdtempSync(path.join(os.tmpdir(), 'ebbgate-gw-'));
   const file = path.join(dir, 'config.json');
@@ -171,6 +179,7 @@ export async function spawnConfiguredGateway(
     const gw = await spawnGateway({
       databaseUrl: opts.databaseUrl ? opts.databaseUrl(db) : db.runtimeUrl,
       jwtSecret: randomBytes(32).toString('hex'),
+      port: opts.port,
       mllp: opts.mllp,
       mllpPort: opts.mllpPort,
       workers: opts.workers,

@@ -28,7 +28,13 @@ export interface EdgeGateway {
 /** Starts a gateway with MLLP (plain and TLS) and the given config on top of the defaults. */
 export async function startEdgeGateway(
   config: Record<string, unknown> = {},
-  opts: { clients?: string[]; databaseUrl?: (db: TestDatabase) => string } = {},
+  opts: {
+    clients?: string[];
+    databaseUrl?: (db: TestDatabase) => string;
+    /** Fixed ports (HTTP, plain MLLP); free ones if not given. */
+    port?: number;
+    mllpPort?: number;
+  } = {},
 ): Promise<EdgeGateway> {
   const dir = mkdtempSync(path.join(os.tmpdir(), 'ebbgate-edge-'));
   const certs = ensureDemoCertificates(path.join(dir, 'certs'), opts.clients ?? ['adapter-a', 'adapter-b']);
@@ -56,6 +62,8 @@ export async function startEdgeGateway(
     {
       dir,
       databaseUrl: opts.databaseUrl,
+      port: opts.port,
+      mllpPort: opts.mllpPort,
       mllp: true,
       // Services on (the MLLP listeners are services); the analysis worker off: not under test.
       workers: true,
