@@ -1,20 +1,32 @@
 import net from 'node:net';
 
+/**
+ * The complete MLLP frames (0x0B … 0x1C 0x0D) in `buf` as text, and the bytes after the last one.
+ * Written here, apart from the shared kit, so framing tests do not check the kit against itself.
+ */
+export function splitFrames(buf: Buffer): { frames: string[]; rest: Buffer } {
+  const frames: string[] = [];
+  let rest = buf;
+  for (;;) {
+    const s = rest.indexOf(0x0b);
+    const e = rest.indexOf(Buffer.from([0x1c, 0x0d]));
+    if (s < 0 || e < 0) break;
+    frames.push(rest.subarray(s + 1, e).toString('utf8'));
+    rest = rest.subarray(e + 2);
+  }
+  return { frames, rest };
+}
+
 /** A bare MLLP peer for framing tests: writes bytes as given and collects framed answers. */
 export class RawMllpPeer {
-  private buf = Buffer.alloc(0);
+  private buf: Buffer = Buffer.alloc(0);
   private readonly frames: string[] = [];
   private waiters: (() => void)[] = [];
   private constructor(private readonly socket: net.Socket) {
     socket.on('data', (chunk: Buffer) => {
-      this.buf = Buffer.concat([this.buf, chunk]);
-      for (;;) {
-        const s = this.buf.indexOf(0x0b);
-        const e = this.buf.indexOf(Buffer.from([0x1c, 0x0d]));
-        if (s < 0 || e < 0) break;
-        this.frames.push(this.buf.subarray(s + 1, e).toString('utf8'));
-        this.buf = this.buf.subarray(e + 2);
-      }
+      const { frames, rest } = splitFrames(Buffer.concat([this.buf, chunk]));
+      this.buf = rest;
+      this.frames.push(...frames);
       this.waiters.splice(0).forEach((w) => w());
     });
   }

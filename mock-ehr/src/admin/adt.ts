@@ -2,8 +2,8 @@ import { randomUUID } from 'node:crypto';
 import { FhirError } from '../fhir/operation-outcome.js';
 import type { FhirResource } from '../fhir/resource-types.js';
 import type { ResourceStore } from '../fhir/store.js';
-import { LOCATION_SYSTEM, MRN_SYSTEM } from '../seed/hospital-file.js';
-import { patientIdFor } from '../seed/seed-resources.js';
+import { LOCATION_SYSTEM } from '../seed/hospital-file.js';
+import { patientIdFor, patientResource } from '../seed/seed-resources.js';
 
 // ADT-style changes as an EHR records them (FHIR R4 Encounter): a transfer ends the stay at one
 // Location (location[].period.end, status completed) and opens one at the next; a discharge
@@ -13,6 +13,15 @@ import { patientIdFor } from '../seed/seed-resources.js';
 
 type Obj = Record<string, unknown>;
 type LocationEntry = { location: { reference: string; display?: string }; status?: string; period?: { start?: string; end?: string } };
+
+/** The encounter's location entries with every open stay ended at `t` (status completed, period.end). */
+function staysEnded(enc: Obj, t: string): LocationEntry[] {
+  return ((enc.location as LocationEntry[] | undefined) ?? []).map((l) =>
+    l.status === 'completed'
+      ? l
+      : { ...l, status: 'completed', period: { ...l.period, start: l.period?.start ?? (enc.period as { start: string }).start, end: t } },
+  );
+}
 
 export interface Occupancy {
   locationIdentifier: string;
@@ -62,11 +71,7 @@ export class Adt {
     const to = this.location(toIdentifier);
     const enc = this.encounter(stay.encounterId);
     const t = at.toISOString();
-    const entries = ((enc.location as LocationEntry[] | undefined) ?? []).map((l) =>
-      l.status === 'completed'
-        ? l
-        : { ...l, status: 'completed', period: { ...l.period, start: l.period?.start ?? (enc.period as { start: string }).start, end: t } },
-    );
+    const entries = staysEnded(enc, t);
     entries.push({ location: { reference: `Location/${to.id}`, display: String(to.name ?? toIdentifier) }, status: 'active', period: { start: t } });
     this.store.write({ ...enc, location: entries } as FhirResource & { id: string });
     stay.to = t;
@@ -80,11 +85,7 @@ export class Adt {
     if (!stay) throw FhirError.of(409, 'conflict', `nobody is in ${identifier}`);
     const enc = this.encounter(stay.encounterId);
     const t = at.toISOString();
-    const entries = ((enc.location as LocationEntry[] | undefined) ?? []).map((l) =>
-      l.status === 'completed'
-        ? l
-        : { ...l, status: 'completed', period: { ...l.period, start: l.period?.start ?? (enc.period as { start: string }).start, end: t } },
-    );
+    const entries = staysEnded(enc, t);
     this.store.write({ ...enc, status: 'finished', period: { ...(enc.period as Obj), end: t }, location: entries } as FhirResource & { id: string });
     stay.to = t;
     return this.log({ at: t, kind: 'discharge', patientId: stay.patientId, encounterId: stay.encounterId, from: identifier });
@@ -100,22 +101,7 @@ export class Adt {
     const loc = this.location(identifier);
     const patientId = patientIdFor(p.mrn);
     const t = at.toISOString();
-    this.store.write({
-      resourceType: 'Patient',
-      id: patientId,
-      active: true,
-      identifier: [
-        {
-          use: 'usual',
-          type: { coding: [{ system: 'http://terminology.hl7.org/CodeSystem/v2-0203', code: 'MR', display: 'Medical record number' }] },
-          system: MRN_SYSTEM,
-          value: p.mrn,
-        },
-      ],
-      name: [{ use: 'official', family: p.family, given: p.given }],
-      gender: p.sex,
-      birthDate: p.birthDate,
-    } as FhirResource & { id: string });
+    this.store.write(patientResource(p));
     const encounterId = `enc-${randomUUID().slice(0, 12)}`;
     this.store.write({
       resourceType: 'Encounter',

@@ -10,6 +10,26 @@ export function patientIdFor(mrn: string): string {
   return `patient-${mrn.toLowerCase().replace(/[^a-z0-9\-.]/g, '-')}`.slice(0, 64);
 }
 
+/** A Patient with its MRN (identifier type MR, HL7 v2 table 0203), as seeded and as an admission makes one. */
+export function patientResource(p: { mrn: string; family: string; given: string[]; sex: string; birthDate: string }): FhirResource & { id: string } {
+  return {
+    resourceType: 'Patient',
+    id: patientIdFor(p.mrn),
+    active: true,
+    identifier: [
+      {
+        use: 'usual',
+        type: { coding: [{ system: 'http://terminology.hl7.org/CodeSystem/v2-0203', code: 'MR', display: 'Medical record number' }] },
+        system: MRN_SYSTEM,
+        value: p.mrn,
+      },
+    ],
+    name: [{ use: 'official', family: p.family, given: p.given }],
+    gender: p.sex,
+    birthDate: p.birthDate,
+  };
+}
+
 export function seedResources(file: HospitalFile, now = new Date()): FhirResource[] {
   const out: FhirResource[] = [];
   for (const unit of file.units) {
@@ -41,22 +61,7 @@ export function seedResources(file: HospitalFile, now = new Date()): FhirResourc
     if (!bed.patient || !bed.encounterId) continue;
     const p = bed.patient;
     const patientId = patientIdFor(p.mrn);
-    out.push({
-      resourceType: 'Patient',
-      id: patientId,
-      active: true,
-      identifier: [
-        {
-          use: 'usual',
-          type: { coding: [{ system: 'http://terminology.hl7.org/CodeSystem/v2-0203', code: 'MR', display: 'Medical record number' }] },
-          system: MRN_SYSTEM,
-          value: p.mrn,
-        },
-      ],
-      name: [{ use: 'official', family: p.family, given: p.given }],
-      gender: p.sex,
-      birthDate: p.birthDate,
-    });
+    out.push(patientResource(p));
     out.push({
       resourceType: 'Encounter',
       id: bed.encounterId,

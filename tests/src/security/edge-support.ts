@@ -13,6 +13,7 @@ import type { TestDatabase } from '../../../scripts/lib/test-database';
 import { ensureDemoCertificates, type DemoCertificates } from '../../../scripts/lib/certs';
 import { DEMO_INTEGRATOR, freePort, signIn, spawnConfiguredGateway, type GatewayProcess } from '../ingest/gateway-process';
 import { queryDatabase } from '../support/database';
+import { splitFrames } from '@ebbgate/gateway/test/ingest/mllp-client';
 
 export interface EdgeGateway {
   gw: GatewayProcess;
@@ -152,19 +153,14 @@ export function readAck(ack: string) {
 
 /** A bare MLLP peer: writes bytes as given, collects framed answers, knows when it was closed. */
 export class Peer {
-  private buf = Buffer.alloc(0);
+  private buf: Buffer = Buffer.alloc(0);
   readonly frames: string[] = [];
   closedAt: number | null = null;
   private constructor(readonly socket: net.Socket) {
     socket.on('data', (chunk: Buffer) => {
-      this.buf = Buffer.concat([this.buf, chunk]);
-      for (;;) {
-        const s = this.buf.indexOf(0x0b);
-        const e = this.buf.indexOf(Buffer.from([0x1c, 0x0d]));
-        if (s < 0 || e < 0) break;
-        this.frames.push(this.buf.subarray(s + 1, e).toString('utf8'));
-        this.buf = this.buf.subarray(e + 2);
-      }
+      const { frames, rest } = splitFrames(Buffer.concat([this.buf, chunk]));
+      this.buf = rest;
+      this.frames.push(...frames);
     });
     socket.on('error', () => undefined);
     socket.on('close', () => (this.closedAt = Date.now()));
