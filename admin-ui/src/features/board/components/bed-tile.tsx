@@ -21,6 +21,7 @@ export function BedTile({ tile }: { tile: Tile }) {
     <article
       aria-labelledby={headingId}
       data-bed={tile.bedName}
+      data-bed-id={tile.bedId}
       data-state={tile.state}
       className="flex flex-col gap-1.5 rounded-md border border-line bg-white p-2.5 text-sm"
     >

@@ -8,7 +8,7 @@ import { EmptyState, ErrorState, LoadingState } from '@/components/ui/states';
 import { Cautions } from '@/components/analysis/cautions';
 import { VerdictLegend } from '@/components/analysis/verdict-mark';
 import { BOARD_POLL_MS, useBoard } from '../api/board';
-import { BedTile } from '../components/bed-tile';
+import { BedGrid } from '../components/bed-grid';
 
 const STATE_TEXT: Record<BedDataState, string> = {
   sending: 'Sending',
@@ -17,11 +17,12 @@ const STATE_TEXT: Record<BedDataState, string> = {
   quarantining: 'Quarantining',
   'no-monitor': 'No monitor',
 };
-const PAGE_SIZE = 48;
+/** One answer holds the whole board up to the gateway's largest page; beyond that, pages of this many. */
+const PAGE_SIZE = 500;
 
 /**
- * Every bed at a glance. Paged on the server (48 tiles a page) rather than virtualised: a page is
- * one read for the screen reader and the keyboard, and 200 beds are five pages at most per filter.
+ * Every bed at a glance: one call answers for the whole board (filtered and counted on the
+ * server), and the tiles are virtualised by rows so 200 beds and more scroll smoothly.
  */
 export function BoardRoute() {
   const [search, setSearch] = useSearchParams();
@@ -88,28 +89,25 @@ export function BoardRoute() {
         <p className="text-sm text-ink-800" aria-label="Beds by data state">
           {(Object.keys(STATE_TEXT) as BedDataState[]).map((s) => `${STATE_TEXT[s]} ${b.counts[s] ?? 0}`).join(' · ')}
         </p>
+        <p className="text-sm text-muted">
+          {b.total} bed{b.total === 1 ? '' : 's'} shown
+        </p>
         <VerdictLegend />
       </div>
-      {b.items.length === 0 ? (
-        <EmptyState title="No beds match">Change the unit or state filter.</EmptyState>
-      ) : (
-        <div className="grid gap-2 sm:grid-cols-2 lg:grid-cols-3 2xl:grid-cols-4" aria-label="Beds">
-          {b.items.map((t) => (
-            <BedTile key={t.bedId} tile={t} />
-          ))}
-        </div>
+      {b.items.length === 0 ? <EmptyState title="No beds match">Change the unit or state filter.</EmptyState> : <BedGrid tiles={b.items} />}
+      {pages > 1 && (
+        <nav aria-label="Board pages" className="mt-3 flex items-center gap-2 text-sm">
+          <Button size="sm" disabled={page <= 1} onClick={() => set('page', String(page - 1))}>
+            Previous page
+          </Button>
+          <span>
+            Page {page} of {pages} · {b.total} beds
+          </span>
+          <Button size="sm" disabled={page >= pages} onClick={() => set('page', String(page + 1))}>
+            Next page
+          </Button>
+        </nav>
       )}
-      <nav aria-label="Board pages" className="mt-3 flex items-center gap-2 text-sm">
-        <Button size="sm" disabled={page <= 1} onClick={() => set('page', String(page - 1))}>
-          Previous page
-        </Button>
-        <span>
-          Page {page} of {pages} · {b.total} bed{b.total === 1 ? '' : 's'}
-        </span>
-        <Button size="sm" disabled={page >= pages} onClick={() => set('page', String(page + 1))}>
-          Next page
-        </Button>
-      </nav>
       <div className="mt-3">
         <Cautions compact />
       </div>
