@@ -16,6 +16,7 @@ import { SharedLoop } from './simulation/loop-source';
 import { BedStream } from './stream/bed-stream';
 import { MonitorFeed } from './simulation/monitor-feed';
 import { demoIntegrator, loadMonitorId, provisionMonitors } from './simulation/provision';
+import { simulatedClock } from './simulation/sim-clock';
 import { simulatorTransport } from './simulation/transports';
 
 const USAGE = `usage: npm run simulate -- [options]
@@ -36,6 +37,8 @@ const USAGE = `usage: npm run simulate -- [options]
   --scenario ID         one scenario for every monitor (default: all assessed scenarios in turn)
   --duration S          stop after S seconds (default: until Ctrl-C)
   --backfill S          seconds of past signal sent at start (default 0)
+  --speed X             play the backfill at X times real time (default: at once); batch times
+                        stay simulated and never pass the wall clock, then real time
   --spool DIR           spool folder (default a temporary folder)`;
 
 function fail(msg: string): never {
@@ -76,6 +79,7 @@ async function main(): Promise<void> {
         scenario: { type: 'string' },
         duration: { type: 'string' },
         backfill: { type: 'string' },
+        speed: { type: 'string' },
         spool: { type: 'string' },
         help: { type: 'boolean' },
       },
@@ -119,6 +123,8 @@ async function main(): Promise<void> {
     : SCENARIO_IDS.filter((id) => SCENARIOS[id].expect.outcome === 'assessed' && !SCENARIOS[id].tidalVolumeChallenge);
   const loops = new Map(scenarioIds.filter((id) => !SCENARIOS[id].tidalVolumeChallenge).map((id) => [id, new SharedLoop(SCENARIOS[id])]));
   const start = new Date(Date.now() - num(args.backfill, 'backfill', 1e-9) * 1000);
+  const speed = num(args.speed, 'speed', Number.POSITIVE_INFINITY);
+  if (speed < 1) fail(`--speed must be at least 1, got "${args.speed}"`);
   const feeds = identifiers.map((identifier, i) => {
     const id = scenarioIds[i % scenarioIds.length];
     // Spread monitors over the batch period so they do not all send on the same tick.
@@ -191,12 +197,14 @@ async function main(): Promise<void> {
     reasons.clear();
     last = { at: now, accepted: s.accepted, retries: s.retries, rejected: s.rejected };
   };
+  // Starts with the earliest monitor's first batch; the backfill plays from now on at --speed.
+  const clock = simulatedClock(start.getTime() - interval * 1000, speed);
   let sending = false;
   const tick = async () => {
     if (sending) return; // a slow gateway must not make ticks pile up
     sending = true;
     try {
-      const t = Date.now();
+      const t = clock.now();
       for (const f of feeds) for (const b of f.due(t)) await sender.send(b);
     } finally {
       sending = false;

@@ -10,7 +10,8 @@ import { EHR_OUTAGE, SCENARIOS } from './scenarios/catalogue';
 import type { Scenario, ScenarioId } from './scenarios/types';
 import { MonitorFeed } from './simulation/monitor-feed';
 import { simulatorTransport } from './simulation/transports';
-import { BedStream } from './stream/bed-stream';
+import { simulatedClock } from './simulation/sim-clock';
+import { BedStream, type ChallengeTruth } from './stream/bed-stream';
 
 import type { DemoMonitorInput } from './simulation/demo-provision';
 
@@ -28,6 +29,12 @@ export interface DemoOptions {
   log?: (m: string) => void;
   /** Seconds of past signal sent at start (default 60). */
   backfillSeconds?: number;
+  /**
+   * How fast the backfill plays, times real time (default: at once). Batch times stay simulated
+   * times and never pass the wall clock: once caught up the run goes on in real time. With a long
+   * backfill this plays a tidal volume challenge (three minutes of signal) in a few seconds.
+   */
+  speed?: number;
   /** EHR outage timing, or false for none (default: EHR_OUTAGE of the scenario catalogue). */
   ehrOutage?: false | { atSeconds: number; durationSeconds: number; refusalWaitSeconds?: number };
   /** ADT-style changes recorded at the mock EHR during the run, or false for none (default: DEMO_ADT). */
@@ -56,6 +63,18 @@ export interface RunningDemo {
   ready: Promise<void>;
   /** Scenario per monitor identifier, as assigned. */
   assignments: Map<string, ScenarioId>;
+  /**
+   * The tidal volume challenges streamed so far (challenge scenarios), at their simulated times,
+   * with the generator's truth: what a correct engine must find, never taken from the gateway.
+   */
+  challenges(identifier: string): StreamedChallenge[];
+}
+
+/** A tidal volume challenge as the simulator put it in: low volume from `startAt`, the step at `stepAt`. */
+export interface StreamedChallenge {
+  startAt: Date;
+  stepAt: Date;
+  truth: ChallengeTruth['truth'];
 }
 
 /** Scenario for a monitor: its own choice, else the suggested demo list, else round-robin over that list. */
@@ -77,19 +96,30 @@ export function runDemoScenario(opts: DemoOptions): RunningDemo {
   const now = Date.now();
   // Aligned to whole batch lengths, like a monitor that cuts batches on the clock.
   const start = new Date(Math.floor((now - backfill * 1000) / (batchSeconds * 1000)) * batchSeconds * 1000);
+  const clock = simulatedClock(start.getTime(), opts.speed);
   const scenarios = new Map<string, Scenario>();
+  const streams = new Map<string, BedStream>();
   const feeds = opts.monitors.map((m, i) => {
     const scenario = assignScenario(m, i);
     scenarios.set(m.identifier, scenario);
+    const source = new BedStream({ scenario, seed: 1000 + i * 17 });
+    streams.set(m.identifier, source);
     return new MonitorFeed({
       identifier: m.identifier,
       scenario,
-      source: new BedStream({ scenario, seed: 1000 + i * 17 }),
+      source,
       transport,
       batchSeconds,
       startTime: start,
     });
   });
+  const challengesOf = (identifier: string): StreamedChallenge[] =>
+    (streams.get(identifier)?.challengeTruth() ?? []).map((c) => ({
+      startAt: new Date(start.getTime() + c.startTime * 1000),
+      stepAt: new Date(start.getTime() + c.stepTime * 1000),
+      truth: c.truth,
+    }));
+  const announced = new Map<string, number>();
   const apiKeys = new Map(opts.monitors.map((m) => [m.identifier, m.apiKey]));
   const timers: NodeJS.Timeout[] = [];
   let stopped = false;
@@ -103,7 +133,9 @@ export function runDemoScenario(opts: DemoOptions): RunningDemo {
       spoolDir: opts.spoolDir,
       onEvent,
     });
-    log(`${feeds.length} monitors over ${transport}, ${batchSeconds}-s batches, backfilling ${backfill} s`);
+    const pace =
+      opts.speed === undefined || opts.speed === Number.POSITIVE_INFINITY ? 'at once' : `at ${opts.speed}× real time (${Math.ceil(clock.catchUpSeconds())} s)`;
+    log(`${feeds.length} monitors over ${transport}, ${batchSeconds}-s batches, backfilling ${backfill} s ${pace}`);
     for (const f of feeds) log(`${f.identifier} → ${f.scenario.id} (${f.scenario.title})`);
     await tick();
     if (stopped) return;
@@ -163,14 +195,31 @@ export function runDemoScenario(opts: DemoOptions): RunningDemo {
     if (ticking) return; // a slow disk must not make ticks pile up
     ticking = true;
     try {
-      const t = Date.now();
+      const t = clock.now();
       for (const f of feeds) {
         if (stopped || !sender) return;
         for (const b of f.due(t)) await sender.send(b);
+        announceChallenges(f.identifier);
       }
     } finally {
       ticking = false;
     }
+  }
+
+  /** One line per challenge put in, with the generator's truth, so a demo viewer knows what to look for. */
+  function announceChallenges(identifier: string): void {
+    const all = challengesOf(identifier);
+    for (const c of all.slice(announced.get(identifier) ?? 0)) {
+      const t = c.truth;
+      const delta =
+        t.deltaPpv === null
+          ? ''
+          : `, PPV ${t.baselinePpv?.toFixed(1)} → ${t.challengePpv?.toFixed(1)} % put in (${t.deltaPpv >= 0 ? '+' : ''}${t.deltaPpv.toFixed(1)} points)`;
+      log(
+        `${identifier}: tidal volume challenge, ${t.baselineTidalVolumeMl} → ${t.challengeTidalVolumeMl} mL at ${c.stepAt.toISOString()}${delta}, expected ${t.expected}`,
+      );
+    }
+    announced.set(identifier, all.length);
   }
 
   const faultsUrl = new URL('/_admin/faults', opts.mockEhrUrl).toString();
@@ -203,6 +252,7 @@ export function runDemoScenario(opts: DemoOptions): RunningDemo {
   return {
     ready,
     assignments: new Map([...scenarios].map(([k, v]) => [k, v.id])),
+    challenges: challengesOf,
     async stop() {
       stopped = true;
       for (const t of timers) clearTimeout(t);

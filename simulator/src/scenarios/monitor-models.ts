@@ -48,5 +48,9 @@ export const DEMO_MONITORS: DemoMonitor[] = [
   { identifier: '02EB6AFFFE000006', bedId: 'or-01', scenario: 'motion-artefact' },
   { identifier: '02EB6AFFFE000007', bedId: 'or-02', scenario: 'damped-arterial-line' },
   { identifier: '02EB6AFFFE000008', bedId: 'or-03', scenario: 'vasopressor-finger-probe' },
-  { identifier: '02EB6AFFFE000009', bedId: null, scenario: 'unmapped-channel' },
+  // A tidal volume challenge a newcomer sees within minutes: 6 → 8 mL/kg PBW for one minute, repeated.
+  { identifier: '02EB6AFFFE000009', bedId: 'icu-06', scenario: 'tidal-volume-challenge-responder' },
+  { identifier: '02EB6AFFFE00000A', bedId: 'icu-07', scenario: 'tidal-volume-challenge-non-responder' },
+  // Numbered after the beds, as the gateway's demo seed numbers them (config/demo/hospital.json order).
+  { identifier: '02EB6AFFFE00000B', bedId: null, scenario: 'unmapped-channel' },
 ];
