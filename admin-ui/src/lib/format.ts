@@ -55,6 +55,16 @@ export function formatWait(seconds: number): string {
   return rest === 0 ? plural(hours, 'hour') : `${plural(hours, 'hour')} ${plural(rest, 'minute')}`;
 }
 
+/** ISO time → `datetime-local` input value in local time (minutes, seconds when set); '' for none. */
+export function isoToLocalInput(iso: string | undefined): string {
+  if (!iso) return '';
+  const d = new Date(iso);
+  if (Number.isNaN(d.getTime())) return '';
+  const p = (n: number, w = 2) => String(n).padStart(w, '0');
+  const base = `${p(d.getFullYear(), 4)}-${p(d.getMonth() + 1)}-${p(d.getDate())}T${p(d.getHours())}:${p(d.getMinutes())}`;
+  return d.getSeconds() || d.getMilliseconds() ? `${base}:${p(d.getSeconds())}` : base;
+}
+
 export function humanize(code: string): string {
   const s = code.replace(/[-_]/g, ' ');
   return s.charAt(0).toUpperCase() + s.slice(1);

@@ -1,13 +1,14 @@
 import { PatientLabel } from '@/components/ui/patient';
-import { useMemo, useState } from 'react';
+import { useMemo } from 'react';
 import { Link, useNavigate } from 'react-router-dom';
 import type { AssessmentSummary } from '@ebbgate/shared';
-import { formatDateTime, formatNumber, humanize, localInputToIso } from '@/lib/format';
+import { formatDateTime, formatNumber, humanize } from '@/lib/format';
 import { useListState } from '@/hooks/use-list-state';
 import { Badge, StatusBadge, VerdictBadge } from '@/components/ui/badge';
 import { DataTable, type Column } from '@/components/ui/data-table';
-import { SelectField, TextField } from '@/components/ui/field';
-import { FilterBar, PageHeader } from '@/components/ui/page';
+import { queryTableProps } from '@/components/ui/query-table';
+import { ListFilters } from '@/components/ui/list-filters';
+import { PageHeader } from '@/components/ui/page';
 import { Cautions } from '@/components/analysis/cautions';
 import { useAssessments, useBedOptions } from '../api/assessments';
 import { FLAG_OPTIONS } from '../components/flag-options';
@@ -38,8 +39,6 @@ function Value({ v, unit, notValid }: { v: number | null; unit: string; notValid
 
 export function AssessmentsRoute() {
   const list = useListState({ sort: 'windowStart', order: 'desc' });
-  const [from, setFrom] = useState('');
-  const [to, setTo] = useState('');
   const assessments = useAssessments(list.query);
   const beds = useBedOptions();
   const navigate = useNavigate();
@@ -109,91 +108,34 @@ export function AssessmentsRoute() {
     },
   ];
 
-  const clear = () => {
-    list.clearFilters();
-    setFrom('');
-    setTo('');
-  };
-
   return (
     <>
       <PageHeader title="Assessments" description="Every analysed window, newest first. Open one to see its waveform, marks and what was sent to the EHR." />
       <div className="mb-2">
         <Cautions compact />
       </div>
-      <FilterBar onClear={clear}>
-        <SelectField
-          label="Bed"
-          placeholder="any"
-          wrapClassName="w-44"
-          value={list.filters.bed ?? ''}
-          onChange={(e) => list.setFilter('bed', e.target.value)}
-          options={(beds.data?.items ?? []).map((b) => ({ value: b.id, label: `${b.name} · ${b.unit}` }))}
-        />
-        <TextField
-          label="Patient"
-          placeholder="identifier"
-          wrapClassName="w-36"
-          value={list.filters.patient ?? ''}
-          onChange={(e) => list.setFilter('patient', e.target.value)}
-        />
-        <SelectField
-          label="Has index"
-          placeholder="any"
-          wrapClassName="w-36"
-          value={list.filters.index ?? ''}
-          onChange={(e) => list.setFilter('index', e.target.value)}
-          options={INDEX_OPTIONS}
-        />
-        <SelectField
-          label="Verdict"
-          placeholder="any"
-          wrapClassName="w-36"
-          value={list.filters.verdict ?? ''}
-          onChange={(e) => list.setFilter('verdict', e.target.value)}
-          options={VERDICT_OPTIONS}
-        />
-        <SelectField
-          label="Flag"
-          placeholder="any"
-          wrapClassName="w-48"
-          value={list.filters.flag ?? ''}
-          onChange={(e) => list.setFilter('flag', e.target.value)}
-          options={FLAG_OPTIONS}
-        />
-        <TextField
-          label="From"
-          type="datetime-local"
-          wrapClassName="w-48"
-          value={from}
-          onChange={(e) => {
-            setFrom(e.target.value);
-            list.setFilter('from', localInputToIso(e.target.value));
-          }}
-        />
-        <TextField
-          label="To"
-          type="datetime-local"
-          wrapClassName="w-48"
-          value={to}
-          onChange={(e) => {
-            setTo(e.target.value);
-            list.setFilter('to', localInputToIso(e.target.value));
-          }}
-        />
-      </FilterBar>
+      <ListFilters
+        list={list}
+        timeRange
+        fields={[
+          {
+            key: 'bed',
+            label: 'Bed',
+            kind: 'select',
+            width: 'w-44',
+            options: (beds.data?.items ?? []).map((b) => ({ value: b.id, label: `${b.name} · ${b.unit}` })),
+          },
+          { key: 'patient', label: 'Patient', kind: 'text', width: 'w-36', placeholder: 'identifier' },
+          { key: 'index', label: 'Has index', kind: 'select', width: 'w-36', options: INDEX_OPTIONS },
+          { key: 'verdict', label: 'Verdict', kind: 'select', width: 'w-36', options: VERDICT_OPTIONS },
+          { key: 'flag', label: 'Flag', kind: 'select', width: 'w-48', options: FLAG_OPTIONS },
+        ]}
+      />
       <DataTable
         caption="Assessments"
         columns={columns}
-        rows={assessments.data?.items}
-        total={assessments.data?.total}
+        {...queryTableProps(assessments, list)}
         rowId={(a) => a.id}
-        params={list.params}
-        onParamsChange={list.setParams}
-        loading={assessments.isPending}
-        fetching={assessments.isFetching}
-        error={assessments.error}
-        onRetry={() => assessments.refetch()}
         onRowClick={(a) => navigate(`/assessments/${a.id}`)}
         emptyTitle="No assessments match"
         emptyHint="Windows appear here once a mapped monitor sends data. Widen the filters or the time range."

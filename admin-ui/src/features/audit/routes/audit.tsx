@@ -1,21 +1,20 @@
 import { useState } from 'react';
 import type { AuditEntry } from '@ebbgate/shared';
-import { formatDateTime, localInputToIso } from '@/lib/format';
+import { formatDateTime } from '@/lib/format';
 import { useListState } from '@/hooks/use-list-state';
 import { Badge } from '@/components/ui/badge';
 import { Button } from '@/components/ui/button';
 import { DataTable, type Column } from '@/components/ui/data-table';
+import { queryTableProps } from '@/components/ui/query-table';
+import { ListFilters } from '@/components/ui/list-filters';
 import { Dialog } from '@/components/ui/dialog';
-import { SelectField, TextField } from '@/components/ui/field';
-import { FilterBar, JsonBlock, PageHeader, DefinitionList } from '@/components/ui/page';
+import { JsonBlock, PageHeader, DefinitionList } from '@/components/ui/page';
 import { useAuditEntries } from '../api/audit';
 
 const ENTITY_TYPES = ['user', 'monitor', 'monitor-profile', 'bed', 'assessment', 'delivery', 'destination', 'inbound-message', 'settings'];
 
 export function AuditRoute() {
   const list = useListState({ sort: 'at', order: 'desc' });
-  const [fromLocal, setFromLocal] = useState('');
-  const [toLocal, setToLocal] = useState('');
   const entries = useAuditEntries(list.query);
   const [open, setOpen] = useState<AuditEntry | null>(null);
 
@@ -54,72 +53,24 @@ export function AuditRoute() {
     },
   ];
 
-  const clear = () => {
-    list.clearFilters();
-    setFromLocal('');
-    setToLocal('');
-  };
-
   return (
     <>
       <PageHeader title="Audit log" description="Every change and every sign-in, with who did it and what it was before and after." />
-      <FilterBar onClear={clear}>
-        <TextField
-          label="Who"
-          placeholder="user name"
-          value={list.filters.actor ?? ''}
-          onChange={(e) => list.setFilter('actor', e.target.value)}
-          wrapClassName="w-40"
-        />
-        <TextField
-          label="Action"
-          placeholder="e.g. user.create"
-          value={list.filters.action ?? ''}
-          onChange={(e) => list.setFilter('action', e.target.value)}
-          wrapClassName="w-44"
-        />
-        <SelectField
-          label="On"
-          placeholder="any"
-          options={ENTITY_TYPES.map((t) => ({ value: t, label: t }))}
-          value={list.filters.entityType ?? ''}
-          onChange={(e) => list.setFilter('entityType', e.target.value)}
-          wrapClassName="w-40"
-        />
-        <TextField label="Entity id" value={list.filters.entityId ?? ''} onChange={(e) => list.setFilter('entityId', e.target.value)} wrapClassName="w-40" />
-        <TextField
-          label="From"
-          type="datetime-local"
-          value={fromLocal}
-          onChange={(e) => {
-            setFromLocal(e.target.value);
-            list.setFilter('from', localInputToIso(e.target.value));
-          }}
-          wrapClassName="w-48"
-        />
-        <TextField
-          label="To"
-          type="datetime-local"
-          value={toLocal}
-          onChange={(e) => {
-            setToLocal(e.target.value);
-            list.setFilter('to', localInputToIso(e.target.value));
-          }}
-          wrapClassName="w-48"
-        />
-      </FilterBar>
+      <ListFilters
+        list={list}
+        timeRange
+        fields={[
+          { key: 'actor', label: 'Who', kind: 'text', width: 'w-40', placeholder: 'user name' },
+          { key: 'action', label: 'Action', kind: 'text', width: 'w-44', placeholder: 'e.g. user.create' },
+          { key: 'entityType', label: 'On', kind: 'select', width: 'w-40', options: ENTITY_TYPES.map((t) => ({ value: t, label: t })) },
+          { key: 'entityId', label: 'Entity id', kind: 'text', width: 'w-40' },
+        ]}
+      />
       <DataTable
         caption="Audit entries"
         columns={columns}
-        rows={entries.data?.items}
-        total={entries.data?.total}
+        {...queryTableProps(entries, list)}
         rowId={(a) => a.id}
-        params={list.params}
-        onParamsChange={list.setParams}
-        loading={entries.isPending}
-        fetching={entries.isFetching}
-        error={entries.error}
-        onRetry={() => entries.refetch()}
         emptyTitle="No audit entries match these filters"
       />
       <Dialog open={!!open} title="Audit entry" onClose={() => setOpen(null)} wide>

@@ -167,21 +167,24 @@ function layout() {
 const bedName = (i: number) => `ICU-${String(i).padStart(3, '0')}`;
 const many = (n: number, names: (i: number) => string = bedName) =>
   Array.from({ length: n }, (_, k) => tile({ bedId: `b${k + 1}`, bedName: names(k + 1), latest: { ...tile({}).latest!, assessmentId: `a${k + 1}` } }));
+/** A reviewer's session and the board answer `items()` gives at the time of each call; then the board screen. */
+function serveBoard(items: () => BedTile[]) {
+  fakeGateway((c) =>
+    c.url.pathname === '/api/v1/auth/session'
+      ? { body: SESSION(['reviewer']) }
+      : c.url.pathname === '/api/v1/board'
+        ? { body: BOARD(items(), { pageSize: 500 }) }
+        : undefined,
+  );
+  renderApp(<BoardRoute />, { route: '/board' });
+}
 const drawnBeds = () => screen.queryAllByRole('article').map((a) => a.getAttribute('data-bed'));
 
 describe('beds board with 200 beds', () => {
   beforeEach(() => layout());
 
   it('draws only the rows in view and a few either side, and scrolling draws the others', async () => {
-    const items = many(200);
-    fakeGateway((c) =>
-      c.url.pathname === '/api/v1/auth/session'
-        ? { body: SESSION(['reviewer']) }
-        : c.url.pathname === '/api/v1/board'
-          ? { body: BOARD(items, { pageSize: 500 }) }
-          : undefined,
-    );
-    renderApp(<BoardRoute />, { route: '/board' });
+    serveBoard(() => many(200));
     await screen.findByRole('article', { name: /^ICU-001/ });
     expect(screen.getByText('200 beds shown')).toBeTruthy();
     const grid = screen.getByRole('region', { name: 'Beds' });
@@ -207,16 +210,8 @@ describe('beds board with 200 beds', () => {
   });
 
   it('Tab walks from the last tile in view onto the next row, which then scrolls into view and draws the rows after it', async () => {
-    const items = many(200);
-    fakeGateway((c) =>
-      c.url.pathname === '/api/v1/auth/session'
-        ? { body: SESSION(['reviewer']) }
-        : c.url.pathname === '/api/v1/board'
-          ? { body: BOARD(items, { pageSize: 500 }) }
-          : undefined,
-    );
     const user = userEvent.setup();
-    renderApp(<BoardRoute />, { route: '/board' });
+    serveBoard(() => many(200));
     await screen.findByRole('article', { name: /^ICU-001/ });
     const grid = screen.getByRole('region', { name: 'Beds' });
     const visibleRows = Math.ceil(VIEW_PX / ROW_STEP);
@@ -246,14 +241,7 @@ describe('beds board with 200 beds', () => {
 
   it('keeps the focused tile drawn when scrolled away from, and keeps focus on it across a refresh that draws it anew', async () => {
     let items = many(200);
-    fakeGateway((c) =>
-      c.url.pathname === '/api/v1/auth/session'
-        ? { body: SESSION(['reviewer']) }
-        : c.url.pathname === '/api/v1/board'
-          ? { body: BOARD(items, { pageSize: 500 }) }
-          : undefined,
-    );
-    renderApp(<BoardRoute />, { route: '/board' });
+    serveBoard(() => items);
     await screen.findByRole('article', { name: /^ICU-002/ });
     const grid = screen.getByRole('region', { name: 'Beds' });
     const trend = within(screen.getByRole('article', { name: /^ICU-002/ })).getByRole('link', { name: 'Trend of ICU-002' });

@@ -2,7 +2,7 @@ import { PatientLabel } from '@/components/ui/patient';
 import { useState, type ReactNode } from 'react';
 import { Link } from 'react-router-dom';
 import { useAuth } from '@/lib/auth';
-import { formatDateTime, localInputToIso } from '@/lib/format';
+import { formatDateTime } from '@/lib/format';
 import { outcomeOf } from '@/lib/outcome';
 import { useListState } from '@/hooks/use-list-state';
 import { useBulkAction } from '@/hooks/use-bulk-action';
@@ -10,9 +10,10 @@ import { StatusBadge } from '@/components/ui/badge';
 import { BulkProgress } from '@/components/ui/bulk-progress';
 import { Button } from '@/components/ui/button';
 import { DataTable, type Column } from '@/components/ui/data-table';
+import { queryTableProps } from '@/components/ui/query-table';
+import { ListFilters } from '@/components/ui/list-filters';
 import { ConfirmDialog } from '@/components/ui/dialog';
-import { SelectField, TextField } from '@/components/ui/field';
-import { FilterBar, PageHeader } from '@/components/ui/page';
+import { PageHeader } from '@/components/ui/page';
 import { useToast } from '@/components/ui/toast';
 import { discardDelivery, optionList, requeueAndFollow, useDeliveries, useDestinationOptions, useInvalidateDeliveries, type Delivery } from '../api/deliveries';
 import { DeliveryDetailDialog } from '../components/delivery-detail';
@@ -22,8 +23,6 @@ const STATUSES = ['failed', 'pending', 'waiting-context', 'delivered', 'discarde
 /** `destinations` is the destinations panel, composed in by the app (features do not import each other). */
 export function DeliveriesRoute({ destinations: destinationsPanel }: { destinations?: ReactNode }) {
   const list = useListState({ sort: 'createdAt', order: 'desc' }, { status: 'failed' });
-  const [from, setFrom] = useState('');
-  const [to, setTo] = useState('');
   const deliveries = useDeliveries(list.query);
   const destinations = useDestinationOptions();
   const invalidate = useInvalidateDeliveries();
@@ -101,11 +100,6 @@ export function DeliveriesRoute({ destinations: destinationsPanel }: { destinati
     },
   ];
 
-  const clear = () => {
-    list.clearFilters();
-    setFrom('');
-    setTo('');
-  };
   const busy = retry.running || replay.running || discard.running;
 
   return (
@@ -115,43 +109,20 @@ export function DeliveriesRoute({ destinations: destinationsPanel }: { destinati
         description="Observations queued for, sent to, or refused by the EHR. Failed ones can be retried or discarded with a reason."
       />
       {destinationsPanel}
-      <FilterBar onClear={clear}>
-        <SelectField
-          label="Status"
-          placeholder="any"
-          wrapClassName="w-40"
-          value={list.filters.status ?? ''}
-          onChange={(e) => list.setFilter('status', e.target.value)}
-          options={STATUSES.map((s) => ({ value: s, label: s }))}
-        />
-        <SelectField
-          label="Destination"
-          placeholder="any"
-          wrapClassName="w-48"
-          value={list.filters.destination ?? ''}
-          onChange={(e) => list.setFilter('destination', e.target.value)}
-          options={optionList(destinations.data).map((d) => ({ value: d.id, label: d.name }))}
-        />
-        <TextField
-          label="From"
-          type="datetime-local"
-          wrapClassName="w-48"
-          value={from}
-          onChange={(e) => {
-            setFrom(e.target.value);
-            list.setFilter('from', localInputToIso(e.target.value));
-          }}
-        />
-        <TextField
-          label="To"
-          type="datetime-local"
-          wrapClassName="w-48"
-          value={to}
-          onChange={(e) => {
-            setTo(e.target.value);
-            list.setFilter('to', localInputToIso(e.target.value));
-          }}
-        />
+      <ListFilters
+        list={list}
+        timeRange
+        fields={[
+          { key: 'status', label: 'Status', kind: 'select', width: 'w-40', options: STATUSES.map((s) => ({ value: s, label: s })) },
+          {
+            key: 'destination',
+            label: 'Destination',
+            kind: 'select',
+            width: 'w-48',
+            options: optionList(destinations.data).map((d) => ({ value: d.id, label: d.name })),
+          },
+        ]}
+      >
         {manage && (
           <div className="ml-auto flex items-end gap-2 self-end">
             <Button variant="primary" disabled={selected.size === 0 || busy} busy={retry.running} onClick={() => setConfirm('retry')}>
@@ -170,22 +141,15 @@ export function DeliveriesRoute({ destinations: destinationsPanel }: { destinati
             </Button>
           </div>
         )}
-      </FilterBar>
+      </ListFilters>
       <BulkProgress title="Retry" items={retry.items} />
       <BulkProgress title="Replay" items={replay.items} />
       <BulkProgress title="Discard" items={discard.items} />
       <DataTable
         caption="Deliveries"
         columns={columns}
-        rows={deliveries.data?.items}
-        total={deliveries.data?.total}
+        {...queryTableProps(deliveries, list)}
         rowId={(d) => d.id}
-        params={list.params}
-        onParamsChange={list.setParams}
-        loading={deliveries.isPending}
-        fetching={deliveries.isFetching}
-        error={deliveries.error}
-        onRetry={() => deliveries.refetch()}
         selected={manage ? selected : undefined}
         onSelectedChange={manage ? setSelected : undefined}
         emptyTitle={list.filters.status === 'failed' ? 'No failed deliveries' : 'No deliveries match'}

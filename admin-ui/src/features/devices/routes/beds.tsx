@@ -5,9 +5,11 @@ import { errorMessage } from '@/lib/api-client';
 import { useListState } from '@/hooks/use-list-state';
 import { Button } from '@/components/ui/button';
 import { DataTable, type Column } from '@/components/ui/data-table';
+import { queryTableProps } from '@/components/ui/query-table';
+import { ListFilters } from '@/components/ui/list-filters';
 import { ConfirmDialog, Dialog } from '@/components/ui/dialog';
-import { SelectField, TextField } from '@/components/ui/field';
-import { FilterBar, PageHeader } from '@/components/ui/page';
+import { SelectField } from '@/components/ui/field';
+import { PageHeader } from '@/components/ui/page';
 import { useToast } from '@/components/ui/toast';
 import { useBeds, useDeleteBed, useMonitorOptions, useSaveBed, useUpdateMonitor } from '../api/devices';
 import { BedForm } from '../components/bed-form';
@@ -91,27 +93,12 @@ export function BedsRoute() {
           ) : undefined
         }
       />
-      <FilterBar onClear={list.clearFilters}>
-        <TextField
-          label="Search"
-          placeholder="bed, unit or EHR location"
-          wrapClassName="w-56"
-          value={list.filters.search ?? ''}
-          onChange={(e) => list.setFilter('search', e.target.value)}
-        />
-      </FilterBar>
+      <ListFilters list={list} fields={[{ key: 'search', label: 'Search', kind: 'text', width: 'w-56', placeholder: 'bed, unit or EHR location' }]} />
       <DataTable
         caption="Beds"
         columns={columns}
-        rows={beds.data?.items}
-        total={beds.data?.total}
+        {...queryTableProps(beds, list)}
         rowId={(b) => b.id}
-        params={list.params}
-        onParamsChange={list.setParams}
-        loading={beds.isPending}
-        fetching={beds.isFetching}
-        error={beds.error}
-        onRetry={() => beds.refetch()}
         emptyTitle="No beds yet"
         emptyHint="Add the beds whose monitors will send data."
       />

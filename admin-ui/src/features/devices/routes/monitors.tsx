@@ -7,9 +7,10 @@ import { useListState } from '@/hooks/use-list-state';
 import { Badge, StatusBadge } from '@/components/ui/badge';
 import { Button } from '@/components/ui/button';
 import { DataTable, type Column } from '@/components/ui/data-table';
+import { queryTableProps } from '@/components/ui/query-table';
+import { ListFilters } from '@/components/ui/list-filters';
 import { ConfirmDialog, Dialog } from '@/components/ui/dialog';
-import { SelectField, TextField } from '@/components/ui/field';
-import { FilterBar, PageHeader } from '@/components/ui/page';
+import { PageHeader } from '@/components/ui/page';
 import { useToast } from '@/components/ui/toast';
 import {
   useBedOptions,
@@ -50,6 +51,11 @@ function FlushTestDialogBody({ monitorId }: { monitorId: string }) {
     </div>
   );
 }
+
+const ENABLED_OPTIONS = [
+  { value: 'true', label: 'enabled' },
+  { value: 'false', label: 'disabled' },
+];
 
 export function MonitorsRoute() {
   const list = useListState({ sort: 'identifier', order: 'asc' });
@@ -171,54 +177,32 @@ export function MonitorsRoute() {
           ) : undefined
         }
       />
-      <FilterBar onClear={list.clearFilters}>
-        <TextField
-          label="Search"
-          placeholder="identifier"
-          wrapClassName="w-56"
-          value={list.filters.search ?? ''}
-          onChange={(e) => list.setFilter('search', e.target.value)}
-        />
-        <SelectField
-          label="Profile"
-          placeholder="any"
-          wrapClassName="w-56"
-          value={list.filters.profileId ?? ''}
-          onChange={(e) => list.setFilter('profileId', e.target.value)}
-          options={(profiles.data?.items ?? []).map((p) => ({ value: p.id, label: p.name }))}
-        />
-        <SelectField
-          label="Bed"
-          placeholder="any"
-          wrapClassName="w-44"
-          value={list.filters.bedId ?? ''}
-          onChange={(e) => list.setFilter('bedId', e.target.value)}
-          options={(beds.data?.items ?? []).map((b) => ({ value: b.id, label: `${b.name} · ${b.unit}` }))}
-        />
-        <SelectField
-          label="State"
-          placeholder="any"
-          wrapClassName="w-36"
-          value={list.filters.enabled ?? ''}
-          onChange={(e) => list.setFilter('enabled', e.target.value)}
-          options={[
-            { value: 'true', label: 'enabled' },
-            { value: 'false', label: 'disabled' },
-          ]}
-        />
-      </FilterBar>
+      <ListFilters
+        list={list}
+        fields={[
+          { key: 'search', label: 'Search', kind: 'text', width: 'w-56', placeholder: 'identifier' },
+          {
+            key: 'profileId',
+            label: 'Profile',
+            kind: 'select',
+            width: 'w-56',
+            options: (profiles.data?.items ?? []).map((p) => ({ value: p.id, label: p.name })),
+          },
+          {
+            key: 'bedId',
+            label: 'Bed',
+            kind: 'select',
+            width: 'w-44',
+            options: (beds.data?.items ?? []).map((b) => ({ value: b.id, label: `${b.name} · ${b.unit}` })),
+          },
+          { key: 'enabled', label: 'State', kind: 'select', width: 'w-36', options: ENABLED_OPTIONS },
+        ]}
+      />
       <DataTable
         caption="Monitors"
         columns={columns}
-        rows={monitors.data?.items}
-        total={monitors.data?.total}
+        {...queryTableProps(monitors, list)}
         rowId={(m) => m.id}
-        params={list.params}
-        onParamsChange={list.setParams}
-        loading={monitors.isPending}
-        fetching={monitors.isFetching}
-        error={monitors.error}
-        onRetry={() => monitors.refetch()}
         emptyTitle="No monitors mapped yet"
         emptyHint="Add a monitor by its identifier, pick its profile and bed, then issue its API key."
       />

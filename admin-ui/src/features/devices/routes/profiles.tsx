@@ -8,9 +8,10 @@ import { useListState } from '@/hooks/use-list-state';
 import { Badge } from '@/components/ui/badge';
 import { Button } from '@/components/ui/button';
 import { DataTable, type Column } from '@/components/ui/data-table';
+import { queryTableProps } from '@/components/ui/query-table';
+import { ListFilters } from '@/components/ui/list-filters';
 import { ConfirmDialog } from '@/components/ui/dialog';
-import { TextField } from '@/components/ui/field';
-import { FilterBar, PageHeader } from '@/components/ui/page';
+import { PageHeader } from '@/components/ui/page';
 import { useToast } from '@/components/ui/toast';
 import { useDeleteProfile, useProfiles } from '../api/devices';
 
@@ -78,27 +79,12 @@ export function ProfilesRoute() {
           ) : undefined
         }
       />
-      <FilterBar onClear={list.clearFilters}>
-        <TextField
-          label="Search"
-          placeholder="name, manufacturer, model"
-          wrapClassName="w-72"
-          value={list.filters.search ?? ''}
-          onChange={(e) => list.setFilter('search', e.target.value)}
-        />
-      </FilterBar>
+      <ListFilters list={list} fields={[{ key: 'search', label: 'Search', kind: 'text', width: 'w-72', placeholder: 'name, manufacturer, model' }]} />
       <DataTable
         caption="Monitor profiles"
         columns={columns}
-        rows={profiles.data?.items}
-        total={profiles.data?.total}
+        {...queryTableProps(profiles, list)}
         rowId={(p) => p.id}
-        params={list.params}
-        onParamsChange={list.setParams}
-        loading={profiles.isPending}
-        fetching={profiles.isFetching}
-        error={profiles.error}
-        onRetry={() => profiles.refetch()}
         onRowClick={(p) => navigate(`/profiles/${p.id}`)}
         emptyTitle="No monitor profiles yet"
         emptyHint="Create one for each monitor model before mapping monitors."

@@ -3,7 +3,7 @@ import { useMutation } from '@tanstack/react-query';
 import type { InboundMessage } from '@ebbgate/shared';
 import { useAuth } from '@/lib/auth';
 import { errorMessage } from '@/lib/api-client';
-import { formatBytes, formatDateTime, localInputToIso } from '@/lib/format';
+import { formatBytes, formatDateTime } from '@/lib/format';
 import { outcomeOf } from '@/lib/outcome';
 import { useListState } from '@/hooks/use-list-state';
 import { useBulkAction } from '@/hooks/use-bulk-action';
@@ -11,9 +11,10 @@ import { Badge, StatusBadge } from '@/components/ui/badge';
 import { BulkProgress } from '@/components/ui/bulk-progress';
 import { Button } from '@/components/ui/button';
 import { DataTable, type Column } from '@/components/ui/data-table';
+import { queryTableProps } from '@/components/ui/query-table';
+import { ListFilters } from '@/components/ui/list-filters';
 import { ConfirmDialog, Dialog } from '@/components/ui/dialog';
-import { SelectField, TextField } from '@/components/ui/field';
-import { DefinitionList, FilterBar, JsonBlock, PageHeader } from '@/components/ui/page';
+import { DefinitionList, JsonBlock, PageHeader } from '@/components/ui/page';
 import { ErrorState, LoadingState } from '@/components/ui/states';
 import { useToast } from '@/components/ui/toast';
 import { discardInbound, reprocessInbound, useInboundMessage, useInboundMessages, useInvalidateInbound } from '../api/inbound';
@@ -21,6 +22,10 @@ import { discardInbound, reprocessInbound, useInboundMessage, useInboundMessages
 const OUTCOMES = ['quarantined', 'rejected', 'conflicting', 'accepted', 'duplicate', 'reprocessed', 'discarded'];
 /** Filter labels; `conflicting` is a second sender's stream for a monitor, refused and kept apart, never merged. */
 const OUTCOME_TEXT: Record<string, string> = { conflicting: 'conflicting (second sender)' };
+const TRANSPORTS = [
+  { value: 'http', label: 'HTTP' },
+  { value: 'mllp', label: 'MLLP' },
+];
 
 /** `api-key:<id>`, `certificate:<SHA-256>`, `source:<address>` in words; long fingerprints shortened (the detail shows them whole). */
 function senderText(sender: string | null | undefined, full = false): string | null {
@@ -53,8 +58,6 @@ function OutcomeBadge({ outcome }: { outcome: string }) {
 
 export function InboundRoute() {
   const list = useListState({ sort: 'receivedAt', order: 'desc' }, { outcome: 'quarantined' });
-  const [from, setFrom] = useState('');
-  const [to, setTo] = useState('');
   const messages = useInboundMessages(list.query);
   const invalidate = useInvalidateInbound();
   const toast = useToast();
@@ -124,65 +127,21 @@ export function InboundRoute() {
     },
   ];
 
-  const clear = () => {
-    list.clearFilters();
-    setFrom('');
-    setTo('');
-  };
-
   return (
     <>
       <PageHeader
         title="Inbound & quarantine"
         description="Every message a monitor sent, with what became of it. Nothing is dropped: quarantined messages wait here to be reprocessed or discarded."
       />
-      <FilterBar onClear={clear}>
-        <SelectField
-          label="Outcome"
-          placeholder="any"
-          wrapClassName="w-40"
-          value={list.filters.outcome ?? ''}
-          onChange={(e) => list.setFilter('outcome', e.target.value)}
-          options={OUTCOMES.map((o) => ({ value: o, label: OUTCOME_TEXT[o] ?? o }))}
-        />
-        <SelectField
-          label="Transport"
-          placeholder="any"
-          wrapClassName="w-32"
-          value={list.filters.transport ?? ''}
-          onChange={(e) => list.setFilter('transport', e.target.value)}
-          options={[
-            { value: 'http', label: 'HTTP' },
-            { value: 'mllp', label: 'MLLP' },
-          ]}
-        />
-        <TextField
-          label="Monitor"
-          placeholder="identifier"
-          wrapClassName="w-44"
-          value={list.filters.monitor ?? ''}
-          onChange={(e) => list.setFilter('monitor', e.target.value)}
-        />
-        <TextField
-          label="From"
-          type="datetime-local"
-          wrapClassName="w-48"
-          value={from}
-          onChange={(e) => {
-            setFrom(e.target.value);
-            list.setFilter('from', localInputToIso(e.target.value));
-          }}
-        />
-        <TextField
-          label="To"
-          type="datetime-local"
-          wrapClassName="w-48"
-          value={to}
-          onChange={(e) => {
-            setTo(e.target.value);
-            list.setFilter('to', localInputToIso(e.target.value));
-          }}
-        />
+      <ListFilters
+        list={list}
+        timeRange
+        fields={[
+          { key: 'outcome', label: 'Outcome', kind: 'select', width: 'w-40', options: OUTCOMES.map((o) => ({ value: o, label: OUTCOME_TEXT[o] ?? o })) },
+          { key: 'transport', label: 'Transport', kind: 'select', width: 'w-32', options: TRANSPORTS },
+          { key: 'monitor', label: 'Monitor', kind: 'text', width: 'w-44', placeholder: 'identifier' },
+        ]}
+      >
         {selectable && (
           <div className="ml-auto flex items-end gap-2 self-end">
             {can('reprocessInbound') && (
@@ -197,21 +156,14 @@ export function InboundRoute() {
             )}
           </div>
         )}
-      </FilterBar>
+      </ListFilters>
       <BulkProgress title="Reprocess" items={reprocess.items} />
       <BulkProgress title="Discard" items={discard.items} />
       <DataTable
         caption="Inbound messages"
         columns={columns}
-        rows={messages.data?.items}
-        total={messages.data?.total}
+        {...queryTableProps(messages, list)}
         rowId={(m) => m.id}
-        params={list.params}
-        onParamsChange={list.setParams}
-        loading={messages.isPending}
-        fetching={messages.isFetching}
-        error={messages.error}
-        onRetry={() => messages.refetch()}
         selected={selectable ? selected : undefined}
         onSelectedChange={selectable ? setSelected : undefined}
         emptyTitle={list.filters.outcome === 'quarantined' ? 'Quarantine is empty' : 'No inbound messages match'}

@@ -7,9 +7,10 @@ import { useListState } from '@/hooks/use-list-state';
 import { Badge, StatusBadge } from '@/components/ui/badge';
 import { Button } from '@/components/ui/button';
 import { DataTable, type Column } from '@/components/ui/data-table';
+import { queryTableProps } from '@/components/ui/query-table';
+import { ListFilters } from '@/components/ui/list-filters';
 import { ConfirmDialog, Dialog } from '@/components/ui/dialog';
-import { TextField } from '@/components/ui/field';
-import { FilterBar, PageHeader } from '@/components/ui/page';
+import { PageHeader } from '@/components/ui/page';
 import { useToast } from '@/components/ui/toast';
 import { useCreateUser, useResetPassword, useUpdateUser, useUsers } from '../api/users';
 import { CreateUserForm, ResetPasswordForm, RolesForm } from '../components/user-forms';
@@ -105,27 +106,12 @@ export function UsersRoute() {
           </Button>
         }
       />
-      <FilterBar onClear={list.clearFilters}>
-        <TextField
-          label="Search"
-          placeholder="user name or name"
-          value={list.filters.search ?? ''}
-          onChange={(e) => list.setFilter('search', e.target.value)}
-          wrapClassName="w-64"
-        />
-      </FilterBar>
+      <ListFilters list={list} fields={[{ key: 'search', label: 'Search', kind: 'text', width: 'w-64', placeholder: 'user name or name' }]} />
       <DataTable
         caption="Users"
         columns={columns}
-        rows={users.data?.items}
-        total={users.data?.total}
+        {...queryTableProps(users, list)}
         rowId={(u) => u.id}
-        params={list.params}
-        onParamsChange={list.setParams}
-        loading={users.isPending}
-        fetching={users.isFetching}
-        error={users.error}
-        onRetry={() => users.refetch()}
         emptyTitle="No users match"
         emptyHint="Clear the search, or create a user."
       />
