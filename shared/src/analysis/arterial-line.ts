@@ -19,7 +19,6 @@ export function checkArterialLine(ch: ConditionedChannel, series: BeatSeries, no
   let ringing = 0;
   let ringExamined = 0;
   const rises: number[] = [];
-  let suffix = new Float64Array(256);
   for (let k = 0; k + 1 < beats.length; k++) {
     const b = beats[k];
     // Damping shrinks the pulse (pp-low) and blurs the shape, so judge every beat free of artefact.
@@ -33,29 +32,7 @@ export function checkArterialLine(ch: ConditionedChannel, series: BeatSeries, no
     const end = next - Math.round(0.15 * (next - b.footSample));
     if (end - b.peakSample < 6) continue;
     examined++;
-    // Notch: the falling slope relaxes and then steepens again (a local maximum of the derivative
-    // followed by a clearly steeper slope). Suffix minima of the slope make this one pass each way.
-    const len = end - b.peakSample;
-    if (suffix.length < len + 1) suffix = new Float64Array(2 * len + 2);
-    let steepest = 0;
-    suffix[len] = Infinity;
-    for (let i = end - 1; i > b.peakSample; i--) {
-      const d = y[i] - y[i - 1];
-      if (d < steepest) steepest = d;
-      const q = i - b.peakSample;
-      suffix[q] = d < suffix[q + 1] ? d : suffix[q + 1];
-    }
-    let found = false;
-    for (let i = b.peakSample + 3; i < end - 2 && !found; i++) {
-      const d0 = y[i - 1] - y[i - 2];
-      const d1 = y[i] - y[i - 1];
-      const d2 = y[i + 1] - y[i];
-      if (d1 > d0 && d1 >= d2 && d0 < 0) {
-        const after = Math.min(d1, suffix[i + 1 - b.peakSample]);
-        if (d1 - after > 0.05 * -steepest && d1 - d0 > 0.02 * -steepest) found = true;
-      }
-    }
-    if (found) withNotch++;
+    if (hasNotch(y, b.peakSample, end)) withNotch++;
   }
   const notchFraction = examined ? withNotch / examined : null;
   const rise = rises.length ? median(rises) : null;
@@ -80,6 +57,56 @@ export function checkArterialLine(ch: ConditionedChannel, series: BeatSeries, no
     ? last.region === 'under-damped' || (last.region === 'unacceptable' && (last.dampingRatio ?? 1) < 0.5)
     : dampingEstimate === 'under-damped';
   return { notchFraction, dampingSuspected, underDampingSuspected, flushSuspected, flushTests, dampingEstimate, upstrokeSeconds: rise };
+}
+
+/** Scratch for the notch candidates, reused from beat to beat (overwritten by every call). */
+let notchRise = new Float64Array(128);
+let notchStep = new Float64Array(128);
+
+/**
+ * Dicrotic notch on the falling limb (peak, end): the slope relaxes and then steepens again, i.e. a
+ * local maximum d1 of the slope (after a falling slope d0 < 0) followed later by a slope steeper
+ * than d1 by 5 % of the steepest fall, d1 also exceeding d0 by 2 % of it. One backward pass: the
+ * minimum of the slopes from each sample to the end runs along, and the candidates are kept until
+ * the steepest fall, known only at the end, decides them (whether any candidate qualifies does not
+ * depend on the order they are met in).
+ */
+function hasNotch(y: Float64Array, peak: number, end: number): boolean {
+  if (notchRise.length < end - peak) {
+    notchRise = new Float64Array(2 * (end - peak));
+    notchStep = new Float64Array(2 * (end - peak));
+  }
+  let steepest = 0;
+  // Slopes d(i) = y[i] − y[i−1] at i + 1 and i + 2 of the step that computes d(i), and the minimum of d from i + 2 on.
+  let dNext = 0;
+  let dNext2 = 0;
+  let minFromNext = Infinity;
+  let minFromNext2 = Infinity;
+  let count = 0;
+  for (let i = end - 1; i > peak; i--) {
+    const d = y[i] - y[i - 1];
+    if (d < steepest) steepest = d;
+    const minFrom = d < minFromNext ? d : minFromNext;
+    // Candidate c = i + 1 (needs d(c − 1), d(c), d(c + 1)), within peak + 3 ≤ c < end − 2.
+    const c = i + 1;
+    if (c >= peak + 3 && c < end - 2) {
+      const d0 = d;
+      const d1 = dNext;
+      const d2 = dNext2;
+      if (d1 > d0 && d1 >= d2 && d0 < 0) {
+        const after = Math.min(d1, minFromNext2);
+        notchRise[count] = d1 - after;
+        notchStep[count] = d1 - d0;
+        count++;
+      }
+    }
+    dNext2 = dNext;
+    dNext = d;
+    minFromNext2 = minFromNext;
+    minFromNext = minFrom;
+  }
+  for (let k = 0; k < count; k++) if (notchRise[k] > 0.05 * -steepest && notchStep[k] > 0.02 * -steepest) return true;
+  return false;
 }
 
 /**

@@ -69,10 +69,12 @@ function measure(ch: ConditionedChannel, lm: BeatLandmarks, source: BeatSource, 
     const inFlush =
       source === 'abp' &&
       (y[p] > FLUSH_LEVEL_MMHG || (ch.highRuns.length > 0 && ch.highRuns.some((r) => f >= r.startSample - 0.3 * fs && f <= r.endSample + 1.5 * fs)));
+    // The residual sum runs in a local (the same additions in the same order as into `noise`).
+    let sum2 = noise.sum2;
     for (let i = f; i < end; i++) {
       s += y[i];
       const r = inFlush ? 0 : raw[i] - y[i];
-      noise.sum2 += r * r;
+      sum2 += r * r;
       if (i > f) {
         const d = raw[i] - raw[i - 1];
         if (d < 0) {
@@ -81,6 +83,7 @@ function measure(ch: ConditionedChannel, lm: BeatLandmarks, source: BeatSource, 
         }
       }
     }
+    noise.sum2 = sum2;
     negativeSlope.push(negCount > 0 ? negSum / negCount : 0);
     if (!inFlush) noise.count += end - f;
     const avg = end > f ? s / (end - f) : y[f];

@@ -28,16 +28,14 @@ export function detectArterialBeats(y: Float64Array, fs: number): BeatLandmarks 
   const n = y.length;
   const w = Math.max(2, Math.round(0.128 * fs));
   const ssf = new Float64Array(n);
-  // Running sum of the positive slopes over the last w samples; a ring holds what leaves it.
-  const ring = new Float64Array(w);
+  // Running sum of the positive slopes over the last w samples: the slope w samples back leaves it
+  // (recomputed from y, the same value a ring buffer would hold).
   let acc = 0;
-  let slot = 0;
   for (let i = 1; i < n; i++) {
     const d = y[i] - y[i - 1];
     const up = d > 0 ? d : 0;
-    acc += up - ring[slot];
-    ring[slot] = up;
-    slot = slot + 1 === w ? 0 : slot + 1;
+    const dOut = i > w ? y[i - w] - y[i - w - 1] : 0;
+    acc += up - (dOut > 0 ? dOut : 0);
     ssf[i] = acc > 0 ? acc : 0;
   }
   const initLen = Math.min(n, Math.round(8 * fs));
@@ -56,13 +54,16 @@ export function detectArterialBeats(y: Float64Array, fs: number): BeatLandmarks 
   let lastDetect = -refractory;
   let lastPeak = -1;
   let i = 1;
+  // Detection at a third of the running base, never below the floor; recomputed when base moves.
+  const threshold = (b: number): number => (b / 3 > SSF_MIN_MMHG ? b / 3 : SSF_MIN_MMHG);
+  let thr = threshold(base);
   while (i < n) {
-    const thr = base / 3 > SSF_MIN_MMHG ? base / 3 : SSF_MIN_MMHG;
     if (ssf[i] > thr) {
       const mEnd = Math.min(n, i + searchMax);
       const m = argMax(ssf, i, mEnd);
       const ssfMax = ssf[m];
       base += (ssfMax - base) / 10;
+      thr = threshold(base);
       // Onset: walk back while the SSF is still rising by more than 1 % of its maximum.
       let j = i;
       const stop = Math.max(1, i - back);
@@ -83,6 +84,7 @@ export function detectArterialBeats(y: Float64Array, fs: number): BeatLandmarks 
     // Nothing for 2.5 s (gap, flat line, a sudden drop in pulse size): relax the threshold.
     if (i - lastDetect > quiet) {
       base = Math.max(base * 0.5, 3 * SSF_MIN_MMHG);
+      thr = threshold(base);
       lastDetect = i;
     }
     i++;

@@ -1,6 +1,9 @@
 /** Small numeric helpers shared by the stages (typed arrays, no allocation in loops). */
 
-/** k-th smallest of buf[0..m) by quickselect (Hoare partition); reorders buf. */
+/**
+ * k-th smallest of buf[0..m) by quickselect (Hoare partition); reorders buf so that buf[0..k) ≤
+ * buf[k] ≤ buf(k..m).
+ */
 function select(buf: Float64Array, m: number, k: number): number {
   let lo = 0;
   let hi = m - 1;
@@ -39,13 +42,32 @@ export function robustPercentiles(x: ArrayLike<number>, ps: number[]): number[] 
   return ps.map((p) => select(buf, m, Math.min(m - 1, Math.max(0, Math.round((p / 100) * (m - 1))))));
 }
 
+/**
+ * Median (the mean of the two middle values for an even count), as a full sort would give it, by
+ * quickselect on a copy: the middle value(s) are found without ordering the rest. With a NaN
+ * present the copy is sorted instead (NaN sorts last), as before.
+ */
 export function median(values: ArrayLike<number>): number {
   const n = values.length;
   if (n === 0) return Number.NaN;
-  // A typed copy sorts numerically in native code (no comparator calls); NaN sorts last.
-  const s = Float64Array.from(values).sort();
+  const s = new Float64Array(n);
+  let nan = false;
+  for (let i = 0; i < n; i++) {
+    const v = values[i];
+    s[i] = v;
+    if (v !== v) nan = true;
+  }
   const m = n >> 1;
-  return n % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
+  if (nan) {
+    s.sort();
+    return n % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
+  }
+  const upper = select(s, n, m);
+  if (n % 2) return upper;
+  // After the selection s[0..m) holds the m smallest values: the lower middle is their maximum.
+  let lower = s[0];
+  for (let i = 1; i < m; i++) if (s[i] > lower) lower = s[i];
+  return (lower + upper) / 2;
 }
 
 export function mean(values: number[]): number {
