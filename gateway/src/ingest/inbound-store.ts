@@ -286,7 +286,7 @@ async function refuseSecondStream(qr: QueryRunner, req: StoreRequest, overlapMs:
   // Data stored before senders were recorded (null) cannot be told apart: treated as the same stream.
   if (!last || last.sender === null || last.sender === (req.sender ?? null)) return;
   throw new ConflictingStream(
-    `A second stream for monitor ${req.monitor.identifier}: this batch overlaps by ${Math.round(-overlapMs)} ms data stored from another sender (inbound message ${last.id}, ${last.sender ?? 'unknown sender'}); not merged.`,
+    `A second stream for monitor ${req.monitor.identifier}: this batch starts ${Math.round(-overlapMs)} ms before the end of the data already stored from another sender (inbound message ${last.id}, ${last.sender ?? 'unknown sender'}); not merged.`,
     String(last.id),
   );
 }

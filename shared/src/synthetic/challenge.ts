@@ -61,8 +61,9 @@ export function generateChallenge(spec: ChallengeSpec): SyntheticChallenge {
   const height = spec.patientHeightCm ?? 175;
   const sex = spec.patientSex ?? 'male';
   const kg = pbw(height, sex);
-  const low = Math.round(6 * kg);
-  const high = Math.round((spec.kind === 'too-small' ? 6.8 : 8) * kg);
+  // Rounded up: a volume rounded down can fall a hair under 8 mL/kg and be flagged as low.
+  const low = Math.ceil(6 * kg);
+  const high = Math.ceil((spec.kind === 'too-small' ? 6.8 : 8) * kg);
   const p0 = spec.baselinePpv ?? 7;
   const p1 = spec.challengePpv ?? (spec.kind === 'non-responder' ? p0 + 1 : p0 + 5);
   const hr = spec.heartRate ?? 90;
