@@ -148,7 +148,19 @@ describe('beds board', () => {
       40,
       3000,
     );
-    expect(await tileA.getAttribute('data-state')).toBe('no-patient');
+    // Bed A's newest window may not have been through its context lookup yet (it reads `sending`
+    // until its delivery waits for a patient): wait, bounded, for the lookup to settle.
+    await eventually(
+      async () => {
+        await page.reload();
+        await tileA.waitFor();
+        return (await tileA.getAttribute('data-state')) === 'no-patient' ? true : undefined;
+      },
+      'bed A waiting for a patient',
+      10,
+      1000,
+    );
+    expect(await tileB.getAttribute('data-state')).toBe('stale');
     expect(await tileB.getByText(/Nothing received for \d+ s/).count()).toBe(1);
     await page.getByLabel('Data state', { exact: true }).selectOption('stale');
     await page.waitForURL(/state=stale/);
