@@ -8,7 +8,44 @@ const QUARANTINE_MINUTES = 5;
 const TREND_MINUTES = 60;
 const TREND_BUCKET_MINUTES = 5;
 
+/**
+ * Windows whose patient lookup has not run yet fall back to the newest earlier one that has, among
+ * this many (10 min of 10-s windows); the cap bounds the read when deliveries stall on every bed.
+ */
+const SETTLED_LOOKBACK_WINDOWS = 60;
+
 type Row = Record<string, unknown>;
+
+/**
+ * What the delivery side knows about a window's patient: the patient a delivery resolved (before
+ * or after it was sent), whether a delivery waits because the EHR names nobody in the bed, and
+ * how many deliveries the window has.
+ */
+const WINDOW_CONTEXT_COLUMNS = `
+  (SELECT JSON_OBJECT('ref', d.patient_ref, 'name', d.patient_name, 'mrn', d.patient_mrn) FROM delivery d
+    WHERE d.assessment_id = a.id AND d.patient_ref IS NOT NULL ORDER BY d.id DESC LIMIT 1) AS resolved,
+  (SELECT COUNT(*) FROM delivery d WHERE d.assessment_id = a.id AND d.status = 'waiting-context') AS waiting,
+  (SELECT COUNT(*) FROM delivery d WHERE d.assessment_id = a.id) AS deliveries`;
+
+interface WindowPatient {
+  ref: string | null;
+  name: string | null;
+  mrn: string | null;
+  waitingForPatient: boolean;
+  /** False while the window's deliveries have not looked up its patient yet (just stored). */
+  settled: boolean;
+}
+
+/** A window's patient, from the assessment once filed, else from its delivery's context lookup. */
+export function windowPatient(a: Row): WindowPatient {
+  const resolved = parseJson<{ ref?: string | null; name?: string | null; mrn?: string | null } | null>(a.resolved, null);
+  const ref = a.patient_ref ? String(a.patient_ref) : (resolved?.ref ?? null);
+  const fromResolved = !a.patient_ref && resolved?.ref;
+  const name = a.patient_name ? String(a.patient_name) : fromResolved ? (resolved.name ?? null) : null;
+  const mrn = a.patient_mrn ? String(a.patient_mrn) : fromResolved ? (resolved.mrn ?? null) : null;
+  const waitingForPatient = !ref && Number(a.waiting) > 0;
+  return { ref, name, mrn, waitingForPatient, settled: Boolean(ref) || waitingForPatient || Number(a.deliveries) === 0 };
+}
 const SEVERITY: Record<string, number> = { critical: 3, warning: 2, info: 1 };
 const STATES: BedDataState[] = ['no-monitor', 'quarantining', 'stale', 'no-patient', 'sending'];
 const iso = (v: unknown) => (v === null || v === undefined ? null : new Date(v as Date).toISOString());
@@ -60,8 +97,7 @@ export async function getBoard(ctx: AppContext, query: BoardQuery, now = new Dat
     q('SELECT id, identifier, bed_id, last_seen_at FROM monitor WHERE bed_id IS NOT NULL AND enabled = 1 ORDER BY last_seen_at DESC'),
     // Latest window per bed through the (bed_id, window_start) index; entered-in-error results do not count.
     q(`SELECT a.id, a.bed_id, a.window_end, a.verdict, a.ppv, a.spv, a.delta_pop, a.patient_ref, a.patient_name, a.patient_mrn, a.flags, a.created_at,
-              JSON_EXTRACT(a.result, '$.flags') AS flag_detail,
-              (SELECT COUNT(*) FROM delivery d WHERE d.assessment_id = a.id AND d.status = 'waiting-context') AS waiting
+              JSON_EXTRACT(a.result, '$.flags') AS flag_detail, ${WINDOW_CONTEXT_COLUMNS}
        FROM assessment a
        JOIN (SELECT bed_id, MAX(window_start) AS ws FROM assessment WHERE bed_id IS NOT NULL AND entered_in_error_at IS NULL GROUP BY bed_id) l
          ON l.bed_id = a.bed_id AND l.ws = a.window_start
@@ -87,6 +123,7 @@ export async function getBoard(ctx: AppContext, query: BoardQuery, now = new Dat
     // Several engine versions can share a window: the most recent run wins.
     if (!prev || new Date(a.created_at as Date) > new Date(prev.created_at as Date)) latestByBed.set(String(a.bed_id), a);
   }
+  const patientByBed = await settledPatients(q, latestByBed, trendSince);
   const quarantinedByMonitor = new Map(quarantine.map((r) => [String(r.monitor_id), Number(r.c)]));
   const bucketSeconds = TREND_BUCKET_MINUTES * 60;
   const firstBucket = Math.floor(trendSince.getTime() / 1000 / bucketSeconds);
@@ -103,12 +140,13 @@ export async function getBoard(ctx: AppContext, query: BoardQuery, now = new Dat
     const bedId = String(b.id);
     const monitor = monitorByBed.get(bedId);
     const a = latestByBed.get(bedId);
+    const patient = patientByBed.get(bedId);
     const lastSeen = monitor?.last_seen_at ? new Date(monitor.last_seen_at as Date) : null;
     const { state, reason } = bedState({
       hasMonitor: Boolean(monitor),
       quarantined: monitor ? (quarantinedByMonitor.get(String(monitor.id)) ?? 0) : 0,
       lastSeenAgeSeconds: lastSeen ? (now.getTime() - lastSeen.getTime()) / 1000 : null,
-      waitingForPatient: Boolean(a && Number(a.waiting) > 0 && !a.patient_ref),
+      waitingForPatient: patient?.waitingForPatient ?? false,
     });
     const buckets = trendByBed.get(bedId);
     const flagCodes = a ? parseJson<string[]>(a.flags, []) : [];
@@ -116,9 +154,9 @@ export async function getBoard(ctx: AppContext, query: BoardQuery, now = new Dat
       bedId,
       bedName: String(b.name),
       unit: String(b.unit),
-      patientRef: a?.patient_ref ? String(a.patient_ref) : null,
-      patientName: a?.patient_name ? String(a.patient_name) : null,
-      patientMrn: a?.patient_mrn ? String(a.patient_mrn) : null,
+      patientRef: patient?.ref ?? null,
+      patientName: patient?.name ?? null,
+      patientMrn: patient?.mrn ?? null,
       monitor: monitor ? { id: String(monitor.id), identifier: String(monitor.identifier), lastSeenAt: iso(monitor.last_seen_at) } : null,
       state,
       stateReason: reason,
@@ -168,4 +206,38 @@ export async function getBoard(ctx: AppContext, query: BoardQuery, now = new Dat
     pageSize: query.pageSize,
     total: shown.length,
   };
+}
+
+/**
+ * Each bed's patient and no-patient state, from its newest window whose patient lookup has run:
+ * a window just stored has no patient yet, and reading it would blink the tile to "sending" with
+ * no name until its delivery looks the patient up. The values shown stay the newest window's.
+ */
+async function settledPatients(q: (sql: string, params?: unknown[]) => Promise<Row[]>, latestByBed: Map<string, Row>, since: Date) {
+  const byBed = new Map<string, WindowPatient>();
+  const unsettled: string[] = [];
+  for (const [bedId, a] of latestByBed) {
+    const p = windowPatient(a);
+    byBed.set(bedId, p);
+    if (!p.settled) unsettled.push(bedId);
+  }
+  if (!unsettled.length) return byBed;
+  const earlier = await q(
+    `SELECT a.bed_id, a.patient_ref, a.patient_name, a.patient_mrn, ${WINDOW_CONTEXT_COLUMNS}
+     FROM (SELECT id, ROW_NUMBER() OVER (PARTITION BY bed_id ORDER BY window_start DESC, created_at DESC) AS rn
+           FROM assessment WHERE bed_id IN (?) AND window_start >= ? AND entered_in_error_at IS NULL) w
+     JOIN assessment a ON a.id = w.id
+     WHERE w.rn <= ?
+     ORDER BY a.bed_id, w.rn`,
+    [unsettled, since, SETTLED_LOOKBACK_WINDOWS],
+  );
+  const found = new Set<string>();
+  for (const r of earlier) {
+    const bedId = String(r.bed_id);
+    const p = windowPatient(r);
+    if (found.has(bedId) || !p.settled) continue;
+    found.add(bedId);
+    byBed.set(bedId, p);
+  }
+  return byBed;
 }

@@ -136,6 +136,44 @@ describe('beds board', () => {
     expect(res.body.units).toEqual(['Test ICU', 'Test theatre']);
     void empty;
   });
+
+  it("reads a bed's patient and no-patient state from its newest window whose patient lookup has run, not one just stored", async () => {
+    const now = Date.now();
+    await q(`INSERT IGNORE INTO destination (id, name, kind, updated_at) VALUES ('ehr', 'EHR', 'fhir', NOW(3))`);
+    const delivery = (assessmentId: string, status: string, patient?: { ref: string; name: string; mrn: string }) =>
+      q(
+        `INSERT INTO delivery (assessment_id, destination_id, index_name, kind, status, identifier, patient_ref, patient_name, patient_mrn, next_attempt_at, created_at, updated_at)
+         VALUES (?, 'ehr', 'ppv', 'create', ?, ?, ?, ?, ?, NOW(3), NOW(3), NOW(3))`,
+        [assessmentId, status, randomUUID(), patient?.ref ?? null, patient?.name ?? null, patient?.mrn ?? null],
+      );
+    // Bed with a patient: the older window's delivery found the patient (the EHR then refused the
+    // send, so the assessment itself is not filed yet); the newest window is not looked up yet.
+    const named = await bed('S-01', 'Settle unit');
+    const m1 = await monitor(named, 2_000);
+    const older = await assessment(named, new Date(now - 20_000), { monitorId: m1.id, ppv: 11 });
+    await delivery(older, 'pending', { ref: 'Patient/p-settle', name: 'Tobin Wrenhaven', mrn: 'HGH-400900' });
+    const newest = await assessment(named, new Date(now - 10_000), { monitorId: m1.id, ppv: 14 });
+    await delivery(newest, 'pending');
+    // Empty bed: the older window waits because the EHR names nobody; the newest is not looked up yet.
+    const empty = await bed('S-02', 'Settle unit');
+    const m2 = await monitor(empty, 2_000);
+    await delivery(await assessment(empty, new Date(now - 20_000), { monitorId: m2.id, ppv: 9 }), 'waiting-context');
+    await delivery(await assessment(empty, new Date(now - 10_000), { monitorId: m2.id, ppv: 10 }), 'pending');
+    // No destination at all: nothing will look the patient up, so the newest window stands as it is.
+    const undelivered = await bed('S-03', 'Settle unit');
+    const m3 = await monitor(undelivered, 2_000);
+    await assessment(undelivered, new Date(now - 20_000), { monitorId: m3.id, ppv: 9, patient: 'Patient/p-old', name: 'Old Name', mrn: 'HGH-1' });
+    await assessment(undelivered, new Date(now - 10_000), { monitorId: m3.id, ppv: 10 });
+
+    const reviewer = await gw.signIn('reviewer');
+    const res = await reviewer.get('/api/v1/board?unit=Settle%20unit').expect(200);
+    const byName = Object.fromEntries(res.body.items.map((t: { bedName: string }) => [t.bedName, t]));
+    expect(byName['S-01']).toMatchObject({ state: 'sending', patientRef: 'Patient/p-settle', patientName: 'Tobin Wrenhaven', patientMrn: 'HGH-400900' });
+    expect(byName['S-01'].latest).toMatchObject({ assessmentId: newest, ppv: 14 });
+    expect(byName['S-02']).toMatchObject({ state: 'no-patient', patientRef: null });
+    expect(byName['S-02'].latest.ppv).toBe(10);
+    expect(byName['S-03']).toMatchObject({ state: 'sending', patientRef: null, patientName: null });
+  });
 });
 
 describe('bed trend', () => {

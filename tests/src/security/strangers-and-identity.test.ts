@@ -40,8 +40,10 @@ describe('strangers', () => {
     const answers: (number | string)[] = [];
     for (let round = 0; round < 10; round++) answers.push(...(await Promise.all(Array.from({ length: 20 }, () => keylessPost(body)))));
     expect(answers).toHaveLength(200);
-    // Each caller is answered 401 (or, having been answered, finds the connection closed mid-upload).
-    expect(answers.filter((a) => a === 401).length).toBeGreaterThanOrEqual(150);
+    // Each caller is answered 401 or, having been answered, finds the connection closed mid-upload
+    // (how many read the 401 before the close depends on socket timing: 148 of 200 in one CI run).
+    // That every one of the 200 reached the gateway and was refused is counted server-side below.
+    expect(answers.filter((a) => a === 401).length).toBeGreaterThan(0);
     expect(answers.every((a) => a === 401 || a === 'EPIPE' || a === 'ECONNRESET')).toBe(true);
     const [kept] = await e.query<{ n: number; stored: number; declared: number }>(
       'SELECT COUNT(*) AS n, SUM(LENGTH(raw)) AS stored, SUM(size_bytes) AS declared FROM inbound_message WHERE stranger = 1',
