@@ -31,7 +31,8 @@ export function BedTile({ tile }: { tile: Tile }) {
             <Link to={`/board/beds/${encodeURIComponent(tile.bedId)}`} className="underline-offset-2 hover:underline">
               {tile.bedName}
             </Link>
-            <span className="ml-1 text-xs font-normal text-muted">{tile.unit}</span>
+            {/* A real space: inline elements alone run together in the accessible name ("ICU-01Intensive care"). */}{' '}
+            <span className="text-xs font-normal text-muted">{tile.unit}</span>
           </h2>
           <p className="truncate text-xs text-ink-800" data-testid="patient">
             {tile.patientRef || tile.patientName ? (

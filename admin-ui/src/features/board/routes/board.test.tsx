@@ -78,6 +78,9 @@ describe('beds board', () => {
     );
     renderApp(<BoardRoute />, { route: '/board' });
     const first = await screen.findByRole('article', { name: /ICU-01/ });
+    // Bed and unit read as two words: the heading's text (what a browser names the tile by) has the space.
+    expect(first.getAttribute('aria-labelledby')).toBe('bed-b1');
+    expect(document.getElementById('bed-b1')!.textContent).toBe('ICU-01 Intensive care');
     expect(within(first).getByTestId('patient').textContent).toBe('Ines Varga-Lowe · MRN HGH-400388');
     expect(within(first).getByText('Valid')).toBeTruthy();
     expect(first.querySelector('[data-shape="valid"]')).not.toBeNull();
