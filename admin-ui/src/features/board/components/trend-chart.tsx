@@ -3,6 +3,7 @@ import uPlot from 'uplot';
 import type { BedTrend, TrendPoint } from '@ebbgate/shared';
 import { useElementWidth } from '@/hooks/use-element-width';
 import { VERDICT_COLOR } from '@/components/analysis/verdict-mark';
+import { placeEventLabels } from './event-labels';
 
 export const TREND_SERIES = [
   { key: 'ppv', label: 'PPV', unit: '%', scale: 'pct', color: '#17313c', dash: [] as number[] },
@@ -15,6 +16,10 @@ export type SeriesKey = (typeof TREND_SERIES)[number]['key'];
 
 const HEIGHT = 320;
 const EVENT_COLOR: Record<string, string> = { 'tidal-volume-challenge': '#5a4a86', 'flush-test': '#24505f', 'bed-transfer': '#17313c' };
+/** Rows of event labels at the top of the plot; more events than fit keep their line without a label. */
+const EVENT_LABEL_ROWS = 3;
+const eventLabel = (e: BedTrend['events'][number]) =>
+  e.kind === 'tidal-volume-challenge' ? 'Vt challenge' : e.kind === 'flush-test' ? 'flush' : e.label.slice(0, 24);
 
 function canvasAvailable(): boolean {
   try {
@@ -140,9 +145,17 @@ export function TrendChart({
               }
             });
             ctx.font = `${10 * pr}px sans-serif`;
-            for (const e of trend.events) {
-              const x = u.valToPos(Date.parse(e.t) / 1000, 'x', true);
-              if (x < u.bbox.left || x > u.bbox.left + u.bbox.width) continue;
+            const right = u.bbox.left + u.bbox.width;
+            const shown = trend.events.map((e) => ({ e, x: u.valToPos(Date.parse(e.t) / 1000, 'x', true) })).filter(({ x }) => x >= u.bbox.left && x <= right);
+            const texts = shown.map(({ e }) => eventLabel(e));
+            const placed = placeEventLabels(
+              shown.map(({ x }, i) => ({ x, width: ctx.measureText(texts[i]!).width })),
+              u.bbox.left,
+              right,
+              3 * pr,
+              EVENT_LABEL_ROWS,
+            );
+            shown.forEach(({ e, x }, i) => {
               ctx.strokeStyle = EVENT_COLOR[e.kind] ?? '#9dbcc6';
               ctx.setLineDash(e.kind === 'tidal-volume-challenge' || e.kind === 'flush-test' ? [] : [3 * pr, 3 * pr]);
               ctx.lineWidth = pr;
@@ -150,13 +163,11 @@ export function TrendChart({
               ctx.moveTo(x, u.bbox.top);
               ctx.lineTo(x, u.bbox.top + u.bbox.height);
               ctx.stroke();
+              const at = placed[i];
+              if (!at) return;
               ctx.fillStyle = ctx.strokeStyle;
-              ctx.fillText(
-                e.kind === 'tidal-volume-challenge' ? 'Vt challenge' : e.kind === 'flush-test' ? 'flush' : e.label.slice(0, 24),
-                x + 3 * pr,
-                u.bbox.top + 11 * pr,
-              );
-            }
+              ctx.fillText(texts[i]!, at.left, u.bbox.top + (11 + 12 * at.row) * pr);
+            });
             ctx.restore();
           },
         ],
