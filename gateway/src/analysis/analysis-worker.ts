@@ -12,6 +12,7 @@ import {
   type AnalysisSettings,
   type ChallengeInput,
   type TidalVolumeChallengeResult,
+  ventilatorSettingChanges,
 } from '@ebbgate/shared/analysis';
 import type { AppContext, BackgroundService } from '../app-context';
 import { PollLoop } from '../lib/poll-loop';
@@ -20,7 +21,7 @@ import { getSiteSettings } from '../settings/settings.service';
 import { AnalysisWindowRow } from './analysis-window.entity';
 import { storeAssessment } from './assessment-store';
 import { challengeColumns, findChallenge } from './challenge-window';
-import { assembleWindow, contextOfMessage } from './window-assembly';
+import { assembleWindow, contextOfMessage, contextsOfMessages } from './window-assembly';
 import { transactionWithRetry } from '../db/conflict-retry';
 
 export interface Engine {
@@ -77,8 +78,10 @@ export async function analyseNextWindow(ctx: AppContext, engine: Engine, workerI
       if (!w) return null;
       const monitor = await m.findOneBy(MonitorRow, { id: w.monitorId });
       const profile = monitor?.profileId ? await m.findOneBy(MonitorProfileRow, { id: monitor.profileId }) : null;
-      const { input, latestMessageId } = await assembleWindow(m, w.monitorId, w.windowStart, w.windowEnd);
+      const { input, latestMessageId, messageIds } = await assembleWindow(m, w.monitorId, w.windowStart, w.windowEnd);
       input.context = { ...profileContext(profile), ...((await contextOfMessage(m, latestMessageId)) ?? {}) };
+      // A ventilator setting changed between the window's batches: the engine flags it (no steady state).
+      if (messageIds.length > 1) input.settingChanges = ventilatorSettingChanges(await contextsOfMessages(m, messageIds));
       // Checklist items a person set on the bed (audited) travel as their own context source.
       const bed = monitor?.bedId ? await m.findOneBy(BedRow, { id: monitor.bedId }) : null;
       if (bed?.checklist) input.bedContext = bed.checklist;

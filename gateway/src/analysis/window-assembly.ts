@@ -20,6 +20,8 @@ export interface AssembledWindow {
   input: AnalysisInput;
   /** Inbound message whose context applies (the latest batch in the window). */
   latestMessageId: string | null;
+  /** Every inbound message with data in the window, oldest batch first. */
+  messageIds: string[];
 }
 
 /**
@@ -38,6 +40,7 @@ export async function assembleWindow(db: DataSource | EntityManager, monitorId: 
   const spanS = (windowEnd.getTime() - startMs) / 1000;
   const channels: AnalysisChannel[] = [];
   let latest: SegmentRow | null = null;
+  const firstSeen = new Map<string, number>();
   for (const role of ['abp', 'pleth', 'paw', 'co2'] as const) {
     const segs = rows.filter((r) => r.role === role);
     if (!segs.length) continue;
@@ -52,10 +55,13 @@ export async function assembleWindow(db: DataSource | EntityManager, monitorId: 
       const to = Math.min(values.length, n - offset);
       if (to > from) out.set(values.subarray(from, to), offset + from);
       if (!latest || s.start_time > latest.start_time) latest = s;
+      const at = s.start_time.getTime();
+      if (at < (firstSeen.get(s.inbound_message_id) ?? Infinity)) firstSeen.set(s.inbound_message_id, at);
     }
     channels.push({ role, sampleRate: fs, unit: segs[0]!.unit, samples: out });
   }
-  return { input: { channels, startTime: windowStart.toISOString() }, latestMessageId: latest?.inbound_message_id ?? null };
+  const messageIds = [...firstSeen].sort((a, b) => a[1] - b[1]).map(([id]) => id);
+  return { input: { channels, startTime: windowStart.toISOString() }, latestMessageId: latest?.inbound_message_id ?? null, messageIds };
 }
 
 /** The batch context of a stored message, or undefined. */
@@ -63,4 +69,12 @@ export async function contextOfMessage(db: DataSource | EntityManager, messageId
   if (!messageId) return undefined;
   const [row] = (await db.query('SELECT context FROM inbound_message WHERE id = ?', [messageId])) as { context: string | null }[];
   return row?.context ? (JSON.parse(row.context) as AnalysisContext) : undefined;
+}
+
+/** The batch contexts of stored messages, in the order of `messageIds` (undefined where a batch had none). */
+export async function contextsOfMessages(db: DataSource | EntityManager, messageIds: string[]): Promise<(AnalysisContext | undefined)[]> {
+  if (!messageIds.length) return [];
+  const rows = (await db.query('SELECT id, context FROM inbound_message WHERE id IN (?)', [messageIds])) as { id: string | number; context: string | null }[];
+  const byId = new Map(rows.map((r) => [String(r.id), r.context ? (JSON.parse(r.context) as AnalysisContext) : undefined]));
+  return messageIds.map((id) => byId.get(String(id)));
 }

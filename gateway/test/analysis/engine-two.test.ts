@@ -17,13 +17,26 @@ async function drain() {
   for (let i = 0; i < 200; i++) if (!(await analyseNextWindow(gw.ctx, DEFAULT_ENGINE, 'engine-two'))) break;
 }
 
-/** Sends a window as consecutive 10-s batches from `startMs`, each with the context given. */
-async function send(apiKey: string, monitorId: string, w: SyntheticWindow, startMs: number, context: AnalysisContext, tag: string) {
+/** Sends a window as consecutive batches (10 s unless given) from `startMs`, each with the context given (or the one for its start). */
+async function send(
+  apiKey: string,
+  monitorId: string,
+  w: SyntheticWindow,
+  startMs: number,
+  context: AnalysisContext | ((t: number) => AnalysisContext),
+  tag: string,
+  batchSeconds = 10,
+) {
   const fs = w.channels[0]!.sampleRate;
   const total = w.channels[0]!.samples.length / fs;
-  for (let t = 0; t + 10 <= total; t += 10) {
-    const slice = { ...w, channels: w.channels.map((c) => ({ ...c, samples: c.samples.slice(t * fs, (t + 10) * fs) })) };
-    const body = toIngestBatch(slice, { monitorId, batchId: `${tag}-${t}`, startTime: new Date(startMs + t * 1000).toISOString(), context });
+  for (let t = 0; t + batchSeconds <= total; t += batchSeconds) {
+    const slice = { ...w, channels: w.channels.map((c) => ({ ...c, samples: c.samples.slice(t * fs, (t + batchSeconds) * fs) })) };
+    const body = toIngestBatch(slice, {
+      monitorId,
+      batchId: `${tag}-${t}`,
+      startTime: new Date(startMs + t * 1000).toISOString(),
+      context: typeof context === 'function' ? context(t) : context,
+    });
     const res = await request(gw.server)
       .post('/api/v1/ingest/batches')
       .set('Authorization', `Bearer ${apiKey}`)
@@ -101,5 +114,33 @@ describe('engine 2.0 in the gateway', () => {
     const detail = await reviewer.get(`/api/v1/assessments/${r.id as string}`);
     expect(detail.status).toBe(200);
     expect(detail.body.assessment.tidalVolumeChallenge).toMatchObject({ verdict: 'positive', threshold: 3.5 });
+  });
+
+  it('a window spanning batches with different ventilator settings is flagged settings-changed, not blamed on patient effort', async () => {
+    const m = await registerMonitor(integrator, 'A2B1C2D3E4F51003');
+    // Generator truth: from 15 s on the airway pressure above PEEP is a third higher, as the tidal
+    // volume step 450 → 600 mL the batches from 15 s on declare. Windows (30 s, every 10 s) at 0
+    // and 10 s span the step; the one at 20 s lies after it.
+    const w = generateWindow({ seed: 131, durationSeconds: 50, heartRate: 85, respiratoryRate: 15, ppv: 12 });
+    const paw = w.channels.find((c) => c.role === 'paw')!;
+    for (let i = 15 * paw.sampleRate; i < paw.samples.length; i++) paw.samples[i] = 5 + (paw.samples[i]! - 5) * (4 / 3);
+    const base: AnalysisContext = { ventilationMode: 'controlled', patientHeightCm: 175, patientSex: 'male', setRespiratoryRate: 15 };
+    await send(m.apiKey, 'A2B1C2D3E4F51003', w, T0, (t) => ({ ...base, tidalVolumeMl: t < 15 ? 450 : 600 }), 'step', 5);
+    await drain();
+    const rows = (await gw.ctx.ds.query('SELECT window_start, verdict, result FROM assessment WHERE monitor_id = ? ORDER BY window_start', [m.monitorId])) as {
+      window_start: Date;
+      verdict: string;
+      result: string;
+    }[];
+    expect(rows.map((r) => r.window_start.getTime())).toEqual([T0, T0 + 10_000, T0 + 20_000]);
+    const flags = rows.map((r) => (JSON.parse(r.result) as { flags: { code: string; reason: string }[] }).flags);
+    for (const i of [0, 1]) {
+      const changed = flags[i]!.find((f) => f.code === 'settings-changed');
+      expect(changed?.reason).toContain('tidal volume 450 → 600 mL');
+      expect(flags[i]!.map((f) => f.code)).not.toContain('spontaneous-breathing');
+      expect(rows[i]!.verdict).toBe('not-valid');
+    }
+    // The last window lies within the new setting: no change to report.
+    expect(flags[2]!.map((f) => f.code)).not.toContain('settings-changed');
   });
 });

@@ -32,6 +32,7 @@ export { percentVariation } from './signal-utils';
 export { dampingCoefficient, findFlushTests, gardnerRegion, gardnerRegionText } from './arterial-line';
 export { SIGNAL_LOSS_PULSE_MMHG } from './signal-loss';
 export { formatSummary } from './summary';
+export { ventilatorSettingChanges } from './setting-changes';
 export {
   DEFAULT_CODE_ROLES,
   roleForCode,
@@ -97,6 +98,7 @@ export function analyseWindow(input: AnalysisInput, partialSettings?: Partial<An
   const plethQ = beatsFor(byRole.get('pleth'), settings);
   const arterialLine = abpQ ? checkArterialLine(byRole.get('abp') as ConditionedChannel, abpQ.series, abpQ.noiseSd) : null;
 
+  const settingChanges = input.settingChanges ?? [];
   const bounds = findBreaths(byRole, abpQ ?? plethQ, context);
   const gaps: SampleSpan[] = conditioned.flatMap((c) => c.report.gaps);
   const cycles = bounds && bounds.onsets.length >= 2 ? buildCycles(bounds, abpQ?.series ?? null, plethQ?.series ?? null, gaps, settings) : [];
@@ -123,7 +125,10 @@ export function analyseWindow(input: AnalysisInput, partialSettings?: Partial<An
     tidalVolumeMlPerKg: vtPerKg,
     checklist: resolveChecklist(context, input.bedContext),
     mechanics,
-    effortEvidence: spontaneousEvidence(byRole, bounds, context),
+    // A setting change inside the window changes breath size, shape or timing by itself: that
+    // variation is not read as patient effort (dips below PEEP still are); the window is flagged.
+    effortEvidence: settingChanges.length ? [] : spontaneousEvidence(byRole, bounds, context),
+    settingChanges,
     selection: { ...kvd, droppedFraction: selection.droppedFraction, total: selection.cyclesTotal },
   });
   const { verdict, indexVerdicts } = judge(flags, indices, abpQ !== null);

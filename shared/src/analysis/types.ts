@@ -29,6 +29,12 @@ export interface AnalysisInput {
   bedContext?: ChecklistContext;
   /** ISO 8601 time of the first sample; echoed in the result, never used in the computation. */
   startTime?: string;
+  /**
+   * Ventilator settings that changed inside the window, in words ("tidal volume 429 → 572 mL"),
+   * from the contexts of the batches it spans (see `ventilatorSettingChanges`). `context` is the
+   * latest batch's.
+   */
+  settingChanges?: string[];
 }
 
 /** Which index a decision band or a per-index verdict belongs to. */
@@ -314,6 +320,8 @@ export type FlagCode =
   | 'pleth-processing-unknown'
   /** Ventilation mode unknown or not given: controlled ventilation cannot be assumed. */
   | 'ventilation-unconfirmed'
+  /** Ventilator settings changed inside the window: no steady state. */
+  | 'settings-changed'
   /** The cycles kept differ systematically from the cycles dropped (pulse size or swing). */
   | 'selection-bias'
   /** More than a set share of the respiratory cycles was dropped. */

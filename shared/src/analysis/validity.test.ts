@@ -220,3 +220,34 @@ describe('respiratory-system compliance Vt / (plateau − PEEP) and driving pres
     });
   }
 });
+
+describe('a ventilator setting change inside the window (steady state is common practice; Michard, Anesthesiology 2005)', () => {
+  // Generator truth: the second half of the window is ventilated with a third more volume, so the
+  // airway pressure above PEEP steps up by a third, as a tidal volume step 6 → 8 mL/kg does.
+  const stepped = () => {
+    const w = generateWindow({ seed: 131, heartRate: 85, respiratoryRate: 15, ppv: 12 });
+    const paw = w.channels.find((c) => c.role === 'paw')!;
+    const half = Math.floor(paw.samples.length / 2);
+    for (let i = half; i < paw.samples.length; i++) paw.samples[i] = 5 + (paw.samples[i] - 5) * (4 / 3);
+    return w;
+  };
+
+  it('without the change known, the step reads as varying breath size (evidence of effort)', () => {
+    expect(codes(analyseWindow({ channels: stepped().channels, context: CONTEXT }))).toContain('spontaneous-breathing');
+  });
+
+  it('with the change known: not valid with settings-changed (direction either, the change in words), not blamed on the patient', () => {
+    const r = analyseWindow({ channels: stepped().channels, context: CONTEXT, settingChanges: ['tidal volume 450 → 600 mL'] });
+    expect(r.verdict).toBe('not-valid');
+    const f = r.flags.find((x) => x.code === 'settings-changed');
+    expect(f).toMatchObject({ severity: 'critical', direction: 'either' });
+    expect(f!.reason).toContain('tidal volume 450 → 600 mL');
+    expect(codes(r)).not.toContain('spontaneous-breathing');
+  });
+
+  it('dips below PEEP are still patient effort when the settings changed', () => {
+    const w = generateWindow({ seed: 132, heartRate: 85, respiratoryRate: 15, ppv: 12, disturbances: [{ kind: 'spontaneous-breaths', count: 3 }] });
+    const r = analyseWindow({ channels: w.channels, context: CONTEXT, settingChanges: ['set rate 15 → 16 /min'] });
+    expect(codes(r)).toEqual(expect.arrayContaining(['settings-changed', 'spontaneous-breathing']));
+  });
+});

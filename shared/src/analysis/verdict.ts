@@ -34,6 +34,8 @@ export interface VerdictInput {
   mechanics: RespiratoryMechanics | null;
   /** Evidence of spontaneous effort beyond the dips below PEEP. */
   effortEvidence: string[];
+  /** Ventilator settings that changed inside the window, in words. */
+  settingChanges: string[];
   selection: { kept: number | null; dropped: number | null; droppedCount: number; droppedFraction: number; total: number };
 }
 
@@ -239,7 +241,9 @@ export function buildFlags(v: VerdictInput): Flag[] {
   }
   const efforts = v.bounds?.efforts.length ?? 0;
   const irregularCycles = v.cycles.filter((c) => c.rejectReasons.includes('irregular-length')).length;
-  if (efforts > 0 || (v.cycles.length >= 4 && irregularCycles / v.cycles.length > 0.25)) {
+  // A change of set rate or volume inside the window makes cycles irregular by itself.
+  const irregularFromEffort = !v.settingChanges.length && v.cycles.length >= 4 && irregularCycles / v.cycles.length > 0.25;
+  if (efforts > 0 || irregularFromEffort) {
     push({
       code: 'spontaneous-breathing',
       severity: 'critical',
@@ -256,6 +260,15 @@ export function buildFlags(v: VerdictInput): Flag[] {
       source: 'paw',
       reference: 'Heenen et al., Crit Care 2006 (from memory); Ann Intensive Care 2021 checklist',
       reason: `signs of spontaneous effort: ${v.effortEvidence.join('; ')}`,
+    });
+  }
+  if (v.settingChanges.length) {
+    push({
+      code: 'settings-changed',
+      severity: 'critical',
+      direction: 'either',
+      reference: 'common practice (dynamic indices are read in a steady state, e.g. Michard, Anesthesiology 2005)',
+      reason: `ventilator settings changed inside the window (${v.settingChanges.join('; ')}): cycles before and after the change are not comparable, and their breath-to-breath differences are not read as patient effort`,
     });
   }
   if (cx.ventilationMode === undefined || cx.ventilationMode === 'unknown') {

@@ -1,2 +1,2 @@
 /** Semantic version of the analysis engine, carried in every result. */
-export const ENGINE_VERSION = '2.0.0';
+export const ENGINE_VERSION = '2.1.0';

@@ -19,7 +19,7 @@ const EVENT_COLOR: Record<string, string> = { 'tidal-volume-challenge': '#5a4a86
 /** Rows of event labels at the top of the plot; more events than fit keep their line without a label. */
 const EVENT_LABEL_ROWS = 3;
 const eventLabel = (e: BedTrend['events'][number]) =>
-  e.kind === 'tidal-volume-challenge' ? 'Vt challenge' : e.kind === 'flush-test' ? 'flush' : e.label.slice(0, 24);
+  e.kind === 'tidal-volume-challenge' ? 'Vt challenge' : e.kind === 'flush-test' ? 'flush' : e.label.length > 28 ? `${e.label.slice(0, 27)}…` : e.label;
 
 function canvasAvailable(): boolean {
   try {
