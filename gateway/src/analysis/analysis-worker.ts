@@ -128,12 +128,56 @@ export async function analyseNextWindow(ctx: AppContext, engine: Engine, workerI
   );
 }
 
+/** A window of an older engine still due after this long has no worker of its version left to take it. */
+export const STRANDED_AFTER_MS = 2 * 60_000;
+const ADOPT_EVERY_MS = 60_000;
+
+/** Orders engine versions (major.minor.patch, numerically). */
+export function compareVersions(a: string, b: string): number {
+  const pa = a.split('.').map(Number);
+  const pb = b.split('.').map(Number);
+  for (let i = 0; i < Math.max(pa.length, pb.length); i++) {
+    const d = (pa[i] || 0) - (pb[i] || 0);
+    if (d !== 0) return d;
+  }
+  return 0;
+}
+
+/**
+ * Windows planned by an older engine (before an upgrade) that no worker of that version took
+ * within `STRANDED_AFTER_MS` are taken over by this version, so none stays unanalysed once every
+ * gateway runs the new engine. During a rolling upgrade the old gateways keep theirs: only windows
+ * left waiting that long move. Newer versions' windows (a reanalysis asked for by an upgraded
+ * gateway) are never taken by an older engine. A window this version already has is left as it is
+ * (UPDATE IGNORE on the unique monitor/start/version key). Returns the number taken over.
+ */
+export async function adoptStrandedWindows(ctx: AppContext, version: string, now = new Date()): Promise<number> {
+  const before = new Date(now.getTime() - STRANDED_AFTER_MS);
+  const versions = (
+    (await ctx.ds.query(`SELECT DISTINCT engine_version AS v FROM analysis_window WHERE status = 'due' AND engine_version <> ? AND created_at < ?`, [
+      version,
+      before,
+    ])) as { v: string }[]
+  )
+    .map((r) => r.v)
+    .filter((v) => compareVersions(v, version) < 0);
+  if (!versions.length) return 0;
+  const res = (await ctx.ds.query(`UPDATE IGNORE analysis_window SET engine_version = ? WHERE status = 'due' AND engine_version IN (?) AND created_at < ?`, [
+    version,
+    versions,
+    before,
+  ])) as { affectedRows: number };
+  if (res.affectedRows) ctx.logger.info({ from: versions, to: version, windows: res.affectedRows }, 'analysis windows of an older engine taken over');
+  return res.affectedRows;
+}
+
 /** Background worker: drains due windows, then polls. Any number may run against one database. */
 export class AnalysisWorker implements BackgroundService {
   readonly name = 'analysis-worker';
   readonly workerId = `${hostname()}:${process.pid}:${randomBytes(3).toString('hex')}`;
   analysed = 0;
   private readonly loop: PollLoop;
+  private adoptedAt = 0;
 
   constructor(
     private readonly ctx: AppContext,
@@ -157,6 +201,10 @@ export class AnalysisWorker implements BackgroundService {
   /** Up to `windowsPerPoll` windows; true when the round was full, so more may be waiting. */
   private async pass(): Promise<boolean> {
     const { windowsPerPoll } = this.ctx.config.analysis;
+    if (Date.now() - this.adoptedAt >= ADOPT_EVERY_MS) {
+      this.adoptedAt = Date.now();
+      await adoptStrandedWindows(this.ctx, this.engine.version);
+    }
     let n = 0;
     while (this.loop.isRunning && n < windowsPerPoll && (await analyseNextWindow(this.ctx, this.engine, this.workerId))) {
       n++;
