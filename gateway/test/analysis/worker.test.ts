@@ -1,6 +1,15 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { analyseWindow } from '@ebbgate/shared/analysis';
-import { analyseNextWindow, AnalysisWorker, DEFAULT_ENGINE, requestReanalysis, type Engine } from '../../src/analysis/analysis-worker';
+import {
+  adoptStrandedWindows,
+  analyseNextWindow,
+  AnalysisWorker,
+  compareVersions,
+  DEFAULT_ENGINE,
+  requestReanalysis,
+  STRANDED_AFTER_MS,
+  type Engine,
+} from '../../src/analysis/analysis-worker';
 import { assembleWindow } from '../../src/analysis/window-assembly';
 import { assessmentEvents } from '../../src/assessments/events';
 import { startTestGatewayAs, type SignedInClient, type TestGateway } from '../support/harness';
@@ -27,8 +36,8 @@ async function drain(engine: Engine = DEFAULT_ENGINE, workerId = 'test') {
 
 describe('analysis scheduling', () => {
   it('rebuilds a window from consecutive batches on one time base, identical to the recording', async () => {
-    const m = await registerMonitor(integrator, 'A0B1C2D3E4F50001');
-    const { whole, statuses } = await sendRecording(gw, m.apiKey, 'A0B1C2D3E4F50001', T0, spec);
+    const m = await registerMonitor(integrator, 'A2B1C2D3E4F50001');
+    const { whole, statuses } = await sendRecording(gw, m.apiKey, 'A2B1C2D3E4F50001', T0, spec);
     expect(statuses).toEqual([202, 202, 202, 202]);
     const { input } = await assembleWindow(gw.ctx.ds, m.monitorId, new Date(T0 + 10_000), new Date(T0 + 40_000));
     const abp = input.channels.find((c) => c.role === 'abp')!;
@@ -41,8 +50,8 @@ describe('analysis scheduling', () => {
   });
 
   it('analyses each due window once and stores the assessment with values, cycles, beats, flags and engine version', async () => {
-    const m = await registerMonitor(integrator, 'A0B1C2D3E4F50002');
-    await sendRecording(gw, m.apiKey, 'A0B1C2D3E4F50002', T0, spec);
+    const m = await registerMonitor(integrator, 'A2B1C2D3E4F50002');
+    await sendRecording(gw, m.apiKey, 'A2B1C2D3E4F50002', T0, spec);
     const stored: string[] = [];
     assessmentEvents(gw.ctx.ds).stored.push(async (_m, a) => void stored.push(a.id));
     const done = await drain();
@@ -72,8 +81,8 @@ describe('analysis scheduling', () => {
   });
 
   it('closes a window as failed with the reason when the engine cannot read it', async () => {
-    const m = await registerMonitor(integrator, 'A0B1C2D3E4F50003');
-    await sendRecording(gw, m.apiKey, 'A0B1C2D3E4F50003', T0, spec);
+    const m = await registerMonitor(integrator, 'A2B1C2D3E4F50003');
+    await sendRecording(gw, m.apiKey, 'A2B1C2D3E4F50003', T0, spec);
     const broken: Engine = {
       version: DEFAULT_ENGINE.version,
       analyse: () => {
@@ -87,8 +96,8 @@ describe('analysis scheduling', () => {
   });
 
   it('keeps both results when stored data is re-analysed with a newer engine version', async () => {
-    const m = await registerMonitor(integrator, 'A0B1C2D3E4F50004');
-    await sendRecording(gw, m.apiKey, 'A0B1C2D3E4F50004', T0, spec);
+    const m = await registerMonitor(integrator, 'A2B1C2D3E4F50004');
+    await sendRecording(gw, m.apiKey, 'A2B1C2D3E4F50004', T0, spec);
     await drain();
     const newer: Engine = { version: '99.0.0-test', analyse: (i, s) => ({ ...analyseWindow(i, s), engineVersion: '99.0.0-test' }) };
     expect(await requestReanalysis(gw.ctx, { engineVersion: newer.version, monitorId: m.monitorId })).toBe(2);
@@ -108,8 +117,8 @@ describe('analysis scheduling', () => {
   });
 
   it('an integrator queues re-analysis with the running engine through the API; audited, reviewers refused', async () => {
-    const m = await registerMonitor(integrator, 'A0B1C2D3E4F50006');
-    await sendRecording(gw, m.apiKey, 'A0B1C2D3E4F50006', T0, spec);
+    const m = await registerMonitor(integrator, 'A2B1C2D3E4F50006');
+    await sendRecording(gw, m.apiKey, 'A2B1C2D3E4F50006', T0, spec);
     await drain();
     // As if an older engine had analysed them.
     await gw.ctx.ds.query("UPDATE analysis_window SET engine_version = '0.9.0' WHERE monitor_id = ?", [m.monitorId]);
@@ -126,8 +135,8 @@ describe('analysis scheduling', () => {
   });
 
   it('never analyses a window twice when two workers race (SELECT … FOR UPDATE SKIP LOCKED)', async () => {
-    const m = await registerMonitor(integrator, 'A0B1C2D3E4F50005');
-    await sendRecording(gw, m.apiKey, 'A0B1C2D3E4F50005', T0, { ...spec, durationSeconds: 120 });
+    const m = await registerMonitor(integrator, 'A2B1C2D3E4F50005');
+    await sendRecording(gw, m.apiKey, 'A2B1C2D3E4F50005', T0, { ...spec, durationSeconds: 120 });
     const a = new AnalysisWorker(gw.ctx);
     const b = new AnalysisWorker(gw.ctx);
     await Promise.all([a.start(), b.start()]);
@@ -143,5 +152,44 @@ describe('analysis scheduling', () => {
     expect(per.length).toBe(10);
     expect(per.every((r: { n: string }) => Number(r.n) === 1)).toBe(true);
     expect(a.analysed + b.analysed).toBeGreaterThanOrEqual(10);
+  });
+
+  it('takes over windows an older engine planned and nobody took (after an upgrade), never a newer engine’s', async () => {
+    // Semantic version order (semver.org §11: numeric per field), not string order.
+    expect(compareVersions('2.0.0', '2.1.0')).toBeLessThan(0);
+    expect(compareVersions('10.0.0', '9.9.9')).toBeGreaterThan(0);
+    expect(compareVersions('2.1.0', '2.1.0')).toBe(0);
+    const m = await registerMonitor(integrator, 'A2B1C2D3E4F50007');
+    await sendRecording(gw, m.apiKey, 'A2B1C2D3E4F50007', T0, spec);
+    const now = Date.now();
+    // As the database looks after an upgrade: windows planned by the old engine, due for a while;
+    // one planned just now (its old gateway may still take it); one queued for a newer engine.
+    const rows = (await gw.ctx.ds.query('SELECT id FROM analysis_window WHERE monitor_id = ? ORDER BY window_start', [m.monitorId])) as { id: string }[];
+    expect(rows).toHaveLength(2);
+    await gw.ctx.ds.query("UPDATE analysis_window SET engine_version = '0.9.0', created_at = ? WHERE id = ?", [
+      new Date(now - STRANDED_AFTER_MS - 60_000),
+      rows[0]!.id,
+    ]);
+    await gw.ctx.ds.query("UPDATE analysis_window SET engine_version = '0.9.0', created_at = ? WHERE id = ?", [new Date(now - 10_000), rows[1]!.id]);
+    await gw.ctx.ds.query(
+      "INSERT INTO analysis_window (monitor_id, window_start, window_end, engine_version, status, attempts, created_at) VALUES (?, ?, ?, '999.0.0', 'due', 0, ?)",
+      [m.monitorId, new Date(T0), new Date(T0 + 30_000), new Date(now - 3_600_000)],
+    );
+    expect(await drain()).toHaveLength(0);
+    expect(await adoptStrandedWindows(gw.ctx, DEFAULT_ENGINE.version, new Date(now))).toBe(1);
+    const done = await drain();
+    expect(done).toHaveLength(1);
+    const [a] = (await gw.ctx.ds.query('SELECT window_start, engine_version FROM assessment WHERE monitor_id = ?', [m.monitorId])) as {
+      window_start: Date;
+      engine_version: string;
+    }[];
+    expect(a).toMatchObject({ engine_version: DEFAULT_ENGINE.version });
+    expect(a!.window_start.getTime()).toBe(T0);
+    const left = (await gw.ctx.ds.query("SELECT engine_version AS v FROM analysis_window WHERE monitor_id = ? AND status = 'due' ORDER BY v", [
+      m.monitorId,
+    ])) as {
+      v: string;
+    }[];
+    expect(left.map((r) => r.v)).toEqual(['0.9.0', '999.0.0']);
   });
 });

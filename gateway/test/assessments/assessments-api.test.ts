@@ -18,13 +18,13 @@ beforeAll(async () => {
   integrator = await gw.signIn('integrator');
   reviewer = await gw.signIn('reviewer');
   bedId = (await integrator.post('/api/v1/beds', { name: 'Assess bed', unit: 'ICU', locationIdentifier: 'ICU-AS' })).body.id;
-  const a = await registerMonitor(integrator, 'ABCDEF0000000001');
-  const b = await registerMonitor(integrator, 'ABCDEF0000000002');
+  const a = await registerMonitor(integrator, 'AACDEF0000000001');
+  const b = await registerMonitor(integrator, 'AACDEF0000000002');
   monitorA = a.monitorId;
   monitorB = b.monitorId;
   await integrator.patch(`/api/v1/monitors/${monitorA}`, { bedId }).expect(200);
   // Monitor A: a clean regular rhythm; monitor B: an irregular rhythm (flagged by the engine).
-  await sendRecording(gw, a.apiKey, 'ABCDEF0000000001', T0, {
+  await sendRecording(gw, a.apiKey, 'AACDEF0000000001', T0, {
     seed: 21,
     durationSeconds: 40,
     heartRate: 80,
@@ -32,7 +32,7 @@ beforeAll(async () => {
     ppv: 13,
     channels: ['abp', 'paw'],
   });
-  await sendRecording(gw, b.apiKey, 'ABCDEF0000000002', T0, {
+  await sendRecording(gw, b.apiKey, 'AACDEF0000000002', T0, {
     seed: 22,
     durationSeconds: 40,
     heartRate: 95,
@@ -60,7 +60,7 @@ describe('GET /assessments', () => {
 
   it('filters by monitor (id or identifier), bed, verdict, flag and time', async () => {
     const byId = (await reviewer.get(`/api/v1/assessments?monitor=${monitorA}`)).body;
-    const byIdentifier = (await reviewer.get('/api/v1/assessments?monitor=ABCDEF0000000001')).body;
+    const byIdentifier = (await reviewer.get('/api/v1/assessments?monitor=AACDEF0000000001')).body;
     expect(byId.total).toBe(2);
     expect(byIdentifier.items.map((i: { id: string }) => i.id).sort()).toEqual(byId.items.map((i: { id: string }) => i.id).sort());
     expect((await reviewer.get(`/api/v1/assessments?bed=${bedId}`)).body.total).toBe(2);

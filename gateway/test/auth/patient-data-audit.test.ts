@@ -14,8 +14,8 @@ beforeAll(async () => {
   gw = await startTestGateway();
   integrator = await gw.signIn('integrator');
   reviewer = await gw.signIn('reviewer');
-  const m = await registerMonitor(integrator, 'ABCDEF0000000071');
-  await sendRecording(gw, m.apiKey, 'ABCDEF0000000071', T0, {
+  const m = await registerMonitor(integrator, 'AACDEF0000000071');
+  await sendRecording(gw, m.apiKey, 'AACDEF0000000071', T0, {
     seed: 71,
     durationSeconds: 40,
     heartRate: 80,

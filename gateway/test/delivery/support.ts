@@ -36,7 +36,7 @@ export async function insertBedAndMonitor(ds: DataSource, locationIdentifier: st
   await ds.getRepository(BedRow).insert(bed);
   const monitor = {
     id: randomUUID(),
-    identifier: `0123456789AB${tag.slice(0, 4).toUpperCase()}`,
+    identifier: `0223456789AB${tag.slice(0, 4).toUpperCase()}`,
     profileId: null,
     bedId: bed.id,
     enabled: true,

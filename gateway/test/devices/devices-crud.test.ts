@@ -18,13 +18,13 @@ const auditOf = async (action: string) =>
 
 describe('monitor profiles', () => {
   it('creates, reads, replaces and deletes a profile, auditing each change', async () => {
-    const created = await integrator.post('/api/v1/profiles', corvaneProfile('Corvane BX-7 crud'));
+    const created = await integrator.post('/api/v1/profiles', corvaneProfile('Corvane Wayfarer crud'));
     expect(created.status).toBe(201);
     expect(created.body.channels[0]).toMatchObject({ code: '150036', role: 'abp', unit: 'mmHg', sampleRate: 125 });
     const id = created.body.id as string;
-    expect((await integrator.get(`/api/v1/profiles/${id}`)).body.name).toBe('Corvane BX-7 crud');
+    expect((await integrator.get(`/api/v1/profiles/${id}`)).body.name).toBe('Corvane Wayfarer crud');
 
-    const replaced = await integrator.put(`/api/v1/profiles/${id}`, { ...corvaneProfile('Corvane BX-7 crud'), plethScaling: 'auto-scaled' });
+    const replaced = await integrator.put(`/api/v1/profiles/${id}`, { ...corvaneProfile('Corvane Wayfarer crud'), plethScaling: 'auto-scaled' });
     expect(replaced.status).toBe(200);
     expect(replaced.body.plethScaling).toBe('auto-scaled');
 
@@ -74,9 +74,9 @@ describe('beds and monitors', () => {
     const bed = await integrator.post('/api/v1/beds', { name: 'Test bed A', unit: 'ICU', locationIdentifier: 'ICU-T-A' });
     expect(bed.status).toBe(201);
     const profile = await integrator.post('/api/v1/profiles', corvaneProfile('Corvane for monitor'));
-    const mon = await integrator.post('/api/v1/monitors', { identifier: '00A0C9FFFE123456', profileId: profile.body.id, bedId: bed.body.id });
+    const mon = await integrator.post('/api/v1/monitors', { identifier: '02A0C9FFFE123456', profileId: profile.body.id, bedId: bed.body.id });
     expect(mon.status).toBe(201);
-    expect(mon.body).toMatchObject({ identifier: '00A0C9FFFE123456', enabled: true, hasApiKey: false, lastSeenAt: null, dataRate: null });
+    expect(mon.body).toMatchObject({ identifier: '02A0C9FFFE123456', enabled: true, hasApiKey: false, lastSeenAt: null, dataRate: null });
     expect((await integrator.get(`/api/v1/beds/${bed.body.id}`)).body.monitorId).toBe(mon.body.id);
 
     const key = await integrator.post(`/api/v1/monitors/${mon.body.id}/api-key`);

@@ -2,10 +2,10 @@ import type { MonitorProfileInput } from '@ebbgate/shared';
 import type { SignedInClient } from '../support/harness';
 
 /** An invented monitor model (not a real product): arterial pressure and pleth at 125 Hz. */
-export const corvaneProfile = (name = 'Corvane BX-7 (test)'): MonitorProfileInput => ({
+export const corvaneProfile = (name = 'Corvane Wayfarer (test)'): MonitorProfileInput => ({
   name,
   manufacturer: 'Corvane Instruments',
-  model: 'BX-7',
+  model: 'Wayfarer',
   transports: ['http', 'mllp'],
   channels: [
     // 150036 = MDC_PRESS_BLD_ART_ABP (IEEE 11073-10101 nomenclature, confirmed).
@@ -23,7 +23,7 @@ export const corvaneProfile = (name = 'Corvane BX-7 (test)'): MonitorProfileInpu
 });
 
 /** Creates a profile and a monitor with an API key; returns their ids and the key. */
-export async function registerMonitor(integrator: SignedInClient, identifier: string, profile = corvaneProfile(`Corvane BX-7 ${identifier}`)) {
+export async function registerMonitor(integrator: SignedInClient, identifier: string, profile = corvaneProfile(`Corvane Wayfarer ${identifier}`)) {
   const p = await integrator.post('/api/v1/profiles', profile);
   if (p.status !== 201) throw new Error(`profile: ${p.status} ${JSON.stringify(p.body)}`);
   const m = await integrator.post('/api/v1/monitors', { identifier, profileId: p.body.id });

@@ -30,9 +30,9 @@ const waves = [
 
 describe('MLLP listener', () => {
   it('stores a PCD-01 waveform message and answers AA echoing MSH-10 (original mode)', async () => {
-    await registerMonitor(integrator, '0123456789ABCD01');
+    await registerMonitor(integrator, '0223456789ABCD01');
     const peer = await RawMllpPeer.connect(listener.port);
-    peer.send(buildPcd01({ controlId: 'ok-1', equipment: '0123456789ABCD01', start, waves, heartRate: 75 }));
+    peer.send(buildPcd01({ controlId: 'ok-1', equipment: '0223456789ABCD01', start, waves, heartRate: 75 }));
     const [ack] = await peer.answers(1);
     expect(readAck(ack!)).toMatchObject({ code: 'AA', controlId: 'ok-1', errors: [] });
     const rows = (await gw.ctx.ds.query(
@@ -48,25 +48,25 @@ describe('MLLP listener', () => {
     ]);
     expect(rows[0]!.start_time.toISOString()).toBe(start.toISOString());
     // A repeat is acknowledged (AA) and not stored again.
-    peer.send(buildPcd01({ controlId: 'ok-1', equipment: '0123456789ABCD01', start, waves, heartRate: 75 }));
+    peer.send(buildPcd01({ controlId: 'ok-1', equipment: '0223456789ABCD01', start, waves, heartRate: 75 }));
     const [, again] = await peer.answers(2);
     expect(readAck(again!).code).toBe('AA');
     peer.close();
   });
 
   it('answers CA / CE in enhanced mode, with ERR 103 naming the unmapped OBX, and quarantines it', async () => {
-    await registerMonitor(integrator, '0123456789ABCD02');
+    await registerMonitor(integrator, '0223456789ABCD02');
     const peer = await RawMllpPeer.connect(listener.port);
-    peer.send(buildPcd01({ controlId: 'enh-1', equipment: '0123456789ABCD02', start, waves, enhanced: true }));
+    peer.send(buildPcd01({ controlId: 'enh-1', equipment: '0223456789ABCD02', start, waves, enhanced: true }));
     const unknown = [{ code: '999999', refId: 'MDC_UNKNOWN_WAVE', sampleRate: 125, samples: [1, 2, 3] }];
-    peer.send(buildPcd01({ controlId: 'enh-2', equipment: '0123456789ABCD02', start: new Date(start.getTime() + 10_000), waves: unknown, enhanced: true }));
+    peer.send(buildPcd01({ controlId: 'enh-2', equipment: '0223456789ABCD02', start: new Date(start.getTime() + 10_000), waves: unknown, enhanced: true }));
     const [a, b] = await peer.answers(2);
     expect(readAck(a!).code).toBe('CA');
     const nak = readAck(b!);
     expect(nak).toMatchObject({ code: 'CE', controlId: 'enh-2' });
     expect(nak.errors[0]).toMatchObject({ code: '103^Table value not found^HL70357' });
     expect(nak.errors[0]!.location).toMatch(/^OBX\^\d+\^3$/);
-    const q = (await integrator.get('/api/v1/inbound-messages?transport=mllp&outcome=quarantined&monitor=0123456789ABCD02')).body.items;
+    const q = (await integrator.get('/api/v1/inbound-messages?transport=mllp&outcome=quarantined&monitor=0223456789ABCD02')).body.items;
     expect(q.map((m: { batchId: string }) => m.batchId)).toEqual(['enh-2']);
     peer.close();
   });
@@ -81,7 +81,7 @@ describe('MLLP listener', () => {
     const [, notHl7] = await peer.answers(2);
     expect(readAck(notHl7!)).toMatchObject({ code: 'AR' });
     peer.send(
-      buildPcd01({ controlId: 'big-1', equipment: '0123456789ABCD01', start, waves: [{ ...waves[0]!, samples: new Float64Array(60_000).fill(100.123) }] }),
+      buildPcd01({ controlId: 'big-1', equipment: '0223456789ABCD01', start, waves: [{ ...waves[0]!, samples: new Float64Array(60_000).fill(100.123) }] }),
     );
     const [, , big] = await peer.answers(3);
     expect(readAck(big!)).toMatchObject({ code: 'AR', controlId: 'big-1' });
@@ -94,13 +94,13 @@ describe('MLLP listener', () => {
   });
 
   it('splits two frames sent in one write and joins a frame sent in pieces, answering in order', async () => {
-    await registerMonitor(integrator, '0123456789ABCD03');
+    await registerMonitor(integrator, '0223456789ABCD03');
     const peer = await RawMllpPeer.connect(listener.port);
-    const m1 = buildPcd01({ controlId: 'p-1', equipment: '0123456789ABCD03', start, waves });
-    const m2 = buildPcd01({ controlId: 'p-2', equipment: '0123456789ABCD03', start: new Date(start.getTime() + 10_000), waves });
+    const m1 = buildPcd01({ controlId: 'p-1', equipment: '0223456789ABCD03', start, waves });
+    const m2 = buildPcd01({ controlId: 'p-2', equipment: '0223456789ABCD03', start: new Date(start.getTime() + 10_000), waves });
     const framed = (m: string) => Buffer.concat([Buffer.from([0x0b]), Buffer.from(m), Buffer.from([0x1c, 0x0d])]);
     peer.write(Buffer.concat([framed(m1), framed(m2)]));
-    const m3 = framed(buildPcd01({ controlId: 'p-3', equipment: '0123456789ABCD03', start: new Date(start.getTime() + 20_000), waves }));
+    const m3 = framed(buildPcd01({ controlId: 'p-3', equipment: '0223456789ABCD03', start: new Date(start.getTime() + 20_000), waves }));
     for (let i = 0; i < m3.length; i += 4096) peer.write(m3.subarray(i, i + 4096));
     const acks = (await peer.answers(3)).map(readAck);
     expect(acks.map((a) => [a.code, a.controlId])).toEqual([
@@ -108,7 +108,7 @@ describe('MLLP listener', () => {
       ['AA', 'p-2'],
       ['AA', 'p-3'],
     ]);
-    const cont = (await integrator.get('/api/v1/inbound-messages?monitor=0123456789ABCD03&order=asc')).body.items.map(
+    const cont = (await integrator.get('/api/v1/inbound-messages?monitor=0223456789ABCD03&order=asc')).body.items.map(
       (m: { continuity: string }) => m.continuity,
     );
     expect(cont).toEqual(['first', 'contiguous', 'contiguous']);
@@ -116,19 +116,19 @@ describe('MLLP listener', () => {
   });
 
   it('reprocesses a quarantined HL7 message once the profile maps its code', async () => {
-    const m = await registerMonitor(integrator, '0123456789ABCD04');
+    const m = await registerMonitor(integrator, '0223456789ABCD04');
     const peer = await RawMllpPeer.connect(listener.port);
     peer.send(
       buildPcd01({
         controlId: 'rp-1',
-        equipment: '0123456789ABCD04',
+        equipment: '0223456789ABCD04',
         start,
         waves: [{ code: '888888', refId: 'MDC_LOCAL_ART', sampleRate: 125, samples: waves[0]!.samples }],
       }),
     );
     expect(readAck((await peer.answers(1))[0]!).code).toBe('AE');
-    const [q] = (await integrator.get('/api/v1/inbound-messages?outcome=quarantined&monitor=0123456789ABCD04')).body.items;
-    const p = corvaneProfile('Corvane BX-7 0123456789ABCD04');
+    const [q] = (await integrator.get('/api/v1/inbound-messages?outcome=quarantined&monitor=0223456789ABCD04')).body.items;
+    const p = corvaneProfile('Corvane Wayfarer 0223456789ABCD04');
     await integrator
       .put(`/api/v1/profiles/${m.profileId}`, {
         ...p,

@@ -22,7 +22,7 @@ describe('PCD-01 decoding (IHE PCD Technical Framework Vol. 2 rules)', () => {
   it('reads NA waveform rows with their sample-rate facet, OBX-18 monitor, OBX-14 time and vent numerics', () => {
     const text = buildPcd01({
       controlId: 'M1',
-      equipment: '0123456789ABCDEF',
+      equipment: '0223456789ABCDEF',
       start,
       waves: [wave],
       heartRate: 80,
@@ -31,7 +31,7 @@ describe('PCD-01 decoding (IHE PCD Technical Framework Vol. 2 rules)', () => {
     });
     const d = decodePcd01(Buffer.from(text));
     expect(d.header).toMatchObject({ controlId: 'M1', version: '2.6', messageType: 'ORU^R01', enhancedMode: false });
-    expect(d.batch.monitorIdentifier).toBe('0123456789ABCDEF');
+    expect(d.batch.monitorIdentifier).toBe('0223456789ABCDEF');
     expect(d.batch.batchId).toBe('M1');
     expect(d.batch.startTime.toISOString()).toBe(start.toISOString());
     expect(d.batch.channels).toHaveLength(1);

@@ -60,7 +60,7 @@ export const monitorIdentifierSchema = z
   .trim()
   .min(1)
   .max(64)
-  .regex(/^[A-Za-z0-9._:-]+$/, 'letters, digits and . _ : - only (an EUI-64 such as 0123456789ABCDEF, or a serial number)');
+  .regex(/^[A-Za-z0-9._:-]+$/, 'letters, digits and . _ : - only (an EUI-64 such as 0223456789ABCDEF, or a serial number)');
 
 export const createMonitorSchema = z.object({
   identifier: monitorIdentifierSchema,

@@ -73,7 +73,7 @@ describe('Observations as posted conform to FHIR R4', () => {
 
 describe('the other resources posted conform to FHIR R4 (JSON schema)', () => {
   it('the Device per monitor', () => {
-    const d = deviceResource(codes, { identifier: '0123456789ABCDEF', manufacturer: 'Harrowmere Devices (invented)', model: 'HX-40', locationId: 'icu-01' });
+    const d = deviceResource(codes, { identifier: '0223456789ABCDEF', manufacturer: 'Harrowmere Devices (invented)', model: 'HX-40', locationId: 'icu-01' });
     expect(r4SchemaErrors(d)).toEqual([]);
   });
 

@@ -41,7 +41,7 @@ const oru = (o: Observation) =>
     locationIdentifier: 'ICU-01',
     sendingFacility: 'HGH',
     receivingApplication: 'HGH-EHR',
-    monitorIdentifier: '0123456789ABCDEF',
+    monitorIdentifier: '0223456789ABCDEF',
     at: new Date('2026-12-01T10:00:31Z'),
   });
 

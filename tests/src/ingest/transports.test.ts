@@ -19,7 +19,7 @@ beforeAll(async () => {
   gw = await spawnGateway({ databaseUrl: db.url, jwtSecret: randomBytes(32).toString('hex'), mllp: true, workers: true });
   integrator = await signIn(gw.url, DEMO_INTEGRATOR.username, DEMO_INTEGRATOR.password);
   const profile = await integrator.post('/profiles', corvaneProfile('Corvane transports'));
-  for (const identifier of ['0123456789ABCDEF', 'FEDCBA9876543210']) {
+  for (const identifier of ['0223456789ABCDEF', 'FEDCBA9876543210']) {
     const m = await integrator.post('/monitors', { identifier, profileId: profile.body.id });
     keys.set(identifier, (await integrator.post(`/monitors/${m.body.id}/api-key`)).body.apiKey);
   }
@@ -60,7 +60,7 @@ describe('MLLP: IHE PCD-01 messages from an independent HL7 library (node-hl7-cl
       await send(
         buildPcd01({
           controlId: `HL7C-${i}`,
-          equipment: '0123456789ABCDEF',
+          equipment: '0223456789ABCDEF',
           start: new Date(T0 + i * 4_000),
           waves: short,
           heartRate: 78,
@@ -69,16 +69,16 @@ describe('MLLP: IHE PCD-01 messages from an independent HL7 library (node-hl7-cl
         }),
       );
     }
-    await send(buildPcd01({ controlId: 'HL7C-ENH', equipment: '0123456789ABCDEF', start: new Date(T0 + 12_000), waves: short, enhanced: true }));
+    await send(buildPcd01({ controlId: 'HL7C-ENH', equipment: '0223456789ABCDEF', start: new Date(T0 + 12_000), waves: short, enhanced: true }));
     await send(
       buildPcd01({
         controlId: 'HL7C-BAD',
-        equipment: '0123456789ABCDEF',
+        equipment: '0223456789ABCDEF',
         start: new Date(T0 + 16_000),
         waves: [{ code: '123', refId: 'MDC_NOT_IN_PROFILE', sampleRate: 125, samples: [1, 2, 3] }],
       }),
     );
-    await send(buildPcd01({ controlId: 'HL7C-WHO', equipment: '1111111111111111', start: new Date(T0), waves: short }));
+    await send(buildPcd01({ controlId: 'HL7C-WHO', equipment: '1211111111111111', start: new Date(T0), waves: short }));
     await conn.close();
     // HL7 v2: MSA-1 acknowledgement code, MSA-2 = the message's MSH-10; ERR-3 from table 0357.
     const summary = acks.map((m) => [m.get('MSA.1').toString(), m.get('MSA.2').toString()]);

@@ -8,7 +8,7 @@ describe('API key dialog', () => {
     const user = userEvent.setup();
     const writeText = vi.spyOn(navigator.clipboard, 'writeText');
     const onClose = vi.fn();
-    render(<ApiKeyDialog issued={{ apiKey: 'ebk_test_123', keyId: 'k1', createdAt: '2026-12-01T00:00:00Z' }} monitor="0123456789ABCDEF" onClose={onClose} />);
+    render(<ApiKeyDialog issued={{ apiKey: 'ebk_test_123', keyId: 'k1', createdAt: '2026-12-01T00:00:00Z' }} monitor="0223456789ABCDEF" onClose={onClose} />);
     expect(screen.getByTestId('api-key').textContent).toBe('ebk_test_123');
     expect(screen.getByText('Shown once.')).toBeTruthy();
     await user.click(screen.getByRole('button', { name: 'Copy' }));
