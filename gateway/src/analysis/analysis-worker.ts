@@ -21,7 +21,7 @@ import { getSiteSettings } from '../settings/settings.service';
 import { AnalysisWindowRow } from './analysis-window.entity';
 import { storeAssessment } from './assessment-store';
 import { challengeColumns, findChallenge } from './challenge-window';
-import { assembleWindow, contextOfMessage, contextsOfMessages } from './window-assembly';
+import { assembleWindow, contextsOfMessages } from './window-assembly';
 import { transactionWithRetry } from '../db/conflict-retry';
 
 export interface Engine {
@@ -78,10 +78,12 @@ export async function analyseNextWindow(ctx: AppContext, engine: Engine, workerI
       if (!w) return null;
       const monitor = await m.findOneBy(MonitorRow, { id: w.monitorId });
       const profile = monitor?.profileId ? await m.findOneBy(MonitorProfileRow, { id: monitor.profileId }) : null;
-      const { input, latestMessageId, messageIds } = await assembleWindow(m, w.monitorId, w.windowStart, w.windowEnd);
-      input.context = { ...profileContext(profile), ...((await contextOfMessage(m, latestMessageId)) ?? {}) };
-      // A ventilator setting changed between the window's batches: the engine flags it (no steady state).
-      if (messageIds.length > 1) input.settingChanges = ventilatorSettingChanges(await contextsOfMessages(m, messageIds));
+      const { input, messageIds } = await assembleWindow(m, w.monitorId, w.windowStart, w.windowEnd);
+      // The latest batch's context applies; a ventilator setting that changed between the
+      // window's batches is flagged by the engine (no steady state).
+      const contexts = await contextsOfMessages(m, messageIds);
+      input.context = { ...profileContext(profile), ...(contexts.at(-1) ?? {}) };
+      if (contexts.length > 1) input.settingChanges = ventilatorSettingChanges(contexts);
       // Checklist items a person set on the bed (audited) travel as their own context source.
       const bed = monitor?.bedId ? await m.findOneBy(BedRow, { id: monitor.bedId }) : null;
       if (bed?.checklist) input.bedContext = bed.checklist;

@@ -18,9 +18,7 @@ interface SegmentRow {
 
 export interface AssembledWindow {
   input: AnalysisInput;
-  /** Inbound message whose context applies (the latest batch in the window). */
-  latestMessageId: string | null;
-  /** Every inbound message with data in the window, oldest batch first. */
+  /** Every inbound message with data in the window, oldest batch first (the last one's context applies). */
   messageIds: string[];
 }
 
@@ -39,7 +37,6 @@ export async function assembleWindow(db: DataSource | EntityManager, monitorId: 
   const startMs = windowStart.getTime();
   const spanS = (windowEnd.getTime() - startMs) / 1000;
   const channels: AnalysisChannel[] = [];
-  let latest: SegmentRow | null = null;
   const firstSeen = new Map<string, number>();
   for (const role of ['abp', 'pleth', 'paw', 'co2'] as const) {
     const segs = rows.filter((r) => r.role === role);
@@ -54,21 +51,13 @@ export async function assembleWindow(db: DataSource | EntityManager, monitorId: 
       const from = Math.max(0, -offset);
       const to = Math.min(values.length, n - offset);
       if (to > from) out.set(values.subarray(from, to), offset + from);
-      if (!latest || s.start_time > latest.start_time) latest = s;
       const at = s.start_time.getTime();
       if (at < (firstSeen.get(s.inbound_message_id) ?? Infinity)) firstSeen.set(s.inbound_message_id, at);
     }
     channels.push({ role, sampleRate: fs, unit: segs[0]!.unit, samples: out });
   }
   const messageIds = [...firstSeen].sort((a, b) => a[1] - b[1]).map(([id]) => id);
-  return { input: { channels, startTime: windowStart.toISOString() }, latestMessageId: latest?.inbound_message_id ?? null, messageIds };
-}
-
-/** The batch context of a stored message, or undefined. */
-export async function contextOfMessage(db: DataSource | EntityManager, messageId: string | null): Promise<AnalysisContext | undefined> {
-  if (!messageId) return undefined;
-  const [row] = (await db.query('SELECT context FROM inbound_message WHERE id = ?', [messageId])) as { context: string | null }[];
-  return row?.context ? (JSON.parse(row.context) as AnalysisContext) : undefined;
+  return { input: { channels, startTime: windowStart.toISOString() }, messageIds };
 }
 
 /** The batch contexts of stored messages, in the order of `messageIds` (undefined where a batch had none). */
